@@ -1,0 +1,2 @@
+//! Augmentation over a given set of lattice moves.
+#![deny(missing_docs)]

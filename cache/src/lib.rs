@@ -1,0 +1,2 @@
+//! On-disk store of test sets.
+#![deny(missing_docs)]

@@ -1,0 +1,38 @@
+//! The one error type of the `kernstep` library.
+//!
+//! Outcomes such as "infeasible" or "unbounded" are statuses, never errors; an [`Error`] means
+//! bad input, an arithmetic limit, I/O or a damaged store.
+
+use std::path::PathBuf;
+
+/// Result alias used throughout the library.
+pub type Result<T> = std::result::Result<T, Error>;
+
+/// Everything that can go wrong in the library, with the context needed to act on it.
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// An input value is invalid; `field` names where (for example `matrix[2][5]`).
+    #[error("{file}: {field}: {message}")]
+    Input {
+        /// The file (or `<argument>`) the value came from.
+        file: String,
+        /// The field, row and column, or line that holds the bad value.
+        field: String,
+        /// What was expected.
+        message: String,
+    },
+    /// Two inputs that must agree in size do not.
+    #[error("dimension mismatch: {0}")]
+    Dimension(String),
+    /// An integer result does not fit the machine integer width used at this step.
+    #[error("integer overflow in {0}; the entries are too large for this computation")]
+    Overflow(String),
+    /// Reading or writing a file failed.
+    #[error("{path}: {source}")]
+    Io {
+        /// The file concerned.
+        path: PathBuf,
+        /// The underlying error.
+        source: std::io::Error,
+    },
+}

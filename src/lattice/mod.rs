@@ -1,0 +1,9 @@
+//! Exact integer linear algebra: rank, determinants, Hermite normal form, the kernel lattice,
+//! integer solutions of `A x = b` and the canonical row-space key.
+//!
+//! Everything here runs on `num_bigint::BigInt`, so no intermediate value can overflow; results
+//! are converted back to `i64` with an explicit [`crate::Error::Overflow`] when they do not fit.
+
+mod bareiss;
+
+pub use bareiss::{det, echelon, rank, Echelon};
