@@ -5,5 +5,10 @@
 //! are converted back to `i64` with an explicit [`crate::Error::Overflow`] when they do not fit.
 
 mod bareiss;
+mod convert;
+mod hermite;
+mod lll;
 
 pub use bareiss::{det, echelon, rank, Echelon};
+pub use convert::{to_big_vec, to_i64_vec};
+pub use hermite::HermiteForm;
