@@ -12,7 +12,9 @@
 //!
 //! The form is built by integer column operations on `A` stacked over the identity; each row is
 //! cleared by a Euclid-style loop that always divides by the entry of least magnitude and
-//! rounds to the nearest quotient, which keeps `U` far smaller than naive extended-gcd steps.
+//! rounds to the nearest quotient. The first `r` columns of `U` may still grow large; once the
+//! kernel basis is LLL-reduced they are size-reduced against it (adding kernel vectors leaves
+//! `H` unchanged and `U` unimodular), so `U` and every solution built from it stay small.
 
 use num_bigint::BigInt;
 use num_integer::Integer;
@@ -109,14 +111,18 @@ impl HermiteForm {
                 pivot_rows.push(i);
             }
         }
-        let (h, u): (Vec<_>, Vec<_>) = cols
+        let (h, mut u): (Vec<_>, Vec<_>) = cols
             .into_iter()
             .map(|mut c| {
                 let u = c.split_off(m);
                 (c, u)
             })
             .unzip();
-        let reduced = ReducedBasis::new(u[pivot_rows.len()..].to_vec());
+        let r = pivot_rows.len();
+        let reduced = ReducedBasis::new(u[r..].to_vec());
+        for c in &mut u[..r] {
+            *c = reduced.size_reduce(c);
+        }
         Self {
             rows: m,
             h,

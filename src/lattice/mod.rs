@@ -8,7 +8,11 @@ mod bareiss;
 mod convert;
 mod hermite;
 mod lll;
+mod reduction;
+mod solve;
 
 pub use bareiss::{det, echelon, rank, Echelon};
 pub use convert::{to_big_vec, to_i64_vec};
 pub use hermite::HermiteForm;
+pub use reduction::reduced_kernel_basis;
+pub use solve::{Certificate, IntegerSolution};
