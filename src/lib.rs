@@ -11,6 +11,7 @@
 //! know nothing of this crate. The library never prints.
 #![deny(missing_docs)]
 
+pub mod completion;
 pub mod error;
 pub mod lattice;
 pub mod matrix;

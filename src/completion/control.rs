@@ -1,0 +1,119 @@
+//! Limits, cancellation and progress reporting for long completions.
+//!
+//! The completion consults a [`Control`] between batches of work (never inside the inner
+//! loops), so a stop is clean: the caller gets a [`StopReason`], not a half-built set.
+
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::time::{Duration, Instant};
+
+/// Why a completion stopped before finishing.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum StopReason {
+    /// The working set grew past the element limit.
+    ElementLimit,
+    /// The time limit ran out.
+    TimeLimit,
+    /// The caller asked to stop (for example on Ctrl-C).
+    Cancelled,
+}
+
+/// A snapshot of a running completion, passed to the progress callback.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Progress {
+    /// Stage number (0 is the projected start set), of `stages` in all.
+    pub stage: usize,
+    /// Number of stages.
+    pub stages: usize,
+    /// Norm level of the candidate sums being processed.
+    pub level: u64,
+    /// Members of the working set (each sign counted).
+    pub elements: usize,
+    /// Time since the completion started.
+    pub elapsed: Duration,
+}
+
+/// Limits and hooks consulted by a running completion.
+pub struct Control<'a> {
+    start: Instant,
+    time_limit: Option<Duration>,
+    max_elements: Option<usize>,
+    cancel: Option<&'a AtomicBool>,
+    progress: Option<&'a (dyn Fn(&Progress) + Sync)>,
+}
+
+impl Default for Control<'_> {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl<'a> Control<'a> {
+    /// No limits, no hooks; the clock starts now.
+    pub fn new() -> Self {
+        Self {
+            start: Instant::now(),
+            time_limit: None,
+            max_elements: None,
+            cancel: None,
+            progress: None,
+        }
+    }
+
+    /// Stop with [`StopReason::TimeLimit`] after `limit` (default: no limit).
+    pub fn time_limit(mut self, limit: Duration) -> Self {
+        self.time_limit = Some(limit);
+        self
+    }
+
+    /// Stop with [`StopReason::ElementLimit`] once the working set exceeds `max` (default: none).
+    pub fn max_elements(mut self, max: usize) -> Self {
+        self.max_elements = Some(max);
+        self
+    }
+
+    /// Stop with [`StopReason::Cancelled`] once `flag` is set (default: never).
+    pub fn cancel_flag(mut self, flag: &'a AtomicBool) -> Self {
+        self.cancel = Some(flag);
+        self
+    }
+
+    /// Call `report` between batches (default: no reporting).
+    pub fn progress(mut self, report: &'a (dyn Fn(&Progress) + Sync)) -> Self {
+        self.progress = Some(report);
+        self
+    }
+
+    /// Time since the clock started.
+    pub fn elapsed(&self) -> Duration {
+        self.start.elapsed()
+    }
+
+    /// Reports progress and tells whether the completion must stop now.
+    pub(crate) fn checkpoint(
+        &self,
+        stage: usize,
+        stages: usize,
+        level: u64,
+        elements: usize,
+    ) -> Option<StopReason> {
+        if let Some(report) = self.progress {
+            report(&Progress {
+                stage,
+                stages,
+                level,
+                elements,
+                elapsed: self.elapsed(),
+            });
+        }
+        if self.cancel.is_some_and(|f| f.load(Ordering::Relaxed)) {
+            return Some(StopReason::Cancelled);
+        }
+        if self.max_elements.is_some_and(|m| elements > m) {
+            return Some(StopReason::ElementLimit);
+        }
+        if self.time_limit.is_some_and(|t| self.elapsed() > t) {
+            return Some(StopReason::TimeLimit);
+        }
+        None
+    }
+}

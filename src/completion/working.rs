@@ -1,0 +1,117 @@
+//! The working set of a completion: stored vectors, their negations and the reducer index.
+//!
+//! Between stages a set is a list of [`Orbit`]s (a representative, and whether its negation
+//! belongs to the set too). Inside a stage every member is stored explicitly, with a link to
+//! its negation when that is a member, so pairs can be formed by plain addition.
+
+use super::reducer::{max_multiple, Reducer};
+use super::store::{negate, sub_scaled, Entry, VecStore};
+use crate::error::Result;
+
+/// A `±` class of lattice vectors: `rep`, and `-rep` as well when `symmetric`.
+#[derive(Clone, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub(crate) struct Orbit {
+    /// The representative.
+    pub rep: Vec<Entry>,
+    /// Whether `-rep` is a member too.
+    pub symmetric: bool,
+}
+
+/// Members of a set during one stage, indexed for reduction on the stage's components.
+pub(crate) struct WorkingSet {
+    pub store: VecStore,
+    pub mirror: Vec<Option<u32>>,
+    pub reducer: Reducer,
+}
+
+impl WorkingSet {
+    /// An empty set of vectors with `width` entries, compared on `comps`.
+    pub(crate) fn new(width: usize, comps: Vec<usize>) -> Self {
+        Self {
+            store: VecStore::new(width),
+            mirror: Vec::new(),
+            reducer: Reducer::new(comps),
+        }
+    }
+
+    /// Number of stored members (a symmetric orbit counts twice).
+    pub(crate) fn len(&self) -> usize {
+        self.store.len()
+    }
+
+    /// Adds an orbit; returns the ids of `rep` and, if symmetric, of `-rep`.
+    pub(crate) fn add(&mut self, rep: &[Entry], symmetric: bool) -> (u32, Option<u32>) {
+        let a = self.store.push(rep);
+        self.mirror.push(None);
+        self.reducer.insert(&self.store, a);
+        if !symmetric {
+            return (a, None);
+        }
+        let b = self.store.push(&negate(rep));
+        self.mirror.push(Some(a));
+        self.mirror[a as usize] = Some(b);
+        self.reducer.insert(&self.store, b);
+        (a, Some(b))
+    }
+
+    /// Reduces `w` to normal form: subtracts members `h ⊑ w` (on the stage's components)
+    /// as long as one exists. Returns `true` if `w` became zero there.
+    pub(crate) fn reduce(&self, w: &mut [Entry]) -> Result<bool> {
+        let comps = self.reducer.comps();
+        while comps.iter().any(|&c| w[c] != 0) {
+            let Some(h) = self.reducer.find(&self.store, w, None) else {
+                return Ok(false);
+            };
+            let h = self.store.get(h);
+            let k = max_multiple(h, w, comps);
+            sub_scaled(w, h, k)?;
+        }
+        Ok(true)
+    }
+
+    /// Whether the unordered pair `{a, b}` is the one to process among `{a, b}` and its mirror
+    /// `{-a, -b}` (whose sum is the negated sum), and is not `{a, -a}`.
+    pub(crate) fn owns_pair(&self, a: u32, b: u32) -> bool {
+        match (self.mirror[a as usize], self.mirror[b as usize]) {
+            (Some(ma), _) if ma == b => false,
+            (Some(ma), Some(mb)) => (a.min(b), a.max(b)) <= (ma.min(mb), ma.max(mb)),
+            _ => true,
+        }
+    }
+
+    /// The members that are ⊑-minimal on the stage's components, as orbits, each once.
+    pub(crate) fn minimal_orbits(&self) -> Vec<Orbit> {
+        self.orbits_of(|id| {
+            self.reducer
+                .find(&self.store, self.store.get(id), Some(id))
+                .is_none()
+        })
+    }
+
+    /// The members satisfying `keep`, as orbits, each once.
+    pub(crate) fn orbits_where(&self, keep: impl Fn(&[Entry]) -> bool) -> Vec<Orbit> {
+        self.orbits_of(|id| keep(self.store.get(id)))
+    }
+
+    fn orbits_of(&self, keep: impl Fn(u32) -> bool) -> Vec<Orbit> {
+        let mut out = Vec::new();
+        for id in 0..self.len() as u32 {
+            let mirror = self.mirror[id as usize];
+            if mirror.is_some_and(|m| m < id) {
+                continue;
+            }
+            let keep_rep = keep(id);
+            let keep_neg = mirror.is_some_and(&keep);
+            let rep = match (keep_rep, keep_neg, mirror) {
+                (true, _, _) => self.store.get(id),
+                (false, true, Some(m)) => self.store.get(m),
+                _ => continue,
+            };
+            out.push(Orbit {
+                rep: rep.to_vec(),
+                symmetric: keep_rep && keep_neg,
+            });
+        }
+        out
+    }
+}

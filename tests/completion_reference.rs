@@ -1,0 +1,102 @@
+//! Completion against published test sets and standard counts.
+
+mod completion_support;
+
+use completion_support::*;
+use kernstep::completion::{Method, Request};
+
+/// Number of cycles of `K_{r,s}`: `Σ_{k>=2} C(r,k) C(s,k) k! (k-1)! / 2` (standard count; for
+/// `r = s` OEIS A070968). For the transportation matrix these cycles are the Graver basis
+/// (totally unimodular matrix: circuits = Graver basis).
+fn bipartite_cycles(r: u64, s: u64) -> u64 {
+    let binom = |n: u64, k: u64| (0..k).fold(1u64, |acc, i| acc * (n - i) / (i + 1));
+    let fact = |k: u64| (1..=k).product::<u64>();
+    (2..=r.min(s))
+        .map(|k| binom(r, k) * binom(s, k) * fact(k) * fact(k - 1) / 2)
+        .sum()
+}
+
+#[test]
+fn cycle_count_formula_matches_its_quoted_values() {
+    // Values quoted with the formula: 2x3 -> 3, 3x3 -> 15, 3x4 -> 42, 4x4 -> 204, 4x5 -> 660,
+    // 5x5 -> 3940, 6x6 -> 113865.
+    let quoted = [
+        (2, 3, 3),
+        (3, 3, 15),
+        (3, 4, 42),
+        (4, 4, 204),
+        (4, 5, 660),
+        (5, 5, 3940),
+    ];
+    for (r, s, count) in quoted {
+        assert_eq!(bipartite_cycles(r, s), count);
+    }
+    assert_eq!(bipartite_cycles(6, 6), 113_865);
+}
+
+#[test]
+fn transport_graver_bases_are_the_cycles() {
+    for (r, s) in [(2, 3), (3, 3), (3, 4), (4, 4), (4, 5)] {
+        let a = transport(r, s);
+        let set = graver(&a, Method::ProjectAndLift);
+        assert_eq!(
+            set.elements.len() as u64,
+            bipartite_cycles(r as u64, s as u64),
+            "K_{{{r},{s}}}"
+        );
+        assert_valid(&a, &Request::graver(a.cols()).signs, &set);
+    }
+}
+
+#[test]
+fn twisted_cubic() {
+    // Sturmfels, Gröbner Bases and Convex Polytopes (1996): the Graver basis of
+    // [[1,1,1,1],[0,1,2,3]] has these 5 elements.
+    let a = matrix(&[&[1, 1, 1, 1], &[0, 1, 2, 3]]);
+    let mut expected = vec![
+        vec![1, -2, 1, 0],
+        vec![0, 1, -2, 1],
+        vec![1, -1, -1, 1],
+        vec![2, -3, 0, 1],
+        vec![1, 0, -3, 2],
+    ];
+    expected.sort();
+    for method in [Method::ProjectAndLift, Method::Pottier] {
+        assert_eq!(sorted(&graver(&a, method)), expected, "{method:?}");
+    }
+}
+
+#[test]
+fn graver_complexity_of_the_twisted_cubic_is_six() {
+    // Hemmecke and Nairn, "On the Gröbner complexity of matrices" (2009): the largest l1 norm
+    // in the Graver basis of the matrix whose columns are the twisted cubic's Graver basis is 6.
+    let g = matrix(&[
+        &[1, 0, 1, 2, 1],
+        &[-2, 1, -1, -3, 0],
+        &[1, -2, -1, 0, -3],
+        &[0, 1, 1, 1, 2],
+    ]);
+    let set = graver(&g, Method::ProjectAndLift);
+    let largest = set
+        .elements
+        .iter()
+        .map(|e| e.iter().map(|x| x.abs()).sum::<i64>())
+        .max();
+    assert_eq!(largest, Some(6));
+    assert_eq!(sorted(&set), sorted(&graver(&g, Method::Pottier)));
+}
+
+#[test]
+fn primitive_partition_identities() {
+    // Diaconis, Graham and Sturmfels, "Primitive partition identities" (1996): the Graver basis
+    // of (1 2 ... n) has 5, 15, 47, 102 elements for n = 3..6, largest l1 norm 2n - 1.
+    for (n, count) in [(3, 5), (4, 15), (5, 47), (6, 102)] {
+        let set = graver(&primitive_partition(n), Method::ProjectAndLift);
+        assert_eq!(set.elements.len(), count, "n = {n}");
+        let largest = set
+            .elements
+            .iter()
+            .map(|e| e.iter().map(|x| x.abs()).sum::<i64>());
+        assert_eq!(largest.max(), Some(2 * n as i64 - 1));
+    }
+}

@@ -1,0 +1,130 @@
+//! Matrices and oracles shared by the completion tests.
+
+use kernstep::completion::{complete_kernel, Completion, Control, Method, MoveSet, Request, Sign};
+use kernstep::IntMatrix;
+
+/// Node-arc incidence matrix of the complete bipartite digraph `K_{r,s}` (the `r x s`
+/// transportation matrix): variable `(i, k)` has `+1` in supply row `i` and `+1` in demand row
+/// `r + k`.
+pub fn transport(r: usize, s: usize) -> IntMatrix {
+    let mut a = IntMatrix::zeros(r + s, r * s);
+    for i in 0..r {
+        for k in 0..s {
+            a.set(i, i * s + k, 1);
+            a.set(r + k, i * s + k, 1);
+        }
+    }
+    a
+}
+
+/// The one-row matrix `(1 2 ... n)`.
+pub fn primitive_partition(n: usize) -> IntMatrix {
+    IntMatrix::from_rows(&[(1..=n as i64).collect()]).unwrap()
+}
+
+/// Builds a matrix from literal rows.
+pub fn matrix(rows: &[&[i64]]) -> IntMatrix {
+    IntMatrix::from_rows(&rows.iter().map(|r| r.to_vec()).collect::<Vec<_>>()).unwrap()
+}
+
+/// Runs a completion to the end and returns the set.
+pub fn run(a: &IntMatrix, request: &Request) -> MoveSet {
+    match complete_kernel(a, request, &Control::new()).unwrap() {
+        Completion::Finished(set) => set,
+        Completion::Stopped(reason) => panic!("completion stopped: {reason:?}"),
+    }
+}
+
+/// The Graver basis by the given method.
+pub fn graver(a: &IntMatrix, method: Method) -> MoveSet {
+    let mut request = Request::graver(a.cols());
+    request.method = method;
+    run(a, &request)
+}
+
+/// `u ⊑ v`: same signs where `u` is nonzero and no larger in absolute value.
+pub fn conformal(u: &[i64], v: &[i64]) -> bool {
+    u.iter()
+        .zip(v)
+        .all(|(&x, &y)| x * y >= 0 && x.abs() <= y.abs())
+}
+
+/// Whether `v` respects the sign pattern.
+pub fn fits_signs(v: &[i64], signs: &[Sign]) -> bool {
+    v.iter().zip(signs).all(|(&x, s)| match s {
+        Sign::Free => true,
+        Sign::NonNegative => x >= 0,
+        Sign::NonPositive => x <= 0,
+    })
+}
+
+/// Orients a vector of a symmetric pair so that its first nonzero entry is positive.
+pub fn orient(v: &[i64]) -> Vec<i64> {
+    match v.iter().find(|&&x| x != 0) {
+        Some(&x) if x < 0 => v.iter().map(|&y| -y).collect(),
+        _ => v.to_vec(),
+    }
+}
+
+/// Independent oracle: every nonzero `x` with `A x = 0`, `|x_i| <= bound` and the signs,
+/// kept if no other such vector is ⊑ it, one per `±` pair when both signs are allowed.
+/// Exact whenever `bound` is at least the largest entry of any minimal element.
+pub fn brute_force_minimal(a: &IntMatrix, signs: &[Sign], bound: i64) -> Vec<Vec<i64>> {
+    let n = a.cols();
+    let mut kernel = Vec::new();
+    let mut x = vec![-bound; n];
+    loop {
+        if x.iter().any(|&v| v != 0)
+            && fits_signs(&x, signs)
+            && a.mul_vec(&x).unwrap().iter().all(|&v| v == 0)
+        {
+            kernel.push(x.clone());
+        }
+        let Some(i) = (0..n).find(|&i| x[i] < bound) else {
+            break;
+        };
+        x[i] += 1;
+        x[..i].iter_mut().for_each(|v| *v = -bound);
+    }
+    let mut minimal: Vec<Vec<i64>> = kernel
+        .iter()
+        .filter(|v| !kernel.iter().any(|u| u != *v && conformal(u, v)))
+        .map(|v| {
+            let neg: Vec<i64> = v.iter().map(|&y| -y).collect();
+            if fits_signs(&neg, signs) {
+                orient(v)
+            } else {
+                v.clone()
+            }
+        })
+        .collect();
+    minimal.sort();
+    minimal.dedup();
+    minimal
+}
+
+/// The elements of a set, sorted, for comparison with an oracle.
+pub fn sorted(set: &MoveSet) -> Vec<Vec<i64>> {
+    let mut e = set.elements.clone();
+    e.sort();
+    e
+}
+
+/// Checks the invariants every returned element must satisfy: in the kernel, within the signs,
+/// primitive, and no other element ⊑ it.
+pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &MoveSet) {
+    for g in &set.elements {
+        assert!(
+            a.mul_vec(g).unwrap().iter().all(|&v| v == 0),
+            "{g:?} not in kernel"
+        );
+        assert!(fits_signs(g, signs), "{g:?} violates the signs");
+        let gcd = g.iter().fold(0i64, |acc, &x| num_integer::gcd(acc, x));
+        assert_eq!(gcd, 1, "{g:?} is not primitive");
+        for h in &set.elements {
+            let neg: Vec<i64> = h.iter().map(|&x| -x).collect();
+            assert!(h == g || !conformal(h, g), "{h:?} ⊑ {g:?}");
+            assert!(!fits_signs(&neg, signs) || neg == *g || !conformal(&neg, g));
+        }
+    }
+}
