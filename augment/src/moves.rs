@@ -1,0 +1,160 @@
+//! Move sets: flat row-major storage plus a sparse form for fast evaluation.
+//!
+//! A [`MoveSet`] holds one vector of each `±` pair; the solver tries both signs. Each move is
+//! stored twice: densely (row-major, `width` entries per move, for callers and certificates)
+//! and sparsely (support indices and values, so that evaluating a move touches only its
+//! nonzeros). The set also records its [`Coverage`], which decides how honest "optimal" is.
+
+use serde::{Deserialize, Serialize};
+
+use crate::error::{overflow, AugmentError, Result};
+
+/// What the caller knows about the completeness of its move set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum Coverage {
+    /// The full Graver basis (or a superset of it within the lattice): a test set for every
+    /// right-hand side, bound and separable convex objective.
+    Complete,
+    /// Every Graver element `g` with `|g_i| <= u_i - l_i` for the problem's box is present: a
+    /// test set for feasible points inside that box. Not enough to prove a box empty.
+    BoxValid,
+    /// Every Graver element of l1 norm at most `N` is present: a point without an improving
+    /// move is only optimal among moves up to that norm.
+    NormTruncated(u64),
+}
+
+/// The two directions in which a stored move is tried; `Plus` is tried first.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+pub enum Sign {
+    /// The move as stored.
+    Plus,
+    /// The negated move.
+    Minus,
+}
+
+impl Sign {
+    /// Both signs in tie-breaking order.
+    pub const BOTH: [Sign; 2] = [Sign::Plus, Sign::Minus];
+
+    /// `+1` or `-1`.
+    pub const fn factor(self) -> i64 {
+        match self {
+            Sign::Plus => 1,
+            Sign::Minus => -1,
+        }
+    }
+}
+
+/// A validated set of nonzero integer moves of a common width, with its coverage.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct MoveSet {
+    width: usize,
+    dense: Vec<i64>,
+    starts: Vec<usize>,
+    indices: Vec<usize>,
+    values: Vec<i64>,
+    norms: Vec<i64>,
+    coverage: Coverage,
+}
+
+impl MoveSet {
+    /// Builds a set from row-major data (`width` entries per move).
+    ///
+    /// Rejects ragged data and zero moves; the l1 norm of every move must fit in `i64`.
+    pub fn new(width: usize, dense: Vec<i64>, coverage: Coverage) -> Result<Self> {
+        if width == 0 && !dense.is_empty() || width != 0 && dense.len() % width != 0 {
+            return Err(AugmentError::RaggedMoves {
+                len: dense.len(),
+                width,
+            });
+        }
+        let count = dense.len().checked_div(width).unwrap_or(0);
+        let mut set = MoveSet {
+            width,
+            starts: Vec::with_capacity(count + 1),
+            indices: Vec::new(),
+            values: Vec::new(),
+            norms: Vec::with_capacity(count),
+            dense,
+            coverage,
+        };
+        set.starts.push(0);
+        for index in 0..count {
+            set.index_row(index)?;
+        }
+        Ok(set)
+    }
+
+    /// Builds a set from one vector per move; every vector must have length `width`.
+    pub fn from_rows(width: usize, rows: &[Vec<i64>], coverage: Coverage) -> Result<Self> {
+        let mut dense = Vec::with_capacity(rows.len() * width);
+        for row in rows {
+            if row.len() != width {
+                return Err(AugmentError::Dimension {
+                    what: "move",
+                    expected: width,
+                    found: row.len(),
+                });
+            }
+            dense.extend_from_slice(row);
+        }
+        MoveSet::new(width, dense, coverage)
+    }
+
+    /// Appends the sparse form and the norm of row `index`.
+    fn index_row(&mut self, index: usize) -> Result<()> {
+        let row = &self.dense[index * self.width..(index + 1) * self.width];
+        let mut norm: i64 = 0;
+        for (i, &v) in row.iter().enumerate() {
+            if v != 0 {
+                self.indices.push(i);
+                self.values.push(v);
+                norm = norm
+                    .checked_add(v.checked_abs().ok_or(overflow("taking a move's l1 norm"))?)
+                    .ok_or(overflow("taking a move's l1 norm"))?;
+            }
+        }
+        if norm == 0 {
+            return Err(AugmentError::ZeroMove { index });
+        }
+        self.norms.push(norm);
+        self.starts.push(self.indices.len());
+        Ok(())
+    }
+
+    /// Number of variables per move.
+    pub fn width(&self) -> usize {
+        self.width
+    }
+
+    /// Number of stored moves (one per `±` pair).
+    pub fn len(&self) -> usize {
+        self.norms.len()
+    }
+
+    /// True when the set holds no move.
+    pub fn is_empty(&self) -> bool {
+        self.norms.is_empty()
+    }
+
+    /// What the caller declared about the completeness of the set.
+    pub fn coverage(&self) -> Coverage {
+        self.coverage
+    }
+
+    /// Move `index` as a dense vector.
+    pub fn row(&self, index: usize) -> &[i64] {
+        &self.dense[index * self.width..(index + 1) * self.width]
+    }
+
+    /// Support (indices of nonzero entries, increasing) and the matching values of move `index`.
+    pub fn support(&self, index: usize) -> (&[usize], &[i64]) {
+        let range = self.starts[index]..self.starts[index + 1];
+        (&self.indices[range.clone()], &self.values[range])
+    }
+
+    /// The l1 norm of move `index`.
+    pub fn norm(&self, index: usize) -> i64 {
+        self.norms[index]
+    }
+}

@@ -1,0 +1,233 @@
+//! The two-phase augmentation loop.
+//!
+//! Phase I minimises the violation `sum_i dist(x_i, [l_i, u_i])` from the start point, with
+//! any point allowed along the way; phase II then minimises the objective, keeping the bounds.
+//! Both phases use the same moves and the same selection rule. Every step changes `x` by a
+//! multiple of a move, so `A x` stays what it was at the start point.
+
+use std::time::Instant;
+
+use crate::error::{overflow, AugmentError, Result};
+use crate::moves::{Coverage, MoveSet};
+use crate::objective::Separable;
+use crate::options::Options;
+use crate::problem::Problem;
+use crate::search::{LineSearch, Step};
+use crate::select::{linear_slopes, Candidate, Scan};
+use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
+
+/// Solves `problem` by augmentation from `x0` with the given moves.
+///
+/// `x0` must satisfy `A x0 = b` for the caller's matrix (the moves must lie in its kernel); it
+/// may violate the bounds. Any such point works, so a warm start is simply yesterday's optimum
+/// plus a particular solution of `A z = b - b_prev`.
+pub fn solve(
+    problem: &Problem,
+    moves: &MoveSet,
+    x0: &[i64],
+    options: &Options,
+) -> Result<Solution> {
+    solve_with_cancel(problem, moves, x0, options, &|| false)
+}
+
+/// Like [`solve`], consulting `cancel` before every step; `true` stops with
+/// [`Status::Cancelled`] and the point reached so far.
+pub fn solve_with_cancel(
+    problem: &Problem,
+    moves: &MoveSet,
+    x0: &[i64],
+    options: &Options,
+    cancel: &dyn Fn() -> bool,
+) -> Result<Solution> {
+    for (what, found) in [("x0", x0.len()), ("move width", moves.width())] {
+        if found != problem.len() {
+            return Err(AugmentError::Dimension {
+                what,
+                expected: problem.len(),
+                found,
+            });
+        }
+    }
+    let started = Instant::now();
+    let mut run = Run {
+        problem,
+        moves,
+        options,
+        cancel,
+        x: x0.to_vec(),
+        objective: None,
+        steps: [0, 0],
+        trace: options.records_trace().then(Vec::new),
+    };
+    let status = run.execute()?;
+    Ok(Solution {
+        status,
+        violation: problem.violation(&run.x)?,
+        x: run.x,
+        objective: run.objective,
+        feasibility_steps: run.steps[0],
+        optimality_steps: run.steps[1],
+        elapsed: started.elapsed(),
+        trace: run.trace,
+    })
+}
+
+/// The state of one solve.
+struct Run<'a> {
+    problem: &'a Problem,
+    moves: &'a MoveSet,
+    options: &'a Options,
+    cancel: &'a dyn Fn() -> bool,
+    x: Vec<i64>,
+    objective: Option<i128>,
+    steps: [u64; 2],
+    trace: Option<Vec<TraceStep>>,
+}
+
+/// How one phase's descent ended.
+enum Outcome {
+    /// No move improves; the final value of the function.
+    Stationary(i128),
+    /// An improving move can be applied without limit.
+    Ray(Candidate),
+    /// The step limit or the cancellation hook stopped the phase.
+    Stopped(Status),
+}
+
+impl Run<'_> {
+    fn execute(&mut self) -> Result<Status> {
+        if let Some(variable) = self.problem.empty_range() {
+            return Ok(Status::Infeasible(InfeasibleReason::EmptyRange {
+                variable,
+            }));
+        }
+        let violation = self.problem.violation(&self.x)?;
+        let function = self.problem.violation_function();
+        match self.descend(&function, Phase::Feasibility, violation, None)? {
+            Outcome::Stopped(status) => return Ok(status),
+            Outcome::Stationary(0) => {}
+            Outcome::Stationary(left) => return Ok(Status::Infeasible(self.infeasible(left))),
+            // The violation is bounded below by 0, so no step along it is unbounded.
+            Outcome::Ray(_) => unreachable!("the violation has no ray of descent"),
+        }
+        let objective = self.problem.objective();
+        let value = objective.value(&self.x)?;
+        self.objective = Some(value);
+        let slopes = objective
+            .linear_costs()
+            .map(|costs| linear_slopes(costs, self.moves))
+            .transpose()?;
+        Ok(
+            match self.descend(objective, Phase::Optimality, value, slopes.as_deref())? {
+                Outcome::Stopped(status) => status,
+                Outcome::Stationary(_) => match self.moves.coverage() {
+                    Coverage::Complete | Coverage::BoxValid => Status::Optimal,
+                    Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
+                },
+                Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
+            },
+        )
+    }
+
+    /// Augments until no move improves `f` (phase I also stops at violation 0).
+    fn descend<F: Separable>(
+        &mut self,
+        f: &F,
+        phase: Phase,
+        mut value: i128,
+        slopes: Option<&[i128]>,
+    ) -> Result<Outcome> {
+        let bounds = (phase == Phase::Optimality).then_some(self.problem);
+        loop {
+            if phase == Phase::Feasibility && value == 0 {
+                return Ok(Outcome::Stationary(0));
+            }
+            if (self.cancel)() {
+                return Ok(Outcome::Stopped(Status::Cancelled));
+            }
+            let scan = Scan {
+                search: LineSearch {
+                    f,
+                    x: &self.x,
+                    powers_of_two: self.options.uses_powers_of_two(),
+                },
+                moves: self.moves,
+                bounds,
+                slopes,
+                rule: self.options.selected_rule(),
+            };
+            let Some(found) = scan.select(self.options.is_parallel())? else {
+                return Ok(Outcome::Stationary(value));
+            };
+            let Step::Finite { length, gain } = found.step else {
+                return Ok(Outcome::Ray(found));
+            };
+            if self.steps[0] + self.steps[1] >= self.options.step_limit() {
+                return Ok(Outcome::Stopped(Status::StepLimit));
+            }
+            self.apply(&found, length)?;
+            let after = value - gain;
+            self.record(phase, &found, length, value, after);
+            value = after;
+            if phase == Phase::Optimality {
+                self.objective = Some(value);
+            }
+        }
+    }
+
+    /// `x += length * sign * g`.
+    fn apply(&mut self, found: &Candidate, length: i64) -> Result<()> {
+        let (indices, values) = self.moves.support(found.index);
+        let factor = length
+            .checked_mul(found.sign.factor())
+            .ok_or(overflow("scaling a move by its step length"))?;
+        for (&i, &v) in indices.iter().zip(values) {
+            self.x[i] = v
+                .checked_mul(factor)
+                .and_then(|d| self.x[i].checked_add(d))
+                .ok_or(overflow("applying a step"))?;
+        }
+        Ok(())
+    }
+
+    fn record(&mut self, phase: Phase, found: &Candidate, length: i64, before: i128, after: i128) {
+        self.steps[usize::from(phase == Phase::Optimality)] += 1;
+        if let Some(trace) = &mut self.trace {
+            trace.push(TraceStep {
+                phase,
+                move_index: found.index,
+                sign: found.sign,
+                length,
+                before,
+                after,
+                gain: before - after,
+            });
+        }
+    }
+
+    /// Why phase I could not reach violation 0, honest about the coverage of the set.
+    fn infeasible(&self, violation: i128) -> InfeasibleReason {
+        match self.moves.coverage() {
+            Coverage::Complete => InfeasibleReason::NoLatticePointInBox {
+                min_violation: violation,
+            },
+            Coverage::BoxValid | Coverage::NormTruncated(_) => {
+                InfeasibleReason::Unproven { violation }
+            }
+        }
+    }
+
+    fn ray(&self, found: &Candidate) -> Ray {
+        let factor = found.sign.factor();
+        Ray {
+            move_index: found.index,
+            sign: found.sign,
+            direction: self
+                .moves
+                .row(found.index)
+                .iter()
+                .map(|&v| v * factor)
+                .collect(),
+        }
+    }
+}
