@@ -11,10 +11,12 @@
 //! know nothing of this crate. The library never prints.
 #![deny(missing_docs)]
 
+pub mod analysis;
 pub mod completion;
 pub mod error;
 pub mod lattice;
 pub mod matrix;
+pub mod model;
 
 pub use error::{Error, Result};
 pub use matrix::IntMatrix;

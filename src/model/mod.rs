@@ -1,0 +1,106 @@
+//! Model files: `min cost.x, matrix x = rhs, lower <= x <= upper, x integer`, read from JSON or
+//! TOML with one schema.
+//!
+//! Keys: `matrix` (rows of integers, required), `rhs` (one integer per row, required), `cost`
+//! (one integer per column; omitted means all zero), `lower` and `upper` (one bound per
+//! column; an omitted array means every variable is unbounded on that side; an entry that is
+//! `null` (JSON only), `"-inf"` in `lower` or `"inf"` in `upper` is unbounded), and optional
+//! `names = { variables = [...], rows = [...] }` (generated as `x1..`, `r1..` when absent).
+//! Matrix entries are limited to `|a| <= 2^31` ([`MATRIX_ENTRY_LIMIT`]) so that the lattice
+//! work starts from moderate numbers; every other value to `|v| <= 2^62` ([`VALUE_LIMIT`]).
+//! Integers must be written as integer literals (`2`, not `2.0`).
+//!
+//! Every error is an [`Error::Input`] that names the file and the exact field, with row and
+//! column (for example `matrix[1][2]: 1.5 is not an integer`).
+
+mod node;
+mod validate;
+
+use std::path::Path;
+
+use crate::error::{Error, Result};
+use crate::matrix::IntMatrix;
+
+/// Largest absolute value accepted for a matrix entry: `2^31`.
+pub const MATRIX_ENTRY_LIMIT: i128 = 1 << 31;
+/// Largest absolute value accepted for a right-hand side, cost or bound: `2^62`.
+pub const VALUE_LIMIT: i128 = 1 << 62;
+
+/// The syntax a model file is written in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ModelKind {
+    /// JSON (`.json`).
+    Json,
+    /// TOML (`.toml`).
+    Toml,
+}
+
+impl ModelKind {
+    /// The kind named by a file's extension (case-insensitive), if it is a known one.
+    pub fn from_path(path: &Path) -> Option<Self> {
+        let ext = path.extension()?.to_str()?.to_ascii_lowercase();
+        match ext.as_str() {
+            "json" => Some(Self::Json),
+            "toml" => Some(Self::Toml),
+            _ => None,
+        }
+    }
+}
+
+/// A validated integer model with a linear cost.
+///
+/// Invariant: `rhs.len() == matrix.rows()`, the per-variable vectors have `matrix.cols()`
+/// entries, `lower[j] <= upper[j]` where both are finite, names are unique and non-empty.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Model {
+    /// The constraint matrix `A`.
+    pub matrix: IntMatrix,
+    /// The right-hand side `b`, one entry per row.
+    pub rhs: Vec<i64>,
+    /// The linear cost `c`, one entry per variable.
+    pub cost: Vec<i64>,
+    /// Lower bounds; `None` is unbounded below.
+    pub lower: Vec<Option<i64>>,
+    /// Upper bounds; `None` is unbounded above.
+    pub upper: Vec<Option<i64>>,
+    /// One name per variable (column).
+    pub variable_names: Vec<String>,
+    /// One name per constraint (row).
+    pub row_names: Vec<String>,
+}
+
+impl Model {
+    /// Reads and validates a model file; its extension (`.json` or `.toml`) decides the syntax.
+    pub fn load(path: &Path) -> Result<Model> {
+        let origin = path.display().to_string();
+        let kind = ModelKind::from_path(path).ok_or_else(|| Error::Input {
+            file: origin.clone(),
+            field: "file name".to_string(),
+            message: "unknown model file type; use a .json or .toml extension".to_string(),
+        })?;
+        let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+            path: path.to_path_buf(),
+            source,
+        })?;
+        Model::from_str(&text, kind, &origin)
+    }
+
+    /// Parses and validates model text; `origin` names the source in error messages.
+    pub fn from_str(text: &str, kind: ModelKind, origin: &str) -> Result<Model> {
+        let root = match kind {
+            ModelKind::Json => node::parse_json(text, origin)?,
+            ModelKind::Toml => node::parse_toml(text, origin)?,
+        };
+        validate::build(&root, origin)
+    }
+
+    /// Number of variables (matrix columns).
+    pub fn variables(&self) -> usize {
+        self.matrix.cols()
+    }
+
+    /// Number of constraints (matrix rows).
+    pub fn constraints(&self) -> usize {
+        self.matrix.rows()
+    }
+}
