@@ -1,0 +1,141 @@
+//! Checkpoints of resumable builds: opaque caller bytes, stored with the same safety as
+//! entries.
+//!
+//! File `<digest-hex>.kckpt`, integers little-endian:
+//!
+//! ```text
+//! offset  size  field
+//!      0     8  magic: 0x89 'K' 'C' 'K' 'P' 0x0D 0x0A 0x1A
+//!      8     2  format version (u16) = 1
+//!     10     2  reserved, must be 0
+//!     12    16  key digest
+//!     28     8  payload length P (u64)
+//!     36     P  payload (the caller's state, opaque)
+//!   36+P     8  XXH3-64 of every preceding byte
+//! ```
+
+use std::fs;
+use std::io::ErrorKind;
+use std::path::{Path, PathBuf};
+
+use xxhash_rust::xxh3::xxh3_64;
+
+use crate::atomic::{sync_dir, write_atomic};
+use crate::digest::Digest;
+use crate::error::CacheError;
+use crate::format::{check_magic_version, key_mismatch, too_short};
+use crate::key::EntryKey;
+use crate::store::Store;
+
+/// File-name suffix of checkpoints.
+pub const CHECKPOINT_SUFFIX: &str = "kckpt";
+/// First eight bytes of every checkpoint file.
+pub const CHECKPOINT_MAGIC: [u8; 8] = [0x89, b'K', b'C', b'K', b'P', 0x0D, 0x0A, 0x1A];
+const VERSION: u16 = 1;
+const HEAD: usize = 36;
+const TRAILER: usize = 8;
+
+/// What [`Store::load_checkpoint`] found.
+#[derive(Debug)]
+pub enum CheckpointState {
+    /// No checkpoint for the key.
+    Missing,
+    /// A checked checkpoint: the caller's bytes.
+    Present(Vec<u8>),
+    /// A checkpoint exists but is damaged; it must be ignored (and is overwritten by the
+    /// next save).
+    Damaged(CacheError),
+}
+
+impl Store {
+    /// Where the checkpoint for `digest` lives.
+    pub fn checkpoint_path(&self, digest: Digest) -> PathBuf {
+        self.dir().join(format!("{digest}.{CHECKPOINT_SUFFIX}"))
+    }
+
+    /// Saves (atomically replacing) the checkpoint for `key`.
+    pub fn save_checkpoint(&self, key: &EntryKey, state: &[u8]) -> Result<(), CacheError> {
+        let digest = key.digest();
+        let len = u64::try_from(state.len()).map_err(|_| CacheError::Overflow {
+            what: "checkpoint length",
+        })?;
+        let mut bytes = Vec::with_capacity(HEAD + state.len() + TRAILER);
+        bytes.extend_from_slice(&CHECKPOINT_MAGIC);
+        bytes.extend_from_slice(&VERSION.to_le_bytes());
+        bytes.extend_from_slice(&[0, 0]);
+        bytes.extend_from_slice(&digest.0);
+        bytes.extend_from_slice(&len.to_le_bytes());
+        bytes.extend_from_slice(state);
+        let checksum = xxh3_64(&bytes);
+        bytes.extend_from_slice(&checksum.to_le_bytes());
+        write_atomic(&self.checkpoint_path(digest), &bytes)
+    }
+
+    /// Loads the checkpoint for `key`; a damaged one is reported as
+    /// [`CheckpointState::Damaged`], never returned as data. `Err` only for I/O failures.
+    pub fn load_checkpoint(&self, key: &EntryKey) -> Result<CheckpointState, CacheError> {
+        let digest = key.digest();
+        let path = self.checkpoint_path(digest);
+        let bytes = match fs::read(&path) {
+            Ok(b) => b,
+            Err(e) if e.kind() == ErrorKind::NotFound => return Ok(CheckpointState::Missing),
+            Err(e) => return Err(CacheError::io("read", path, e)),
+        };
+        Ok(match decode_checkpoint(&bytes, &path, digest) {
+            Ok(state) => CheckpointState::Present(state.to_vec()),
+            Err(e) => CheckpointState::Damaged(e),
+        })
+    }
+
+    /// Removes the checkpoint for `key`; `Ok(false)` if there was none.
+    pub fn remove_checkpoint(&self, key: &EntryKey) -> Result<bool, CacheError> {
+        let path = self.checkpoint_path(key.digest());
+        match fs::remove_file(&path) {
+            Ok(()) => sync_dir(self.dir()).map(|()| true),
+            Err(e) if e.kind() == ErrorKind::NotFound => Ok(false),
+            Err(e) => Err(CacheError::io("remove", path, e)),
+        }
+    }
+}
+
+fn decode_checkpoint<'a>(
+    bytes: &'a [u8],
+    path: &Path,
+    named: Digest,
+) -> Result<&'a [u8], CacheError> {
+    check_magic_version(bytes, path, &CHECKPOINT_MAGIC, "checkpoint", VERSION)?;
+    if bytes.len() < HEAD + TRAILER {
+        return Err(too_short(path, HEAD + TRAILER, bytes.len()));
+    }
+    let len = u64::from_le_bytes(bytes[28..36].try_into().expect("8 bytes"));
+    let expected = len.checked_add((HEAD + TRAILER) as u64);
+    if expected != Some(bytes.len() as u64) {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected: expected.unwrap_or(u64::MAX),
+            actual: bytes.len() as u64,
+        });
+    }
+    let (body, trailer) = bytes.split_at(bytes.len() - TRAILER);
+    let stored = u64::from_le_bytes(trailer.try_into().expect("8 bytes"));
+    let computed = xxh3_64(body);
+    if stored != computed {
+        return Err(CacheError::ChecksumMismatch {
+            path: path.to_owned(),
+            stored,
+            computed,
+        });
+    }
+    if bytes[10..12] != [0, 0] {
+        return Err(CacheError::Malformed {
+            path: path.to_owned(),
+            section: "header",
+            problem: "reserved bytes are not zero",
+        });
+    }
+    let found = Digest(bytes[12..28].try_into().expect("16 bytes"));
+    if found != named {
+        return Err(key_mismatch(path, found, named, "its file name"));
+    }
+    Ok(&body[HEAD..])
+}

@@ -1,0 +1,405 @@
+//! The entry file format, version 1 (`<digest-hex>.kset`).
+//!
+//! All integers are little-endian. Offsets in bytes:
+//!
+//! ```text
+//! offset  size  field
+//!      0     8  magic: 0x89 'K' 'S' 'E' 'T' 0x0D 0x0A 0x1A
+//!      8     2  format version (u16) = 1
+//!     10     1  element encoding tag (see `encoding`: 0 Trit, 1 i8, 2 i16, 3 i32, 4 i64)
+//!     11     1  flags, must be 0
+//!     12    16  key digest (XXH3-128 of the canonical key encoding, see `key`)
+//!     28     8  family digest (XXH3-64 of row space, kind and signs)
+//!     36     8  element count (u64)
+//!     44     8  width n (u64), equal to the key's number of signs
+//!     52     4  key section length K (u32)
+//!     56     4  metadata section length M (u32)
+//!     60     8  element payload length P (u64)
+//!     68     K  key: `EntryKey`, bincode 2 standard configuration via serde
+//!   68+K     M  metadata: `SetMetadata`, same configuration
+//! 68+K+M     P  elements, flat row-major, in the tagged encoding
+//!    end-8   8  XXH3-64 of every preceding byte
+//! ```
+//!
+//! A reader checks, in this order: magic, version, total length (68 + K + M + P + 8, which
+//! catches truncation), checksum, flags and tag, then the key digest against the file name and
+//! against the stored key, then the sections. Any failure is a typed [`CacheError`] naming the
+//! file, and the entry is not used. The magic's first byte is non-ASCII and its tail holds CR
+//! LF and SUB, so text-mode transfers are detected.
+
+use std::fs::File;
+use std::io::Read;
+use std::path::Path;
+
+use serde::de::DeserializeOwned;
+use serde::Serialize;
+use xxhash_rust::xxh3::xxh3_64;
+
+use crate::data::TestSetData;
+use crate::digest::Digest;
+use crate::encoding::{self, ElementEncoding};
+use crate::error::CacheError;
+use crate::key::EntryKey;
+use crate::metadata::SetMetadata;
+
+/// First eight bytes of every entry file.
+pub const ENTRY_MAGIC: [u8; 8] = [0x89, b'K', b'S', b'E', b'T', 0x0D, 0x0A, 0x1A];
+/// The entry format version this build reads and writes.
+pub const FORMAT_VERSION: u16 = 1;
+/// Bytes before the key section.
+pub const HEADER_LEN: usize = 68;
+/// Bytes of the checksum trailer.
+pub const TRAILER_LEN: usize = 8;
+const WHAT: &str = "test-set";
+/// Largest section bincode may decode (guards allocations in unchecksummed partial reads).
+const SECTION_LIMIT: usize = 1 << 28;
+
+/// The fixed-size header, parsed.
+#[derive(Clone, Debug)]
+pub(crate) struct Header {
+    pub encoding: ElementEncoding,
+    pub digest: Digest,
+    pub family: u64,
+    pub count: u64,
+    pub width: u64,
+    pub key_len: usize,
+    pub meta_len: usize,
+    pub payload_len: u64,
+}
+
+/// A fully checked entry.
+pub(crate) struct DecodedEntry {
+    pub key: EntryKey,
+    pub metadata: SetMetadata,
+    pub data: TestSetData,
+    pub encoding: ElementEncoding,
+}
+
+/// The header, key and metadata of an entry, read without the elements and unchecksummed.
+pub(crate) struct EntryHead {
+    pub header: Header,
+    pub key: EntryKey,
+    pub metadata: SetMetadata,
+    pub file_len: u64,
+}
+
+/// Serialises one entry to the bytes of its file.
+pub(crate) fn encode_entry(
+    key: &EntryKey,
+    data: &TestSetData,
+    metadata: &SetMetadata,
+) -> Result<Vec<u8>, CacheError> {
+    let key_bytes = encode_section("key", key)?;
+    let meta_bytes = encode_section("metadata", metadata)?;
+    let encoding = ElementEncoding::narrowest_for(data.elements());
+    let payload_len = encoding
+        .payload_len(data.elements().len())
+        .ok_or(CacheError::Overflow {
+            what: "payload length",
+        })?;
+    let total = [key_bytes.len(), meta_bytes.len(), payload_len, TRAILER_LEN]
+        .iter()
+        .try_fold(HEADER_LEN, |acc, &n| acc.checked_add(n))
+        .ok_or(CacheError::Overflow {
+            what: "file length",
+        })?;
+    let mut out = Vec::with_capacity(total);
+    out.extend_from_slice(&ENTRY_MAGIC);
+    out.extend_from_slice(&FORMAT_VERSION.to_le_bytes());
+    out.push(encoding.tag());
+    out.push(0);
+    out.extend_from_slice(&key.digest().0);
+    out.extend_from_slice(&key.family().to_le_bytes());
+    out.extend_from_slice(&to_u64(data.len(), "element count")?.to_le_bytes());
+    out.extend_from_slice(&to_u64(data.width(), "width")?.to_le_bytes());
+    out.extend_from_slice(&to_u32(key_bytes.len(), "key section length")?.to_le_bytes());
+    out.extend_from_slice(&to_u32(meta_bytes.len(), "metadata section length")?.to_le_bytes());
+    out.extend_from_slice(&to_u64(payload_len, "payload length")?.to_le_bytes());
+    out.extend_from_slice(&key_bytes);
+    out.extend_from_slice(&meta_bytes);
+    encoding::encode(encoding, data.elements(), &mut out);
+    let checksum = xxh3_64(&out);
+    out.extend_from_slice(&checksum.to_le_bytes());
+    Ok(out)
+}
+
+/// Checks and decodes a whole entry file whose name says it holds `named`.
+pub(crate) fn decode_entry(
+    bytes: &[u8],
+    path: &Path,
+    named: Digest,
+) -> Result<DecodedEntry, CacheError> {
+    let header = parse_header(bytes, path)?;
+    let expected = total_len(&header, path)?;
+    if expected != bytes.len() as u64 {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected,
+            actual: bytes.len() as u64,
+        });
+    }
+    let (body, trailer) = bytes.split_at(bytes.len() - TRAILER_LEN);
+    let stored = u64::from_le_bytes(trailer.try_into().expect("trailer is 8 bytes"));
+    let computed = xxh3_64(body);
+    if stored != computed {
+        return Err(CacheError::ChecksumMismatch {
+            path: path.to_owned(),
+            stored,
+            computed,
+        });
+    }
+    check_header_fields(bytes, path)?;
+    let key_end = HEADER_LEN + header.key_len;
+    let meta_end = key_end + header.meta_len;
+    let key = decode_key(&bytes[HEADER_LEN..key_end], &header, path, named)?;
+    let metadata = decode_section(&bytes[key_end..meta_end], path, "metadata")?;
+    let data = decode_payload(&bytes[meta_end..body.len()], &header, &key, path)?;
+    Ok(DecodedEntry {
+        key,
+        metadata,
+        data,
+        encoding: header.encoding,
+    })
+}
+
+/// Reads header, key and metadata of the file at `path` (no checksum: for listings and
+/// for choosing candidates, which are fully checked before use).
+pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheError> {
+    let mut file = File::open(path).map_err(|e| CacheError::io("open", path, e))?;
+    let file_len = file
+        .metadata()
+        .map_err(|e| CacheError::io("inspect", path, e))?
+        .len();
+    let mut head = vec![0u8; HEADER_LEN];
+    let got = read_up_to(&mut file, &mut head, path)?;
+    head.truncate(got);
+    let header = parse_header(&head, path)?;
+    let expected = total_len(&header, path)?;
+    if expected != file_len {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected,
+            actual: file_len,
+        });
+    }
+    check_header_fields(&head, path)?;
+    let mut sections = vec![0u8; header.key_len + header.meta_len];
+    file.read_exact(&mut sections)
+        .map_err(|e| CacheError::io("read", path, e))?;
+    let (key_bytes, meta_bytes) = sections.split_at(header.key_len);
+    let key = decode_key(key_bytes, &header, path, named)?;
+    let metadata = decode_section(meta_bytes, path, "metadata")?;
+    Ok(EntryHead {
+        header,
+        key,
+        metadata,
+        file_len,
+    })
+}
+
+fn read_up_to(file: &mut File, buf: &mut [u8], path: &Path) -> Result<usize, CacheError> {
+    let mut filled = 0;
+    while filled < buf.len() {
+        match file.read(&mut buf[filled..]) {
+            Ok(0) => break,
+            Ok(n) => filled += n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
+            Err(e) => return Err(CacheError::io("read", path, e)),
+        }
+    }
+    Ok(filled)
+}
+
+/// Checks magic and version, then parses the fixed header (tag and flags are checked by
+/// [`check_header_fields`] once the checksum or length has been seen).
+pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheError> {
+    check_magic_version(bytes, path, &ENTRY_MAGIC, WHAT, FORMAT_VERSION)?;
+    if bytes.len() < HEADER_LEN {
+        return Err(too_short(path, HEADER_LEN, bytes.len()));
+    }
+    let u64_at = |at: usize| u64::from_le_bytes(bytes[at..at + 8].try_into().expect("8 bytes"));
+    let u32_at = |at: usize| u32::from_le_bytes(bytes[at..at + 4].try_into().expect("4 bytes"));
+    let malformed = |problem| CacheError::Malformed {
+        path: path.to_owned(),
+        section: "header",
+        problem,
+    };
+    Ok(Header {
+        encoding: ElementEncoding::from_tag(bytes[10]).unwrap_or(ElementEncoding::I64),
+        digest: Digest(bytes[12..28].try_into().expect("16 bytes")),
+        family: u64_at(28),
+        count: u64_at(36),
+        width: u64_at(44),
+        key_len: usize::try_from(u32_at(52)).map_err(|_| malformed("key length"))?,
+        meta_len: usize::try_from(u32_at(56)).map_err(|_| malformed("metadata length"))?,
+        payload_len: u64_at(60),
+    })
+}
+
+fn check_header_fields(bytes: &[u8], path: &Path) -> Result<(), CacheError> {
+    let malformed = |problem| CacheError::Malformed {
+        path: path.to_owned(),
+        section: "header",
+        problem,
+    };
+    if ElementEncoding::from_tag(bytes[10]).is_none() {
+        return Err(malformed("unknown element encoding tag"));
+    }
+    if bytes[11] != 0 {
+        return Err(malformed("unknown flags are set"));
+    }
+    Ok(())
+}
+
+/// Checks the magic bytes (as far as present) and the version field of any kernstep file.
+pub(crate) fn check_magic_version(
+    bytes: &[u8],
+    path: &Path,
+    magic: &[u8; 8],
+    what: &'static str,
+    supported: u16,
+) -> Result<(), CacheError> {
+    let present = bytes.len().min(magic.len());
+    if bytes[..present] != magic[..present] {
+        return Err(CacheError::BadMagic {
+            path: path.to_owned(),
+            what,
+        });
+    }
+    if bytes.len() < 10 {
+        return Err(too_short(path, 10, bytes.len()));
+    }
+    let found = u16::from_le_bytes([bytes[8], bytes[9]]);
+    if found != supported {
+        return Err(CacheError::UnsupportedVersion {
+            path: path.to_owned(),
+            found,
+            supported,
+        });
+    }
+    Ok(())
+}
+
+/// The error for a file that ends before `needed` bytes.
+pub(crate) fn too_short(path: &Path, needed: usize, actual: usize) -> CacheError {
+    CacheError::LengthMismatch {
+        path: path.to_owned(),
+        expected: needed as u64,
+        actual: actual as u64,
+    }
+}
+
+fn total_len(header: &Header, path: &Path) -> Result<u64, CacheError> {
+    [
+        header.key_len as u64,
+        header.meta_len as u64,
+        header.payload_len,
+        TRAILER_LEN as u64,
+    ]
+    .iter()
+    .try_fold(HEADER_LEN as u64, |acc, &n| acc.checked_add(n))
+    .ok_or_else(|| CacheError::Malformed {
+        path: path.to_owned(),
+        section: "header",
+        problem: "section lengths overflow",
+    })
+}
+
+fn decode_key(
+    bytes: &[u8],
+    header: &Header,
+    path: &Path,
+    named: Digest,
+) -> Result<EntryKey, CacheError> {
+    if header.digest != named {
+        return Err(key_mismatch(path, header.digest, named, "its file name"));
+    }
+    let key: EntryKey = decode_section(bytes, path, "key")?;
+    let actual = key.digest();
+    if actual != header.digest || key.family() != header.family {
+        return Err(key_mismatch(path, header.digest, actual, "its stored key"));
+    }
+    Ok(key)
+}
+
+/// The error for a digest `found` in a file where `expected` (from `from`) was due.
+pub(crate) fn key_mismatch(
+    path: &Path,
+    found: Digest,
+    expected: Digest,
+    from: &'static str,
+) -> CacheError {
+    CacheError::KeyMismatch {
+        path: path.to_owned(),
+        found: found.to_hex(),
+        expected: expected.to_hex(),
+        expected_from: from,
+    }
+}
+
+fn decode_payload(
+    bytes: &[u8],
+    header: &Header,
+    key: &EntryKey,
+    path: &Path,
+) -> Result<TestSetData, CacheError> {
+    let malformed = |problem| CacheError::Malformed {
+        path: path.to_owned(),
+        section: "elements",
+        problem,
+    };
+    let width = usize::try_from(header.width).map_err(|_| malformed("width too large"))?;
+    if width != key.width() {
+        return Err(malformed(
+            "width differs from the key's number of variables",
+        ));
+    }
+    let entries = usize::try_from(header.count)
+        .ok()
+        .and_then(|c| c.checked_mul(width))
+        .ok_or_else(|| malformed("element count too large"))?;
+    if header.encoding.payload_len(entries) != Some(bytes.len()) {
+        return Err(malformed("payload length does not match count x width"));
+    }
+    let flat = encoding::decode(header.encoding, bytes, entries).map_err(malformed)?;
+    TestSetData::new(width, flat).map_err(|_| malformed("zero width"))
+}
+
+fn config() -> impl bincode::config::Config {
+    bincode::config::standard().with_limit::<SECTION_LIMIT>()
+}
+
+fn encode_section<T: Serialize>(section: &'static str, value: &T) -> Result<Vec<u8>, CacheError> {
+    bincode::serde::encode_to_vec(value, config())
+        .map_err(|source| CacheError::Encode { section, source })
+}
+
+fn decode_section<T: DeserializeOwned>(
+    bytes: &[u8],
+    path: &Path,
+    section: &'static str,
+) -> Result<T, CacheError> {
+    let (value, used) = bincode::serde::decode_from_slice(bytes, config()).map_err(|source| {
+        CacheError::Decode {
+            path: path.to_owned(),
+            section,
+            source,
+        }
+    })?;
+    if used != bytes.len() {
+        return Err(CacheError::Malformed {
+            path: path.to_owned(),
+            section,
+            problem: "bytes left over after the section",
+        });
+    }
+    Ok(value)
+}
+
+fn to_u64(n: usize, what: &'static str) -> Result<u64, CacheError> {
+    u64::try_from(n).map_err(|_| CacheError::Overflow { what })
+}
+
+fn to_u32(n: usize, what: &'static str) -> Result<u32, CacheError> {
+    u32::try_from(n).map_err(|_| CacheError::Overflow { what })
+}

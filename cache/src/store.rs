@@ -1,0 +1,277 @@
+//! The store: a directory of entry files named by key digest.
+
+use std::fs;
+use std::io::ErrorKind;
+use std::path::{Path, PathBuf};
+
+use serde::{Deserialize, Serialize};
+
+use crate::atomic::{self, write_atomic};
+use crate::data::TestSetData;
+use crate::digest::{is_hex, Digest, DIGEST_HEX_LEN};
+use crate::encoding::ElementEncoding;
+use crate::error::CacheError;
+use crate::format::{self, key_mismatch};
+use crate::key::{EntryKey, SetKind, Truncation};
+use crate::location::default_dir;
+use crate::metadata::{Completeness, SetMetadata};
+use crate::validate::check_entry;
+
+/// File-name suffix of entries: `<digest-hex>.kset`.
+pub const ENTRY_SUFFIX: &str = "kset";
+
+/// A cache directory. Cheap to clone; every operation goes to the file system.
+#[derive(Clone, Debug)]
+pub struct Store {
+    dir: PathBuf,
+}
+
+/// A checked entry as loaded from disk.
+#[derive(Clone, Debug, PartialEq)]
+pub struct StoredSet {
+    /// Digest of the key (the file stem).
+    pub digest: Digest,
+    /// The key the set was stored under.
+    pub key: EntryKey,
+    /// Build facts.
+    pub metadata: SetMetadata,
+    /// The elements.
+    pub data: TestSetData,
+    /// How the elements were encoded on disk.
+    pub encoding: ElementEncoding,
+    /// File size in bytes.
+    pub size_bytes: u64,
+}
+
+/// One line of a listing.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct EntrySummary {
+    /// Digest of the key.
+    pub digest: Digest,
+    /// Graver or Hilbert.
+    pub kind: SetKind,
+    /// Truncation of the key.
+    pub truncation: Truncation,
+    /// Number of stored vectors.
+    pub elements: u64,
+    /// Entries per vector.
+    pub width: u64,
+    /// Element encoding on disk.
+    pub encoding: ElementEncoding,
+    /// Completeness recorded at build time.
+    pub completeness: Completeness,
+    /// File size in bytes.
+    pub size_bytes: u64,
+    /// Creation time, seconds since the Unix epoch.
+    pub created_unix: u64,
+}
+
+impl StoredSet {
+    /// The listing line for this entry.
+    pub fn summary(&self) -> EntrySummary {
+        EntrySummary {
+            digest: self.digest,
+            kind: self.key.kind,
+            truncation: self.key.truncation.clone(),
+            elements: self.data.len() as u64,
+            width: self.data.width() as u64,
+            encoding: self.encoding,
+            completeness: self.metadata.completeness.clone(),
+            size_bytes: self.size_bytes,
+            created_unix: self.metadata.created_unix,
+        }
+    }
+}
+
+impl Store {
+    /// Opens (creating if needed) the store in `dir` and checks that it is writable by
+    /// creating and removing a probe file; otherwise [`CacheError::DirUnusable`].
+    pub fn open(dir: impl Into<PathBuf>) -> Result<Store, CacheError> {
+        let dir = dir.into();
+        let unusable = |source| CacheError::DirUnusable {
+            dir: dir.clone(),
+            source,
+        };
+        fs::create_dir_all(&dir).map_err(unusable)?;
+        let probe = dir.join(format!(
+            ".probe-{}{}",
+            std::process::id(),
+            atomic::TEMP_SUFFIX
+        ));
+        fs::write(&probe, b"").map_err(unusable)?;
+        fs::remove_file(&probe).map_err(unusable)?;
+        Ok(Store { dir })
+    }
+
+    /// Opens the store at [`default_dir`]`(explicit)`.
+    pub fn open_default(explicit: Option<&Path>) -> Result<Store, CacheError> {
+        Store::open(default_dir(explicit)?)
+    }
+
+    /// The store's directory.
+    pub fn dir(&self) -> &Path {
+        &self.dir
+    }
+
+    /// Where the entry with `digest` lives.
+    pub fn entry_path(&self, digest: Digest) -> PathBuf {
+        self.dir.join(format!("{digest}.{ENTRY_SUFFIX}"))
+    }
+
+    /// Loads the entry for exactly `key`: `Ok(None)` if there is none, an error if the file
+    /// is damaged (it is never handed back).
+    pub fn load(&self, key: &EntryKey) -> Result<Option<StoredSet>, CacheError> {
+        let digest = key.digest();
+        let Some(set) = self.load_if_present(digest)? else {
+            return Ok(None);
+        };
+        if &set.key != key {
+            let path = self.entry_path(digest);
+            return Err(key_mismatch(
+                &path,
+                digest,
+                digest,
+                "the requested key (collision)",
+            ));
+        }
+        Ok(Some(set))
+    }
+
+    /// Loads the entry whose digest starts with `prefix` (see [`Store::resolve`]).
+    pub fn load_digest(&self, prefix: &str) -> Result<StoredSet, CacheError> {
+        let digest = self.resolve(prefix)?;
+        self.load_if_present(digest)?
+            .ok_or_else(|| CacheError::NotFound {
+                prefix: prefix.to_owned(),
+            })
+    }
+
+    /// Stores a new entry; [`CacheError::AlreadyExists`] if the key already has one. Waits
+    /// for a builder holding the key's lock.
+    pub fn insert(
+        &self,
+        key: &EntryKey,
+        data: &TestSetData,
+        metadata: &SetMetadata,
+    ) -> Result<EntrySummary, CacheError> {
+        let _lock = self.lock_key(key.digest())?;
+        let path = self.entry_path(key.digest());
+        if path.exists() {
+            return Err(CacheError::AlreadyExists { path });
+        }
+        self.write_entry(key, data, metadata)
+    }
+
+    /// Stores an entry, atomically replacing any existing one (valid or damaged). Waits for a
+    /// builder holding the key's lock.
+    pub fn replace(
+        &self,
+        key: &EntryKey,
+        data: &TestSetData,
+        metadata: &SetMetadata,
+    ) -> Result<EntrySummary, CacheError> {
+        let _lock = self.lock_key(key.digest())?;
+        self.write_entry(key, data, metadata)
+    }
+
+    /// The one digest among stored entries starting with `prefix` (hex, any case).
+    pub fn resolve(&self, prefix: &str) -> Result<Digest, CacheError> {
+        let wanted = prefix.to_ascii_lowercase();
+        if !is_hex(&wanted) || wanted.len() > DIGEST_HEX_LEN {
+            return Err(CacheError::BadDigestText {
+                text: prefix.to_owned(),
+            });
+        }
+        let mut matches: Vec<Digest> = self
+            .entry_digests()?
+            .into_iter()
+            .filter(|d| d.to_hex().starts_with(&wanted))
+            .collect();
+        match matches.len() {
+            0 => Err(CacheError::NotFound {
+                prefix: prefix.to_owned(),
+            }),
+            1 => Ok(matches.remove(0)),
+            _ => Err(CacheError::AmbiguousPrefix {
+                prefix: prefix.to_owned(),
+                matches: matches.iter().map(Digest::to_hex).collect(),
+            }),
+        }
+    }
+
+    /// Validates and writes an entry; the caller holds the key's lock.
+    pub(crate) fn write_entry(
+        &self,
+        key: &EntryKey,
+        data: &TestSetData,
+        metadata: &SetMetadata,
+    ) -> Result<EntrySummary, CacheError> {
+        check_entry(key, data, metadata)?;
+        let bytes = format::encode_entry(key, data, metadata)?;
+        let digest = key.digest();
+        write_atomic(&self.entry_path(digest), &bytes)?;
+        Ok(EntrySummary {
+            digest,
+            kind: key.kind,
+            truncation: key.truncation.clone(),
+            elements: data.len() as u64,
+            width: data.width() as u64,
+            encoding: ElementEncoding::narrowest_for(data.elements()),
+            completeness: metadata.completeness.clone(),
+            size_bytes: bytes.len() as u64,
+            created_unix: metadata.created_unix,
+        })
+    }
+
+    /// Reads and fully checks the entry named `digest`, `Ok(None)` if the file is absent.
+    pub(crate) fn load_if_present(&self, digest: Digest) -> Result<Option<StoredSet>, CacheError> {
+        let path = self.entry_path(digest);
+        let bytes = match fs::read(&path) {
+            Ok(b) => b,
+            Err(e) if e.kind() == ErrorKind::NotFound => return Ok(None),
+            Err(e) => return Err(CacheError::io("read", path, e)),
+        };
+        let entry = format::decode_entry(&bytes, &path, digest)?;
+        Ok(Some(StoredSet {
+            digest,
+            key: entry.key,
+            metadata: entry.metadata,
+            data: entry.data,
+            encoding: entry.encoding,
+            size_bytes: bytes.len() as u64,
+        }))
+    }
+
+    /// Digests of every file named like an entry, sorted.
+    pub(crate) fn entry_digests(&self) -> Result<Vec<Digest>, CacheError> {
+        let mut digests = Vec::new();
+        for name in self.file_names()? {
+            let Some(stem) = name.strip_suffix(&format!(".{ENTRY_SUFFIX}")) else {
+                continue;
+            };
+            if stem
+                .bytes()
+                .all(|b| b.is_ascii_digit() || (b'a'..=b'f').contains(&b))
+            {
+                if let Ok(d) = Digest::from_hex(stem) {
+                    digests.push(d);
+                }
+            }
+        }
+        digests.sort();
+        Ok(digests)
+    }
+
+    /// Names of the regular files in the directory.
+    pub(crate) fn file_names(&self) -> Result<Vec<String>, CacheError> {
+        let read = fs::read_dir(&self.dir).map_err(|e| CacheError::io("list", &self.dir, e))?;
+        let mut names = Vec::new();
+        for item in read {
+            let item = item.map_err(|e| CacheError::io("list", &self.dir, e))?;
+            if let Ok(name) = item.file_name().into_string() {
+                names.push(name);
+            }
+        }
+        Ok(names)
+    }
+}
