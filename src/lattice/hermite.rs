@@ -186,11 +186,12 @@ mod tests {
 
     /// Checks every invariant stated in the module documentation.
     fn assert_invariants(a: &IntMatrix, hf: &HermiteForm) {
-        let (mm, n) = (a.rows(), a.cols());
+        let n = a.cols();
+        assert!(hf.h.iter().all(|c| c.len() == a.rows()));
         for (j, (hc, uc)) in hf.h.iter().zip(&hf.u).enumerate() {
-            for i in 0..mm {
+            for (i, hij) in hc.iter().enumerate() {
                 let au: BigInt = (0..n).map(|k| BigInt::from(a.get(i, k)) * &uc[k]).sum();
-                assert_eq!(au, hc[i], "H = AU at ({i}, {j})");
+                assert_eq!(&au, hij, "H = AU at ({i}, {j})");
             }
         }
         let uinv = IntMatrix::from_rows(

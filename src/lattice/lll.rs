@@ -88,8 +88,8 @@ impl ReducedBasis {
     fn lambdas(&self, gram: Vec<BigInt>) -> Vec<BigInt> {
         let mut out: Vec<BigInt> = Vec::with_capacity(gram.len());
         for (j, mut u) in gram.into_iter().enumerate() {
-            for i in 0..j {
-                u = (&self.dd[i + 1] * u - &out[i] * &self.lambda[j][i]) / &self.dd[i];
+            for (i, (oi, lji)) in out.iter().zip(&self.lambda[j]).enumerate() {
+                u = (&self.dd[i + 1] * u - oi * lji) / &self.dd[i];
             }
             out.push(u);
         }

@@ -7,6 +7,7 @@
 mod bareiss;
 mod convert;
 mod hermite;
+mod key;
 mod lll;
 mod reduction;
 mod solve;
@@ -14,5 +15,6 @@ mod solve;
 pub use bareiss::{det, echelon, rank, Echelon};
 pub use convert::{to_big_vec, to_i64_vec};
 pub use hermite::HermiteForm;
+pub use key::RowSpaceKey;
 pub use reduction::reduced_kernel_basis;
 pub use solve::{Certificate, IntegerSolution};

@@ -166,11 +166,11 @@ mod tests {
     fn assert_solves(a: &IntMatrix, b: &[i64]) -> Vec<BigInt> {
         match HermiteForm::new(a).solve(b) {
             IntegerSolution::Solution(x) => {
-                for i in 0..a.rows() {
+                for (i, bi) in b.iter().enumerate() {
                     let ax: BigInt = (0..a.cols())
                         .map(|j| BigInt::from(a.get(i, j)) * &x[j])
                         .sum();
-                    assert_eq!(ax, BigInt::from(b[i]), "row {i}");
+                    assert_eq!(ax, BigInt::from(*bi), "row {i}");
                 }
                 x
             }
