@@ -1,5 +1,46 @@
 //! The `kernstep` command line.
+//!
+//! Exit codes: 0 when the verb completed (for optimisation verbs: an optimal answer), 1 when
+//! a verb finds no feasible or improving answer (infeasible, unbounded), 2 on any error, which
+//! is printed once on stderr as `kernstep: <error chain>`. A closed stdout (broken pipe) is
+//! not an error.
 
-fn main() -> std::process::ExitCode {
-    std::process::ExitCode::SUCCESS
+mod cli;
+
+use std::process::ExitCode;
+
+use clap::Parser;
+
+fn main() -> ExitCode {
+    let args = cli::args::Cli::parse();
+    match cli::run(args) {
+        Ok(code) => code,
+        Err(err) if is_broken_pipe(&err) => ExitCode::SUCCESS,
+        Err(err) => {
+            eprintln!("kernstep: {}", render_chain(&err));
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// The error and its causes joined by `: `, skipping a cause whose text the message before
+/// it already shows (errors that print their source themselves).
+fn render_chain(err: &anyhow::Error) -> String {
+    let mut text = String::new();
+    for cause in err.chain() {
+        let part = cause.to_string();
+        if text.is_empty() {
+            text = part;
+        } else if !text.contains(&part) {
+            text = format!("{text}: {part}");
+        }
+    }
+    text
+}
+
+fn is_broken_pipe(err: &anyhow::Error) -> bool {
+    err.chain().any(|e| {
+        e.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
 }

@@ -1,0 +1,132 @@
+//! `kernstep analyze MODEL`: the figures of the model's constraint matrix.
+
+use std::io::{self, Write};
+use std::process::ExitCode;
+
+use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
+use kernstep::model::Model;
+use serde::Serialize;
+
+use super::args::AnalyzeArgs;
+use super::table::write_pairs;
+
+/// The `--json` document.
+#[derive(Serialize)]
+struct Report<'a> {
+    model: String,
+    norm_limit: u64,
+    analysis: &'a MatrixAnalysis,
+}
+
+/// Loads the model, analyses its matrix and prints the figures.
+pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
+    let model = Model::load(&args.model)?;
+    let options = AnalysisOptions::new().subdet_limit(args.subdet_limit);
+    let analysis = MatrixAnalysis::of(&model.matrix, &options);
+    let mut out = io::stdout().lock();
+    if args.json {
+        let report = Report {
+            model: args.model.display().to_string(),
+            norm_limit: analysis.norm_limit(),
+            analysis: &analysis,
+        };
+        let text = serde_json::to_string_pretty(&report)?;
+        writeln!(out, "{text}")?;
+    } else {
+        let rows = table_rows(&args.model.display().to_string(), &model, &analysis);
+        write_pairs(&mut out, &rows)?;
+    }
+    out.flush()?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn decision(d: Decision) -> String {
+    match d {
+        Decision::Yes => "yes",
+        Decision::No => "no",
+        Decision::Undecided => "undecided (over --subdet-limit)",
+    }
+    .to_string()
+}
+
+fn delta_text(a: &MatrixAnalysis) -> String {
+    match &a.delta {
+        Delta::Exact(d) => {
+            let gcd = a
+                .maximal_minor_gcd
+                .as_ref()
+                .map_or(String::new(), |g| format!(", gcd {g}"));
+            format!(
+                "{d} (exact, {} maximal minors{gcd})",
+                a.maximal_minors_evaluated
+            )
+        }
+        Delta::UpperBound(d) => {
+            format!("at most {d} (Hadamard bound; enumeration over --subdet-limit)")
+        }
+    }
+}
+
+fn published_text(a: &MatrixAnalysis) -> String {
+    let Some(p) = &a.published_column_number else {
+        return "no published value for this Δ".to_string();
+    };
+    let verdict = match a.within_published_column_number {
+        Some(true) => "within",
+        _ => "exceeds",
+    };
+    let rank_note = match p.condition {
+        RankCondition::EveryRank => "",
+        RankCondition::LargeRank => ", proven for large r only",
+    };
+    let bound_note = if a.delta.is_exact() {
+        ""
+    } else {
+        " (Δ bounded)"
+    };
+    format!(
+        "{} for Δ = {}{bound_note}: {} ({}{rank_note}); {verdict}",
+        p.value, p.delta, p.formula, p.source
+    )
+}
+
+/// The human table: one `(label, value)` per figure.
+fn table_rows(file: &str, model: &Model, a: &MatrixAnalysis) -> Vec<(String, String)> {
+    let rows: Vec<&str> = a
+        .independent_rows
+        .iter()
+        .map(|&i| model.row_names[i].as_str())
+        .collect();
+    let b = &a.bounds;
+    let pairs: [(&str, String); 19] = [
+        ("model", file.to_string()),
+        ("variables n", a.variables.to_string()),
+        ("constraints m", a.constraints.to_string()),
+        ("rank r", a.rank.to_string()),
+        ("kernel dimension n - r", a.kernel_dimension.to_string()),
+        ("independent rows", rows.join(", ")),
+        ("largest |entry|", a.max_abs_entry.to_string()),
+        ("zero columns", a.zero_columns.to_string()),
+        ("column number h (±a once)", a.column_number.to_string()),
+        ("non-parallel columns", a.column_number_parallel.to_string()),
+        ("published maximum", published_text(a)),
+        ("Δ (largest r x r minor)", delta_text(a)),
+        ("unimodular", decision(a.unimodular)),
+        ("totally unimodular", decision(a.totally_unimodular)),
+        (
+            "Graver ℓ1 bound, n",
+            format!("{} = (n - r)(r + 1)Δ", b.by_variables),
+        ),
+        (
+            "Graver ℓ1 bound, h",
+            format!("{} = max(2, (h - r)(r + 1)Δ)", b.by_column_number),
+        ),
+        (
+            "Graver ℓ1 bound, Steinitz",
+            format!("{} = (2r·max|B| + 1)^r", b.steinitz),
+        ),
+        ("norm limit", a.norm_limit().to_string()),
+        ("proximity", format!("{} = nΔ", b.proximity)),
+    ];
+    pairs.into_iter().map(|(l, v)| (l.to_string(), v)).collect()
+}

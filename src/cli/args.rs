@@ -1,0 +1,39 @@
+//! The raw command-line arguments as clap parses them; [`super`] turns them into library
+//! settings. Each verb has its own argument struct.
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand};
+use kernstep::analysis::AnalysisOptions;
+
+/// Test sets of lattice moves, computed once, for fast certified re-optimisation of integer
+/// models.
+#[derive(Debug, Parser)]
+#[command(name = "kernstep", version)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The verbs.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Print the figures of a model's constraint matrix: rank, Δ, column numbers,
+    /// unimodularity and the bounds on test-set move norms.
+    Analyze(AnalyzeArgs),
+}
+
+/// Arguments of `analyze`.
+#[derive(Debug, Args)]
+pub struct AnalyzeArgs {
+    /// The model file (.json or .toml).
+    pub model: PathBuf,
+    /// Print every figure as JSON instead of a table.
+    #[arg(long)]
+    pub json: bool,
+    /// Largest number of subdeterminants to enumerate before Δ is only bounded and
+    /// (total) unimodularity left undecided.
+    #[arg(long, value_name = "N", default_value_t = AnalysisOptions::DEFAULT_SUBDET_LIMIT)]
+    pub subdet_limit: u64,
+}

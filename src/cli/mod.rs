@@ -1,0 +1,18 @@
+//! The command line of the `kernstep` binary: [`args`] holds the raw clap structures, and one
+//! module per verb turns them into library calls and renders the result. Only this module
+//! knows both clap and the library.
+
+mod analyze;
+pub mod args;
+mod table;
+
+use std::process::ExitCode;
+
+use args::{Cli, Command};
+
+/// Runs the verb chosen on the command line and returns the exit code its outcome maps to.
+pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
+    match cli.command {
+        Command::Analyze(a) => analyze::run(&a),
+    }
+}
