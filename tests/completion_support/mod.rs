@@ -1,4 +1,5 @@
 //! Matrices and oracles shared by the completion tests.
+#![allow(dead_code)] // each test binary uses its own part of this shared module
 
 use kernstep::completion::{complete_kernel, Completion, Control, Method, MoveSet, Request, Sign};
 use kernstep::IntMatrix;
@@ -127,4 +128,56 @@ pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &MoveSet) {
             assert!(!fits_signs(&neg, signs) || neg == *g || !conformal(&neg, g));
         }
     }
+}
+
+/// Constraints "every line sum equals the first row sum" for `k x k` squares with variables
+/// `x[i][j]` at `i * k + j`; with `diagonals` the two diagonals too (magic squares).
+pub fn equal_line_sums(k: usize, diagonals: bool) -> IntMatrix {
+    let mut lines: Vec<Vec<usize>> = Vec::new();
+    for i in 0..k {
+        lines.push((0..k).map(|j| i * k + j).collect());
+        lines.push((0..k).map(|j| j * k + i).collect());
+    }
+    if diagonals {
+        lines.push((0..k).map(|i| i * k + i).collect());
+        lines.push((0..k).map(|i| i * k + (k - 1 - i)).collect());
+    }
+    let rows: Vec<Vec<i64>> = lines[1..]
+        .iter()
+        .map(|line| {
+            let mut row = vec![0i64; k * k];
+            line.iter().for_each(|&v| row[v] += 1);
+            lines[0].iter().for_each(|&v| row[v] -= 1);
+            row
+        })
+        .collect();
+    IntMatrix::from_rows(&rows).unwrap()
+}
+
+/// All 2-margins of a `p x q x s` table: every line sum `x[i][j][+]`, `x[i][+][k]`, `x[+][j][k]`
+/// is a row; variable `(i, j, k)` sits at `(i * q + j) * s + k`.
+pub fn three_way_margins(p: usize, q: usize, s: usize) -> IntMatrix {
+    let var = |i: usize, j: usize, k: usize| (i * q + j) * s + k;
+    let mut rows = Vec::new();
+    let mut line = |cells: Vec<usize>| {
+        let mut row = vec![0i64; p * q * s];
+        cells.into_iter().for_each(|v| row[v] = 1);
+        rows.push(row);
+    };
+    for i in 0..p {
+        for j in 0..q {
+            line((0..s).map(|k| var(i, j, k)).collect());
+        }
+    }
+    for i in 0..p {
+        for k in 0..s {
+            line((0..q).map(|j| var(i, j, k)).collect());
+        }
+    }
+    for j in 0..q {
+        for k in 0..s {
+            line((0..p).map(|i| var(i, j, k)).collect());
+        }
+    }
+    IntMatrix::from_rows(&rows).unwrap()
 }
