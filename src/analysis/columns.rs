@@ -18,16 +18,31 @@ pub(crate) struct ParallelClass {
     pub members: Vec<(usize, i128)>,
 }
 
+/// The member of a parallel class that attains the largest minors.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub(crate) struct Representative {
+    /// Its column index.
+    pub col: usize,
+    /// `|t_max| / gcd(|t_k|)` over the class: the representative's minors divided by this are
+    /// the gcd of the same minors taken over every member.
+    pub spread: u128,
+}
+
 impl ParallelClass {
-    /// The member with the largest `|t|` (the first such one).
-    pub fn representative(&self) -> usize {
+    /// The member with the largest `|t|` (the first such one) and the class's spread.
+    pub fn representative(&self) -> Representative {
         let mut best = self.members[0];
-        for &m in &self.members[1..] {
+        let mut g = 0u128;
+        for &m in &self.members {
             if m.1.abs() > best.1.abs() {
                 best = m;
             }
+            g = g.gcd(&m.1.unsigned_abs());
         }
-        best.0
+        Representative {
+            col: best.0,
+            spread: best.1.unsigned_abs() / g,
+        }
     }
 
     /// Whether every member has the same `|t|`, i.e. all members are equal up to sign.
@@ -82,7 +97,7 @@ impl ColumnClasses {
     }
 
     /// One column per parallel class, the one with the largest multiplier.
-    pub fn representatives(&self) -> Vec<usize> {
+    pub fn representatives(&self) -> Vec<Representative> {
         self.classes
             .iter()
             .map(ParallelClass::representative)
@@ -151,7 +166,9 @@ mod tests {
         assert_eq!(c.classes.len(), 2);
         assert_eq!(c.classes[0].members, vec![(0, 1), (1, -1), (2, 2)]);
         assert_eq!(c.classes[1].members, vec![(4, 1), (5, -3)]);
-        assert_eq!(c.representatives(), vec![2, 5]);
+        let reps = c.representatives();
+        let cols: Vec<(usize, u128)> = reps.iter().map(|r| (r.col, r.spread)).collect();
+        assert_eq!(cols, vec![(2, 2), (5, 3)]);
         assert!(!c.uniform());
     }
 

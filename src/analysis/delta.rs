@@ -11,6 +11,7 @@ use num_integer::Integer;
 use num_traits::{Signed, Zero};
 use serde::Serialize;
 
+use super::columns::Representative;
 use super::minors::{binomial, minor};
 use crate::matrix::IntMatrix;
 
@@ -51,14 +52,17 @@ pub(crate) struct MinorSummary {
     pub equal_abs: Option<bool>,
 }
 
-/// Enumerates the `r x r` minors of `b` (`r = b.rows()`, full row rank) over the columns
-/// `cols`, when there are at most `limit` column subsets; otherwise bounds `Δ`.
-pub(crate) fn maximal_minors(b: &IntMatrix, cols: &[usize], limit: u64) -> MinorSummary {
+/// Enumerates the `r x r` minors of `b` (`r = b.rows()`, full row rank) over one
+/// representative column per parallel class, when there are at most `limit` column subsets;
+/// otherwise bounds `Δ`. The gcd is that of the minors over *all* columns: a subset of
+/// classes contributes its representatives' minor divided by the product of their spreads.
+pub(crate) fn maximal_minors(b: &IntMatrix, reps: &[Representative], limit: u64) -> MinorSummary {
     let r = b.rows();
+    let cols: Vec<usize> = reps.iter().map(|rep| rep.col).collect();
     let subsets = binomial(cols.len(), r);
     if subsets > u128::from(limit) {
         return MinorSummary {
-            delta: Delta::UpperBound(hadamard_bound(b, cols)),
+            delta: Delta::UpperBound(hadamard_bound(b, &cols)),
             evaluated: 0,
             gcd: None,
             equal_abs: None,
@@ -68,12 +72,17 @@ pub(crate) fn maximal_minors(b: &IntMatrix, cols: &[usize], limit: u64) -> Minor
     let (mut max, mut gcd) = (BigInt::zero(), BigInt::zero());
     let mut first_abs: Option<BigInt> = None;
     let mut equal = true;
-    for subset in itertools::Itertools::combinations(cols.iter().copied(), r) {
-        let d = minor(b, &rows, &subset).abs();
+    for subset in itertools::Itertools::combinations(0..reps.len(), r) {
+        let chosen: Vec<usize> = subset.iter().map(|&k| reps[k].col).collect();
+        let d = minor(b, &rows, &chosen).abs();
         if d.is_zero() {
             continue;
         }
-        gcd = gcd.gcd(&d);
+        let spread: BigInt = subset
+            .iter()
+            .map(|&k| BigInt::from(reps[k].spread))
+            .product();
+        gcd = gcd.gcd(&(&d / spread));
         match &first_abs {
             Some(f) => equal &= *f == d,
             None => first_abs = Some(d.clone()),
@@ -114,6 +123,12 @@ mod tests {
     use super::*;
     use num_traits::One;
 
+    fn plain(cols: &[usize]) -> Vec<Representative> {
+        cols.iter()
+            .map(|&col| Representative { col, spread: 1 })
+            .collect()
+    }
+
     fn m(rows: &[&[i64]]) -> IntMatrix {
         IntMatrix::from_rows(&rows.iter().map(|r| r.to_vec()).collect::<Vec<_>>()).unwrap()
     }
@@ -123,7 +138,7 @@ mod tests {
         // [[1,1,1,1],[0,1,2,3]]: the 2 x 2 minors are j - i for columns i < j (by hand):
         // 1, 2, 3, 1, 2, 1, so Δ = 3 and their gcd is 1.
         let b = m(&[&[1, 1, 1, 1], &[0, 1, 2, 3]]);
-        let s = maximal_minors(&b, &[0, 1, 2, 3], 100);
+        let s = maximal_minors(&b, &plain(&[0, 1, 2, 3]), 100);
         assert_eq!(s.delta, Delta::Exact(BigInt::from(3)));
         assert_eq!(s.evaluated, 6);
         assert_eq!(s.gcd, Some(BigInt::one()));
@@ -135,9 +150,21 @@ mod tests {
         // Column norms^2: 1, 2, 5, 10; the two largest give 50. Row norms^2: 4 and 14 give 56.
         // floor(sqrt(50)) = 7 >= Δ = 3.
         let b = m(&[&[1, 1, 1, 1], &[0, 1, 2, 3]]);
-        let s = maximal_minors(&b, &[0, 1, 2, 3], 5);
+        let s = maximal_minors(&b, &plain(&[0, 1, 2, 3]), 5);
         assert_eq!(s.delta, Delta::UpperBound(BigInt::from(7)));
         assert_eq!((s.evaluated, s.gcd, s.equal_abs), (0, None, None));
+    }
+
+    #[test]
+    fn gcd_counts_every_member_of_a_parallel_class() {
+        // Columns (2,0), (4,0), (0,1): minors 2, 4 and 0 (by hand), so Δ = 4 and gcd 2,
+        // although only the representative (4,0) is enumerated.
+        let b = m(&[&[2, 4, 0], &[0, 0, 1]]);
+        let reps = crate::analysis::columns::ColumnClasses::of(&b).representatives();
+        let s = maximal_minors(&b, &reps, 10);
+        assert_eq!(s.delta, Delta::Exact(BigInt::from(4)));
+        assert_eq!(s.gcd, Some(BigInt::from(2)));
+        assert_eq!(s.evaluated, 1);
     }
 
     #[test]
@@ -145,7 +172,7 @@ mod tests {
         // The 0 x 0 determinant is 1 by convention.
         let b = IntMatrix::zeros(0, 3);
         assert_eq!(
-            maximal_minors(&b, &[], 10).delta,
+            maximal_minors(&b, &plain(&[]), 10).delta,
             Delta::Exact(BigInt::one())
         );
         assert_eq!(hadamard_bound(&b, &[]), BigInt::one());
