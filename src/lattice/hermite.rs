@@ -119,7 +119,10 @@ impl HermiteForm {
             })
             .unzip();
         let r = pivot_rows.len();
-        let reduced = ReducedBasis::new(u[r..].to_vec());
+        // Shortest vectors first: the reduction then needs fewer exchanges.
+        let mut kernel = u[r..].to_vec();
+        kernel.sort_by_cached_key(|v| v.iter().map(|x| x * x).sum::<BigInt>());
+        let reduced = ReducedBasis::new(kernel);
         for c in &mut u[..r] {
             *c = reduced.size_reduce(c);
         }
