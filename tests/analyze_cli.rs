@@ -1,0 +1,190 @@
+//! The `analyze` verb through the binary: every example prints its figures, and every bad
+//! input gives one clear `kernstep: file: field: message` line on stderr with exit code 2.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn kernstep(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("the binary runs")
+}
+
+fn examples() -> Vec<PathBuf> {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples");
+    let mut files: Vec<PathBuf> = std::fs::read_dir(dir)
+        .expect("examples/ exists")
+        .map(|e| e.expect("readable entry").path())
+        .filter(|p| {
+            matches!(
+                p.extension().and_then(|e| e.to_str()),
+                Some("json" | "toml")
+            )
+        })
+        .collect();
+    files.sort();
+    assert!(files.len() >= 3, "examples/ holds the demo models");
+    files
+}
+
+fn json_report(file: &str) -> serde_json::Value {
+    let out = kernstep(&["analyze", file, "--json"]);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("--json prints one JSON document")
+}
+
+#[test]
+fn every_example_prints_its_figures() {
+    for file in examples() {
+        let path = file.to_str().unwrap();
+        let out = kernstep(&["analyze", path]);
+        let stdout = String::from_utf8(out.stdout).unwrap();
+        assert_eq!(
+            out.status.code(),
+            Some(0),
+            "{path}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        assert!(out.stderr.is_empty(), "{path}: nothing on stderr");
+        for label in [
+            "rank r",
+            "Δ (largest r x r minor)",
+            "totally unimodular",
+            "norm limit",
+        ] {
+            assert!(
+                stdout.contains(label),
+                "{path}: {label} missing in\n{stdout}"
+            );
+        }
+        let report = json_report(path);
+        assert!(
+            report["norm_limit"].as_u64().is_some(),
+            "{path}: norm_limit"
+        );
+        assert!(
+            report["analysis"]["bounds"]["steinitz"].is_string(),
+            "{path}: decimal strings"
+        );
+    }
+}
+
+#[test]
+fn twisted_cubic_figures() {
+    // [[1,1,1,1],[0,1,2,3]]: 2 x 2 minors j - i, so Δ = 3 (by hand); bounds
+    // (4-2)(2+1)3 = 18 and (2*2*3+1)^2 = 169; proximity 4*3 = 12.
+    let r = json_report("examples/twisted_cubic.json");
+    let a = &r["analysis"];
+    assert_eq!(a["rank"], 2);
+    assert_eq!(
+        a["delta"],
+        serde_json::json!({"kind": "exact", "value": "3"})
+    );
+    assert_eq!(a["unimodular"], "no");
+    assert_eq!(a["bounds"]["steinitz"], "169");
+    assert_eq!(a["bounds"]["proximity"], "12");
+    assert_eq!(r["norm_limit"], 18);
+}
+
+#[test]
+fn transport_figures() {
+    // A 3 x 3 transport matrix is the incidence matrix of the bipartite graph K_{3,3}:
+    // rank 3 + 3 - 1 = 5 and totally unimodular (Schrijver 1986, §19.3); (9-5)(5+1)1 = 24.
+    let a = json_report("examples/transport_3x3.json");
+    assert_eq!(a["analysis"]["rank"], 5);
+    assert_eq!(a["analysis"]["totally_unimodular"], "yes");
+    assert_eq!(a["norm_limit"], 24);
+}
+
+#[test]
+fn a_small_subdet_limit_gives_a_labelled_bound() {
+    let out = kernstep(&[
+        "analyze",
+        "examples/transport_3x3.json",
+        "--subdet-limit",
+        "10",
+    ]);
+    let stdout = String::from_utf8(out.stdout).unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    assert!(stdout.contains("at most 5 (Hadamard bound"), "{stdout}");
+    assert!(stdout.contains("undecided"), "{stdout}");
+}
+
+fn expect_error(file: &Path, expected: &str) {
+    let out = kernstep(&["analyze", file.to_str().unwrap()]);
+    let stderr = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(out.status.code(), Some(2), "{}: {stderr}", file.display());
+    assert!(
+        out.stdout.is_empty(),
+        "{}: nothing on stdout",
+        file.display()
+    );
+    assert_eq!(stderr.lines().count(), 1, "one line: {stderr}");
+    let want = format!("kernstep: {}: {expected}", file.display());
+    assert!(stderr.starts_with(&want), "got:  {stderr}want: {want}");
+}
+
+#[test]
+fn bad_inputs_exit_2_naming_file_and_field() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases = [
+        (
+            "ragged.json",
+            r#"{"matrix": [[1, 2], [1, 2, 3]], "rhs": [0, 0]}"#,
+            "matrix[1]: has 3 entries, expected 2",
+        ),
+        (
+            "half.json",
+            r#"{"matrix": [[1, 0.5]], "rhs": [0]}"#,
+            "matrix[0][1]: 0.5 is not an integer",
+        ),
+        (
+            "syntax.json",
+            "{\"matrix\": [[1, 2]],\n \"rhs\": [0,]}",
+            "line 2, column ",
+        ),
+        ("syntax.toml", "matrix = [[1, 2]\nrhs = [0]\n", "line "),
+        (
+            "box.toml",
+            "matrix = [[1, 1]]\nrhs = [1]\nlower = [0, 4]\nupper = [1, 2]\n",
+            "upper[1]: 2 is below lower[1] = 4",
+        ),
+        (
+            "twice.toml",
+            "matrix = [[1, 1]]\nrhs = [1]\n[names]\nvariables = [\"a\", \"a\"]\n",
+            "names.variables[1]: \"a\" repeats",
+        ),
+        (
+            "huge.json",
+            r#"{"matrix": [[4294967296]], "rhs": [0]}"#,
+            "matrix[0][0]: 4294967296 exceeds the limit",
+        ),
+        ("model.csv", "1,2,3\n", "file name: unknown model file type"),
+    ];
+    for (name, text, expected) in cases {
+        let path = dir.path().join(name);
+        std::fs::write(&path, text).unwrap();
+        expect_error(&path, expected);
+    }
+    expect_error(&dir.path().join("absent.json"), "No such file");
+}
+
+#[test]
+fn usage_errors_exit_2() {
+    assert_eq!(kernstep(&["analyze"]).status.code(), Some(2));
+    assert_eq!(kernstep(&["no-such-verb"]).status.code(), Some(2));
+    let out = kernstep(&[
+        "analyze",
+        "examples/twisted_cubic.json",
+        "--subdet-limit",
+        "many",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+}
