@@ -6,7 +6,7 @@
 //! - an [`EntryKey`] (row space text, [`SetKind`], [`Sign`] pattern, [`Truncation`]) has a
 //!   stable [`Digest`] that names the file `<digest-hex>.kset`;
 //! - each file holds a versioned header, the key, [`SetMetadata`] and the elements in the
-//!   narrowest [`ElementEncoding`], with a checksum over everything (layout in [`format`]);
+//!   narrowest [`ElementEncoding`], with a checksum over everything (layout in [`mod@format`]);
 //! - writes are atomic (temporary file, fsync, rename, directory fsync), builders of one key
 //!   are serialised by a per-key lock ([`Store::lock_for_build`]), and every load checks the
 //!   whole file: a damaged, truncated, foreign or renamed file gives a typed [`CacheError`]
