@@ -26,7 +26,7 @@ use rayon::prelude::*;
 use super::control::{Control, StopReason};
 use super::limits::Truncation;
 use super::reducer::SignMask;
-use super::store::{add, norm_on, Entry};
+use super::store::{add_into, norm_on, Entry};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
 
@@ -143,13 +143,14 @@ impl Lifting<'_> {
     /// Normal forms of the admissible sums of `p` with each of `partners`.
     fn reduce_pairs(&self, p: u32, partners: impl Iterator<Item = u32>) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
+        let mut w = vec![0; self.set.store.get(p).len()];
         for q in partners {
             if !self.admissible(p, q) {
                 continue;
             }
-            let mut w = add(self.set.store.get(p), self.set.store.get(q))?;
+            add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
             if !self.set.reduce(&mut w)? {
-                out.push(w);
+                out.push(w.clone());
             }
         }
         Ok(out)

@@ -134,6 +134,12 @@ pub fn complete(
             )));
         }
     }
+    if n > reducer::MASK_WORDS * 64 {
+        return Err(Error::Dimension(format!(
+            "{n} variables; the completion handles at most {}",
+            reducer::MASK_WORDS * 64
+        )));
+    }
     let signs: Vec<i8> = request.signs.iter().map(|s| s.code()).collect();
     let entries: Vec<Vec<Entry>> = basis.iter().map(|b| to_entries(b)).collect::<Result<_>>()?;
     let orbits = match request.method {

@@ -9,21 +9,20 @@ use super::store::{Entry, VecStore};
 
 const LEAF_CAPACITY: usize = 12;
 
-/// Sign masks of one vector over the active components.
-#[derive(Clone, Debug, Default, PartialEq, Eq)]
+/// Words per sign mask; the completion handles at most `64 * MASK_WORDS` components.
+pub(crate) const MASK_WORDS: usize = 4;
+
+/// Sign masks of one vector over the active components (bit `k` stands for `comps[k]`).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub(crate) struct SignMask {
-    pos: Vec<u64>,
-    neg: Vec<u64>,
+    pos: [u64; MASK_WORDS],
+    neg: [u64; MASK_WORDS],
 }
 
 impl SignMask {
-    /// Sign masks of `v` on the components `comps` (bit `k` stands for `comps[k]`).
+    /// Sign masks of `v` on the components `comps` (at most `64 * MASK_WORDS` of them).
     pub(crate) fn of(v: &[Entry], comps: &[usize]) -> Self {
-        let words = comps.len().div_ceil(64);
-        let mut m = SignMask {
-            pos: vec![0; words],
-            neg: vec![0; words],
-        };
+        let mut m = SignMask::default();
         for (k, &c) in comps.iter().enumerate() {
             let bit = 1u64 << (k % 64);
             match v[c].signum() {
@@ -37,14 +36,27 @@ impl SignMask {
 
     /// True if the signs of `self` are a subset of those of `other` (no conflict, no excess).
     fn fits_in(&self, other: &SignMask) -> bool {
-        self.pos.iter().zip(&other.pos).all(|(a, b)| a & !b == 0)
-            && self.neg.iter().zip(&other.neg).all(|(a, b)| a & !b == 0)
+        (0..MASK_WORDS)
+            .all(|w| self.pos[w] & !other.pos[w] == 0 && self.neg[w] & !other.neg[w] == 0)
     }
 
     /// True if no active component has opposite signs in `self` and `other`.
     pub(crate) fn compatible(&self, other: &SignMask) -> bool {
-        self.pos.iter().zip(&other.neg).all(|(a, b)| a & b == 0)
-            && self.neg.iter().zip(&other.pos).all(|(a, b)| a & b == 0)
+        (0..MASK_WORDS).all(|w| self.pos[w] & other.neg[w] == 0 && self.neg[w] & other.pos[w] == 0)
+    }
+
+    /// Positions `k` (into the component list) where the vector is nonzero.
+    fn support(&self) -> impl Iterator<Item = usize> + '_ {
+        (0..MASK_WORDS).flat_map(move |w| {
+            let mut bits = self.pos[w] | self.neg[w];
+            std::iter::from_fn(move || {
+                (bits != 0).then(|| {
+                    let b = bits.trailing_zeros() as usize;
+                    bits &= bits - 1;
+                    w * 64 + b
+                })
+            })
+        })
     }
 }
 
@@ -126,36 +138,44 @@ impl Reducer {
     /// A stored vector `h` (other than `skip`) with `h ⊑ w` on the active components, if any.
     pub(crate) fn find(&self, store: &VecStore, w: &[Entry], skip: Option<u32>) -> Option<u32> {
         let wm = self.mask(w);
-        let mut stack = vec![0usize];
-        while let Some(node) = stack.pop() {
-            match &self.nodes[node] {
-                Node::Split { depth, children } => {
-                    let s = sign_slot(w[self.comps[*depth]]);
-                    stack.push(children[2]);
-                    if s != 2 {
-                        stack.push(children[s]);
-                    }
-                }
-                Node::Leaf(items) => {
-                    for &local in items {
-                        let id = self.ids[local];
-                        if Some(id) != skip
-                            && self.masks[local].fits_in(&wm)
-                            && self.magnitudes_fit(store.get(id), w)
-                        {
-                            return Some(id);
-                        }
-                    }
-                }
-            }
-        }
-        None
+        self.find_below(0, store, w, &wm, skip)
     }
 
-    fn magnitudes_fit(&self, h: &[Entry], w: &[Entry]) -> bool {
-        self.comps
-            .iter()
-            .all(|&c| h[c].unsigned_abs() <= w[c].unsigned_abs())
+    fn find_below(
+        &self,
+        node: usize,
+        store: &VecStore,
+        w: &[Entry],
+        wm: &SignMask,
+        skip: Option<u32>,
+    ) -> Option<u32> {
+        match &self.nodes[node] {
+            Node::Split { depth, children } => {
+                let s = sign_slot(w[self.comps[*depth]]);
+                if s != 2 {
+                    if let Some(h) = self.find_below(children[s], store, w, wm, skip) {
+                        return Some(h);
+                    }
+                }
+                self.find_below(children[2], store, w, wm, skip)
+            }
+            Node::Leaf(items) => items.iter().find_map(|&local| {
+                let id = self.ids[local];
+                let mask = &self.masks[local];
+                (Some(id) != skip
+                    && mask.fits_in(wm)
+                    && self.magnitudes_fit(mask, store.get(id), w))
+                .then_some(id)
+            }),
+        }
+    }
+
+    /// `|h_c| <= |w_c|` on the support of `h` (signs are already known to agree).
+    fn magnitudes_fit(&self, mask: &SignMask, h: &[Entry], w: &[Entry]) -> bool {
+        mask.support().all(|k| {
+            let c = self.comps[k];
+            h[c].unsigned_abs() <= w[c].unsigned_abs()
+        })
     }
 }
 

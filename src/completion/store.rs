@@ -59,6 +59,14 @@ pub(crate) fn add(a: &[Entry], b: &[Entry]) -> Result<Vec<Entry>> {
         .collect()
 }
 
+/// `w = a + b` into an existing buffer, checked.
+pub(crate) fn add_into(w: &mut [Entry], a: &[Entry], b: &[Entry]) -> Result<()> {
+    for ((x, &y), &z) in w.iter_mut().zip(a).zip(b) {
+        *x = in_range(y.checked_add(z))?;
+    }
+    Ok(())
+}
+
 /// `w -= k * h` in place, checked.
 pub(crate) fn sub_scaled(w: &mut [Entry], h: &[Entry], k: Entry) -> Result<()> {
     for (x, &y) in w.iter_mut().zip(h) {
