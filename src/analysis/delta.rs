@@ -21,7 +21,9 @@ use crate::matrix::IntMatrix;
 pub enum Delta {
     /// `Δ` itself, from every maximal minor.
     Exact(#[serde(serialize_with = "super::decimal::serialize")] BigInt),
-    /// `Δ <= value` by Hadamard's inequality (see [`hadamard_bound`]).
+    /// `Δ <= value` by Hadamard's inequality: the floor of the square root of the smaller of
+    /// the product of the `r` largest squared column norms and the product of the squared row
+    /// norms of `B` (one column per parallel class).
     UpperBound(#[serde(serialize_with = "super::decimal::serialize")] BigInt),
 }
 

@@ -4,6 +4,16 @@
 //! The *full-row-rank version* `B` of `A` keeps the first maximal set of independent rows,
 //! scanning from the top (row `i` is kept when it is independent of the rows kept before it).
 //! `B` has the same kernel as `A`; `Δ`, unimodularity and the bounds refer to it.
+//!
+//! Definitions:
+//! - `A` of rank `r` is *unimodular* when all nonzero `r x r` minors of `B` have the same
+//!   absolute value (then equal to their gcd). This depends only on the row space, hence only
+//!   on `ker_Z(A)`, and for such matrices the circuits are exactly the Graver basis
+//!   (Sturmfels, "Gröbner Bases and Convex Polytopes", 1996, ch. 8; from memory). With gcd 1
+//!   it is Schrijver's unimodularity ("Theory of Linear and Integer Programming", 1986, §21.4).
+//! - `A` is *totally unimodular* when every square submatrix has determinant 0 or ±1.
+//! - The column number `h` counts distinct nonzero columns with `a` and `-a` once; the
+//!   parallel column number counts nonzero columns up to rational multiples.
 
 mod bounds;
 mod columns;
@@ -55,7 +65,7 @@ pub struct MatrixAnalysis {
     /// The gcd of the evaluated maximal minors, when `Δ` is exact.
     #[serde(serialize_with = "decimal::serialize_option")]
     pub maximal_minor_gcd: Option<BigInt>,
-    /// Whether `A` is unimodular (see [`Decision`] and the definitions in `modularity`).
+    /// Whether `A` is unimodular (definition in the module documentation).
     pub unimodular: Decision,
     /// Whether every square subdeterminant of `A` is 0 or ±1.
     pub totally_unimodular: Decision,
