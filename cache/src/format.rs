@@ -21,9 +21,9 @@
 //!    end-8   8  XXH3-64 of every preceding byte
 //! ```
 //!
-//! A reader checks, in this order: magic, version, total length (68 + K + M + P + 8, which
-//! catches truncation), checksum, flags and tag, then the key digest against the file name and
-//! against the stored key, then the sections. Any failure is a typed [`CacheError`] naming the
+//! A reader checks, in this order: magic, version, flags and tag, total length
+//! (68 + K + M + P + 8, which catches truncation), checksum, then the key digest against the
+//! file name and against the stored key, then the sections. Any failure is a typed [`CacheError`] naming the
 //! file, and the entry is not used. The magic's first byte is non-ASCII and its tail holds CR
 //! LF and SUB, so text-mode transfers are detected.
 
@@ -148,7 +148,6 @@ pub(crate) fn decode_entry(
             computed,
         });
     }
-    check_header_fields(bytes, path)?;
     let key_end = HEADER_LEN + header.key_len;
     let meta_end = key_end + header.meta_len;
     let key = decode_key(&bytes[HEADER_LEN..key_end], &header, path, named)?;
@@ -182,7 +181,6 @@ pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheEr
             actual: file_len,
         });
     }
-    check_header_fields(&head, path)?;
     let mut sections = vec![0u8; header.key_len + header.meta_len];
     file.read_exact(&mut sections)
         .map_err(|e| CacheError::io("read", path, e))?;
@@ -210,8 +208,7 @@ fn read_up_to(file: &mut File, buf: &mut [u8], path: &Path) -> Result<usize, Cac
     Ok(filled)
 }
 
-/// Checks magic and version, then parses the fixed header (tag and flags are checked by
-/// [`check_header_fields`] once the checksum or length has been seen).
+/// Checks magic, version, flags and encoding tag, then parses the fixed header.
 pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheError> {
     check_magic_version(bytes, path, &ENTRY_MAGIC, WHAT, FORMAT_VERSION)?;
     if bytes.len() < HEADER_LEN {
@@ -224,8 +221,13 @@ pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheErr
         section: "header",
         problem,
     };
+    let encoding = ElementEncoding::from_tag(bytes[10])
+        .ok_or_else(|| malformed("unknown element encoding tag"))?;
+    if bytes[11] != 0 {
+        return Err(malformed("unknown flags are set"));
+    }
     Ok(Header {
-        encoding: ElementEncoding::from_tag(bytes[10]).unwrap_or(ElementEncoding::I64),
+        encoding,
         digest: Digest(bytes[12..28].try_into().expect("16 bytes")),
         family: u64_at(28),
         count: u64_at(36),
@@ -234,21 +236,6 @@ pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheErr
         meta_len: usize::try_from(u32_at(56)).map_err(|_| malformed("metadata length"))?,
         payload_len: u64_at(60),
     })
-}
-
-fn check_header_fields(bytes: &[u8], path: &Path) -> Result<(), CacheError> {
-    let malformed = |problem| CacheError::Malformed {
-        path: path.to_owned(),
-        section: "header",
-        problem,
-    };
-    if ElementEncoding::from_tag(bytes[10]).is_none() {
-        return Err(malformed("unknown element encoding tag"));
-    }
-    if bytes[11] != 0 {
-        return Err(malformed("unknown flags are set"));
-    }
-    Ok(())
 }
 
 /// Checks the magic bytes (as far as present) and the version field of any kernstep file.

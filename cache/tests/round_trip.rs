@@ -5,7 +5,8 @@ mod fixtures;
 use std::time::Duration;
 
 use cache::{
-    BuildGuard, CacheError, CheckpointState, ElementEncoding, Store, TestSetData, Truncation,
+    BuildGuard, CacheError, CheckpointState, ElementEncoding, EntryKey, Store, TestSetData,
+    Truncation,
 };
 use fixtures::{key, metadata, transport_like, uniform};
 use proptest::prelude::*;
@@ -124,9 +125,9 @@ fn inconsistent_input_is_refused() {
     store.insert(&boxed, &fine, &metadata(0)).unwrap();
 }
 
-#[test]
-fn list_prefix_export_and_remove() {
-    let (_dir, store) = store();
+/// A store with 20 small entries, and their keys.
+fn filled_store() -> (tempfile::TempDir, Store, Vec<EntryKey>) {
+    let (dir, store) = store();
     let keys: Vec<_> = (0..20)
         .map(|i| key(&format!("grid {i}"), 6, Truncation::default()))
         .collect();
@@ -139,6 +140,12 @@ fn list_prefix_export_and_remove() {
             )
             .unwrap();
     }
+    (dir, store, keys)
+}
+
+#[test]
+fn listing_agrees_with_full_loads() {
+    let (_dir, store, keys) = filled_store();
     let listed: Vec<_> = store
         .list()
         .unwrap()
@@ -151,6 +158,14 @@ fn list_prefix_export_and_remove() {
         let loaded = store.load(k).unwrap().unwrap();
         assert_eq!(&loaded.summary(), summary);
     }
+    let checked = store.verify_all().unwrap();
+    assert_eq!(checked.len(), 20);
+    assert!(checked.iter().all(|v| v.outcome.is_ok()));
+}
+
+#[test]
+fn digest_prefixes_resolve_or_are_reported_ambiguous() {
+    let (_dir, store, keys) = filled_store();
     let target = keys[7].digest().to_hex();
     assert_eq!(store.resolve(&target[..12]).unwrap(), keys[7].digest());
     assert_eq!(
@@ -162,21 +177,30 @@ fn list_prefix_export_and_remove() {
     let ambiguous = (0..16)
         .map(|d| format!("{d:x}"))
         .find(|p| {
-            listed
-                .iter()
-                .filter(|s| s.digest.to_hex().starts_with(p))
+            keys.iter()
+                .filter(|k| k.digest().to_hex().starts_with(p))
                 .count()
                 > 1
         })
         .unwrap();
     assert!(matches!(
         store.resolve(&ambiguous),
-        Err(CacheError::AmbiguousPrefix { .. })
+        Err(CacheError::AmbiguousPrefix { matches, .. }) if matches.len() > 1
     ));
     assert!(matches!(
         store.resolve("xyz"),
         Err(CacheError::BadDigestText { .. })
     ));
+    assert!(matches!(
+        store.resolve(""),
+        Err(CacheError::BadDigestText { .. })
+    ));
+}
+
+#[test]
+fn export_survives_json_and_remove_deletes() {
+    let (_dir, store, keys) = filled_store();
+    let target = keys[7].digest().to_hex();
     let exported = store.export(&target).unwrap();
     let json = serde_json::to_string(&exported).unwrap();
     let back: cache::ExportedEntry = serde_json::from_str(&json).unwrap();
@@ -189,12 +213,7 @@ fn list_prefix_export_and_remove() {
         store.resolve(&target),
         Err(CacheError::NotFound { .. })
     ));
-    assert_eq!(store.verify_all().unwrap().len(), 19);
-    assert!(store
-        .verify_all()
-        .unwrap()
-        .iter()
-        .all(|v| v.outcome.is_ok()));
+    assert_eq!(store.list().unwrap().len(), 19);
 }
 
 #[test]
