@@ -2,7 +2,7 @@
 //! input gives one clear `kernstep: file: field: message` line on stderr with exit code 2.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::{Command, Output, Stdio};
 
 fn kernstep(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_kernstep"))
@@ -115,6 +115,32 @@ fn a_small_subdet_limit_gives_a_labelled_bound() {
     assert_eq!(out.status.code(), Some(0));
     assert!(stdout.contains("at most 5 (Hadamard bound"), "{stdout}");
     assert!(stdout.contains("undecided"), "{stdout}");
+}
+
+#[test]
+fn a_closed_stdout_is_not_an_error() {
+    // The reader goes away at once, so the binary's first write meets a closed pipe (or, if
+    // it was faster, lands in the pipe buffer); either way it must end quietly with 0.
+    let mut child = Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args(["analyze", "examples/transport_3x3.json", "--json"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("the binary starts");
+    drop(child.stdout.take());
+    let out = child.wait_with_output().expect("the binary ends");
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        out.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
 }
 
 fn expect_error(file: &Path, expected: &str) {

@@ -51,7 +51,7 @@ pub fn published_column_number(delta: &BigInt, r: usize) -> Option<PublishedColu
             base + below,
             "r(r+1)/2 + r - 1",
             "Oxley and Walsh, 2-modular matrices, SIAM J. Discrete Math. (2022); from memory",
-            RankCondition::EveryRank,
+            RankCondition::LargeRank,
         ),
         3 => (
             3,
