@@ -37,7 +37,7 @@ fn complete_digraphs_attain_hellers_bound() {
         assert_eq!(a.unimodular, Decision::Yes, "K_{k}: unimodular");
         assert_eq!(a.totally_unimodular, Decision::Yes, "K_{k}: TU");
         let published = a.published_column_number.as_ref().expect("Heller's value");
-        assert_eq!(published.value as usize, r * (r + 1) / 2, "K_{k}");
+        assert_eq!(published.value, (r * (r + 1) / 2) as u128, "K_{k}");
         assert_eq!(published.condition, RankCondition::EveryRank);
         assert_eq!(a.within_published_column_number, Some(true), "K_{k}");
     }

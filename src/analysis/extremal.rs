@@ -23,8 +23,8 @@ pub enum RankCondition {
 pub struct PublishedColumnNumber {
     /// The `Δ` the value belongs to.
     pub delta: u8,
-    /// The maximum, evaluated at the matrix's rank.
-    pub value: u64,
+    /// The maximum, evaluated at the matrix's rank (`u128`, so no rank can overflow it).
+    pub value: u128,
     /// The formula in `r`.
     pub formula: &'static str,
     /// Where it was published.
@@ -35,7 +35,7 @@ pub struct PublishedColumnNumber {
 
 /// The published value for `Δ = delta` at rank `r`, when one is known (`Δ` in 1..=3).
 pub fn published_column_number(delta: &BigInt, r: usize) -> Option<PublishedColumnNumber> {
-    let r = r as u64;
+    let r = r as u128;
     let base = r * (r + 1) / 2;
     let below = r.saturating_sub(1);
     let (d, value, formula, source, condition) = match u8::try_from(delta).ok()? {

@@ -110,7 +110,7 @@ impl MatrixAnalysis {
             zero_columns: classes.zero,
             column_number: classes.up_to_sign.len(),
             column_number_parallel: parallel,
-            within_published_column_number: published.as_ref().map(|p| parallel as u64 <= p.value),
+            within_published_column_number: published.as_ref().map(|p| parallel as u128 <= p.value),
             published_column_number: published,
             delta: minors.delta,
             maximal_minors_evaluated: minors.evaluated,

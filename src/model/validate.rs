@@ -13,6 +13,10 @@ const MODEL_KEYS: [&str; 6] = ["matrix", "rhs", "cost", "lower", "upper", "names
 /// The keys of the `names` table.
 const NAME_KEYS: [&str; 2] = ["variables", "rows"];
 
+/// `2^63` as a float: integral floats at least this large came from integer literals too long
+/// for 64 bits, which the JSON reader holds as floats.
+const TWO_POW_63: f64 = 9_223_372_036_854_775_808.0;
+
 /// Which side of the box a bound array describes.
 #[derive(Clone, Copy)]
 enum Side {
@@ -93,7 +97,7 @@ impl Checker<'_> {
             Node::Float(f) if !f.is_finite() || f.fract() != 0.0 => {
                 Err(self.error(field, format!("{f:?} is not an integer")))
             }
-            Node::Float(f) if f.abs() >= 9.223_372_036_854_776e18 => Err(too_large(format!("{f}"))),
+            Node::Float(f) if f.abs() >= TWO_POW_63 => Err(too_large(format!("{f}"))),
             Node::Float(f) => Err(self.error(
                 field,
                 format!(
