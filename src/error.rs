@@ -35,4 +35,7 @@ pub enum Error {
         /// The underlying error.
         source: std::io::Error,
     },
+    /// The test-set cache refused an operation or found a damaged entry.
+    #[error(transparent)]
+    Cache(#[from] cache::CacheError),
 }

@@ -27,7 +27,7 @@ pub use control::{Control, Progress, StopReason};
 pub use limits::Truncation;
 
 use crate::error::{Error, Result};
-use crate::lattice::{to_i64_vec, HermiteForm};
+use crate::lattice::reduced_kernel_basis;
 use crate::matrix::IntMatrix;
 use store::{to_entries, Entry};
 use working::Orbit;
@@ -159,14 +159,7 @@ pub fn complete_kernel(
     request: &Request,
     control: &Control<'_>,
 ) -> Result<Completion> {
-    let hermite = HermiteForm::new(a);
-    let basis = hermite
-        .reduced_kernel()
-        .iter()
-        .enumerate()
-        .map(|(i, v)| to_i64_vec(v, &format!("kernel basis vector {i}")))
-        .collect::<Result<Vec<_>>>()?;
-    complete(&basis, request, control)
+    complete(&reduced_kernel_basis(a)?, request, control)
 }
 
 type Staged = Result<std::result::Result<Vec<Orbit>, StopReason>>;

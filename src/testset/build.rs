@@ -1,0 +1,116 @@
+//! Building one test set for a model: key, completion, metadata.
+
+use std::time::Instant;
+
+use cache::{EntryKey, SetMetadata, TestSetData};
+
+use super::spec::ResolvedSpec;
+use crate::analysis::MatrixAnalysis;
+use crate::completion::{complete_kernel, Completion, Control, Method, MoveSet, Request, Sign};
+use crate::error::Result;
+use crate::lattice::RowSpaceKey;
+use crate::matrix::IntMatrix;
+
+/// A finished set with everything the cache stores about it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BuiltSet {
+    /// The cache key.
+    pub key: EntryKey,
+    /// Build facts.
+    pub metadata: SetMetadata,
+    /// The moves.
+    pub set: MoveSet,
+}
+
+/// How a build ended.
+#[derive(Clone, Debug, PartialEq)]
+pub enum BuildOutcome {
+    /// The set was built.
+    Built(BuiltSet),
+    /// A limit or a cancellation stopped the completion; nothing was produced.
+    Stopped(crate::completion::StopReason),
+}
+
+/// The cache key of the set `spec` describes for the matrix `a`.
+///
+/// The row space (not the matrix) is keyed, so scaled, permuted or redundant rows share one
+/// entry; the truncation in the key is only the one that changes the set.
+pub fn entry_key(a: &IntMatrix, spec: &ResolvedSpec) -> EntryKey {
+    EntryKey {
+        row_space: RowSpaceKey::of(a).canonical_text(),
+        kind: spec.kind,
+        signs: spec.signs.iter().map(|&s| cache_sign(s)).collect(),
+        truncation: cache::Truncation {
+            norm_limit: spec.key_truncation.norm_limit,
+            bounds: spec.key_truncation.bounds.clone(),
+        },
+    }
+}
+
+/// Runs the completion for `a` as `spec` says.
+pub fn build(
+    a: &IntMatrix,
+    analysis: &MatrixAnalysis,
+    spec: &ResolvedSpec,
+    control: &Control<'_>,
+) -> Result<BuildOutcome> {
+    let start = Instant::now();
+    let request = Request {
+        signs: spec.signs.clone(),
+        truncation: spec.truncation.clone(),
+        method: spec.method,
+    };
+    let set = match complete_kernel(a, &request, control)? {
+        Completion::Finished(set) => set,
+        Completion::Stopped(reason) => return Ok(BuildOutcome::Stopped(reason)),
+    };
+    let metadata = SetMetadata {
+        matrix: a.to_rows(),
+        rank: analysis.rank as u64,
+        delta: analysis.delta.value().to_string(),
+        delta_exact: analysis.delta.is_exact(),
+        column_number: analysis.column_number as u64,
+        norm_bound: spec.truncation.norm_limit,
+        method: method_name(spec.method).to_string(),
+        completeness: spec.completeness.clone(),
+        build_seconds: start.elapsed().as_secs_f64(),
+        kernstep_version: env!("CARGO_PKG_VERSION").to_string(),
+        created_unix: std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .map_or(0, |d| d.as_secs()),
+    };
+    Ok(BuildOutcome::Built(BuiltSet {
+        key: entry_key(a, spec),
+        metadata,
+        set,
+    }))
+}
+
+/// The stored form of a set.
+pub fn to_data(set: &MoveSet) -> Result<TestSetData> {
+    Ok(TestSetData::new(set.width, set.elements.concat())?)
+}
+
+/// The in-memory form of a stored set.
+pub fn from_data(data: &TestSetData) -> MoveSet {
+    MoveSet {
+        width: data.width(),
+        elements: data.rows().map(<[i64]>::to_vec).collect(),
+    }
+}
+
+/// The name recorded for a method.
+pub fn method_name(method: Method) -> &'static str {
+    match method {
+        Method::ProjectAndLift => "project-and-lift",
+        Method::Pottier => "pottier",
+    }
+}
+
+fn cache_sign(s: Sign) -> cache::Sign {
+    match s {
+        Sign::Free => cache::Sign::Free,
+        Sign::NonNegative => cache::Sign::NonNegative,
+        Sign::NonPositive => cache::Sign::NonPositive,
+    }
+}

@@ -1,0 +1,91 @@
+//! The test sets of one cache directory: reuse what is stored, build what is missing.
+
+use std::path::Path;
+
+use cache::{BuildGuard, EntryKey, Store, StoredSet};
+
+use super::build::{build, to_data, BuildOutcome, BuiltSet};
+use super::spec::ResolvedSpec;
+use crate::analysis::MatrixAnalysis;
+use crate::completion::{Control, StopReason};
+use crate::error::Result;
+use crate::matrix::IntMatrix;
+
+/// What [`SetLibrary::obtain`] produced.
+#[derive(Debug)]
+pub enum Obtained {
+    /// A valid stored entry that serves the request (exact key or a covering one).
+    Reused(Box<StoredSet>),
+    /// Built now and stored; `replaced` tells why an existing entry was not used.
+    Built {
+        /// The new set.
+        built: Box<BuiltSet>,
+        /// The damage found in the entry this one replaced, if any.
+        replaced: Option<String>,
+    },
+    /// A limit or a cancellation stopped the build; the store is unchanged.
+    Stopped(StopReason),
+}
+
+/// A cache directory used by the root crate.
+#[derive(Clone, Debug)]
+pub struct SetLibrary {
+    store: Store,
+}
+
+impl SetLibrary {
+    /// Opens the directory `dir`, else `$KERNSTEP_CACHE_DIR`, else the platform cache directory.
+    pub fn open(dir: Option<&Path>) -> Result<Self> {
+        Ok(Self {
+            store: Store::open_default(dir)?,
+        })
+    }
+
+    /// The underlying store (for listing, verifying, pruning).
+    pub fn store(&self) -> &Store {
+        &self.store
+    }
+
+    /// A stored set that serves `key` (the entry itself or one whose truncation covers it).
+    pub fn find(&self, key: &EntryKey) -> Result<Option<StoredSet>> {
+        Ok(self.store.find_covering(key)?.found)
+    }
+
+    /// Returns the stored set for `spec`, or builds and stores it. Two processes asking for
+    /// the same key build it once: the second waits and then reuses the first one's entry.
+    /// With `rebuild` an existing entry is replaced.
+    pub fn obtain(
+        &self,
+        a: &IntMatrix,
+        analysis: &MatrixAnalysis,
+        spec: &ResolvedSpec,
+        control: &Control<'_>,
+        rebuild: bool,
+    ) -> Result<Obtained> {
+        let key = super::build::entry_key(a, spec);
+        if !rebuild {
+            if let Some(found) = self.find(&key)? {
+                return Ok(Obtained::Reused(Box::new(found)));
+            }
+        }
+        let lock = if rebuild {
+            self.store.lock_for_rebuild(&key)?
+        } else {
+            match self.store.lock_for_build(&key)? {
+                BuildGuard::Ready(set) => return Ok(Obtained::Reused(Box::new(set))),
+                BuildGuard::Build(lock) => lock,
+            }
+        };
+        let replaced = lock.damaged_entry().map(ToString::to_string);
+        match build(a, analysis, spec, control)? {
+            BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped(reason)),
+            BuildOutcome::Built(built) => {
+                lock.commit(&to_data(&built.set)?, &built.metadata)?;
+                Ok(Obtained::Built {
+                    built: Box::new(built),
+                    replaced,
+                })
+            }
+        }
+    }
+}

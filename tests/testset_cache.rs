@@ -1,0 +1,118 @@
+//! Test sets through the cache: same-kernel matrices share one entry, cached equals fresh,
+//! truncations and signs make other entries.
+
+use cache::{Completeness, SetKind};
+use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+use kernstep::completion::{Control, Sign};
+use kernstep::model::{Model, ModelKind};
+use kernstep::testset::{from_data, BoxPolicy, BuildSpec, NormLimit, Obtained, SetLibrary};
+use kernstep::IntMatrix;
+
+fn model(rows: &[Vec<i64>], upper: i64) -> Model {
+    let n = rows[0].len();
+    let text = serde_json::json!({
+        "matrix": rows,
+        "rhs": vec![0; rows.len()],
+        "cost": vec![0; n],
+        "lower": vec![0; n],
+        "upper": vec![upper; n],
+    })
+    .to_string();
+    Model::from_str(&text, ModelKind::Json, "test.json").unwrap()
+}
+
+fn obtain(lib: &SetLibrary, m: &Model, spec: &BuildSpec) -> Obtained {
+    let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+    let resolved = spec.resolve(m, &analysis).unwrap();
+    lib.obtain(&m.matrix, &analysis, &resolved, &Control::new(), false)
+        .unwrap()
+}
+
+fn elements(o: &Obtained) -> Vec<Vec<i64>> {
+    match o {
+        Obtained::Reused(s) => from_data(&s.data).elements,
+        Obtained::Built { built, .. } => built.set.elements.clone(),
+        Obtained::Stopped(r) => panic!("stopped: {r:?}"),
+    }
+}
+
+/// The 3 x 3 transportation matrix (supplies, then demands).
+fn transport() -> Vec<Vec<i64>> {
+    let a = IntMatrix::zeros(6, 9);
+    let mut a = a;
+    for i in 0..3 {
+        for k in 0..3 {
+            a.set(i, i * 3 + k, 1);
+            a.set(3 + k, i * 3 + k, 1);
+        }
+    }
+    a.to_rows()
+}
+
+#[test]
+fn same_kernel_matrices_share_one_entry_and_cached_equals_fresh() {
+    let dir = tempfile::tempdir().unwrap();
+    let lib = SetLibrary::open(Some(dir.path())).unwrap();
+    let spec = BuildSpec::default();
+    let base = transport();
+    let first = obtain(&lib, &model(&base, 5), &spec);
+    assert!(matches!(first, Obtained::Built { .. }));
+    // 15 cycles of K_{3,3} (standard count, see completion_reference.rs).
+    assert_eq!(elements(&first).len(), 15);
+
+    let mut scaled = base.clone();
+    scaled[0].iter_mut().for_each(|v| *v *= 3);
+    let mut permuted = base.clone();
+    permuted.swap(0, 4);
+    let mut redundant = base.clone();
+    redundant.push(base[0].iter().zip(&base[1]).map(|(a, b)| a + b).collect());
+    for rows in [scaled, permuted, redundant] {
+        let again = obtain(&lib, &model(&rows, 5), &spec);
+        assert!(matches!(again, Obtained::Reused(_)), "{rows:?}");
+        assert_eq!(elements(&again), elements(&first));
+    }
+    assert_eq!(lib.store().list().unwrap().len(), 1);
+}
+
+#[test]
+fn signs_and_truncations_make_their_own_entries() {
+    let dir = tempfile::tempdir().unwrap();
+    let lib = SetLibrary::open(Some(dir.path())).unwrap();
+    let m = model(&transport(), 1);
+    let short = BuildSpec {
+        norm_limit: NormLimit::AtMost(4),
+        ..BuildSpec::default()
+    };
+    let short_set = obtain(&lib, &m, &short);
+    let Obtained::Built { built, .. } = &short_set else {
+        panic!("the first set of a new store is built");
+    };
+    assert_eq!(
+        built.metadata.completeness,
+        Completeness::NormTruncated { limit: 4 }
+    );
+    // A truncated set does not serve a request for the complete one.
+    let graver = obtain(&lib, &m, &BuildSpec::default());
+    assert!(matches!(graver, Obtained::Built { .. }));
+    let full = elements(&graver);
+    let expected: Vec<_> = full
+        .iter()
+        .filter(|g| g.iter().map(|x| x.abs()).sum::<i64>() <= 4)
+        .cloned()
+        .collect();
+    assert_eq!(elements(&short_set), expected);
+    let hilbert = BuildSpec {
+        kind: SetKind::Hilbert,
+        signs: Some(vec![Sign::Free; 9]),
+        ..BuildSpec::default()
+    };
+    assert!(matches!(obtain(&lib, &m, &hilbert), Obtained::Built { .. }));
+    // The complete set covers every truncation of the same kind and signs.
+    let boxed = BuildSpec {
+        bounds: BoxPolicy::FromBounds,
+        ..BuildSpec::default()
+    };
+    assert!(matches!(obtain(&lib, &m, &boxed), Obtained::Reused(_)));
+    assert!(matches!(obtain(&lib, &m, &short), Obtained::Reused(_)));
+    assert_eq!(lib.store().list().unwrap().len(), 3);
+}
