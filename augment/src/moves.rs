@@ -62,13 +62,13 @@ impl MoveSet {
     ///
     /// Rejects ragged data and zero moves; the l1 norm of every move must fit in `i64`.
     pub fn new(width: usize, dense: Vec<i64>, coverage: Coverage) -> Result<Self> {
-        if width == 0 && !dense.is_empty() || width != 0 && dense.len() % width != 0 {
+        let count = dense.len().checked_div(width).unwrap_or(0);
+        if count * width != dense.len() {
             return Err(AugmentError::RaggedMoves {
                 len: dense.len(),
                 width,
             });
         }
-        let count = dense.len().checked_div(width).unwrap_or(0);
         let mut set = MoveSet {
             width,
             starts: Vec::with_capacity(count + 1),

@@ -1,0 +1,193 @@
+//! Property tests against brute force on tiny boxed instances: the Graver basis comes from
+//! kernel enumeration, the optimum from enumerating the box.
+
+mod common;
+
+use augment::{
+    certify, solve, Certificate, Coverage, InfeasibleReason, MoveSet, Objective, Options, Problem,
+    Rule, Solution, Status, Term,
+};
+use common::{brute_force, graver, times};
+use proptest::prelude::*;
+
+/// A tiny instance: matrix, l1 bound on its Graver elements, box, start point.
+#[derive(Debug, Clone)]
+struct Instance {
+    a: Vec<Vec<i64>>,
+    bound: i64,
+    lower: Vec<i64>,
+    upper: Vec<i64>,
+    x0: Vec<i64>,
+}
+
+/// Matrices whose Graver elements have l1 norm below `(n - r)(r + 1) Δ` (circuit bound, as in
+/// De Loera, Hemmecke, Köppe 2013, ch. 3): 1x3 and 1x4 rows with entries in -2..=2
+/// (r = 1, Δ <= 2: bounds 8 and 12) and 2x4 matrices with entries in -1..=1 (Δ <= 2 at rank 2,
+/// Δ = 1 at rank 1: bound 12).
+fn matrix() -> impl Strategy<Value = (Vec<Vec<i64>>, i64)> {
+    prop_oneof![
+        prop::collection::vec(-2i64..=2, 3).prop_map(|row| (vec![row], 8)),
+        prop::collection::vec(-2i64..=2, 4).prop_map(|row| (vec![row], 12)),
+        prop::collection::vec(prop::collection::vec(-1i64..=1, 4), 2).prop_map(|a| (a, 12)),
+    ]
+    .prop_filter("nonzero matrix", |(a, _)| {
+        a.iter().flatten().any(|&e| e != 0)
+    })
+}
+
+fn instance() -> impl Strategy<Value = Instance> {
+    matrix().prop_flat_map(|(a, bound)| {
+        let n = a[0].len();
+        (
+            prop::collection::vec((-2i64..=1, 0i64..=3), n),
+            prop::collection::vec(-4i64..=4, n),
+        )
+            .prop_map(move |(ranges, x0)| Instance {
+                a: a.clone(),
+                bound,
+                lower: ranges.iter().map(|r| r.0).collect(),
+                upper: ranges.iter().map(|r| r.0 + r.1).collect(),
+                x0,
+            })
+    })
+}
+
+/// A convex piecewise-linear term: increasing abscissae, nondecreasing integer slopes.
+fn piecewise() -> impl Strategy<Value = Term> {
+    (
+        -3i64..=3,
+        -5i64..=5,
+        prop::collection::vec((1i64..=3, -4i64..=4), 1..=3),
+    )
+        .prop_map(|(x, y, segments)| {
+            let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
+            slopes.sort_unstable();
+            let mut points = vec![(x, y)];
+            for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
+                let &(px, py) = points.last().expect("starts nonempty");
+                points.push((px + gap, py + slope * gap));
+            }
+            Term::PiecewiseLinear(points)
+        })
+}
+
+fn term() -> impl Strategy<Value = Term> {
+    prop_oneof![
+        (-5i64..=5).prop_map(Term::Linear),
+        (0i64..=3, -6i64..=6).prop_map(|(a, c)| Term::Quadratic { a, c }),
+        piecewise(),
+    ]
+}
+
+fn objective(n: usize) -> impl Strategy<Value = Objective> {
+    prop_oneof![
+        prop::collection::vec(-5i64..=5, n).prop_map(Objective::linear),
+        prop::collection::vec(term(), n)
+            .prop_map(|terms| Objective::separable(terms).expect("convex by construction")),
+    ]
+}
+
+fn case() -> impl Strategy<Value = (Instance, Objective)> {
+    instance().prop_flat_map(|inst| {
+        let n = inst.x0.len();
+        (Just(inst), objective(n))
+    })
+}
+
+fn problem(inst: &Instance, objective: Objective) -> Problem {
+    Problem::new(
+        objective,
+        inst.lower.iter().copied().map(Some).collect(),
+        inst.upper.iter().copied().map(Some).collect(),
+    )
+    .expect("matching lengths")
+}
+
+/// Everything but the wall-clock time.
+fn comparable(s: &Solution) -> Solution {
+    Solution {
+        elapsed: Default::default(),
+        ..s.clone()
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(96))]
+
+    /// Graver-best with the complete basis matches the enumerated optimum, or proves the box
+    /// empty exactly when enumeration finds no point; an optimum is certified and in the fibre.
+    #[test]
+    fn complete_set_matches_brute_force((inst, objective) in case()) {
+        let n = inst.x0.len();
+        let moves = MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap();
+        let b = times(&inst.a, &inst.x0);
+        let expected = brute_force(&inst.a, &b, &inst.lower, &inst.upper, &objective);
+        let problem = problem(&inst, objective);
+        let solution = solve(&problem, &moves, &inst.x0, &Options::default()).unwrap();
+        match expected {
+            None => {
+                let proven = matches!(
+                    solution.status,
+                    Status::Infeasible(InfeasibleReason::NoLatticePointInBox { min_violation }) if min_violation > 0
+                );
+                prop_assert!(proven, "expected a proof of infeasibility, got {:?}", solution.status);
+            }
+            Some(best) => {
+                prop_assert_eq!(&solution.status, &Status::Optimal);
+                prop_assert_eq!(solution.objective, Some(best));
+                prop_assert_eq!(times(&inst.a, &solution.x), b);
+                prop_assert_eq!(solution.violation, 0);
+                prop_assert_eq!(certify(&problem, &moves, &solution.x).unwrap(), Certificate::NoImprovingMove);
+            }
+        }
+    }
+
+    /// Every rule, with and without power-of-two steps, reaches the same optimal value, and the
+    /// parallel scan returns exactly the sequential solution, trace included.
+    #[test]
+    fn rules_agree_and_parallel_equals_sequential((inst, objective) in case()) {
+        let n = inst.x0.len();
+        let moves = MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap();
+        let problem = problem(&inst, objective);
+        let reference = solve(&problem, &moves, &inst.x0, &Options::default()).unwrap();
+        for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
+            for powers in [false, true] {
+                let options = Options::default().rule(rule).powers_of_two(powers).trace(true);
+                let sequential = solve(&problem, &moves, &inst.x0, &options).unwrap();
+                let parallel = solve(&problem, &moves, &inst.x0, &options.parallel(true)).unwrap();
+                prop_assert_eq!(comparable(&sequential), comparable(&parallel));
+                prop_assert_eq!(sequential.objective.is_some(), reference.objective.is_some());
+                if reference.status == Status::Optimal {
+                    prop_assert_eq!(sequential.objective, reference.objective);
+                }
+                let trace = sequential.trace.unwrap();
+                prop_assert_eq!(trace.len() as u64, sequential.feasibility_steps + sequential.optimality_steps);
+                prop_assert!(trace.iter().all(|s| s.gain > 0 && s.before - s.after == s.gain && s.length >= 1));
+                prop_assert!(!powers || trace.iter().all(|s| s.length.count_ones() == 1));
+            }
+        }
+    }
+
+    /// A set truncated to the box (|g_i| <= u_i - l_i) still solves every start inside the box.
+    #[test]
+    fn box_truncated_set_is_enough_inside_the_box((inst, objective) in case()) {
+        let n = inst.x0.len();
+        let widths: Vec<i64> = inst.lower.iter().zip(&inst.upper).map(|(l, u)| u - l).collect();
+        let truncated: Vec<Vec<i64>> = graver(&inst.a, n, inst.bound)
+            .into_iter()
+            .filter(|g| g.iter().zip(&widths).all(|(e, w)| e.abs() <= *w))
+            .collect();
+        let start: Vec<i64> = inst.x0.iter().zip(inst.lower.iter().zip(&inst.upper))
+            .map(|(&v, (&l, &u))| v.clamp(l, u)).collect();
+        let b = times(&inst.a, &start);
+        let expected = brute_force(&inst.a, &b, &inst.lower, &inst.upper, &objective);
+        let problem = problem(&inst, objective);
+        if truncated.is_empty() {
+            return Ok(());
+        }
+        let moves = MoveSet::from_rows(n, &truncated, Coverage::BoxValid).unwrap();
+        let solution = solve(&problem, &moves, &start, &Options::default()).unwrap();
+        prop_assert_eq!(solution.status, Status::Optimal);
+        prop_assert_eq!(solution.objective, expected);
+    }
+}
