@@ -38,4 +38,7 @@ pub enum Error {
     /// The test-set cache refused an operation or found a damaged entry.
     #[error(transparent)]
     Cache(#[from] cache::CacheError),
+    /// The augmentation solver rejected its input or hit an arithmetic limit.
+    #[error(transparent)]
+    Augment(#[from] augment::AugmentError),
 }

@@ -1,0 +1,135 @@
+//! Solving one instance `(b, c, l, u)` of a model with a given test set.
+//!
+//! The start point comes from the lattice core: an integer solution of `A x = b` (or, for a
+//! warm start, yesterday's plan plus a particular solution of `A z = b - b_prev`); the
+//! augmentation crate then does phase I and phase II. No integer solution at all is reported
+//! with the lattice certificate.
+
+use augment::{Coverage, Objective, Options, Problem, Solution};
+use cache::Completeness;
+
+use crate::completion::MoveSet;
+use crate::error::{Error, Result};
+use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution};
+use crate::matrix::IntMatrix;
+use crate::model::Model;
+
+/// What is computed once per matrix and shared by every instance of it.
+#[derive(Clone, Debug)]
+pub struct Prepared {
+    hermite: HermiteForm,
+    moves: augment::MoveSet,
+}
+
+/// A previous plan to start from.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct WarmStart {
+    /// The right-hand side the plan was made for.
+    pub rhs: Vec<i64>,
+    /// The plan; `A x = rhs`.
+    pub x: Vec<i64>,
+}
+
+/// How a solve ended.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Verdict {
+    /// The augmentation ran; its status says optimal, infeasible in the box, unbounded, ...
+    Solved(Solution),
+    /// `A x = b` has no integer solution at all; the certificate `y` has `y^T A` integral and
+    /// `y^T b` not.
+    NoIntegerSolution(Certificate),
+}
+
+/// The augmentation coverage a stored set gives.
+pub fn coverage_of(completeness: &Completeness) -> Coverage {
+    match completeness {
+        Completeness::Complete => Coverage::Complete,
+        Completeness::BoxTruncated => Coverage::BoxValid,
+        Completeness::NormTruncated { limit } => Coverage::NormTruncated(*limit),
+    }
+}
+
+impl Prepared {
+    /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
+    pub fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
+        if set.width != a.cols() {
+            return Err(Error::Dimension(format!(
+                "test set has width {}, the matrix {} columns",
+                set.width,
+                a.cols()
+            )));
+        }
+        Ok(Self {
+            hermite: HermiteForm::new(a),
+            moves: augment::MoveSet::from_rows(set.width, &set.elements, coverage)?,
+        })
+    }
+
+    /// The moves as the solver sees them.
+    pub fn moves(&self) -> &augment::MoveSet {
+        &self.moves
+    }
+
+    /// Solves `model` (whose matrix is the prepared one), from `warm` if given.
+    pub fn solve(
+        &self,
+        model: &Model,
+        options: &Options,
+        warm: Option<&WarmStart>,
+        cancel: &dyn Fn() -> bool,
+    ) -> Result<Verdict> {
+        let start = match self.start_point(&model.rhs, warm)? {
+            Ok(x) => x,
+            Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
+        };
+        let problem = Problem::new(
+            Objective::linear(model.cost.clone()),
+            model.lower.clone(),
+            model.upper.clone(),
+        )?;
+        let solution = augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?;
+        Ok(Verdict::Solved(solution))
+    }
+
+    /// An integer point of the fibre `A x = b`, or the certificate that there is none.
+    fn start_point(
+        &self,
+        rhs: &[i64],
+        warm: Option<&WarmStart>,
+    ) -> Result<std::result::Result<Vec<i64>, Certificate>> {
+        let (target, base) = match warm {
+            Some(w) if w.rhs.len() != rhs.len() || w.x.len() != self.moves.width() => {
+                return Err(Error::Dimension(format!(
+                    "warm start has {} right-hand side entries and {} variables, the model {} and {}",
+                    w.rhs.len(),
+                    w.x.len(),
+                    rhs.len(),
+                    self.moves.width()
+                )))
+            }
+            Some(w) => {
+                let diff = rhs
+                    .iter()
+                    .zip(&w.rhs)
+                    .map(|(b, p)| b.checked_sub(*p))
+                    .collect::<Option<Vec<i64>>>()
+                    .ok_or_else(|| Error::Overflow("right-hand side difference".into()))?;
+                (diff, Some(&w.x))
+            }
+            None => (rhs.to_vec(), None),
+        };
+        let z = match self.hermite.solve(&target) {
+            IntegerSolution::Solution(z) => to_i64_vec(&z, "particular solution")?,
+            IntegerSolution::NoSolution(c) => return Ok(Err(c)),
+        };
+        let Some(base) = base else {
+            return Ok(Ok(z));
+        };
+        base.iter()
+            .zip(&z)
+            .map(|(a, b)| a.checked_add(*b))
+            .collect::<Option<Vec<i64>>>()
+            .map(Ok)
+            .ok_or_else(|| Error::Overflow("warm start point".into()))
+    }
+}
