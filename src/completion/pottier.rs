@@ -40,7 +40,7 @@ pub(crate) fn complete(
     let mut processed = 0usize;
     while let Some(Reverse((level, a, b))) = queue.pop() {
         processed += 1;
-        if processed % CHECK_EVERY == 0 {
+        if processed.is_multiple_of(CHECK_EVERY) {
             if let Some(stop) = control.checkpoint(stage.0, stage.1, level, set.len()) {
                 return Ok(Err(stop));
             }

@@ -26,7 +26,7 @@ pub struct BuiltSet {
 #[derive(Clone, Debug, PartialEq)]
 pub enum BuildOutcome {
     /// The set was built.
-    Built(BuiltSet),
+    Built(Box<BuiltSet>),
     /// A limit or a cancellation stopped the completion; nothing was produced.
     Stopped(crate::completion::StopReason),
 }
@@ -79,11 +79,11 @@ pub fn build(
             .duration_since(std::time::UNIX_EPOCH)
             .map_or(0, |d| d.as_secs()),
     };
-    Ok(BuildOutcome::Built(BuiltSet {
+    Ok(BuildOutcome::Built(Box::new(BuiltSet {
         key: entry_key(a, spec),
         metadata,
         set,
-    }))
+    })))
 }
 
 /// The stored form of a set.

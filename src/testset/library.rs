@@ -81,10 +81,7 @@ impl SetLibrary {
             BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped(reason)),
             BuildOutcome::Built(built) => {
                 lock.commit(&to_data(&built.set)?, &built.metadata)?;
-                Ok(Obtained::Built {
-                    built: Box::new(built),
-                    replaced,
-                })
+                Ok(Obtained::Built { built, replaced })
             }
         }
     }
