@@ -112,7 +112,7 @@ fn child(name: &str, method: &str, limit: u64) {
         .and_then(|v| v.parse().ok());
     let control = Control::new().time_limit(Duration::from_secs(limit));
     let start = Instant::now();
-    let outcome = complete_kernel(&a, &request, &control).expect("completion runs");
+    let outcome = complete_kernel(&a, &request, &control, None).expect("completion runs");
     let seconds = start.elapsed().as_secs_f64();
     let elements = match outcome {
         Completion::Finished(set) => set.elements.len().to_string(),

@@ -6,6 +6,8 @@
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
+use super::checkpoint::Checkpoint;
+
 /// Why a completion stopped before finishing.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum StopReason {
@@ -39,6 +41,7 @@ pub struct Control<'a> {
     max_elements: Option<usize>,
     cancel: Option<&'a AtomicBool>,
     progress: Option<&'a (dyn Fn(&Progress) + Sync)>,
+    stage_done: Option<&'a (dyn Fn(&Checkpoint) + Sync)>,
 }
 
 impl Default for Control<'_> {
@@ -56,6 +59,7 @@ impl<'a> Control<'a> {
             max_elements: None,
             cancel: None,
             progress: None,
+            stage_done: None,
         }
     }
 
@@ -81,6 +85,20 @@ impl<'a> Control<'a> {
     pub fn progress(mut self, report: &'a (dyn Fn(&Progress) + Sync)) -> Self {
         self.progress = Some(report);
         self
+    }
+
+    /// Call `save` with the state after every finished stage but the last, so that an
+    /// interrupted run can resume there (default: no saving).
+    pub fn on_stage_done(mut self, save: &'a (dyn Fn(&Checkpoint) + Sync)) -> Self {
+        self.stage_done = Some(save);
+        self
+    }
+
+    /// Hands a finished stage's state to the saving hook, if any.
+    pub(crate) fn stage_done(&self, checkpoint: &Checkpoint) {
+        if let Some(save) = self.stage_done {
+            save(checkpoint);
+        }
     }
 
     /// Time since the clock started.

@@ -12,6 +12,7 @@
 //! Output invariant: one element per `±` pair where the signs allow both, oriented so that its
 //! first nonzero entry is positive; elements sorted by l1 norm, then lexicographically.
 
+mod checkpoint;
 mod control;
 mod lift;
 mod limits;
@@ -23,6 +24,7 @@ mod working;
 
 use serde::{Deserialize, Serialize};
 
+pub use checkpoint::Checkpoint;
 pub use control::{Control, Progress, StopReason};
 pub use limits::Truncation;
 
@@ -110,7 +112,9 @@ pub enum Completion {
     Stopped(StopReason),
 }
 
-/// Computes the set described by `request` for the lattice spanned by the rows of `basis`.
+/// Computes the set described by `request` for the lattice spanned by the rows of `basis`,
+/// from the beginning or, with `resume`, from a checkpoint of an earlier run of the same
+/// request on the same lattice.
 ///
 /// `basis` must be a basis of a saturated lattice such as `ker_Z(A)` (the kernel basis from
 /// [`crate::lattice`]); every row has `request.signs.len()` entries.
@@ -118,6 +122,7 @@ pub fn complete(
     basis: &[Vec<i64>],
     request: &Request,
     control: &Control<'_>,
+    resume: Option<&Checkpoint>,
 ) -> Result<Completion> {
     let n = request.signs.len();
     if let Some(row) = basis.iter().find(|r| r.len() != n) {
@@ -143,7 +148,7 @@ pub fn complete(
     let signs: Vec<i8> = request.signs.iter().map(|s| s.code()).collect();
     let entries: Vec<Vec<Entry>> = basis.iter().map(|b| to_entries(b)).collect::<Result<_>>()?;
     let orbits = match request.method {
-        Method::ProjectAndLift => by_lifting(basis, &entries, &signs, request, control)?,
+        Method::ProjectAndLift => by_lifting(basis, &entries, &signs, request, control, resume)?,
         Method::Pottier => by_pottier(&entries, &signs, request, control)?,
     };
     Ok(match orbits {
@@ -153,13 +158,18 @@ pub fn complete(
 }
 
 /// Computes the set described by `request` for `ker_Z(a)`, starting from the LLL-reduced
-/// kernel basis of the lattice core.
+/// kernel basis of the lattice core (or from `resume`, after checking that its elements lie
+/// in `ker_Z(a)`).
 pub fn complete_kernel(
     a: &IntMatrix,
     request: &Request,
     control: &Control<'_>,
+    resume: Option<&Checkpoint>,
 ) -> Result<Completion> {
-    complete(&reduced_kernel_basis(a)?, request, control)
+    if let Some(checkpoint) = resume {
+        checkpoint.check_kernel(a)?;
+    }
+    complete(&reduced_kernel_basis(a)?, request, control, resume)
 }
 
 type Staged = Result<std::result::Result<Vec<Orbit>, StopReason>>;
@@ -185,28 +195,36 @@ fn by_lifting(
     signs: &[i8],
     request: &Request,
     control: &Control<'_>,
+    resume: Option<&Checkpoint>,
 ) -> Staged {
     let n = signs.len();
-    let projection = projection::choose(basis)?;
-    let mut done = projection.comps.clone();
-    let stages = n - done.len() + 1;
-    let start = match &projection.unit_lifts {
-        Some(lifts) => lifts
-            .iter()
-            .map(|l| {
-                Ok(Orbit {
-                    rep: to_entries(l)?,
-                    symmetric: true,
-                })
-            })
-            .collect::<Result<Vec<_>>>()?,
-        None => match pottier::complete(entries, &done, control, (0, stages))? {
-            Ok(g) => g,
-            Err(stop) => return Ok(Err(stop)),
-        },
+    let stages = n - basis.len() + 1;
+    let (mut done, mut orbits) = match resume {
+        Some(checkpoint) => checkpoint.restore(basis, n)?,
+        None => {
+            let projection = projection::choose(basis)?;
+            let comps = projection.comps.clone();
+            let start = match &projection.unit_lifts {
+                Some(lifts) => lifts
+                    .iter()
+                    .map(|l| {
+                        Ok(Orbit {
+                            rep: to_entries(l)?,
+                            symmetric: true,
+                        })
+                    })
+                    .collect::<Result<Vec<_>>>()?,
+                None => match pottier::complete(entries, &comps, control, (0, stages))? {
+                    Ok(g) => g,
+                    Err(stop) => return Ok(Err(stop)),
+                },
+            };
+            let orbits = restrict(start, signs, &comps, &request.truncation);
+            control.stage_done(&Checkpoint::of(&comps, &orbits));
+            (comps, orbits)
+        }
     };
-    let mut orbits = restrict(start, signs, &done, &request.truncation);
-    for number in 1..stages {
+    for number in done.len() + 1 - basis.len()..stages {
         let j = next_component(&orbits, &done, signs);
         let stage = lift::Stage {
             old: &done,
@@ -220,6 +238,9 @@ fn by_lifting(
             Err(stop) => return Ok(Err(stop)),
         };
         done.push(j);
+        if number + 1 < stages {
+            control.stage_done(&Checkpoint::of(&done, &orbits));
+        }
     }
     Ok(Ok(orbits))
 }

@@ -60,7 +60,7 @@ pub fn build(
         truncation: spec.truncation.clone(),
         method: spec.method,
     };
-    let set = match complete_kernel(a, &request, control)? {
+    let set = match complete_kernel(a, &request, control, None)? {
         Completion::Finished(set) => set,
         Completion::Stopped(reason) => return Ok(BuildOutcome::Stopped(reason)),
     };
