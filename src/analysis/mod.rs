@@ -62,7 +62,7 @@ pub struct MatrixAnalysis {
     pub delta: Delta,
     /// How many maximal minors were evaluated (one column per parallel class).
     pub maximal_minors_evaluated: u64,
-    /// The gcd of the evaluated maximal minors, when `Δ` is exact.
+    /// The gcd of all maximal minors of `B` (every column counted), when `Δ` is exact.
     #[serde(serialize_with = "decimal::serialize_option")]
     pub maximal_minor_gcd: Option<BigInt>,
     /// Whether `A` is unimodular (definition in the module documentation).
