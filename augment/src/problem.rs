@@ -115,15 +115,28 @@ impl Problem {
     /// The largest `t >= 0` with `l_i <= v + t d <= u_i`, `None` when unbounded; `v` must lie
     /// in the range and `d != 0`.
     pub(crate) fn room(&self, i: usize, v: i64, d: i64) -> Option<i64> {
-        let (gap, step) = if d > 0 {
-            (i128::from(self.upper[i]?) - i128::from(v), i128::from(d))
+        let bound = if d > 0 {
+            self.upper[i]?
         } else {
-            (i128::from(v) - i128::from(self.lower[i]?), -i128::from(d))
+            self.lower[i]?
         };
-        // gap <= 2^64 and step >= 1, so the quotient fits in i64 unless the box is wider than
-        // i64; clamping keeps the step feasible in that case.
-        Some(i64::try_from(gap / step).unwrap_or(i64::MAX))
+        let fast = if d > 0 {
+            bound.checked_sub(v).zip(Some(d))
+        } else {
+            v.checked_sub(bound).zip(d.checked_neg())
+        };
+        Some(match fast {
+            Some((gap, 1)) => gap,
+            Some((gap, step)) => gap / step,
+            None => wide_room(bound, v, d),
+        })
     }
+}
+
+/// `(bound - v) / d` in 128-bit arithmetic, for gaps or steps that do not fit in `i64`;
+/// nonnegative for `v` in range, clamped to `i64::MAX` (the step stays feasible).
+fn wide_room(bound: i64, v: i64, d: i64) -> i64 {
+    i64::try_from((i128::from(bound) - i128::from(v)) / i128::from(d)).unwrap_or(i64::MAX)
 }
 
 /// `x -> sum_i dist(x_i, [l_i, u_i])`, a separable convex function.

@@ -144,11 +144,15 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
             values,
             sign: sign.factor(),
         };
+        let slope = self.slopes.map(|s| s[index] * i128::from(sign.factor()));
+        if slope.is_some_and(|s| s >= 0) {
+            // A linear objective that does not fall along the move: no need for its room.
+            return Ok(None);
+        }
         let room = match self.bounds {
             Some(problem) => room(problem, self.search.x, &dir)?,
             None => None,
         };
-        let slope = self.slopes.map(|s| s[index] * i128::from(sign.factor()));
         Ok(match self.search.best(&dir, room, slope)? {
             Step::Useless => None,
             step => Some(Candidate { index, sign, step }),
