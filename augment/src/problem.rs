@@ -112,6 +112,15 @@ impl Problem {
         Violation { problem: self }
     }
 
+    /// True when variable `i` has no bound in the direction of the sign of `d`.
+    pub(crate) fn unbounded_towards(&self, i: usize, d: i64) -> bool {
+        if d > 0 {
+            self.upper[i].is_none()
+        } else {
+            self.lower[i].is_none()
+        }
+    }
+
     /// The largest `t >= 0` with `l_i <= v + t d <= u_i`, `None` when unbounded; `v` must lie
     /// in the range and `d != 0`.
     pub(crate) fn room(&self, i: usize, v: i64, d: i64) -> Option<i64> {

@@ -72,12 +72,8 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
         if let Some(slope) = slope {
             return self.linear(slope, room);
         }
-        if room.is_none() {
-            if let Recession::Finite(rate) = self.recession(dir)? {
-                if rate < 0 {
-                    return Ok(Step::Ray);
-                }
-            }
+        if room.is_none() && self.falls_forever(dir, None)? {
+            return Ok(Step::Ray);
         }
         let base = self.phi(dir, 0)?;
         let first = self.phi(dir, 1)?;
@@ -93,6 +89,15 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
         Ok(Step::Finite {
             length,
             gain: base - value,
+        })
+    }
+
+    /// True when `phi` decreases without bound along `dir` (rate `slope` when linear); with
+    /// an unlimited room this makes `dir` a ray. Independent of the current point.
+    pub(crate) fn falls_forever(&self, dir: &Direction, slope: Option<i128>) -> Result<bool> {
+        Ok(match slope {
+            Some(slope) => slope < 0,
+            None => matches!(self.recession(dir)?, Recession::Finite(rate) if rate < 0),
         })
     }
 

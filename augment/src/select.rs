@@ -91,6 +91,37 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
         }
     }
 
+    /// The first signed move (index order, `+` before `-`) along which every step is feasible
+    /// and the function falls without bound. Whether a move is such a ray depends only on the
+    /// bounds and the function, not on the current point, so one check at the first feasible
+    /// point settles unboundedness for every rule.
+    pub(crate) fn first_ray(&self, problem: &Problem) -> Result<Option<Candidate>> {
+        for index in 0..self.moves.len() {
+            for sign in Sign::BOTH {
+                let (indices, values) = self.moves.support(index);
+                let dir = Direction {
+                    indices,
+                    values,
+                    sign: sign.factor(),
+                };
+                let mut free = true;
+                for k in 0..indices.len() {
+                    let (i, d) = dir.entry(k)?;
+                    free &= problem.unbounded_towards(i, d);
+                }
+                let slope = self.slopes.map(|s| s[index] * i128::from(sign.factor()));
+                if free && self.search.falls_forever(&dir, slope)? {
+                    return Ok(Some(Candidate {
+                        index,
+                        sign,
+                        step: Step::Ray,
+                    }));
+                }
+            }
+        }
+        Ok(None)
+    }
+
     /// The first improving sign of move `index`.
     fn first_of_move(&self, index: usize) -> Result<Option<Candidate>> {
         for sign in Sign::BOTH {

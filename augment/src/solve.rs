@@ -117,6 +117,12 @@ impl Run<'_> {
             .linear_costs()
             .map(|costs| linear_slopes(costs, self.moves))
             .transpose()?;
+        let ray = self
+            .scan(objective, Phase::Optimality, slopes.as_deref())
+            .first_ray(self.problem)?;
+        if let Some(found) = ray {
+            return Ok(Status::Unbounded(self.ray(&found)));
+        }
         Ok(
             match self.descend(objective, Phase::Optimality, value, slopes.as_deref())? {
                 Outcome::Stopped(status) => status,
@@ -137,7 +143,6 @@ impl Run<'_> {
         mut value: i128,
         slopes: Option<&[i128]>,
     ) -> Result<Outcome> {
-        let bounds = (phase == Phase::Optimality).then_some(self.problem);
         loop {
             if phase == Phase::Feasibility && value == 0 {
                 return Ok(Outcome::Stationary(0));
@@ -145,17 +150,7 @@ impl Run<'_> {
             if (self.cancel)() {
                 return Ok(Outcome::Stopped(Status::Cancelled));
             }
-            let scan = Scan {
-                search: LineSearch {
-                    f,
-                    x: &self.x,
-                    powers_of_two: self.options.uses_powers_of_two(),
-                },
-                moves: self.moves,
-                bounds,
-                slopes,
-                rule: self.options.selected_rule(),
-            };
+            let scan = self.scan(f, phase, slopes);
             let Some(found) = scan.select(self.options.is_parallel())? else {
                 return Ok(Outcome::Stationary(value));
             };
@@ -172,6 +167,26 @@ impl Run<'_> {
             if phase == Phase::Optimality {
                 self.objective = Some(value);
             }
+        }
+    }
+
+    /// A scan of the moves at the current point; phase I ignores the bounds.
+    fn scan<'s, F: Separable>(
+        &'s self,
+        f: &'s F,
+        phase: Phase,
+        slopes: Option<&'s [i128]>,
+    ) -> Scan<'s, F> {
+        Scan {
+            search: LineSearch {
+                f,
+                x: &self.x,
+                powers_of_two: self.options.uses_powers_of_two(),
+            },
+            moves: self.moves,
+            bounds: (phase == Phase::Optimality).then_some(self.problem),
+            slopes,
+            rule: self.options.selected_rule(),
         }
     }
 
@@ -218,6 +233,8 @@ impl Run<'_> {
     }
 
     fn ray(&self, found: &Candidate) -> Ray {
+        // The scan negated every entry of this move with checked arithmetic, so this cannot
+        // overflow.
         let factor = found.sign.factor();
         Ray {
             move_index: found.index,

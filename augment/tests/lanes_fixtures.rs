@@ -6,7 +6,9 @@
 use std::collections::BTreeSet;
 use std::path::Path;
 
-use augment::{solve, Coverage, InfeasibleReason, MoveSet, Objective, Options, Problem, Status};
+use augment::{
+    solve, Coverage, InfeasibleReason, MoveSet, Objective, Options, Problem, Rule, Solution, Status,
+};
 use serde_json::Value;
 
 /// One vector per `±` pair for every cycle of K_{p,q}, as `+1` on lane `(r_t, c_t)` and `-1`
@@ -102,6 +104,7 @@ fn check_file(name: &str, p: usize, q: usize) {
         };
         let solution = solve(&problem, &moves, &start, &Options::default()).unwrap();
         let id = &variant["id"];
+        every_path_agrees(&problem, &moves, &start, &solution);
         match expect["status"].as_str().unwrap() {
             "optimal" => {
                 assert_eq!(solution.status, Status::Optimal, "{id}");
@@ -121,6 +124,33 @@ fn check_file(name: &str, p: usize, q: usize) {
             ),
             "unbounded" => assert!(matches!(solution.status, Status::Unbounded(_)), "{id}"),
             other => panic!("{id}: unknown status {other}"),
+        }
+    }
+}
+
+/// Sequential and parallel scans give the same solution (time aside) for every rule and step
+/// restriction, and every rule reaches the default rule's status and objective.
+fn every_path_agrees(problem: &Problem, moves: &MoveSet, start: &[i64], reference: &Solution) {
+    let timeless = |s: Solution| Solution {
+        elapsed: Default::default(),
+        ..s
+    };
+    for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
+        for powers in [false, true] {
+            let options = Options::default()
+                .rule(rule)
+                .powers_of_two(powers)
+                .trace(true);
+            let sequential = solve(problem, moves, start, &options).unwrap();
+            let parallel = solve(problem, moves, start, &options.parallel(true)).unwrap();
+            assert_eq!(
+                std::mem::discriminant(&sequential.status),
+                std::mem::discriminant(&reference.status)
+            );
+            if reference.status == Status::Optimal {
+                assert_eq!(sequential.objective, reference.objective);
+            }
+            assert_eq!(timeless(sequential), timeless(parallel));
         }
     }
 }

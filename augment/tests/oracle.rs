@@ -191,3 +191,49 @@ proptest! {
         prop_assert_eq!(solution.objective, expected);
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(64))]
+
+    /// With some bounds removed, every rule agrees on whether the problem is unbounded, and a
+    /// reported ray is a kernel vector along which the point stays feasible and the linear
+    /// objective falls; otherwise the result is certified.
+    #[test]
+    fn rays_are_genuine_and_found_by_every_rule(
+        (inst, costs, free) in instance().prop_flat_map(|inst| {
+            let n = inst.x0.len();
+            (Just(inst), prop::collection::vec(-5i64..=5, n), prop::collection::vec(0u8..4, n))
+        })
+    ) {
+        let n = inst.x0.len();
+        let moves = MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap();
+        // 0: lower removed, 1: upper removed, 2: both removed, 3: kept.
+        let lower = (0..n).map(|i| (free[i] % 2 == 1 || free[i] == 3).then_some(inst.lower[i])).collect();
+        let upper = (0..n).map(|i| (free[i] == 0 || free[i] == 3).then_some(inst.upper[i])).collect();
+        let problem = Problem::new(Objective::linear(costs.clone()), lower, upper).unwrap();
+        let mut unbounded = Vec::new();
+        for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
+            let solution = solve(&problem, &moves, &inst.x0, &Options::default().rule(rule)).unwrap();
+            prop_assert!(solution.status != Status::StepLimit);
+            unbounded.push(matches!(solution.status, Status::Unbounded(_)));
+            match &solution.status {
+                Status::Unbounded(ray) => {
+                    prop_assert!(times(&inst.a, &ray.direction).iter().all(|&e| e == 0));
+                    let rate: i64 = costs.iter().zip(&ray.direction).map(|(c, d)| c * d).sum();
+                    prop_assert!(rate < 0);
+                    let far: Vec<i64> = solution.x.iter().zip(&ray.direction).map(|(x, d)| x + 1000 * d).collect();
+                    prop_assert!(problem.in_box(&solution.x) && problem.in_box(&far));
+                }
+                Status::Optimal => prop_assert_eq!(
+                    certify(&problem, &moves, &solution.x).unwrap(),
+                    Certificate::NoImprovingMove
+                ),
+                other => {
+                    let infeasible = matches!(other, Status::Infeasible(_));
+                    prop_assert!(infeasible, "unexpected {:?}", other);
+                }
+            }
+        }
+        prop_assert!(unbounded.iter().all(|&u| u == unbounded[0]));
+    }
+}
