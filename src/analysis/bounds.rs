@@ -11,6 +11,10 @@
 //!   version `B` (Eisenbrand, Hunkenschröder, Klein, Koutecký, Levin, Onn, "An algorithmic
 //!   theory of integer programming", 2019, Lemma 2; from memory).
 //!
+//! - when `A` is unimodular its Graver basis is its set of circuits (Sturmfels, "Gröbner
+//!   Bases and Convex Polytopes", 1996, Prop. 8.11), whose entries are then `0, ±1` on at
+//!   most `r + 1` variables, so `||g||_1 <= max(2, r + 1)`.
+//!
 //! When `Δ` is only an upper bound the `Δ`-based bounds remain valid upper bounds.
 
 use num_bigint::BigInt;
@@ -28,6 +32,9 @@ pub struct NormBounds {
     /// `(2 r ||B||_inf + 1)^r`.
     #[serde(serialize_with = "super::decimal::serialize")]
     pub steinitz: BigInt,
+    /// `max(2, r + 1)` when `A` is unimodular, else absent.
+    #[serde(serialize_with = "super::decimal::serialize_option")]
+    pub unimodular: Option<BigInt>,
     /// `n Δ`: some optimal integer point lies within this ∞-distance of an optimal LP
     /// solution (Cook, Gerards, Schrijver, Tardos 1986, "Sensitivity theorems in integer
     /// linear programming", Math. Programming 34); the circuit form of their proof needs only
@@ -49,6 +56,8 @@ pub(crate) struct BoundInputs<'a> {
     pub delta: &'a BigInt,
     /// Largest absolute entry of `B`.
     pub max_abs: u64,
+    /// Whether `A` is known to be unimodular.
+    pub unimodular: bool,
 }
 
 impl NormBounds {
@@ -62,14 +71,16 @@ impl NormBounds {
             by_variables: big(f.n - f.r) * &per_circuit,
             by_column_number,
             steinitz: num_traits::pow(base, f.r),
+            unimodular: f.unimodular.then(|| big(f.r + 1).max(BigInt::from(2))),
             proximity: big(f.n) * f.delta,
         }
     }
 
-    /// The smallest of the three Graver norm bounds.
+    /// The smallest of the Graver norm bounds.
     pub fn smallest(&self) -> &BigInt {
         [&self.by_variables, &self.by_column_number, &self.steinitz]
             .into_iter()
+            .chain(&self.unimodular)
             .min()
             .unwrap_or(&self.by_column_number)
     }
@@ -89,6 +100,7 @@ mod tests {
             h: 4,
             delta: &delta,
             max_abs: 3,
+            unimodular: false,
         });
         assert_eq!(b.by_variables, BigInt::from(18));
         assert_eq!(b.by_column_number, BigInt::from(18));
@@ -107,10 +119,12 @@ mod tests {
             h: 1,
             delta: &one,
             max_abs: 1,
+            unimodular: true,
         });
         assert_eq!(b.by_variables, BigInt::from(4));
         assert_eq!(b.by_column_number, BigInt::from(2));
         assert_eq!(b.steinitz, BigInt::from(3));
+        assert_eq!(b.unimodular, Some(BigInt::from(2)));
         assert_eq!(b.smallest(), &BigInt::from(2));
     }
 }

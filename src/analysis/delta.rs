@@ -54,6 +54,19 @@ pub(crate) struct MinorSummary {
     pub equal_abs: Option<bool>,
 }
 
+impl MinorSummary {
+    /// The summary for a totally unimodular matrix of positive rank, known without
+    /// enumeration: every maximal minor is 0 or ±1 and one is nonzero.
+    pub(crate) fn totally_unimodular() -> Self {
+        Self {
+            delta: Delta::Exact(BigInt::from(1)),
+            evaluated: 0,
+            gcd: Some(BigInt::from(1)),
+            equal_abs: Some(true),
+        }
+    }
+}
+
 /// Enumerates the `r x r` minors of `b` (`r = b.rows()`, full row rank) over one
 /// representative column per parallel class, when there are at most `limit` column subsets;
 /// otherwise bounds `Δ`. The gcd is that of the minors over *all* columns: a subset of

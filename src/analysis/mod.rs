@@ -85,9 +85,15 @@ impl MatrixAnalysis {
         let (n, r) = (a.cols(), independent_rows.len());
         let classes = ColumnClasses::of(a);
         let limit = options.current_subdet_limit();
-        let minors = delta::maximal_minors(&b, &classes.representatives(), limit);
+        let structurally_tu = r > 0 && modularity::two_per_column(a) == Some(Decision::Yes);
+        let minors = if structurally_tu {
+            delta::MinorSummary::totally_unimodular()
+        } else {
+            delta::maximal_minors(&b, &classes.representatives(), limit)
+        };
         let unimodular = modularity::unimodular(&classes, &minors);
         let totally_unimodular = match &minors.delta {
+            _ if structurally_tu => Decision::Yes,
             Delta::Exact(d) if *d > BigInt::from(1) => Decision::No,
             _ => modularity::totally_unimodular(a, limit),
         };
@@ -99,6 +105,7 @@ impl MatrixAnalysis {
             h: classes.up_to_sign.len(),
             delta: minors.delta.value(),
             max_abs: b.max_abs(),
+            unimodular: unimodular == Decision::Yes,
         });
         Self {
             variables: n,

@@ -98,7 +98,7 @@ fn table_rows(file: &str, model: &Model, a: &MatrixAnalysis) -> Vec<(String, Str
         .map(|&i| model.row_names[i].as_str())
         .collect();
     let b = &a.bounds;
-    let pairs: [(&str, String); 19] = [
+    let mut pairs: Vec<(&str, String)> = vec![
         ("model", file.to_string()),
         ("variables n", a.variables.to_string()),
         ("constraints m", a.constraints.to_string()),
@@ -128,5 +128,15 @@ fn table_rows(file: &str, model: &Model, a: &MatrixAnalysis) -> Vec<(String, Str
         ("norm limit", a.norm_limit().to_string()),
         ("proximity", format!("{} = nΔ", b.proximity)),
     ];
+    if let Some(u) = &b.unimodular {
+        let at = pairs.len() - 2;
+        pairs.insert(
+            at,
+            (
+                "Graver ℓ1 bound, circuits",
+                format!("{u} = max(2, r + 1), unimodular"),
+            ),
+        );
+    }
     pairs.into_iter().map(|(l, v)| (l.to_string(), v)).collect()
 }
