@@ -22,6 +22,9 @@ pub enum Command {
     /// Print the figures of a model's constraint matrix: rank, Δ, column numbers,
     /// unimodularity and the bounds on test-set move norms.
     Analyze(AnalyzeArgs),
+    /// Compute test sets for model files (or directories of them) and store them in the
+    /// cache; `--out` writes one set to a file instead.
+    Build(super::build::BuildArgs),
 }
 
 /// Arguments of `analyze`.

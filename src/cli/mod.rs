@@ -4,6 +4,8 @@
 
 mod analyze;
 pub mod args;
+mod build;
+mod common;
 mod table;
 
 use std::process::ExitCode;
@@ -14,5 +16,6 @@ use args::{Cli, Command};
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Analyze(a) => analyze::run(&a),
+        Command::Build(a) => build::run(&a),
     }
 }

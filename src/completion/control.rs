@@ -35,6 +35,7 @@ pub struct Progress {
 }
 
 /// Limits and hooks consulted by a running completion.
+#[derive(Clone, Copy)]
 pub struct Control<'a> {
     start: Instant,
     time_limit: Option<Duration>,

@@ -6,7 +6,9 @@ use cache::{EntryKey, SetMetadata, TestSetData};
 
 use super::spec::ResolvedSpec;
 use crate::analysis::MatrixAnalysis;
-use crate::completion::{complete_kernel, Completion, Control, Method, MoveSet, Request, Sign};
+use crate::completion::{
+    complete_kernel, Checkpoint, Completion, Control, Method, MoveSet, Request, Sign,
+};
 use crate::error::Result;
 use crate::lattice::RowSpaceKey;
 use crate::matrix::IntMatrix;
@@ -47,12 +49,13 @@ pub fn entry_key(a: &IntMatrix, spec: &ResolvedSpec) -> EntryKey {
     }
 }
 
-/// Runs the completion for `a` as `spec` says.
+/// Runs the completion for `a` as `spec` says, from `resume` if given.
 pub fn build(
     a: &IntMatrix,
     analysis: &MatrixAnalysis,
     spec: &ResolvedSpec,
     control: &Control<'_>,
+    resume: Option<&Checkpoint>,
 ) -> Result<BuildOutcome> {
     let start = Instant::now();
     let request = Request {
@@ -60,7 +63,7 @@ pub fn build(
         truncation: spec.truncation.clone(),
         method: spec.method,
     };
-    let set = match complete_kernel(a, &request, control, None)? {
+    let set = match complete_kernel(a, &request, control, resume)? {
         Completion::Finished(set) => set,
         Completion::Stopped(reason) => return Ok(BuildOutcome::Stopped(reason)),
     };

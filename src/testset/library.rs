@@ -2,12 +2,13 @@
 
 use std::path::Path;
 
-use cache::{BuildGuard, EntryKey, Store, StoredSet};
+use bincode::config;
+use cache::{BuildGuard, CheckpointState, EntryKey, Store, StoredSet};
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
 use super::spec::ResolvedSpec;
 use crate::analysis::MatrixAnalysis;
-use crate::completion::{Control, StopReason};
+use crate::completion::{Checkpoint, Control, Method, StopReason};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 
@@ -22,6 +23,8 @@ pub enum Obtained {
         built: Box<BuiltSet>,
         /// The damage found in the entry this one replaced, if any.
         replaced: Option<String>,
+        /// When an interrupted build was resumed: how many components it had lifted.
+        resumed_after: Option<usize>,
     },
     /// A limit or a cancellation stopped the build; the store is unchanged.
     Stopped(StopReason),
@@ -77,12 +80,51 @@ impl SetLibrary {
             }
         };
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        match build(a, analysis, spec, control)? {
+        let resume = self.checkpoint(&key, spec)?;
+        let save_failed = std::sync::Mutex::new(None);
+        let save = |state: &Checkpoint| {
+            if let Err(e) = self.save_checkpoint(&key, state) {
+                save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
+            }
+        };
+        let control = control.on_stage_done(&save);
+        let outcome = build(a, analysis, spec, &control, resume.as_ref())?;
+        if let Some(e) = save_failed.into_inner().ok().flatten() {
+            return Err(e);
+        }
+        match outcome {
             BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped(reason)),
             BuildOutcome::Built(built) => {
                 lock.commit(&to_data(&built.set)?, &built.metadata)?;
-                Ok(Obtained::Built { built, replaced })
+                self.store.remove_checkpoint(&key)?;
+                Ok(Obtained::Built {
+                    built,
+                    replaced,
+                    resumed_after: resume.map(|c| c.lifted.len()),
+                })
             }
         }
+    }
+
+    /// The saved state of an interrupted build of `key`, if one is usable. A damaged
+    /// checkpoint is ignored (the build starts over) rather than trusted.
+    fn checkpoint(&self, key: &EntryKey, spec: &ResolvedSpec) -> Result<Option<Checkpoint>> {
+        if spec.method != Method::ProjectAndLift {
+            return Ok(None);
+        }
+        let CheckpointState::Present(bytes) = self.store.load_checkpoint(key)? else {
+            return Ok(None);
+        };
+        let decoded =
+            bincode::serde::decode_from_slice::<Checkpoint, _>(&bytes, config::standard());
+        Ok(decoded.ok().map(|(c, _)| c))
+    }
+
+    fn save_checkpoint(&self, key: &EntryKey, state: &Checkpoint) -> Result<()> {
+        // Encoding plain integers and vectors into memory cannot fail.
+        let bytes = bincode::serde::encode_to_vec(state, config::standard())
+            .expect("a checkpoint of integers and vectors encodes");
+        self.store.save_checkpoint(key, &bytes)?;
+        Ok(())
     }
 }

@@ -1,0 +1,346 @@
+//! `kernstep build MODEL...`: compute test sets and store them in the cache (the overnight
+//! run), or write one set to a file with `--out`.
+
+use std::io::{self, IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::{Duration, Instant};
+
+use anyhow::Context;
+use cache::SetKind;
+use clap::{Args, ValueEnum};
+use indicatif::{ProgressBar, ProgressStyle};
+use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+use kernstep::completion::{Control, Method, Progress, Sign};
+use kernstep::model::Model;
+use kernstep::testset::{
+    build, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, NormLimit, Obtained,
+};
+use serde::Serialize;
+
+use super::common::{interrupted, model_paths, with_threads, CacheArgs};
+use super::table::write_table;
+
+/// Arguments of `build`.
+#[derive(Debug, Args)]
+pub struct BuildArgs {
+    /// Model files, or directories of model files (every .json and .toml inside).
+    #[arg(required = true, value_name = "MODEL")]
+    pub models: Vec<PathBuf>,
+    /// Which set: the Graver basis, or the Hilbert basis of the sign-restricted kernel.
+    #[arg(long, value_enum, default_value_t = KindArg::Graver)]
+    pub kind: KindArg,
+    /// Sign of each variable in the moves, one character per variable: `+` (>= 0), `-`
+    /// (<= 0) or `f` (free). Default: all free for graver, all `+` for hilbert.
+    #[arg(long, value_name = "PATTERN")]
+    pub signs: Option<String>,
+    /// l1 norm limit: `auto` (the smallest proven bound; loses nothing), `none`, or a number
+    /// (below the proven bound the set is partial and recorded as such).
+    #[arg(long, value_name = "auto|none|N", default_value = "auto", value_parser = parse_norm_limit)]
+    pub norm_limit: NormLimit,
+    /// Truncate to the model's box |g_i| <= u_i - l_i (`auto`), valid for every instance
+    /// inside that box, or not at all (`none`).
+    #[arg(long = "box", value_enum, default_value_t = BoxArg::None)]
+    pub bounds: BoxArg,
+    /// Completion method.
+    #[arg(long, value_enum, default_value_t = MethodArg::Lift)]
+    pub method: MethodArg,
+    /// Worker threads (default: one per core).
+    #[arg(long, value_name = "N")]
+    pub threads: Option<usize>,
+    /// Stop a build once its working set exceeds N elements.
+    #[arg(long, value_name = "N")]
+    pub max_elements: Option<usize>,
+    /// Stop a build after S seconds.
+    #[arg(long, value_name = "S")]
+    pub time_limit: Option<f64>,
+    /// Write the set of the one model to FILE (JSON) instead of the cache.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Rebuild even when a valid entry exists, replacing it.
+    #[arg(long)]
+    pub rebuild: bool,
+    #[command(flatten)]
+    pub cache: CacheArgs,
+    /// Print the summary as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// `--kind`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum KindArg {
+    /// Graver basis.
+    Graver,
+    /// Hilbert basis of the sign-restricted kernel.
+    Hilbert,
+}
+
+/// `--box`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum BoxArg {
+    /// The model's box.
+    Auto,
+    /// No box.
+    None,
+}
+
+/// `--method`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MethodArg {
+    /// Project-and-lift.
+    Lift,
+    /// Pottier's completion (baseline).
+    Pottier,
+}
+
+fn parse_norm_limit(text: &str) -> Result<NormLimit, String> {
+    match text {
+        "auto" => Ok(NormLimit::Auto),
+        "none" => Ok(NormLimit::Unlimited),
+        n => n
+            .parse::<u64>()
+            .map(NormLimit::AtMost)
+            .map_err(|_| format!("expected auto, none or a whole number, got {n:?}")),
+    }
+}
+
+/// Parses a `--signs` pattern for `n` variables.
+fn parse_signs(pattern: &str, n: usize) -> anyhow::Result<Vec<Sign>> {
+    let signs = pattern
+        .chars()
+        .enumerate()
+        .map(|(i, c)| match c {
+            '+' => Ok(Sign::NonNegative),
+            '-' => Ok(Sign::NonPositive),
+            'f' | 'F' => Ok(Sign::Free),
+            other => anyhow::bail!("--signs: character {} is {other:?}; use +, - or f", i + 1),
+        })
+        .collect::<anyhow::Result<Vec<_>>>()?;
+    if signs.len() != n {
+        anyhow::bail!(
+            "--signs has {} characters, the model has {n} variables",
+            signs.len()
+        );
+    }
+    Ok(signs)
+}
+
+/// One line of the summary.
+#[derive(Debug, Serialize)]
+struct Row {
+    model: String,
+    key: Option<String>,
+    kind: Option<SetKind>,
+    elements: Option<usize>,
+    seconds: f64,
+    status: String,
+}
+
+impl BuildArgs {
+    fn spec(&self, model: &Model) -> anyhow::Result<BuildSpec> {
+        Ok(BuildSpec {
+            kind: match self.kind {
+                KindArg::Graver => SetKind::Graver,
+                KindArg::Hilbert => SetKind::Hilbert,
+            },
+            signs: self
+                .signs
+                .as_deref()
+                .map(|p| parse_signs(p, model.variables()))
+                .transpose()?,
+            norm_limit: self.norm_limit,
+            bounds: match self.bounds {
+                BoxArg::Auto => BoxPolicy::FromBounds,
+                BoxArg::None => BoxPolicy::Unlimited,
+            },
+            method: match self.method {
+                MethodArg::Lift => Method::ProjectAndLift,
+                MethodArg::Pottier => Method::Pottier,
+            },
+        })
+    }
+}
+
+/// Builds every model's set; exits 0 if all are stored, 1 if a limit stopped one, 2 if one
+/// failed (the others are still built).
+pub fn run(args: &BuildArgs) -> anyhow::Result<ExitCode> {
+    let paths = model_paths(&args.models)?;
+    if args.out.is_some() && paths.len() != 1 {
+        anyhow::bail!("--out writes one set: name exactly one model");
+    }
+    let rows = with_threads(args.threads, || {
+        paths
+            .iter()
+            .map(|p| build_one(args, p))
+            .collect::<Vec<Row>>()
+    })?;
+    let mut out = io::stdout().lock();
+    if args.json {
+        writeln!(out, "{}", serde_json::to_string_pretty(&rows)?)?;
+    } else {
+        render(&mut out, &rows)?;
+    }
+    out.flush()?;
+    let failed = rows.iter().any(|r| r.status.starts_with("failed"));
+    let stopped = rows.iter().any(|r| r.status.starts_with("stopped"));
+    Ok(match (failed, stopped) {
+        (true, _) => ExitCode::from(2),
+        (false, true) => ExitCode::from(1),
+        _ => ExitCode::SUCCESS,
+    })
+}
+
+fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
+    let cells: Vec<Vec<String>> = rows
+        .iter()
+        .map(|r| {
+            vec![
+                r.model.clone(),
+                r.key
+                    .as_deref()
+                    .map_or("-".into(), |k| k[..12.min(k.len())].to_string()),
+                r.kind
+                    .map_or("-".into(), |k| format!("{k:?}").to_lowercase()),
+                r.elements.map_or("-".into(), |e| e.to_string()),
+                format!("{:.2}", r.seconds),
+                r.status.clone(),
+            ]
+        })
+        .collect();
+    write_table(
+        out,
+        &["model", "key", "kind", "elements", "seconds", "status"],
+        &cells,
+    )
+}
+
+/// Builds one model's set; every problem becomes the row's status, not an error.
+fn build_one(args: &BuildArgs, path: &Path) -> Row {
+    let start = Instant::now();
+    let mut row = Row {
+        model: path.display().to_string(),
+        key: None,
+        kind: None,
+        elements: None,
+        seconds: 0.0,
+        status: String::new(),
+    };
+    match try_build(args, path, &mut row) {
+        Ok(status) => row.status = status,
+        Err(e) => row.status = format!("failed: {e:#}"),
+    }
+    row.seconds = start.elapsed().as_secs_f64();
+    row
+}
+
+fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<String> {
+    let model = Model::load(path)?;
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = args.spec(&model)?.resolve(&model, &analysis)?;
+    row.kind = Some(spec.kind);
+    let bar = progress_bar(path);
+    let report = |p: &Progress| {
+        bar.set_message(format!(
+            "stage {}/{}, norm level {}, {} elements, {:.0}s",
+            p.stage,
+            p.stages,
+            p.level,
+            p.elements,
+            p.elapsed.as_secs_f64()
+        ));
+    };
+    let mut control = Control::new().cancel_flag(interrupted()).progress(&report);
+    if let Some(s) = args.time_limit {
+        let limit =
+            Duration::try_from_secs_f64(s).context("--time-limit must be a number of seconds")?;
+        control = control.time_limit(limit);
+    }
+    if let Some(m) = args.max_elements {
+        control = control.max_elements(m);
+    }
+    let status = if let Some(out) = &args.out {
+        row.key = Some(entry_key(&model.matrix, &spec).digest().to_hex());
+        match build(&model.matrix, &analysis, &spec, &control, None)? {
+            BuildOutcome::Built(built) => {
+                write_set_file(out, &built)?;
+                row.elements = Some(built.set.elements.len());
+                format!("written to {}", out.display())
+            }
+            BuildOutcome::Stopped(reason) => format!("stopped: {reason:?}"),
+        }
+    } else {
+        let library = args.cache.open()?;
+        match library.obtain(&model.matrix, &analysis, &spec, &control, args.rebuild)? {
+            Obtained::Reused(stored) => {
+                row.key = Some(stored.digest.to_hex());
+                row.elements = Some(stored.data.len());
+                "present".to_string()
+            }
+            Obtained::Built {
+                built,
+                replaced,
+                resumed_after,
+            } => {
+                row.key = Some(built.key.digest().to_hex());
+                row.elements = Some(built.set.elements.len());
+                let mut status = "built".to_string();
+                if let Some(k) = resumed_after {
+                    status.push_str(&format!(" (resumed after {k} components)"));
+                }
+                if let Some(damage) = replaced {
+                    status.push_str(&format!(" (replaced a damaged entry: {damage})"));
+                }
+                status
+            }
+            Obtained::Stopped(reason) => format!("stopped: {reason:?}"),
+        }
+    };
+    bar.finish_and_clear();
+    Ok(status)
+}
+
+/// A progress line on stderr when it is a terminal, nothing otherwise.
+fn progress_bar(path: &Path) -> ProgressBar {
+    if !io::stderr().is_terminal() {
+        return ProgressBar::hidden();
+    }
+    let bar = ProgressBar::new_spinner().with_prefix(path.display().to_string());
+    bar.set_style(
+        ProgressStyle::with_template("{spinner} {prefix}: {msg} [{elapsed}]")
+            .unwrap_or_else(|_| ProgressStyle::default_spinner()),
+    );
+    bar.enable_steady_tick(Duration::from_millis(200));
+    bar
+}
+
+/// The `--out` document.
+#[derive(Serialize)]
+struct SetFile<'a> {
+    format: &'static str,
+    version: u32,
+    key: &'a cache::EntryKey,
+    metadata: &'a cache::SetMetadata,
+    elements: &'a [Vec<i64>],
+}
+
+/// Writes the set as JSON next to `path`, then renames it into place (never half-written).
+fn write_set_file(path: &Path, built: &BuiltSet) -> anyhow::Result<()> {
+    let doc = SetFile {
+        format: "kernstep move set",
+        version: 1,
+        key: &built.key,
+        metadata: &built.metadata,
+        elements: &built.set.elements,
+    };
+    let text = serde_json::to_string(&doc)?;
+    let tmp = path.with_extension(format!("tmp-{}", std::process::id()));
+    let write = || -> io::Result<()> {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(text.as_bytes())?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    };
+    write().with_context(|| format!("writing {}", path.display()))?;
+    Ok(())
+}

@@ -1,0 +1,174 @@
+//! Pieces shared by the verbs: the cache directory flag, Ctrl-C, thread pools, model lists,
+//! and the Graver set a solve needs.
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::OnceLock;
+
+use anyhow::Context;
+use augment::Coverage;
+use clap::Args;
+use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+use kernstep::completion::{Control, MoveSet};
+use kernstep::model::Model;
+use kernstep::solve::coverage_of;
+use kernstep::testset::{entry_key, from_data, BuildSpec, Obtained, SetLibrary};
+
+/// The cache directory option of every verb that reads or writes test sets.
+#[derive(Debug, Clone, Args)]
+pub struct CacheArgs {
+    /// Cache directory (default: $KERNSTEP_CACHE_DIR, else the platform cache directory,
+    /// e.g. ~/.cache/kernstep).
+    #[arg(long, value_name = "DIR", global = true)]
+    pub cache_dir: Option<PathBuf>,
+}
+
+impl CacheArgs {
+    /// Opens the cache directory.
+    pub fn open(&self) -> anyhow::Result<SetLibrary> {
+        Ok(SetLibrary::open(self.cache_dir.as_deref())?)
+    }
+}
+
+/// A flag set by Ctrl-C or SIGTERM (the handler is installed on first use).
+pub fn interrupted() -> &'static AtomicBool {
+    static FLAG: OnceLock<&'static AtomicBool> = OnceLock::new();
+    FLAG.get_or_init(|| {
+        let flag: &'static AtomicBool = Box::leak(Box::new(AtomicBool::new(false)));
+        // Without a handler (e.g. one is installed already) Ctrl-C simply ends the process.
+        let _ = ctrlc::set_handler(move || flag.store(true, Ordering::Relaxed));
+        flag
+    })
+}
+
+/// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice).
+pub fn with_threads<T: Send>(
+    threads: Option<usize>,
+    f: impl FnOnce() -> T + Send,
+) -> anyhow::Result<T> {
+    match threads {
+        None => Ok(f()),
+        Some(0) => anyhow::bail!("--threads must be at least 1"),
+        Some(n) => {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(n)
+                .build()
+                .context("starting the thread pool")?;
+            Ok(pool.install(f))
+        }
+    }
+}
+
+/// The model files named on the command line: files as given, directories replaced by the
+/// `.json` and `.toml` files directly inside them, in name order.
+pub fn model_paths(inputs: &[PathBuf]) -> anyhow::Result<Vec<PathBuf>> {
+    let mut out = Vec::new();
+    for input in inputs {
+        if input.is_dir() {
+            let mut found: Vec<PathBuf> = std::fs::read_dir(input)
+                .with_context(|| format!("reading directory {}", input.display()))?
+                .filter_map(|e| e.ok().map(|e| e.path()))
+                .filter(|p| p.is_file() && is_model_file(p))
+                .collect();
+            found.sort();
+            if found.is_empty() {
+                anyhow::bail!("{}: no .json or .toml model files inside", input.display());
+            }
+            out.extend(found);
+        } else {
+            out.push(input.clone());
+        }
+    }
+    Ok(out)
+}
+
+fn is_model_file(p: &Path) -> bool {
+    p.extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("json") || e.eq_ignore_ascii_case("toml"))
+}
+
+/// Where the moves of a solve came from.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum SetSource {
+    /// A cache entry, named by its digest.
+    Cached(String),
+    /// Built for this run (and stored, when the cache was usable).
+    Built,
+}
+
+/// The Graver basis a solve of `model` uses, with its coverage.
+#[derive(Debug, Clone)]
+pub struct SolverSet {
+    /// The moves.
+    pub set: MoveSet,
+    /// What the set guarantees.
+    pub coverage: Coverage,
+    /// Where it came from.
+    pub source: SetSource,
+}
+
+/// Finds the Graver basis of `model`'s matrix in the cache; on a miss builds it when
+/// `build_on_miss`, else says which `build` to run.
+pub fn graver_for(
+    model: &Model,
+    cache: &CacheArgs,
+    build_on_miss: bool,
+) -> anyhow::Result<SolverSet> {
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = BuildSpec::default().resolve(model, &analysis)?;
+    let library = match cache.open() {
+        Ok(library) => library,
+        Err(e) if build_on_miss => {
+            eprintln!("kernstep: warning: {e:#}; building without the cache");
+            return build_uncached(model, &analysis, &spec);
+        }
+        Err(e) => return Err(e),
+    };
+    let key = entry_key(&model.matrix, &spec);
+    if let Some(stored) = library.find(&key)? {
+        return Ok(SolverSet {
+            set: from_data(&stored.data),
+            coverage: coverage_of(&stored.metadata.completeness),
+            source: SetSource::Cached(stored.digest.to_hex()),
+        });
+    }
+    if !build_on_miss {
+        anyhow::bail!(
+            "no test set for this matrix in the cache ({}); run `kernstep build MODEL` first, or pass --build",
+            library.store().dir().display()
+        );
+    }
+    let control = Control::new().cancel_flag(interrupted());
+    match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
+        Obtained::Reused(stored) => Ok(SolverSet {
+            set: from_data(&stored.data),
+            coverage: coverage_of(&stored.metadata.completeness),
+            source: SetSource::Cached(stored.digest.to_hex()),
+        }),
+        Obtained::Built { built, .. } => Ok(SolverSet {
+            coverage: coverage_of(&built.metadata.completeness),
+            set: built.set,
+            source: SetSource::Built,
+        }),
+        Obtained::Stopped(reason) => anyhow::bail!("building the test set stopped: {reason:?}"),
+    }
+}
+
+fn build_uncached(
+    model: &Model,
+    analysis: &MatrixAnalysis,
+    spec: &kernstep::testset::ResolvedSpec,
+) -> anyhow::Result<SolverSet> {
+    let control = Control::new().cancel_flag(interrupted());
+    match kernstep::testset::build(&model.matrix, analysis, spec, &control, None)? {
+        kernstep::testset::BuildOutcome::Built(built) => Ok(SolverSet {
+            coverage: coverage_of(&built.metadata.completeness),
+            set: built.set,
+            source: SetSource::Built,
+        }),
+        kernstep::testset::BuildOutcome::Stopped(reason) => {
+            anyhow::bail!("building the test set stopped: {reason:?}")
+        }
+    }
+}
