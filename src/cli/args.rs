@@ -25,6 +25,8 @@ pub enum Command {
     /// Compute test sets for model files (or directories of them) and store them in the
     /// cache; `--out` writes one set to a file instead.
     Build(super::build::BuildArgs),
+    /// Look after the stored test sets: list, show, verify, remove, prune, export.
+    Cache(super::cache::CacheVerbArgs),
 }
 
 /// Arguments of `analyze`.

@@ -5,6 +5,7 @@
 mod analyze;
 pub mod args;
 mod build;
+mod cache;
 mod common;
 mod table;
 
@@ -17,5 +18,6 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Analyze(a) => analyze::run(&a),
         Command::Build(a) => build::run(&a),
+        Command::Cache(a) => cache::run(&a),
     }
 }

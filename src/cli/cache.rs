@@ -1,0 +1,504 @@
+//! `kernstep cache ...`: look after the stored test sets: list them, show one, verify the
+//! files, remove or prune entries, and export one as JSON.
+//!
+//! `KEY` is a key digest or any unique prefix of one (hexadecimal, either case).
+
+use std::io::{self, Write};
+use std::process::ExitCode;
+use std::time::{Duration, SystemTime, UNIX_EPOCH};
+
+use ::cache::{
+    CacheError, Completeness, Digest, EntryKey, EntrySummary, PruneReport, SetKind, SetMetadata,
+    Sign, Store, StoredSet, Truncation,
+};
+use clap::{Args, Subcommand, ValueEnum};
+use serde::Serialize;
+
+use super::common::CacheArgs;
+use super::table::{write_pairs, write_table};
+
+/// Hex digits of a digest shown in tables (any unique prefix is accepted back as `KEY`).
+const SHORT_KEY: usize = 12;
+
+/// Arguments of `cache`.
+#[derive(Debug, Args)]
+pub struct CacheVerbArgs {
+    /// What to do with the stored sets.
+    #[command(subcommand)]
+    pub action: Action,
+    #[command(flatten)]
+    pub cache: CacheArgs,
+    /// Print the result as JSON instead of a table.
+    #[arg(long, global = true)]
+    pub json: bool,
+}
+
+/// The `cache` sub-verbs.
+#[derive(Debug, Subcommand)]
+pub enum Action {
+    /// One line per stored set, read from the file heads (fast; `verify` checks whole files).
+    List,
+    /// Key, build facts, counts, encoding and size of one stored set.
+    Show {
+        /// Key digest or a unique prefix of one.
+        key: String,
+    },
+    /// Check whole files (checksum, key, every section); exit 2 if any is damaged.
+    Verify {
+        /// Key digest or a unique prefix of one (default: every entry).
+        #[arg(conflicts_with = "all")]
+        key: Option<String>,
+        /// Check every entry (the default when no KEY is given).
+        #[arg(long)]
+        all: bool,
+    },
+    /// Delete one stored set (waiting for a builder of it to finish).
+    Remove {
+        /// Key digest or a unique prefix of one.
+        key: String,
+    },
+    /// Delete sets built longer ago than the given age, and leftover temporary files.
+    Prune {
+        /// Age such as `30d`, `12h`, `90m` or `3600s`.
+        #[arg(long, value_name = "AGE", default_value = "30d", value_parser = parse_age)]
+        older_than: Duration,
+    },
+    /// Print one stored set (key, metadata, elements).
+    Export {
+        /// Key digest or a unique prefix of one.
+        key: String,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = ExportFormat::Json)]
+        format: ExportFormat,
+    },
+}
+
+/// `cache export --format`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ExportFormat {
+    /// One JSON document, the same shape as `build --out` writes.
+    Json,
+}
+
+/// Parses an age: a whole number followed by `d`, `h`, `m` or `s`.
+fn parse_age(text: &str) -> Result<Duration, String> {
+    let bad = || format!("expected an age like 30d, 12h, 90m or 3600s, got {text:?}");
+    let unit_at = text.len().checked_sub(1).ok_or_else(bad)?;
+    let (number, unit) = text.split_at(unit_at);
+    let per_unit: u64 = match unit {
+        "d" => 86_400,
+        "h" => 3_600,
+        "m" => 60,
+        "s" => 1,
+        _ => return Err(bad()),
+    };
+    if number.is_empty() || !number.bytes().all(|b| b.is_ascii_digit()) {
+        return Err(bad());
+    }
+    let count: u64 = number.parse().map_err(|_| bad())?;
+    let seconds = count
+        .checked_mul(per_unit)
+        .ok_or_else(|| format!("the age {text:?} overflows 64-bit seconds"))?;
+    Ok(Duration::from_secs(seconds))
+}
+
+/// Runs one `cache` sub-verb.
+pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
+    let library = args.cache.open()?;
+    let store = library.store();
+    let mut out = io::stdout().lock();
+    let code = match &args.action {
+        Action::List => list(store, args.json, &mut out)?,
+        Action::Show { key } => show(store, key, args.json, &mut out)?,
+        Action::Verify { key, .. } => verify(store, key.as_deref(), args.json, &mut out)?,
+        Action::Remove { key } => remove(store, key, args.json, &mut out)?,
+        Action::Prune { older_than } => prune(store, *older_than, args.json, &mut out)?,
+        Action::Export { key, format } => export(store, key, *format, &mut out)?,
+    };
+    out.flush()?;
+    Ok(code)
+}
+
+fn list(store: &Store, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+    let mut entries = Vec::new();
+    let mut unreadable = Vec::new();
+    for item in store.list()? {
+        match item {
+            Ok(summary) => entries.push(summary),
+            Err(e) => unreadable.push(e.to_string()),
+        }
+    }
+    if json {
+        #[derive(Serialize)]
+        struct Listing<'a> {
+            entries: &'a [EntrySummary],
+            unreadable: &'a [String],
+        }
+        let doc = Listing {
+            entries: &entries,
+            unreadable: &unreadable,
+        };
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        let now = now_unix();
+        let rows: Vec<Vec<String>> = entries.iter().map(|s| summary_row(s, now)).collect();
+        write_table(
+            out,
+            &[
+                "key",
+                "kind",
+                "width",
+                "elements",
+                "encoding",
+                "bytes",
+                "truncation",
+                "complete",
+                "age",
+            ],
+            &rows,
+        )?;
+    }
+    for problem in &unreadable {
+        eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn summary_row(s: &EntrySummary, now: u64) -> Vec<String> {
+    vec![
+        s.digest.to_hex()[..SHORT_KEY].to_string(),
+        kind_name(s.kind).to_string(),
+        s.width.to_string(),
+        s.elements.to_string(),
+        format!("{:?}", s.encoding).to_lowercase(),
+        s.size_bytes.to_string(),
+        truncation_text(&s.truncation),
+        completeness_text(&s.completeness),
+        age_text(now.saturating_sub(s.created_unix)),
+    ]
+}
+
+fn kind_name(kind: SetKind) -> &'static str {
+    match kind {
+        SetKind::Graver => "graver",
+        SetKind::Hilbert => "hilbert",
+    }
+}
+
+fn truncation_text(t: &Truncation) -> String {
+    let mut parts = Vec::new();
+    if let Some(n) = t.norm_limit {
+        parts.push(format!("norm<={n}"));
+    }
+    if let Some(b) = &t.bounds {
+        parts.push(format!("box({} bounds)", b.len()));
+    }
+    if parts.is_empty() {
+        "none".to_string()
+    } else {
+        parts.join(",")
+    }
+}
+
+fn completeness_text(c: &Completeness) -> String {
+    match c {
+        Completeness::Complete => "yes".to_string(),
+        Completeness::BoxTruncated => "box only".to_string(),
+        Completeness::NormTruncated { limit } => format!("norm<={limit} only"),
+    }
+}
+
+/// An age in the units `prune --older-than` takes, rounded down to the largest unit.
+fn age_text(seconds: u64) -> String {
+    match seconds {
+        s if s >= 86_400 => format!("{}d", s / 86_400),
+        s if s >= 3_600 => format!("{}h", s / 3_600),
+        s if s >= 60 => format!("{}m", s / 60),
+        s => format!("{s}s"),
+    }
+}
+
+fn now_unix() -> u64 {
+    SystemTime::now()
+        .duration_since(UNIX_EPOCH)
+        .map_or(0, |d| d.as_secs())
+}
+
+/// The `show --json` document.
+#[derive(Serialize)]
+struct Shown<'a> {
+    digest: Digest,
+    path: String,
+    key: &'a EntryKey,
+    metadata: &'a SetMetadata,
+    elements: usize,
+    width: usize,
+    encoding: ::cache::ElementEncoding,
+    size_bytes: u64,
+}
+
+fn show(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+    let set = store.load_digest(key)?;
+    let path = store.entry_path(set.digest).display().to_string();
+    if json {
+        let doc = Shown {
+            digest: set.digest,
+            path,
+            key: &set.key,
+            metadata: &set.metadata,
+            elements: set.data.len(),
+            width: set.data.width(),
+            encoding: set.encoding,
+            size_bytes: set.size_bytes,
+        };
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        write_pairs(out, &shown_pairs(&set, path))?;
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn shown_pairs(set: &StoredSet, path: String) -> Vec<(String, String)> {
+    let m = &set.metadata;
+    let rows = m.matrix.len();
+    let cols = m.matrix.first().map_or(set.key.width(), Vec::len);
+    let per_element = match set.data.len() {
+        0 => "-".to_string(),
+        n => format!("{:.2}", set.size_bytes as f64 / n as f64),
+    };
+    let pair = |label: &str, value: String| (label.to_string(), value);
+    vec![
+        pair("key", set.digest.to_hex()),
+        pair("file", path),
+        pair("kind", kind_name(set.key.kind).to_string()),
+        pair("signs", sign_pattern(&set.key.signs)),
+        pair("truncation", truncation_text(&set.key.truncation)),
+        pair("complete", completeness_text(&m.completeness)),
+        pair("matrix", format!("{rows} x {cols}")),
+        pair("rank", m.rank.to_string()),
+        pair(
+            "Δ",
+            format!("{}{}", if m.delta_exact { "" } else { "<= " }, m.delta),
+        ),
+        pair("column number", m.column_number.to_string()),
+        pair(
+            "norm bound",
+            m.norm_bound.map_or("-".into(), |b| b.to_string()),
+        ),
+        pair("method", m.method.clone()),
+        pair("build seconds", format!("{:.2}", m.build_seconds)),
+        pair("built by", format!("kernstep {}", m.kernstep_version)),
+        pair("age", age_text(now_unix().saturating_sub(m.created_unix))),
+        pair("elements", set.data.len().to_string()),
+        pair("width", set.data.width().to_string()),
+        pair("encoding", format!("{:?}", set.encoding).to_lowercase()),
+        pair("bytes", set.size_bytes.to_string()),
+        pair("bytes per element", per_element),
+    ]
+}
+
+/// The sign pattern in the characters `build --signs` takes.
+fn sign_pattern(signs: &[Sign]) -> String {
+    signs
+        .iter()
+        .map(|s| match s {
+            Sign::Free => 'f',
+            Sign::NonNegative => '+',
+            Sign::NonPositive => '-',
+        })
+        .collect()
+}
+
+/// One line of `verify`.
+#[derive(Serialize)]
+struct Checked {
+    digest: Digest,
+    path: String,
+    ok: bool,
+    elements: Option<u64>,
+    problem: Option<String>,
+}
+
+fn verify(
+    store: &Store,
+    key: Option<&str>,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<ExitCode> {
+    let outcomes: Vec<(Digest, Result<EntrySummary, CacheError>)> = match key {
+        Some(prefix) => {
+            let digest = store.resolve(prefix)?;
+            vec![(digest, store.verify(&digest.to_hex()))]
+        }
+        None => store
+            .verify_all()?
+            .into_iter()
+            .map(|v| (v.digest, v.outcome))
+            .collect(),
+    };
+    let checked: Vec<Checked> = outcomes
+        .into_iter()
+        .map(|(digest, outcome)| Checked {
+            digest,
+            path: store.entry_path(digest).display().to_string(),
+            ok: outcome.is_ok(),
+            elements: outcome.as_ref().ok().map(|s| s.elements),
+            problem: outcome.err().map(|e| e.to_string()),
+        })
+        .collect();
+    if json {
+        writeln!(out, "{}", serde_json::to_string_pretty(&checked)?)?;
+    } else {
+        let rows: Vec<Vec<String>> = checked
+            .iter()
+            .map(|c| {
+                vec![
+                    c.digest.to_hex()[..SHORT_KEY].to_string(),
+                    c.elements.map_or("-".into(), |e| e.to_string()),
+                    if c.ok { "ok" } else { "damaged" }.to_string(),
+                ]
+            })
+            .collect();
+        write_table(out, &["key", "elements", "state"], &rows)?;
+    }
+    let damaged: Vec<&String> = checked.iter().filter_map(|c| c.problem.as_ref()).collect();
+    for problem in &damaged {
+        eprintln!("kernstep: {problem}");
+    }
+    Ok(if damaged.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(2)
+    })
+}
+
+fn remove(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+    let digest = store.remove(key)?;
+    if json {
+        let doc = serde_json::json!({ "removed": digest });
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        writeln!(out, "removed {digest}")?;
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn prune(
+    store: &Store,
+    older_than: Duration,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<ExitCode> {
+    let report: PruneReport = store.prune(older_than)?;
+    let unreadable: Vec<String> = report.unreadable.iter().map(ToString::to_string).collect();
+    if json {
+        let doc = serde_json::json!({
+            "removed": report.removed,
+            "temp_files_removed": report.temp_files_removed,
+            "busy": report.busy,
+            "unreadable": unreadable,
+        });
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        let short = |ds: &[Digest]| match ds {
+            [] => "-".to_string(),
+            _ => ds
+                .iter()
+                .map(|d| d.to_hex()[..SHORT_KEY].to_string())
+                .collect::<Vec<_>>()
+                .join(" "),
+        };
+        let pairs = vec![
+            (
+                "entries removed".to_string(),
+                report.removed.len().to_string(),
+            ),
+            ("removed keys".to_string(), short(&report.removed)),
+            (
+                "temporary files removed".to_string(),
+                report.temp_files_removed.to_string(),
+            ),
+            ("busy (left alone)".to_string(), short(&report.busy)),
+            (
+                "unreadable (left alone)".to_string(),
+                unreadable.len().to_string(),
+            ),
+        ];
+        write_pairs(out, &pairs)?;
+    }
+    for problem in &unreadable {
+        eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// The export document: the fields of `build --out` (format, version, key, metadata,
+/// elements) plus the digest and on-disk encoding.
+#[derive(Serialize)]
+struct Exported<'a> {
+    format: &'static str,
+    version: u32,
+    digest: Digest,
+    key: &'a EntryKey,
+    metadata: &'a SetMetadata,
+    encoding: ::cache::ElementEncoding,
+    width: usize,
+    elements: &'a [Vec<i64>],
+}
+
+fn export(
+    store: &Store,
+    key: &str,
+    format: ExportFormat,
+    out: &mut impl Write,
+) -> anyhow::Result<ExitCode> {
+    let entry = store.export(key)?;
+    match format {
+        ExportFormat::Json => {
+            let doc = Exported {
+                format: "kernstep move set",
+                version: 1,
+                digest: entry.digest,
+                key: &entry.key,
+                metadata: &entry.metadata,
+                encoding: entry.encoding,
+                width: entry.width,
+                elements: &entry.elements,
+            };
+            serde_json::to_writer(&mut *out, &doc)?;
+            writeln!(out)?;
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ages_in_every_unit() {
+        assert_eq!(parse_age("30d"), Ok(Duration::from_secs(30 * 86_400)));
+        assert_eq!(parse_age("12h"), Ok(Duration::from_secs(12 * 3_600)));
+        assert_eq!(parse_age("90m"), Ok(Duration::from_secs(90 * 60)));
+        assert_eq!(parse_age("3600s"), Ok(Duration::from_secs(3_600)));
+        assert_eq!(parse_age("0s"), Ok(Duration::ZERO));
+    }
+
+    #[test]
+    fn bad_ages_are_refused() {
+        for text in ["", "d", "30", "30w", "-1d", "1.5h", "+3h", "3 h"] {
+            assert!(parse_age(text).is_err(), "{text:?}");
+        }
+        let overflow = parse_age(&format!("{}d", u64::MAX / 86_400 + 1)).unwrap_err();
+        assert!(overflow.contains("overflows"), "{overflow}");
+    }
+
+    #[test]
+    fn ages_are_shown_in_the_largest_whole_unit() {
+        assert_eq!(age_text(59), "59s");
+        assert_eq!(age_text(60), "1m");
+        assert_eq!(age_text(7_199), "1h");
+        assert_eq!(age_text(86_400 * 3 + 5), "3d");
+    }
+}
