@@ -19,6 +19,7 @@ pub mod matrix;
 pub mod model;
 pub mod solve;
 pub mod testset;
+pub mod trace;
 
 pub use error::{Error, Result};
 pub use matrix::IntMatrix;

@@ -91,8 +91,9 @@ impl Prepared {
         Ok(Verdict::Solved(solution))
     }
 
-    /// An integer point of the fibre `A x = b`, or the certificate that there is none.
-    fn start_point(
+    /// The point a solve of right-hand side `rhs` starts from: an integer point of the fibre
+    /// `A x = rhs` (from `warm` when given), or the certificate that there is none.
+    pub fn start_point(
         &self,
         rhs: &[i64],
         warm: Option<&WarmStart>,

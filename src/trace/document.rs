@@ -1,0 +1,158 @@
+//! A replayable record of one solve: the instance, the start point, every augmenting step
+//! with its signed move, and the outcome with its re-check.
+//!
+//! Replaying needs nothing else: `start + sum(length * direction)` over the steps is the
+//! final plan, each step's `before`/`after` is the violation (phase `feasibility`) or the cost
+//! `c.x` (phase `cost`) of the points on either side, and `gain = before - after`.
+
+use augment::{Options, Phase, TraceStep};
+use serde::{Deserialize, Serialize};
+
+use super::decimal::Decimal;
+use super::outcome::{sign_number, CoverageDoc, Outcome};
+use super::recheck::{recheck, Recheck};
+use crate::error::Result;
+use crate::model::Model;
+use crate::solve::{Prepared, Verdict, WarmStart};
+
+/// The `schema` value of documents of this layout.
+pub const TRACE_SCHEMA: &str = "kernstep.trace/1";
+
+/// The phase of an augmenting step.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum StepPhase {
+    /// Phase I: lowering the total bound violation.
+    Feasibility,
+    /// Phase II: lowering the cost inside the box.
+    Cost,
+}
+
+/// One augmenting step.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct StepRecord {
+    /// 1-based step number over both phases.
+    pub step: usize,
+    /// The phase the step belongs to.
+    pub phase: StepPhase,
+    /// Index of the move in the set.
+    pub move_index: usize,
+    /// `1` or `-1`: the sign in which the move was applied.
+    pub sign: i8,
+    /// How many times the signed move was added.
+    pub length: i64,
+    /// The signed move (`sign` times the stored move), not yet scaled by `length`.
+    pub direction: Vec<i64>,
+    /// Violation or cost before the step.
+    pub before: Decimal,
+    /// Violation or cost after the step.
+    pub after: Decimal,
+    /// `before - after`, positive.
+    pub gain: Decimal,
+}
+
+/// Everything needed to replay and re-check one solve.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TraceDocument {
+    /// Always [`TRACE_SCHEMA`].
+    pub schema: String,
+    /// Variable names, one per column.
+    pub variables: Vec<String>,
+    /// The instance's right-hand side.
+    pub rhs: Vec<i64>,
+    /// The instance's linear cost.
+    pub cost: Vec<i64>,
+    /// Lower bounds, `null` for none.
+    pub lower: Vec<Option<i64>>,
+    /// Upper bounds, `null` for none.
+    pub upper: Vec<Option<i64>>,
+    /// Number of moves in the set (each tried in both signs).
+    pub moves: usize,
+    /// What the set guarantees.
+    pub coverage: CoverageDoc,
+    /// The integer start point with `A x = b`; `null` when there is none.
+    pub start: Option<Vec<i64>>,
+    /// Every augmenting step, in order.
+    pub steps: Vec<StepRecord>,
+    /// The final point; `null` when there is no integer solution.
+    pub x: Option<Vec<i64>>,
+    /// The cost at `x`, once phase II was reached.
+    pub objective: Option<Decimal>,
+    /// The total bound violation at `x`.
+    pub violation: Option<Decimal>,
+    /// How the solve ended.
+    pub outcome: Outcome,
+    /// The independent re-check of the outcome's claim, when it makes one.
+    pub recheck: Option<Recheck>,
+    /// Wall-clock seconds of the augmentation.
+    pub seconds: f64,
+}
+
+/// Solves `model` with the trace on (whatever `options` says) and records the document.
+pub fn record(
+    prepared: &Prepared,
+    model: &Model,
+    options: &Options,
+    warm: Option<&WarmStart>,
+    cancel: &dyn Fn() -> bool,
+) -> Result<TraceDocument> {
+    let start = prepared.start_point(&model.rhs, warm)?.ok();
+    let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
+    let checked = recheck(model, prepared.moves(), &verdict)?;
+    let moves = prepared.moves();
+    let mut document = TraceDocument {
+        schema: TRACE_SCHEMA.to_string(),
+        variables: model.variable_names.clone(),
+        rhs: model.rhs.clone(),
+        cost: model.cost.clone(),
+        lower: model.lower.clone(),
+        upper: model.upper.clone(),
+        moves: moves.len(),
+        coverage: moves.coverage().into(),
+        start,
+        steps: Vec::new(),
+        x: None,
+        objective: None,
+        violation: None,
+        outcome: Outcome::of(&verdict, &model.variable_names),
+        recheck: checked,
+        seconds: 0.0,
+    };
+    if let Verdict::Solved(solution) = &verdict {
+        // The options above ask for a trace, so the solution carries one.
+        let trace = solution.trace.as_deref().unwrap_or_default();
+        document.steps = step_records(trace, moves);
+        document.x = Some(solution.x.clone());
+        document.objective = solution.objective.map(Decimal);
+        document.violation = Some(Decimal(solution.violation));
+        document.seconds = solution.elapsed.as_secs_f64();
+    }
+    Ok(document)
+}
+
+fn step_records(trace: &[TraceStep], moves: &augment::MoveSet) -> Vec<StepRecord> {
+    trace
+        .iter()
+        .enumerate()
+        .map(|(i, s)| StepRecord {
+            step: i + 1,
+            phase: match s.phase {
+                Phase::Feasibility => StepPhase::Feasibility,
+                Phase::Optimality => StepPhase::Cost,
+            },
+            move_index: s.move_index,
+            sign: sign_number(s.sign),
+            length: s.length,
+            // A move set admits only moves whose l1 norm fits in i64, so no entry is
+            // i64::MIN and negating cannot overflow.
+            direction: moves
+                .row(s.move_index)
+                .iter()
+                .map(|&v| v * s.sign.factor())
+                .collect(),
+            before: Decimal(s.before),
+            after: Decimal(s.after),
+            gain: Decimal(s.gain),
+        })
+        .collect()
+}

@@ -1,0 +1,16 @@
+//! Solve reports that other programs can read back: outcomes in a stable tagged form,
+//! independent re-checks of what a solve claims, and replayable step-by-step traces.
+//!
+//! Everything here is data; the binary renders it as words, tables, JSON or plots.
+
+mod decimal;
+mod document;
+mod outcome;
+mod recheck;
+mod sparse;
+
+pub use decimal::Decimal;
+pub use document::{record, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
+pub use outcome::{sign_number, CoverageDoc, Outcome};
+pub use recheck::{recheck, Claim, Recheck, SignedMove};
+pub use sparse::{named_entries, NamedEntry};
