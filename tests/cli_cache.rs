@@ -1,0 +1,279 @@
+//! `kernstep cache ...` through the binary: list, show, verify, remove, prune and export on a
+//! cache filled by `kernstep build`, in table and JSON form, with exit codes.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use serde_json::Value;
+
+fn examples() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
+}
+
+fn kernstep(cache: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args(args)
+        .arg("--cache-dir")
+        .arg(cache)
+        .output()
+        .expect("the binary runs")
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+/// Runs and requires exit code `code`; returns stdout.
+fn expect(cache: &Path, args: &[&str], code: i32) -> String {
+    let out = kernstep(cache, args);
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{args:?}\nstdout: {}\nstderr: {}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+}
+
+fn json(cache: &Path, args: &[&str]) -> Value {
+    serde_json::from_str(&expect(cache, args, 0)).expect("JSON output")
+}
+
+/// A cache holding the sets of every example model; returns it and the digests.
+fn filled() -> (tempfile::TempDir, Vec<String>) {
+    let dir = tempfile::tempdir().unwrap();
+    let ex = examples();
+    let summary = json(dir.path(), &["build", ex.to_str().unwrap(), "--json"]);
+    let mut keys: Vec<String> = summary
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["key"].as_str().unwrap().to_string())
+        .collect();
+    keys.sort();
+    (dir, keys)
+}
+
+fn entry_file(cache: &Path, digest: &str) -> PathBuf {
+    cache.join(format!("{digest}.{}", cache::ENTRY_SUFFIX))
+}
+
+#[test]
+fn list_shows_one_row_per_entry_with_counts() {
+    let (dir, keys) = filled();
+    let listing = json(dir.path(), &["cache", "list", "--json"]);
+    let entries = listing["entries"].as_array().unwrap();
+    let listed: Vec<&str> = entries
+        .iter()
+        .map(|e| e["digest"].as_str().unwrap())
+        .collect();
+    assert_eq!(listed, keys);
+    assert!(listing["unreadable"].as_array().unwrap().is_empty());
+    let transport = entries.iter().find(|e| e["width"] == 9).unwrap();
+    // The 15 cycles of K_{3,3} (standard count: 9 four-cycles + 6 six-cycles).
+    assert_eq!(transport["elements"], 15);
+    assert_eq!(transport["encoding"], "Trit");
+
+    let table = expect(dir.path(), &["cache", "list"], 0);
+    let lines: Vec<&str> = table.lines().collect();
+    assert_eq!(lines.len(), keys.len() + 1, "{table}");
+    assert!(lines[0].starts_with("key") && lines[0].contains("elements"));
+    for (line, key) in lines[1..].iter().zip(&keys) {
+        assert!(line.starts_with(&key[..12]), "{line}");
+    }
+}
+
+#[test]
+fn an_empty_cache_lists_only_the_header() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = expect(dir.path(), &["cache", "list"], 0);
+    assert_eq!(table.lines().count(), 1);
+    let listing = json(dir.path(), &["cache", "list", "--json"]);
+    assert!(listing["entries"].as_array().unwrap().is_empty());
+}
+
+#[test]
+fn show_prints_key_metadata_counts_encoding_and_size() {
+    let (dir, _) = filled();
+    let ex = examples().join("transport_3x3.json");
+    let built = json(dir.path(), &["build", ex.to_str().unwrap(), "--json"]);
+    let key = built[0]["key"].as_str().unwrap().to_string();
+    assert_eq!(built[0]["status"], "present");
+    let shown = expect(dir.path(), &["cache", "show", &key[..8]], 0);
+    for expected in [
+        format!("key                {key}"),
+        "kind               graver".to_string(),
+        "matrix             6 x 9".to_string(),
+        "rank               5".to_string(),
+        "elements           15".to_string(),
+        "encoding           trit".to_string(),
+    ] {
+        assert!(shown.contains(&expected), "{expected:?} in\n{shown}");
+    }
+    let size = std::fs::metadata(entry_file(dir.path(), &key))
+        .unwrap()
+        .len();
+    assert!(
+        shown.contains(&format!("bytes              {size}\n")),
+        "{shown}"
+    );
+
+    let doc = json(dir.path(), &["cache", "show", &key, "--json"]);
+    assert_eq!(doc["digest"], key.as_str());
+    assert_eq!(doc["elements"], 15);
+    assert_eq!(doc["width"], 9);
+    assert_eq!(doc["size_bytes"], size);
+    assert_eq!(doc["metadata"]["rank"], 5);
+    assert_eq!(doc["key"]["kind"], "Graver");
+}
+
+#[test]
+fn export_equals_the_build_out_file_of_the_same_model() {
+    let (dir, _) = filled();
+    for model in ["transport_3x3.json", "feed_blend.toml", "lane_plan.toml"] {
+        let path = examples().join(model);
+        let out_dir = tempfile::tempdir().unwrap();
+        let out = out_dir.path().join("set.json");
+        let args = [
+            "build",
+            path.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--json",
+        ];
+        let summary: Value = serde_json::from_str(&expect(dir.path(), &args, 0)).unwrap();
+        let key = summary[0]["key"].as_str().unwrap();
+        let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
+        let exported = json(dir.path(), &["cache", "export", key, "--format", "json"]);
+        assert_eq!(exported["elements"], file["elements"], "{model}");
+        assert_eq!(exported["key"], file["key"], "{model}");
+        assert_eq!(exported["digest"], key, "{model}");
+        assert_eq!(exported["format"], file["format"], "{model}");
+        assert!(!exported["elements"].as_array().unwrap().is_empty());
+    }
+}
+
+#[test]
+fn verify_passes_a_sound_cache_and_names_each_damaged_file() {
+    let (dir, keys) = filled();
+    let table = expect(dir.path(), &["cache", "verify"], 0);
+    assert_eq!(table.matches(" ok").count(), keys.len(), "{table}");
+    expect(dir.path(), &["cache", "verify", "--all"], 0);
+    expect(dir.path(), &["cache", "verify", &keys[0][..6]], 0);
+
+    let damaged = [&keys[0], &keys[2]];
+    for key in damaged {
+        let path = entry_file(dir.path(), key);
+        let mut bytes = std::fs::read(&path).unwrap();
+        let mid = bytes.len() / 2;
+        bytes[mid] ^= 0x10;
+        std::fs::write(&path, bytes).unwrap();
+    }
+    let out = kernstep(dir.path(), &["cache", "verify"]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = text(&out.stderr);
+    assert_eq!(stderr.lines().count(), damaged.len(), "{stderr}");
+    for key in damaged {
+        let name = entry_file(dir.path(), key).display().to_string();
+        assert!(stderr.contains(&name), "{name} in {stderr}");
+    }
+    assert_eq!(text(&out.stdout).matches("damaged").count(), 2);
+
+    let checked: Value =
+        serde_json::from_str(&expect(dir.path(), &["cache", "verify", "--json"], 2)).unwrap();
+    let bad: Vec<&str> = checked
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|c| c["ok"] == false)
+        .map(|c| c["digest"].as_str().unwrap())
+        .collect();
+    assert_eq!(bad, [keys[0].as_str(), keys[2].as_str()]);
+    expect(dir.path(), &["cache", "verify", &keys[1]], 0);
+    expect(dir.path(), &["cache", "verify", &keys[2]], 2);
+}
+
+#[test]
+fn remove_takes_a_unique_prefix_and_refuses_unknown_or_ambiguous_ones() {
+    let (dir, keys) = filled();
+    let removed = expect(dir.path(), &["cache", "remove", &keys[1][..10]], 0);
+    assert_eq!(removed.trim(), format!("removed {}", keys[1]));
+    assert!(!entry_file(dir.path(), &keys[1]).exists());
+    let listing = json(dir.path(), &["cache", "list", "--json"]);
+    assert_eq!(listing["entries"].as_array().unwrap().len(), keys.len() - 1);
+
+    let out = kernstep(dir.path(), &["cache", "remove", &keys[1]]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).starts_with("kernstep: no cache entry matches"));
+    let out = kernstep(dir.path(), &["cache", "show", "xyz"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("not a hexadecimal digest"));
+    let doc = json(dir.path(), &["cache", "remove", &keys[0], "--json"]);
+    assert_eq!(doc["removed"], keys[0].as_str());
+}
+
+#[test]
+fn an_ambiguous_prefix_lists_its_matches() {
+    let (dir, keys) = filled();
+    // A second file whose name shares the first hex digit of an entry's digest.
+    let first = &keys[0][..1];
+    let filler = if keys[0][1..].starts_with('0') {
+        "f"
+    } else {
+        "0"
+    };
+    let twin = format!("{first}{}", filler.repeat(31));
+    std::fs::copy(
+        entry_file(dir.path(), &keys[0]),
+        entry_file(dir.path(), &twin),
+    )
+    .unwrap();
+    let out = kernstep(dir.path(), &["cache", "show", first]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = text(&out.stderr);
+    assert!(stderr.contains("is ambiguous"), "{stderr}");
+    assert!(
+        stderr.contains(&keys[0]) && stderr.contains(&twin),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn prune_removes_old_entries_only() {
+    let (dir, keys) = filled();
+    let report = json(dir.path(), &["cache", "prune", "--json"]);
+    assert!(report["removed"].as_array().unwrap().is_empty());
+    let report = json(
+        dir.path(),
+        &["cache", "prune", "--older-than", "1h", "--json"],
+    );
+    assert!(report["removed"].as_array().unwrap().is_empty());
+    let listing = json(dir.path(), &["cache", "list", "--json"]);
+    assert_eq!(listing["entries"].as_array().unwrap().len(), keys.len());
+
+    std::thread::sleep(std::time::Duration::from_millis(1100));
+    let table = expect(dir.path(), &["cache", "prune", "--older-than", "0s"], 0);
+    assert!(
+        table.contains(&format!("entries removed          {}", keys.len())),
+        "{table}"
+    );
+    let listing = json(dir.path(), &["cache", "list", "--json"]);
+    assert!(listing["entries"].as_array().unwrap().is_empty());
+}
+
+#[test]
+fn bad_ages_and_missing_keys_are_usage_errors() {
+    let dir = tempfile::tempdir().unwrap();
+    for args in [
+        &["cache", "prune", "--older-than", "3w"][..],
+        &["cache", "prune", "--older-than", "h"],
+        &["cache", "show"],
+        &["cache", "verify", "abc", "--all"],
+        &["cache", "export", "abc", "--format", "csv"],
+    ] {
+        let out = kernstep(dir.path(), args);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        assert!(!text(&out.stderr).is_empty(), "{args:?}");
+    }
+}
