@@ -13,6 +13,7 @@
 //! Every error is an [`Error::Input`] that names the file and the exact field, with row and
 //! column (for example `matrix[1][2]: 1.5 is not an integer`).
 
+pub mod mps;
 mod node;
 mod validate;
 
@@ -33,6 +34,8 @@ pub enum ModelKind {
     Json,
     /// TOML (`.toml`).
     Toml,
+    /// Free-format MPS (`.mps`), see [`mps`].
+    Mps,
 }
 
 impl ModelKind {
@@ -42,6 +45,7 @@ impl ModelKind {
         match ext.as_str() {
             "json" => Some(Self::Json),
             "toml" => Some(Self::Toml),
+            "mps" => Some(Self::Mps),
             _ => None,
         }
     }
@@ -70,13 +74,14 @@ pub struct Model {
 }
 
 impl Model {
-    /// Reads and validates a model file; its extension (`.json` or `.toml`) decides the syntax.
+    /// Reads and validates a model file; its extension (`.json`, `.toml` or `.mps`) decides
+    /// the syntax.
     pub fn load(path: &Path) -> Result<Model> {
         let origin = path.display().to_string();
         let kind = ModelKind::from_path(path).ok_or_else(|| Error::Input {
             file: origin.clone(),
             field: "file name".to_string(),
-            message: "unknown model file type; use a .json or .toml extension".to_string(),
+            message: "unknown model file type; use a .json, .toml or .mps extension".to_string(),
         })?;
         let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
             path: path.to_path_buf(),
@@ -90,6 +95,7 @@ impl Model {
         let root = match kind {
             ModelKind::Json => node::parse_json(text, origin)?,
             ModelKind::Toml => node::parse_toml(text, origin)?,
+            ModelKind::Mps => return mps::read(text, origin).map(|m| m.model),
         };
         validate::build(&root, origin)
     }
