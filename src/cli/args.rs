@@ -27,6 +27,9 @@ pub enum Command {
     Build(super::build::BuildArgs),
     /// Look after the stored test sets: list, show, verify, remove, prune, export.
     Cache(super::cache::CacheVerbArgs),
+    /// Re-optimise one instance (the model, or a variant of it) with the cached Graver basis
+    /// and print the plan with its certificate.
+    Solve(super::solve::SolveArgs),
 }
 
 /// Arguments of `analyze`.

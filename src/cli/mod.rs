@@ -7,6 +7,9 @@ pub mod args;
 mod build;
 mod cache;
 mod common;
+mod explain;
+mod instance;
+mod solve;
 mod table;
 
 use std::process::ExitCode;
@@ -19,5 +22,6 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Analyze(a) => analyze::run(&a),
         Command::Build(a) => build::run(&a),
         Command::Cache(a) => cache::run(&a),
+        Command::Solve(a) => solve::run(&a),
     }
 }

@@ -1,0 +1,197 @@
+//! The instance options shared by `solve` and `trace`: the model, the variant, the warm start
+//! and the solver settings, turned once into a prepared instance.
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::Ordering;
+
+use anyhow::Context;
+use augment::{Options, Rule};
+use clap::{Args, ValueEnum};
+use kernstep::model::Model;
+use kernstep::solve::{parse_lines, Prepared, Variant, WarmStart};
+use kernstep::trace::TRACE_SCHEMA;
+use kernstep::Error;
+use serde::Deserialize;
+
+use super::common::{graver_for, interrupted, CacheArgs, SolverSet};
+
+/// The `schema` value of `solve --json` documents.
+pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
+
+/// Which instance to solve, and how.
+#[derive(Debug, Args)]
+pub struct InstanceArgs {
+    /// The model file (.json or .toml).
+    pub model: PathBuf,
+    /// A variant: inline JSON such as `{"id":"mon","rhs":[...]}`, or a JSON Lines file of
+    /// variants (then --variant-id picks one; default the first).
+    #[arg(long, value_name = "FILE_OR_JSON")]
+    pub variant: Option<String>,
+    /// The id of the variant to take from the --variant file.
+    #[arg(long, value_name = "ID", requires = "variant")]
+    pub variant_id: Option<String>,
+    /// Start from a previous plan: a `solve --json` (or `trace --json`) document; its `x` plus
+    /// a particular solution of `A z = b - rhs_prev` is the start point.
+    #[arg(long, value_name = "FILE")]
+    pub warm_start: Option<PathBuf>,
+    /// How each augmenting step is chosen.
+    #[arg(long, value_enum, default_value_t = StrategyArg::GraverBest)]
+    pub strategy: StrategyArg,
+    /// Restrict step lengths to powers of two.
+    #[arg(long)]
+    pub powers_of_two: bool,
+    /// Stop (exit 1) after N steps over both phases.
+    #[arg(long, value_name = "N", default_value_t = Options::default().step_limit())]
+    pub max_steps: u64,
+    /// Build the Graver basis (and store it in the cache) when the cache has none.
+    #[arg(long)]
+    pub build: bool,
+    #[command(flatten)]
+    pub cache: CacheArgs,
+}
+
+/// `--strategy`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum StrategyArg {
+    /// The step with the largest improvement (Graver-best augmentation).
+    GraverBest,
+    /// The first improving move in index order, with its best length.
+    First,
+    /// The largest improvement per unit ℓ1 norm of the move.
+    Steepest,
+}
+
+/// A model variant ready to solve.
+pub struct Instance {
+    /// The model with the variant's numbers.
+    pub model: Model,
+    /// The model file as given.
+    pub path: String,
+    /// The variant's id, when one was given.
+    pub variant: Option<String>,
+    /// The previous plan to start from.
+    pub warm: Option<WarmStart>,
+    /// The moves and where they came from.
+    pub set: SolverSet,
+    /// The Hermite form and move set of the matrix.
+    pub prepared: Prepared,
+    /// The solver settings.
+    pub options: Options,
+}
+
+impl InstanceArgs {
+    /// Loads the model, applies the variant, reads the warm start and finds the moves.
+    pub fn load(&self) -> anyhow::Result<Instance> {
+        let base = Model::load(&self.model)?;
+        let path = self.model.display().to_string();
+        let (model, variant) = match &self.variant {
+            None => (base, None),
+            Some(spec) => {
+                let (variant, origin) = read_variant(spec, self.variant_id.as_deref())?;
+                (variant.apply(&base, &origin)?, Some(variant.id))
+            }
+        };
+        let warm = self
+            .warm_start
+            .as_deref()
+            .map(read_warm_start)
+            .transpose()?;
+        let set = graver_for(&model, &self.cache, self.build)?;
+        let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+        let rule = match self.strategy {
+            StrategyArg::GraverBest => Rule::GraverBest,
+            StrategyArg::First => Rule::FirstImproving,
+            StrategyArg::Steepest => Rule::Steepest,
+        };
+        let options = Options::default()
+            .rule(rule)
+            .powers_of_two(self.powers_of_two)
+            .max_steps(self.max_steps);
+        Ok(Instance {
+            model,
+            path,
+            variant,
+            warm,
+            set,
+            prepared,
+            options,
+        })
+    }
+}
+
+/// The cancellation hook of a solve: Ctrl-C.
+pub fn cancelled() -> bool {
+    interrupted().load(Ordering::Relaxed)
+}
+
+/// The variant named by `--variant` (and `--variant-id`), with the origin for messages.
+fn read_variant(spec: &str, id: Option<&str>) -> anyhow::Result<(Variant, String)> {
+    if spec.trim_start().starts_with('{') {
+        let origin = "--variant".to_string();
+        let variant: Variant = serde_json::from_str(spec).map_err(|e| Error::Input {
+            file: origin.clone(),
+            field: "inline JSON".to_string(),
+            message: e.to_string(),
+        })?;
+        if let Some(id) = id.filter(|&id| id != variant.id) {
+            anyhow::bail!(
+                "--variant-id {id:?}: the inline variant's id is {:?}",
+                variant.id
+            );
+        }
+        return Ok((variant, origin));
+    }
+    let path = Path::new(spec);
+    let text = std::fs::read_to_string(path)
+        .with_context(|| format!("reading the variants file {}", path.display()))?;
+    let origin = path.display().to_string();
+    let mut unreadable = None;
+    for (_, parsed) in parse_lines(&text, &origin) {
+        match parsed {
+            Ok(v) if id.is_none_or(|id| id == v.id) => return Ok((v, origin)),
+            Ok(_) => {}
+            Err(e) if id.is_none() => return Err(e.into()),
+            Err(e) => unreadable = unreadable.or(Some(e)),
+        }
+    }
+    match (id, unreadable) {
+        (Some(id), Some(e)) => {
+            Err(anyhow::Error::new(e)
+                .context(format!("{origin}: no readable variant has id {id:?}")))
+        }
+        (Some(id), None) => anyhow::bail!("{origin}: no variant has id {id:?}"),
+        (None, _) => anyhow::bail!("{origin}: the file holds no variant"),
+    }
+}
+
+/// The fields of a previous `solve --json` or `trace --json` document that a warm start uses.
+#[derive(Deserialize)]
+struct PreviousPlan {
+    schema: String,
+    rhs: Vec<i64>,
+    x: Option<Vec<i64>>,
+}
+
+fn read_warm_start(path: &Path) -> anyhow::Result<WarmStart> {
+    let origin = path.display().to_string();
+    let text = std::fs::read_to_string(path)
+        .with_context(|| format!("reading the warm start {origin}"))?;
+    let previous: PreviousPlan = serde_json::from_str(&text).map_err(|e| Error::Input {
+        file: origin.clone(),
+        field: "document".to_string(),
+        message: format!("{e}; expected the output of `kernstep solve --json`"),
+    })?;
+    if previous.schema != SOLVE_SCHEMA && previous.schema != TRACE_SCHEMA {
+        anyhow::bail!(
+            "{origin}: schema: {:?} is neither {SOLVE_SCHEMA:?} nor {TRACE_SCHEMA:?}",
+            previous.schema
+        );
+    }
+    let Some(x) = previous.x else {
+        anyhow::bail!("{origin}: x: the previous solve has no plan to start from");
+    };
+    Ok(WarmStart {
+        rhs: previous.rhs,
+        x,
+    })
+}

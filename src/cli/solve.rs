@@ -1,0 +1,248 @@
+//! `kernstep solve MODEL`: re-optimise one instance of a model with its cached Graver basis and
+//! print the plan with its certificate.
+
+use std::io::{self, Write};
+use std::process::ExitCode;
+
+use clap::Args;
+use kernstep::solve::Verdict;
+use kernstep::trace::{recheck, CoverageDoc, Decimal, Outcome, Recheck};
+use serde::Serialize;
+
+use super::common::{SetSource, SolverSet};
+use super::explain::{certificate_line, count_moves, ensure_holds, status_line, wrap};
+use super::instance::{cancelled, Instance, InstanceArgs, SOLVE_SCHEMA};
+use super::table::{write_pairs, write_table};
+
+/// Output width of the human summary.
+const WIDTH: usize = 100;
+/// At most this many plan values are listed in the human summary.
+const PLAN_ROWS: usize = 40;
+
+/// Arguments of `solve`.
+#[derive(Debug, Args)]
+pub struct SolveArgs {
+    #[command(flatten)]
+    pub instance: InstanceArgs,
+    /// Print one JSON document (layout in the README) instead of the summary.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// The `--json` document.
+#[derive(Serialize)]
+struct SolveDoc<'a> {
+    schema: &'static str,
+    model: &'a str,
+    variant: Option<&'a str>,
+    warm_start: bool,
+    status: &'a Outcome,
+    objective: Option<Decimal>,
+    violation: Option<Decimal>,
+    x: Option<&'a [i64]>,
+    rhs: &'a [i64],
+    variables: &'a [String],
+    steps: StepCounts,
+    seconds: f64,
+    coverage: CoverageDoc,
+    set: SetDoc<'a>,
+    recheck: Option<&'a Recheck>,
+}
+
+#[derive(Serialize)]
+struct StepCounts {
+    feasibility: u64,
+    cost: u64,
+}
+
+/// Where the moves came from.
+#[derive(Serialize)]
+struct SetDoc<'a> {
+    source: &'static str,
+    digest: Option<&'a str>,
+    moves: usize,
+}
+
+impl<'a> SetDoc<'a> {
+    fn of(set: &'a SolverSet) -> Self {
+        let (source, digest) = match &set.source {
+            SetSource::Cached(d) => ("cache", Some(d.as_str())),
+            SetSource::Built => ("built", None),
+        };
+        SetDoc {
+            source,
+            digest,
+            moves: set.set.elements.len(),
+        }
+    }
+}
+
+/// Solves the instance, re-checks the claim and prints the result.
+pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
+    let instance = args.instance.load()?;
+    let verdict = instance.prepared.solve(
+        &instance.model,
+        &instance.options,
+        instance.warm.as_ref(),
+        &cancelled,
+    )?;
+    let outcome = Outcome::of(&verdict, &instance.model.variable_names);
+    let checked = recheck(&instance.model, instance.prepared.moves(), &verdict)?;
+    ensure_holds(checked.as_ref())?;
+    let mut out = io::stdout().lock();
+    if args.json {
+        let doc = document(&instance, &verdict, &outcome, checked.as_ref());
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        write_summary(&mut out, &instance, &verdict, &outcome, checked.as_ref())?;
+    }
+    out.flush()?;
+    Ok(exit_code(&outcome))
+}
+
+/// 0 for an optimal plan (also among truncated moves), 1 for every other outcome.
+pub fn exit_code(outcome: &Outcome) -> ExitCode {
+    if outcome.is_optimal() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
+    }
+}
+
+fn document<'a>(
+    instance: &'a Instance,
+    verdict: &'a Verdict,
+    outcome: &'a Outcome,
+    checked: Option<&'a Recheck>,
+) -> SolveDoc<'a> {
+    let solution = match verdict {
+        Verdict::Solved(s) => Some(s),
+        Verdict::NoIntegerSolution(_) => None,
+    };
+    SolveDoc {
+        schema: SOLVE_SCHEMA,
+        model: &instance.path,
+        variant: instance.variant.as_deref(),
+        warm_start: instance.warm.is_some(),
+        status: outcome,
+        objective: solution.and_then(|s| s.objective).map(Decimal),
+        violation: solution.map(|s| Decimal(s.violation)),
+        x: solution.map(|s| s.x.as_slice()),
+        rhs: &instance.model.rhs,
+        variables: &instance.model.variable_names,
+        steps: StepCounts {
+            feasibility: solution.map_or(0, |s| s.feasibility_steps),
+            cost: solution.map_or(0, |s| s.optimality_steps),
+        },
+        seconds: solution.map_or(0.0, |s| s.elapsed.as_secs_f64()),
+        coverage: instance.set.coverage.into(),
+        set: SetDoc::of(&instance.set),
+        recheck: checked,
+    }
+}
+
+/// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`.
+pub fn set_text(set: &SolverSet) -> String {
+    let coverage = match CoverageDoc::from(set.coverage) {
+        CoverageDoc::Complete => "complete Graver basis".to_string(),
+        CoverageDoc::BoxValid => "Graver basis truncated to the build's box".to_string(),
+        CoverageDoc::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
+    };
+    let source = match &set.source {
+        SetSource::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
+        SetSource::Built => "built for this run".to_string(),
+    };
+    format!(
+        "{}, {coverage}, {source}",
+        count_moves(set.set.elements.len())
+    )
+}
+
+fn write_summary(
+    out: &mut impl Write,
+    instance: &Instance,
+    verdict: &Verdict,
+    outcome: &Outcome,
+    checked: Option<&Recheck>,
+) -> io::Result<()> {
+    let mut rows = vec![("model".to_string(), instance.path.clone())];
+    if let Some(id) = &instance.variant {
+        rows.push(("variant".to_string(), id.clone()));
+    }
+    let start = if instance.warm.is_some() {
+        "warm (previous plan + particular solution of the change)"
+    } else {
+        "cold (integer solution of A x = b)"
+    };
+    rows.push(("start".to_string(), start.to_string()));
+    rows.push(("status".to_string(), status_line(outcome)));
+    if let Verdict::Solved(s) = verdict {
+        if let Some(objective) = s.objective {
+            rows.push(("objective".to_string(), objective.to_string()));
+        } else {
+            rows.push(("violation".to_string(), s.violation.to_string()));
+        }
+        rows.push((
+            "steps".to_string(),
+            format!(
+                "{} in phase I (feasibility), {} in phase II (cost)",
+                s.feasibility_steps, s.optimality_steps
+            ),
+        ));
+        rows.push((
+            "time".to_string(),
+            format!("{:.3} ms", s.elapsed.as_secs_f64() * 1e3),
+        ));
+    }
+    rows.push(("moves".to_string(), set_text(&instance.set)));
+    write_pairs(out, &rows)?;
+    if let Verdict::Solved(s) = verdict {
+        writeln!(out)?;
+        if let Some(heading) = point_heading(outcome) {
+            writeln!(out, "{heading}")?;
+        }
+        write_plan(out, &s.x, &instance.model.variable_names)?;
+    }
+    writeln!(out)?;
+    for line in wrap(
+        &certificate_line(outcome, checked, &instance.model),
+        WIDTH,
+        2,
+    ) {
+        writeln!(out, "{line}")?;
+    }
+    Ok(())
+}
+
+/// What the listed point is, when it is not an optimal plan.
+fn point_heading(outcome: &Outcome) -> Option<&'static str> {
+    match outcome {
+        Outcome::Optimal | Outcome::OptimalForMovesUpTo { .. } => None,
+        Outcome::Unbounded { .. } => Some("the feasible plan the ray starts from:"),
+        Outcome::StepLimit | Outcome::Cancelled => Some("the point reached so far:"),
+        _ => Some("the point where phase I stopped (outside the bounds):"),
+    }
+}
+
+/// The nonzero plan values by variable name, at most [`PLAN_ROWS`] of them.
+fn write_plan(out: &mut impl Write, x: &[i64], names: &[String]) -> io::Result<()> {
+    let nonzero: Vec<Vec<String>> = x
+        .iter()
+        .zip(names)
+        .filter(|(&v, _)| v != 0)
+        .map(|(v, name)| vec![name.clone(), v.to_string()])
+        .collect();
+    if nonzero.is_empty() {
+        return writeln!(out, "every variable is 0");
+    }
+    let shown = nonzero.len().min(PLAN_ROWS);
+    write_table(out, &["variable", "value"], &nonzero[..shown])?;
+    if shown < nonzero.len() {
+        writeln!(
+            out,
+            "... and {} more nonzero values (--json lists the whole plan)",
+            nonzero.len() - shown
+        )?;
+    }
+    Ok(())
+}
