@@ -1,7 +1,8 @@
 //! Free-format MPS input for pure integer models.
 //!
 //! Sections read, in this order: `NAME` (optional), `OBJSENSE` (`MIN` or `MAX`, on the header
-//! line or the next one) and `OBJNAME` (optional), `ROWS` (`N`, `E`, `L`, `G`), `COLUMNS`
+//! line or the next one) and `OBJNAME` (both optional, also accepted before `NAME`), `ROWS`
+//! (`N`, `E`, `L`, `G`), `COLUMNS`
 //! with `'MARKER' 'INTORG'` / `'INTEND'` integer markers, then `RHS`, `RANGES` and `BOUNDS`
 //! (each optional, each with one set; the set name may be left out) and `ENDATA`, which is
 //! required (a file without it is taken as truncated). Lines starting with `*` are comments.

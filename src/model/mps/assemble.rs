@@ -315,10 +315,12 @@ fn empty_box(
     origin: Origin<'_>,
 ) -> crate::error::Error {
     let name = &column.name;
-    let line = bounds
-        .upper
-        .or(bounds.lower)
-        .map_or(column.line, |s| s.line);
+    let line = [bounds.lower, bounds.upper]
+        .iter()
+        .flatten()
+        .map(|s| s.line)
+        .max()
+        .unwrap_or(column.line);
     let message = if bounds.lower.is_none() {
         format!(
             "the upper bound {u} of {name:?} is below its default lower bound 0; readers differ here (some then drop the lower bound), so write an MI or LO bound for it"

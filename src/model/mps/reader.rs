@@ -184,10 +184,8 @@ impl Reader<'_> {
             let message = format!("comes before {}", needed.keyword());
             return Err(self.origin.at(line, word, message));
         }
-        if section == Section::Name && !self.seen.is_empty() {
-            return Err(self.origin.at(line, word, "must be the first section"));
-        }
         let late = match section {
+            Section::Name => Some(Section::Rows),
             Section::ObjSense | Section::ObjName | Section::Rows => Some(Section::Columns),
             _ => None,
         };
@@ -425,14 +423,14 @@ impl Reader<'_> {
     }
 
     /// Checks the set name of an RHS, RANGES or BOUNDS line: one set per section.
-    fn set_name(&mut self, line: usize, section: Section, name: &str) -> Result<()> {
+    fn set_name(&mut self, line: usize, section: Section, field: &str, name: &str) -> Result<()> {
         let word = section.keyword();
         match self.set_names.get(&section) {
             Some(first) if first != name => {
                 let message = format!(
                     "a second {word} set {name:?}; kernstep reads one set per section (the first is {first:?})"
                 );
-                Err(self.origin.at(line, &format!("{word} field 1"), message))
+                Err(self.origin.at(line, field, message))
             }
             Some(_) => Ok(()),
             None => {

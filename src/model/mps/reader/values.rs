@@ -62,7 +62,7 @@ impl Reader<'_> {
             }
         };
         if let Some(set) = set {
-            self.set_name(line, section, set)?;
+            self.set_name(line, section, &format!("{word} field 1"), set)?;
         }
         let first = if set.is_some() { 2 } else { 1 };
         for (pair, chunk) in pairs.chunks(2).enumerate() {
@@ -71,6 +71,9 @@ impl Reader<'_> {
             let row = self.row_named(line, &row_field, chunk[0])?;
             if section == Section::Rhs {
                 self.rhs_entry(line, row, &value_field, chunk[1])?;
+            } else if self.raw.rows[row].kind == RowKind::Free {
+                let message = format!("row {:?} is an N row, which takes no range", chunk[0]);
+                return Err(self.origin.at(line, &row_field, message));
             } else {
                 self.range_entry(line, row, &value_field, chunk[1])?;
             }
@@ -101,10 +104,6 @@ impl Reader<'_> {
     fn range_entry(&mut self, line: usize, row: usize, field: &str, text: &str) -> Result<()> {
         let value = self.extended(line, field, text)?;
         let name = &self.raw.rows[row].name;
-        if self.raw.rows[row].kind == RowKind::Free {
-            let message = format!("row {name:?} is an N row, which takes no range");
-            return Err(self.origin.at(line, field, message));
-        }
         if let Some(earlier) = self.raw.ranges[row] {
             let message = format!("row {name:?} already has a range (line {})", earlier.line);
             return Err(self.origin.at(line, field, message));
@@ -138,7 +137,7 @@ impl Reader<'_> {
             }
         };
         if let Some(set) = set {
-            self.set_name(line, Section::Bounds, set)?;
+            self.set_name(line, Section::Bounds, "BOUNDS field 2", set)?;
         }
         let column_field = format!("BOUNDS field {}", if set.is_some() { 3 } else { 2 });
         let Some(&j) = self.column_index.get(column) else {
