@@ -1,0 +1,366 @@
+//! The scenario file schema, validated into a [`Scenario`]: keys allowed per kind, every name
+//! resolved, every number range-checked.
+
+use serde_json::{Map, Value};
+
+use super::reader::{join, Reader};
+use super::{Field, Lane, Scenario, ScenarioKind, Table};
+use crate::error::Result;
+use crate::model::MATRIX_ENTRY_LIMIT;
+
+/// Top-level keys of each kind.
+fn top_keys(kind: ScenarioKind) -> &'static [&'static str] {
+    match kind {
+        ScenarioKind::Lanes => &[
+            "kind",
+            "title",
+            "depots",
+            "zones",
+            "supply",
+            "demand",
+            "keep_cost",
+            "lanes",
+        ],
+        ScenarioKind::ProductLines => &[
+            "kind", "title", "depots", "zones", "products", "stock", "demand", "lanes",
+        ],
+        ScenarioKind::Truckloads => &[
+            "kind",
+            "title",
+            "depots",
+            "zones",
+            "truck_capacity",
+            "supply",
+            "demand",
+            "keep_cost",
+            "lanes",
+        ],
+    }
+}
+
+/// Keys of one `lanes` entry for each kind.
+fn lane_keys(kind: ScenarioKind) -> &'static [&'static str] {
+    match kind {
+        ScenarioKind::Lanes => &["from", "to", "cost", "capacity"],
+        ScenarioKind::ProductLines => &["from", "to", "cost", "volume"],
+        ScenarioKind::Truckloads => &["from", "to", "cost", "truck_cost", "capacity"],
+    }
+}
+
+/// The lists of names a scenario declares, shared while its numbers are read.
+struct Names {
+    depots: Vec<String>,
+    zones: Vec<String>,
+    products: Vec<String>,
+}
+
+/// Validates a parsed scenario file.
+pub(crate) fn scenario(tree: &Value, origin: &str) -> Result<Scenario> {
+    let r = Reader {
+        file: origin,
+        prefix: String::new(),
+    };
+    let kind = scenario_kind(&r, tree)?;
+    let top = r.object(tree, "", top_keys(kind))?;
+    let need = |key: &str| {
+        top.get(key)
+            .ok_or_else(|| r.error(key, format!("missing; {} scenarios need it", kind.name())))
+    };
+    let names = Names {
+        depots: r.names(need("depots")?, "depots")?,
+        zones: r.names(need("zones")?, "zones")?,
+        products: match kind {
+            ScenarioKind::ProductLines => r.names(need("products")?, "products")?,
+            _ => Vec::new(),
+        },
+    };
+    let truck_capacity = match kind {
+        ScenarioKind::Truckloads => Some(truck_capacity(&r, need("truck_capacity")?)?),
+        _ => None,
+    };
+    let title = top
+        .get("title")
+        .map(|t| r.string(t, "title").map(str::to_string))
+        .transpose()?;
+    let entries = lane_entries(&r, need("lanes")?, kind)?;
+    let lanes = lane_ends(&r, &entries, &names)?;
+    let mut scenario = Scenario {
+        kind,
+        title,
+        depots: names.depots.clone(),
+        zones: names.zones.clone(),
+        products: names.products.clone(),
+        lanes,
+        truck_capacity,
+        tables: Vec::new(),
+    };
+    for &field in kind.fields() {
+        let table = read_table(&r, field, top, &entries, &scenario)?;
+        scenario.tables.push(table);
+    }
+    Ok(scenario)
+}
+
+fn scenario_kind(r: &Reader, tree: &Value) -> Result<ScenarioKind> {
+    let value = tree
+        .get("kind")
+        .ok_or_else(|| r.error("kind", "missing; use lanes, product_lines or truckloads"))?;
+    match r.string(value, "kind")? {
+        "lanes" => Ok(ScenarioKind::Lanes),
+        "product_lines" => Ok(ScenarioKind::ProductLines),
+        "truckloads" => Ok(ScenarioKind::Truckloads),
+        other => Err(r.error(
+            "kind",
+            format!("{other:?} is not a scenario kind; use lanes, product_lines or truckloads"),
+        )),
+    }
+}
+
+fn truck_capacity(r: &Reader, value: &Value) -> Result<i64> {
+    let c = r.int(value, "truck_capacity")?;
+    if c < 1 || i128::from(c) > MATRIX_ENTRY_LIMIT {
+        return Err(r.error("truck_capacity", format!("{c} is not in 1 ..= 2^31")));
+    }
+    Ok(c)
+}
+
+/// The `lanes` list, each entry checked for its keys.
+fn lane_entries<'v>(
+    r: &Reader,
+    value: &'v Value,
+    kind: ScenarioKind,
+) -> Result<Vec<&'v Map<String, Value>>> {
+    let items = value
+        .as_array()
+        .filter(|a| !a.is_empty())
+        .ok_or_else(|| r.error("lanes", "expected a non-empty list of lanes"))?;
+    items
+        .iter()
+        .enumerate()
+        .map(|(i, item)| r.object(item, &format!("lanes[{i}]"), lane_keys(kind)))
+        .collect()
+}
+
+/// The depot and zone of every lane, each pair at most once.
+fn lane_ends(r: &Reader, entries: &[&Map<String, Value>], names: &Names) -> Result<Vec<Lane>> {
+    let mut lanes: Vec<Lane> = Vec::with_capacity(entries.len());
+    for (i, entry) in entries.iter().enumerate() {
+        let end = |key: &str, list: &[String], what: &str| -> Result<usize> {
+            let at = format!("lanes[{i}].{key}");
+            let value = entry
+                .get(key)
+                .ok_or_else(|| r.error(&at, format!("missing; name the {what}")))?;
+            let name = r.string(value, &at)?;
+            list.iter()
+                .position(|n| n == name)
+                .ok_or_else(|| r.error(&at, unknown(what, name, list)))
+        };
+        let lane = Lane {
+            depot: end("from", &names.depots, "depot")?,
+            zone: end("to", &names.zones, "zone")?,
+        };
+        if lanes.contains(&lane) {
+            return Err(r.error(
+                &format!("lanes[{i}]"),
+                format!(
+                    "lane {}->{} is listed twice",
+                    names.depots[lane.depot], names.zones[lane.zone]
+                ),
+            ));
+        }
+        lanes.push(lane);
+    }
+    Ok(lanes)
+}
+
+/// "no zone named X (zones: a, b, c)".
+pub(crate) fn unknown(what: &str, name: &str, list: &[String]) -> String {
+    const SHOWN: usize = 8;
+    let mut known = list
+        .iter()
+        .take(SHOWN)
+        .cloned()
+        .collect::<Vec<_>>()
+        .join(", ");
+    if list.len() > SHOWN {
+        known.push_str(", ...");
+    }
+    format!("no {what} named {name:?} (known: {known})")
+}
+
+/// Reads the numbers of `field` from the file.
+fn read_table(
+    r: &Reader,
+    field: Field,
+    top: &Map<String, Value>,
+    entries: &[&Map<String, Value>],
+    s: &Scenario,
+) -> Result<Table> {
+    let key = field.key();
+    let lane_names: Vec<String> = (0..s.lanes.len()).map(|l| s.lane_name(l)).collect();
+    let required = |key: &str| {
+        top.get(key)
+            .ok_or_else(|| r.error(key, format!("missing; {} scenarios need it", s.kind.name())))
+    };
+    let values: Vec<Option<i64>> = match field {
+        Field::Supply => some(flat(r, required(key)?, key, &s.depots, "depot")?),
+        Field::KeepCost => match top.get(key) {
+            Some(v) => some(partial(r, v, key, &s.depots, "depot")?),
+            None => vec![Some(0); s.depots.len()],
+        },
+        Field::Demand if s.kind == ScenarioKind::ProductLines => some(nested(
+            r,
+            required(key)?,
+            key,
+            &s.zones,
+            "zone",
+            &s.products,
+        )?),
+        Field::Demand => some(flat(r, required(key)?, key, &s.zones, "zone")?),
+        Field::Stock => some(nested(
+            r,
+            required(key)?,
+            key,
+            &s.depots,
+            "depot",
+            &s.products,
+        )?),
+        Field::Cost if s.kind == ScenarioKind::ProductLines => {
+            let mut out = Vec::new();
+            for (i, e) in entries.iter().enumerate() {
+                let at = format!("lanes[{i}].cost");
+                let v = e.get("cost").ok_or_else(|| r.error(&at, "missing"))?;
+                out.extend(some(flat(r, v, &at, &s.products, "product line")?));
+            }
+            out
+        }
+        Field::Capacity => lane_values(r, entries, key, false)?,
+        Field::Cost | Field::Volume | Field::TruckCost => lane_values(r, entries, key, true)?,
+    };
+    let names = table_names(field, s, &lane_names);
+    if field.is_quantity() {
+        if let Some((name, v)) = names
+            .iter()
+            .zip(&values)
+            .find_map(|(n, v)| v.filter(|v| *v < 0).map(|v| (n, v)))
+        {
+            return Err(r.error(&join(key, name), format!("{v} is negative")));
+        }
+    }
+    Ok(Table {
+        field,
+        names,
+        values,
+    })
+}
+
+/// The names a field's values are addressed by (see [`Field`]).
+pub(crate) fn table_names(field: Field, s: &Scenario, lane_names: &[String]) -> Vec<String> {
+    let cross = |outer: &[String], inner: &[String]| -> Vec<String> {
+        outer
+            .iter()
+            .flat_map(|o| inner.iter().map(move |i| format!("{o}/{i}")))
+            .collect()
+    };
+    let per_product = s.kind == ScenarioKind::ProductLines;
+    match field {
+        Field::Supply | Field::KeepCost => s.depots.clone(),
+        Field::Demand if per_product => cross(&s.zones, &s.products),
+        Field::Demand => s.zones.clone(),
+        Field::Stock => cross(&s.depots, &s.products),
+        Field::Cost if per_product => cross(lane_names, &s.products),
+        Field::Volume | Field::Cost | Field::Capacity | Field::TruckCost => lane_names.to_vec(),
+    }
+}
+
+fn some(values: Vec<i64>) -> Vec<Option<i64>> {
+    values.into_iter().map(Some).collect()
+}
+
+/// One value per name of `list`, every name present, no other keys.
+fn flat(r: &Reader, value: &Value, field: &str, list: &[String], what: &str) -> Result<Vec<i64>> {
+    let map = name_map(r, value, field, list, what)?;
+    list.iter()
+        .map(|name| match map.get(name) {
+            Some(v) => r.int(v, &join(field, name)),
+            None => Err(r.error(field, format!("no value for {what} {name:?}"))),
+        })
+        .collect()
+}
+
+/// One value per name of `list`; a missing name is 0.
+fn partial(
+    r: &Reader,
+    value: &Value,
+    field: &str,
+    list: &[String],
+    what: &str,
+) -> Result<Vec<i64>> {
+    let map = name_map(r, value, field, list, what)?;
+    list.iter()
+        .map(|name| {
+            map.get(name)
+                .map_or(Ok(0), |v| r.int(v, &join(field, name)))
+        })
+        .collect()
+}
+
+/// `outer = { inner = n }` for every pair, outer-major.
+fn nested(
+    r: &Reader,
+    value: &Value,
+    field: &str,
+    outer: &[String],
+    what: &str,
+    products: &[String],
+) -> Result<Vec<i64>> {
+    let map = name_map(r, value, field, outer, what)?;
+    let mut out = Vec::with_capacity(outer.len() * products.len());
+    for name in outer {
+        let at = join(field, name);
+        let inner = map
+            .get(name)
+            .ok_or_else(|| r.error(field, format!("no values for {what} {name:?}")))?;
+        out.extend(flat(r, inner, &at, products, "product line")?);
+    }
+    Ok(out)
+}
+
+/// `value` as a table whose keys are all names of `list`.
+fn name_map<'v>(
+    r: &Reader,
+    value: &'v Value,
+    field: &str,
+    list: &[String],
+    what: &str,
+) -> Result<&'v Map<String, Value>> {
+    let map = value
+        .as_object()
+        .ok_or_else(|| r.error(field, format!("expected a table of {what} names")))?;
+    match map.keys().find(|k| !list.contains(k)) {
+        Some(k) => Err(r.error(&join(field, k), unknown(what, k, list))),
+        None => Ok(map),
+    }
+}
+
+/// The lane entries' `key` values; a missing one is an error when `required`, else no limit.
+fn lane_values(
+    r: &Reader,
+    entries: &[&Map<String, Value>],
+    key: &str,
+    required: bool,
+) -> Result<Vec<Option<i64>>> {
+    entries
+        .iter()
+        .enumerate()
+        .map(|(i, e)| {
+            let at = format!("lanes[{i}].{key}");
+            match e.get(key) {
+                Some(Value::Null) if !required => Ok(None),
+                Some(v) => r.int(v, &at).map(Some),
+                None if required => Err(r.error(&at, "missing")),
+                None => Ok(None),
+            }
+        })
+        .collect()
+}

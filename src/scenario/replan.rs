@@ -1,0 +1,135 @@
+//! Re-optimising many days of one model with one prepared test set: in parallel on the current
+//! rayon pool, or chained, each day warm-started from the previous day's plan.
+//!
+//! Results come back in input order whatever the thread count. A day whose line was bad is an
+//! error result and does not stop the others; once `cancel` returns true, days not yet begun
+//! are [`DayOutcome::NotRun`] and a running solve ends as cancelled.
+
+use std::time::{Duration, Instant};
+
+use rayon::prelude::*;
+
+use crate::error::Error;
+use crate::model::Model;
+use crate::solve::{ParsedLine, Prepared, Variant, Verdict, WarmStart};
+
+/// How to re-optimise the days.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct ReplanSettings {
+    /// Solver settings for every day. Default: [`augment::Options::default`].
+    pub options: augment::Options,
+    /// Warm-start each day from the last feasible plan before it (sequential). Default: off.
+    pub chain: bool,
+}
+
+/// The result of one day.
+#[derive(Debug)]
+pub struct DayResult {
+    /// The line the day starts on in its file.
+    pub line: usize,
+    /// The day's name, when its line could be read.
+    pub id: Option<String>,
+    /// What happened.
+    pub outcome: DayOutcome,
+    /// Wall-clock time spent on the day.
+    pub elapsed: Duration,
+}
+
+/// What happened to one day.
+#[derive(Debug)]
+pub enum DayOutcome {
+    /// The solver ran; the verdict says how it ended.
+    Solved(Verdict),
+    /// The day's line was unusable, or the solver refused it.
+    Failed(Error),
+    /// Cancelled before the day began.
+    NotRun,
+}
+
+impl DayResult {
+    /// The day's plan when it is feasible (inside every bound).
+    pub fn feasible_plan(&self) -> Option<&[i64]> {
+        match &self.outcome {
+            DayOutcome::Solved(Verdict::Solved(s)) if s.violation == 0 => Some(&s.x),
+            _ => None,
+        }
+    }
+}
+
+/// Solves every day of `days` (variants of `model`) with `prepared`; `origin` names the days'
+/// file in error messages.
+pub fn replan(
+    prepared: &Prepared,
+    model: &Model,
+    days: Vec<ParsedLine>,
+    settings: &ReplanSettings,
+    origin: &str,
+    cancel: &(dyn Fn() -> bool + Sync),
+) -> Vec<DayResult> {
+    let run = Run {
+        prepared,
+        model,
+        settings,
+        origin,
+        cancel,
+    };
+    if settings.chain {
+        let mut warm: Option<WarmStart> = None;
+        let mut out = Vec::with_capacity(days.len());
+        for (line, parsed) in days {
+            let (result, day_rhs) = run.day(line, parsed, warm.as_ref());
+            if let (Some(x), Some(rhs)) = (result.feasible_plan(), day_rhs) {
+                warm = Some(WarmStart { rhs, x: x.to_vec() });
+            }
+            out.push(result);
+        }
+        out
+    } else {
+        days.into_par_iter()
+            .map(|(line, parsed)| run.day(line, parsed, None).0)
+            .collect()
+    }
+}
+
+/// What every day of one run shares.
+struct Run<'a> {
+    prepared: &'a Prepared,
+    model: &'a Model,
+    settings: &'a ReplanSettings,
+    origin: &'a str,
+    cancel: &'a (dyn Fn() -> bool + Sync),
+}
+
+impl Run<'_> {
+    /// Solves one day; also returns the day's right-hand side for a warm start of the next.
+    fn day(
+        &self,
+        line: usize,
+        parsed: Result<Variant, Error>,
+        warm: Option<&WarmStart>,
+    ) -> (DayResult, Option<Vec<i64>>) {
+        let started = Instant::now();
+        let id = parsed.as_ref().ok().map(|v| v.id.clone());
+        let finish = |outcome| DayResult {
+            line,
+            id: id.clone(),
+            outcome,
+            elapsed: started.elapsed(),
+        };
+        if (self.cancel)() {
+            return (finish(DayOutcome::NotRun), None);
+        }
+        let day_model = match parsed.and_then(|v| v.apply(self.model, self.origin)) {
+            Ok(m) => m,
+            Err(e) => return (finish(DayOutcome::Failed(e)), None),
+        };
+        let solved = self
+            .prepared
+            .solve(&day_model, &self.settings.options, warm, self.cancel);
+        let outcome = match solved {
+            Ok(verdict) => DayOutcome::Solved(verdict),
+            Err(e) => DayOutcome::Failed(e),
+        };
+        (finish(outcome), Some(day_model.rhs))
+    }
+}
