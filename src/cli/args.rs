@@ -30,6 +30,9 @@ pub enum Command {
     /// Re-optimise one instance (the model, or a variant of it) with the cached Graver basis
     /// and print the plan with its certificate.
     Solve(super::solve::SolveArgs),
+    /// Solve one instance and show every augmenting step, the certificate and, with --svg, a
+    /// plot of the violation and cost per step.
+    Trace(super::trace::TraceArgs),
 }
 
 /// Arguments of `analyze`.

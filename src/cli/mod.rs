@@ -9,8 +9,10 @@ mod cache;
 mod common;
 mod explain;
 mod instance;
+mod plot;
 mod solve;
 mod table;
+mod trace;
 
 use std::process::ExitCode;
 
@@ -23,5 +25,6 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Build(a) => build::run(&a),
         Command::Cache(a) => cache::run(&a),
         Command::Solve(a) => solve::run(&a),
+        Command::Trace(a) => trace::run(&a),
     }
 }
