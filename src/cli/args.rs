@@ -33,6 +33,11 @@ pub enum Command {
     /// Solve one instance and show every augmenting step, the certificate and, with --svg, a
     /// plot of the violation and cost per step.
     Trace(super::trace::TraceArgs),
+    /// Re-optimise every day of a transport scenario (or every variant of a model) with one
+    /// cached test set, in parallel or chained, writing one result per day and a summary.
+    Batch(super::batch::BatchArgs),
+    /// Run the whole job on a built-in invented scenario: test set, 30 days, table, trace.
+    Demo(super::demo::DemoArgs),
 }
 
 /// Arguments of `analyze`.

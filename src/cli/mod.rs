@@ -4,9 +4,11 @@
 
 mod analyze;
 pub mod args;
+mod batch;
 mod build;
 mod cache;
 mod common;
+mod demo;
 mod explain;
 mod instance;
 mod plot;
@@ -26,5 +28,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Cache(a) => cache::run(&a),
         Command::Solve(a) => solve::run(&a),
         Command::Trace(a) => trace::run(&a),
+        Command::Batch(a) => batch::run(&a),
+        Command::Demo(a) => demo::run(&a),
     }
 }

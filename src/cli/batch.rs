@@ -1,0 +1,468 @@
+//! `kernstep batch INPUT DAYS`: re-optimise every day of a scenario (or every variant of a
+//! model) with one test set, prepared once, in parallel or chained.
+//!
+//! Results (one record per day, in input order) go to `--out` or stdout; the summary goes to
+//! stdout when the results went to a file, else to stderr. Exit code: 2 if a line was bad or
+//! a day failed, else 1 if a day was infeasible, unbounded, hit the step limit or was not
+//! solved because of Ctrl-C, else 0.
+
+use std::fs::File;
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::sync::atomic::Ordering;
+use std::time::{Duration, Instant};
+
+use anyhow::Context;
+use augment::Status;
+use clap::{Args, ValueEnum};
+use kernstep::model::Model;
+use kernstep::scenario::{
+    parse_csv, parse_day_lines, replan, DayOutcome, DayResult, PlanInput, ReplanSettings,
+};
+use kernstep::solve::{parse_lines, ParsedLine, Prepared, Verdict};
+use serde::ser::{SerializeMap, Serializer};
+use serde::Serialize;
+
+use super::common::{graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet};
+use super::table::write_pairs;
+
+/// Arguments of `batch`.
+#[derive(Debug, Args)]
+pub struct BatchArgs {
+    /// A scenario file, or a model file (.json, .toml or .mps).
+    pub input: PathBuf,
+    /// The days: JSON Lines of changes by name (or of numeric variants for a model file), or
+    /// CSV rows `day,field,name,value` (.csv, scenarios only).
+    pub days: PathBuf,
+    /// Worker threads for the days (default: one per core).
+    #[arg(long, value_name = "N")]
+    pub threads: Option<usize>,
+    /// Warm-start each day from the previous day's plan (the days then run one after another).
+    #[arg(long)]
+    pub chain: bool,
+    /// Build the test set when the cache has none, instead of stopping.
+    #[arg(long)]
+    pub build: bool,
+    /// Write the results to FILE instead of stdout (the summary then goes to stdout).
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Layout of the results.
+    #[arg(long, value_enum, default_value_t = Format::Jsonl)]
+    pub format: Format,
+    #[command(flatten)]
+    pub cache: CacheArgs,
+    /// Print the summary as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// `--format`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// One JSON object per day.
+    Jsonl,
+    /// A header and one row per day, the plan one column per variable.
+    Csv,
+}
+
+/// Runs `batch`.
+pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
+    let input = PlanInput::load(&args.input)?;
+    let days = read_days(&input, &args.days)?;
+    let model = input.model();
+    let set = graver_for(model, &args.cache, args.build)?;
+    let started = Instant::now();
+    let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+    let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
+    let wall = started.elapsed();
+    for error in results.iter().filter_map(failure) {
+        eprintln!("kernstep: {error}");
+    }
+    let tally = Tally::of(&results);
+    let summary = Summary::new(&tally, &set, args.threads, wall);
+    match &args.out {
+        Some(path) => {
+            let file =
+                File::create(path).with_context(|| format!("creating {}", path.display()))?;
+            let mut out = BufWriter::new(file);
+            write_results(&mut out, args.format, &results, &model.variable_names)?;
+            out.flush()
+                .with_context(|| format!("writing {}", path.display()))?;
+            summary.write(&mut io::stdout().lock(), args.json)?;
+        }
+        None => {
+            let mut out = io::stdout().lock();
+            write_results(&mut out, args.format, &results, &model.variable_names)?;
+            out.flush()?;
+            summary.write(&mut io::stderr().lock(), args.json)?;
+        }
+    }
+    Ok(tally.exit_code())
+}
+
+/// Reads the days file in the layout its extension and the input call for.
+pub(super) fn read_days(input: &PlanInput, path: &Path) -> anyhow::Result<Vec<ParsedLine>> {
+    let text =
+        std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))?;
+    let origin = path.display().to_string();
+    let csv = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
+    Ok(match (input, csv) {
+        (PlanInput::Scenario(s, _), true) => parse_csv(s, &text, &origin),
+        (PlanInput::Scenario(s, _), false) => parse_day_lines(s, &text, &origin),
+        (PlanInput::Model(_), true) => anyhow::bail!(
+            "{origin}: CSV days name scenario fields; for a model file write JSON Lines variants"
+        ),
+        (PlanInput::Model(_), false) => parse_lines(&text, &origin),
+    })
+}
+
+/// Re-optimises every day with the prepared set on `threads` threads (Ctrl-C stops).
+pub(super) fn solve_days(
+    prepared: &Prepared,
+    model: &Model,
+    days: Vec<ParsedLine>,
+    chain: bool,
+    threads: Option<usize>,
+    origin: &Path,
+) -> anyhow::Result<Vec<DayResult>> {
+    let settings = ReplanSettings {
+        chain,
+        ..ReplanSettings::default()
+    };
+    let origin = origin.display().to_string();
+    let cancel = || interrupted().load(Ordering::Relaxed);
+    with_threads(threads, || {
+        replan(prepared, model, days, &settings, &origin, &cancel)
+    })
+}
+
+fn failure(result: &DayResult) -> Option<&kernstep::Error> {
+    match &result.outcome {
+        DayOutcome::Failed(e) => Some(e),
+        _ => None,
+    }
+}
+
+/// How a day ended, as written in results and counted in the summary.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum DayStatus {
+    /// Proven optimal.
+    Optimal,
+    /// Optimal among the moves of a truncated set.
+    OptimalWithinNorm,
+    /// No plan exists (or, with an incomplete set, none was found).
+    Infeasible,
+    /// The cost falls without limit.
+    Unbounded,
+    /// The step limit stopped the solve.
+    StepLimit,
+    /// Ctrl-C stopped the solve, or came before it.
+    Interrupted,
+    /// The day's line was bad, or the solver refused it.
+    Error,
+}
+
+impl DayStatus {
+    /// The status of `result`.
+    pub(super) fn of(result: &DayResult) -> DayStatus {
+        match &result.outcome {
+            DayOutcome::Solved(Verdict::Solved(s)) => match s.status {
+                Status::Optimal => DayStatus::Optimal,
+                Status::OptimalForMovesUpTo(_) => DayStatus::OptimalWithinNorm,
+                Status::Infeasible(_) => DayStatus::Infeasible,
+                Status::Unbounded(_) => DayStatus::Unbounded,
+                Status::StepLimit => DayStatus::StepLimit,
+                Status::Cancelled => DayStatus::Interrupted,
+            },
+            DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => DayStatus::Infeasible,
+            DayOutcome::Failed(_) => DayStatus::Error,
+            DayOutcome::NotRun => DayStatus::Interrupted,
+        }
+    }
+
+    /// The word written for it.
+    pub(super) fn word(self) -> &'static str {
+        match self {
+            DayStatus::Optimal => "optimal",
+            DayStatus::OptimalWithinNorm => "optimal_within_norm",
+            DayStatus::Infeasible => "infeasible",
+            DayStatus::Unbounded => "unbounded",
+            DayStatus::StepLimit => "step_limit",
+            DayStatus::Interrupted => "interrupted",
+            DayStatus::Error => "error",
+        }
+    }
+}
+
+/// The optimal (or best found) plan's cost and the plan, when the day has an answer.
+pub(super) fn answer(result: &DayResult) -> Option<(i128, &[i64])> {
+    match &result.outcome {
+        DayOutcome::Solved(Verdict::Solved(s))
+            if matches!(s.status, Status::Optimal | Status::OptimalForMovesUpTo(_)) =>
+        {
+            s.objective.map(|o| (o, s.x.as_slice()))
+        }
+        _ => None,
+    }
+}
+
+/// Augmenting steps over both phases.
+pub(super) fn steps(result: &DayResult) -> Option<u64> {
+    match &result.outcome {
+        DayOutcome::Solved(Verdict::Solved(s)) => Some(s.steps()),
+        _ => None,
+    }
+}
+
+/// Why a day has no answer, in words.
+fn detail(result: &DayResult) -> Option<String> {
+    match &result.outcome {
+        DayOutcome::Solved(Verdict::Solved(s)) => match &s.status {
+            Status::Optimal => None,
+            Status::OptimalForMovesUpTo(n) => Some(format!("no improving move of norm <= {n}")),
+            Status::Infeasible(reason) => Some(reason.to_string()),
+            Status::Unbounded(_) => Some("the cost falls without limit along a move".into()),
+            Status::StepLimit => Some("stopped at the step limit".into()),
+            Status::Cancelled => Some("interrupted during the solve".into()),
+        },
+        DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => {
+            Some("the day's numbers admit no integer solution of the rows".into())
+        }
+        DayOutcome::Failed(e) => Some(e.to_string()),
+        DayOutcome::NotRun => Some("not solved: interrupted before this day".into()),
+    }
+}
+
+/// The nonzero entries of a plan, by variable name, in model order.
+struct Plan<'a> {
+    names: &'a [String],
+    x: &'a [i64],
+}
+
+impl Serialize for Plan<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let nonzero = self.names.iter().zip(self.x).filter(|(_, v)| **v != 0);
+        let mut map = serializer.serialize_map(Some(nonzero.clone().count()))?;
+        for (name, value) in nonzero {
+            map.serialize_entry(name, value)?;
+        }
+        map.end()
+    }
+}
+
+/// One JSON Lines result record.
+#[derive(Serialize)]
+struct Record<'a> {
+    day: Option<&'a str>,
+    line: usize,
+    status: &'static str,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    detail: Option<String>,
+    objective: Option<i128>,
+    steps: Option<u64>,
+    seconds: f64,
+    plan: Option<Plan<'a>>,
+}
+
+fn write_results(
+    out: &mut impl Write,
+    format: Format,
+    results: &[DayResult],
+    names: &[String],
+) -> anyhow::Result<()> {
+    match format {
+        Format::Jsonl => {
+            for r in results {
+                let answer = answer(r);
+                let record = Record {
+                    day: r.id.as_deref(),
+                    line: r.line,
+                    status: DayStatus::of(r).word(),
+                    detail: detail(r),
+                    objective: answer.map(|(o, _)| o),
+                    steps: steps(r),
+                    seconds: r.elapsed.as_secs_f64(),
+                    plan: answer.map(|(_, x)| Plan { names, x }),
+                };
+                writeln!(out, "{}", serde_json::to_string(&record)?)?;
+            }
+        }
+        Format::Csv => write_csv(out, results, names)?,
+    }
+    Ok(())
+}
+
+fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> io::Result<()> {
+    let mut header = [
+        "day",
+        "line",
+        "status",
+        "objective",
+        "steps",
+        "seconds",
+        "detail",
+    ]
+    .map(String::from)
+    .to_vec();
+    header.extend(names.iter().cloned());
+    writeln!(out, "{}", csv_row(&header))?;
+    for r in results {
+        let answer = answer(r);
+        let mut row = vec![
+            r.id.clone().unwrap_or_default(),
+            r.line.to_string(),
+            DayStatus::of(r).word().to_string(),
+            answer.map(|(o, _)| o.to_string()).unwrap_or_default(),
+            steps(r).map(|s| s.to_string()).unwrap_or_default(),
+            format!("{:.6}", r.elapsed.as_secs_f64()),
+            detail(r).unwrap_or_default(),
+        ];
+        match answer {
+            Some((_, x)) => row.extend(x.iter().map(i64::to_string)),
+            None => row.extend(std::iter::repeat_n(String::new(), names.len())),
+        }
+        writeln!(out, "{}", csv_row(&row))?;
+    }
+    Ok(())
+}
+
+/// Cells joined by commas, quoted (RFC 4180) where they hold a comma, quote or line break.
+fn csv_row(cells: &[String]) -> String {
+    cells
+        .iter()
+        .map(|c| {
+            if c.contains([',', '"', '\n', '\r']) {
+                format!("\"{}\"", c.replace('"', "\"\""))
+            } else {
+                c.clone()
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(",")
+}
+
+/// Counts of the days by status, with the total cost of the answered days.
+#[derive(Debug, Default, Serialize)]
+pub(super) struct Tally {
+    /// Days in the input.
+    pub days: usize,
+    /// Proven optimal.
+    pub optimal: usize,
+    /// Optimal among the moves of a truncated set.
+    pub optimal_within_norm: usize,
+    /// No plan.
+    pub infeasible: usize,
+    /// Cost without limit.
+    pub unbounded: usize,
+    /// Stopped by the step limit.
+    pub step_limit: usize,
+    /// Not solved because of Ctrl-C.
+    pub interrupted: usize,
+    /// Bad lines and refused days.
+    pub errors: usize,
+    /// Sum of the answered days' costs.
+    pub total_objective: i128,
+    /// Sum of the days' solve times, in seconds.
+    pub solve_seconds: f64,
+}
+
+impl Tally {
+    /// Counts `results`.
+    pub(super) fn of(results: &[DayResult]) -> Tally {
+        let mut t = Tally {
+            days: results.len(),
+            ..Tally::default()
+        };
+        for r in results {
+            let slot = match DayStatus::of(r) {
+                DayStatus::Optimal => &mut t.optimal,
+                DayStatus::OptimalWithinNorm => &mut t.optimal_within_norm,
+                DayStatus::Infeasible => &mut t.infeasible,
+                DayStatus::Unbounded => &mut t.unbounded,
+                DayStatus::StepLimit => &mut t.step_limit,
+                DayStatus::Interrupted => &mut t.interrupted,
+                DayStatus::Error => &mut t.errors,
+            };
+            *slot += 1;
+            t.total_objective = t
+                .total_objective
+                .saturating_add(answer(r).map_or(0, |(o, _)| o));
+            t.solve_seconds += r.elapsed.as_secs_f64();
+        }
+        t
+    }
+
+    /// 2 for any error, else 1 for any day without a proven answer, else 0.
+    pub(super) fn exit_code(&self) -> ExitCode {
+        if self.errors > 0 {
+            ExitCode::from(2)
+        } else if self.infeasible + self.unbounded + self.step_limit + self.interrupted > 0 {
+            ExitCode::from(1)
+        } else {
+            ExitCode::SUCCESS
+        }
+    }
+}
+
+/// The summary of a run.
+#[derive(Serialize)]
+struct Summary<'a> {
+    #[serde(flatten)]
+    tally: &'a Tally,
+    wall_seconds: f64,
+    threads: Option<usize>,
+    moves: usize,
+    set: String,
+}
+
+impl<'a> Summary<'a> {
+    fn new(tally: &'a Tally, set: &SolverSet, threads: Option<usize>, wall: Duration) -> Self {
+        Summary {
+            tally,
+            wall_seconds: wall.as_secs_f64(),
+            threads,
+            moves: set.set.elements.len(),
+            set: match &set.source {
+                SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
+                SetSource::Built => "built for this run".to_string(),
+            },
+        }
+    }
+
+    fn write(&self, out: &mut impl Write, json: bool) -> anyhow::Result<()> {
+        if json {
+            writeln!(out, "{}", serde_json::to_string_pretty(self)?)?;
+            return Ok(());
+        }
+        let t = self.tally;
+        let mut rows = vec![("days".to_string(), t.days.to_string())];
+        let counts = [
+            ("optimal", t.optimal),
+            ("optimal within norm", t.optimal_within_norm),
+            ("infeasible", t.infeasible),
+            ("unbounded", t.unbounded),
+            ("step limit", t.step_limit),
+            ("not solved (Ctrl-C)", t.interrupted),
+            ("bad lines or errors", t.errors),
+        ];
+        rows.extend(
+            counts
+                .iter()
+                .filter(|(label, n)| *n > 0 || *label == "optimal")
+                .map(|(label, n)| (label.to_string(), n.to_string())),
+        );
+        rows.push(("total objective".into(), t.total_objective.to_string()));
+        rows.push(("solve time".into(), format!("{:.3} s", t.solve_seconds)));
+        rows.push(("wall time".into(), format!("{:.3} s", self.wall_seconds)));
+        rows.push((
+            "test set".into(),
+            format!("{} moves, {}", self.moves, self.set),
+        ));
+        write_pairs(out, &rows)?;
+        Ok(())
+    }
+}

@@ -1,0 +1,275 @@
+//! `kernstep demo`: the whole job on an invented scenario built into the binary: obtain the
+//! test set (cache, or build), re-optimise every day, print the table of days and the total,
+//! and write the step trace and plot of the day that took the most steps.
+
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::Instant;
+
+use anyhow::Context;
+use clap::Args;
+use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+use kernstep::completion::Control;
+use kernstep::model::{Model, ModelKind};
+use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
+use kernstep::solve::{coverage_of, Prepared};
+use kernstep::testset::{build, BuildOutcome, BuildSpec};
+use serde::Serialize;
+
+use super::batch::{answer, solve_days, steps, DayStatus, Tally};
+use super::common::{interrupted, CacheArgs, SetSource, SolverSet};
+use super::plot::write_step_plot;
+use super::table::write_table;
+
+/// Where the embedded scenario lives in the source tree (for messages).
+const SCENARIO_PATH: &str = "examples/scenarios/vell_valley.toml";
+/// Where the embedded days live in the source tree (for messages).
+const DAYS_PATH: &str = "examples/scenarios/vell_valley_days.jsonl";
+/// The embedded scenario.
+const SCENARIO: &str = include_str!("../../examples/scenarios/vell_valley.toml");
+/// The embedded days.
+const DAYS: &str = include_str!("../../examples/scenarios/vell_valley_days.jsonl");
+
+/// Arguments of `demo`.
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    #[command(flatten)]
+    pub cache: CacheArgs,
+    /// Run the first N of the 30 demo days.
+    #[arg(long, value_name = "N", default_value_t = 30,
+          value_parser = clap::value_parser!(u16).range(1..=30))]
+    pub days: u16,
+    /// Directory for the trace (JSON) and plot (SVG) of the highlighted day (default: a
+    /// `kernstep-demo` directory in the system's temporary directory).
+    #[arg(long, value_name = "DIR")]
+    pub trace_dir: Option<PathBuf>,
+    /// Print the days and totals as one JSON document.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Runs `demo`; exit code 0 whenever every day was solved (the demo includes an infeasible
+/// day on purpose), 2 on any error.
+pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
+    let scenario = Scenario::from_str(SCENARIO, ModelKind::Toml, SCENARIO_PATH)?;
+    let model = scenario.compile()?;
+    let mut days = parse_day_lines(&scenario, DAYS, DAYS_PATH);
+    days.truncate(usize::from(args.days));
+    let started = Instant::now();
+    let set = obtain_set(&model, &args.cache)?;
+    let set_seconds = started.elapsed().as_secs_f64();
+    let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+    let results = solve_days(&prepared, &model, days, false, None, Path::new(DAYS_PATH))?;
+    let tally = Tally::of(&results);
+    let highlight = highlight_day(&results);
+    let trace_files = match highlight {
+        Some(index) => Some(write_highlight(
+            &scenario,
+            &prepared,
+            &results[index],
+            args,
+        )?),
+        None => None,
+    };
+    let mut out = io::stdout().lock();
+    let report = Report {
+        scenario: scenario.title.as_deref().unwrap_or(SCENARIO_PATH),
+        variables: model.variables(),
+        rows: model.constraints(),
+        moves: set.set.elements.len(),
+        set: source_word(&set.source),
+        set_seconds,
+        days: results.iter().map(DayRow::of).collect(),
+        tally: &tally,
+        trace: trace_files
+            .as_ref()
+            .map(|(json, svg)| TraceFiles { json, svg }),
+    };
+    if args.json {
+        writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
+    } else {
+        report.write(&mut out)?;
+    }
+    out.flush()?;
+    Ok(if tally.errors + tally.interrupted > 0 {
+        ExitCode::from(2)
+    } else {
+        ExitCode::SUCCESS
+    })
+}
+
+/// The Graver basis from the cache or built (and stored); built in memory when the cache
+/// cannot be used at all.
+fn obtain_set(model: &Model, cache: &CacheArgs) -> anyhow::Result<SolverSet> {
+    match super::common::graver_for(model, cache, true) {
+        Ok(set) => Ok(set),
+        Err(e) => {
+            eprintln!("kernstep: warning: {e:#}; building the test set in memory");
+            in_memory(model)
+        }
+    }
+}
+
+fn in_memory(model: &Model) -> anyhow::Result<SolverSet> {
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = BuildSpec::default().resolve(model, &analysis)?;
+    let control = Control::new().cancel_flag(interrupted());
+    match build(&model.matrix, &analysis, &spec, &control, None)? {
+        BuildOutcome::Built(built) => Ok(SolverSet {
+            coverage: coverage_of(&built.metadata.completeness),
+            set: built.set,
+            source: SetSource::Built,
+        }),
+        BuildOutcome::Stopped(reason) => {
+            anyhow::bail!("building the test set stopped: {reason:?}")
+        }
+    }
+}
+
+fn source_word(source: &SetSource) -> String {
+    match source {
+        SetSource::Cached(digest) => format!(
+            "loaded from the cache ({})",
+            &digest[..12.min(digest.len())]
+        ),
+        SetSource::Built => "built".to_string(),
+    }
+}
+
+/// The optimal day with the most augmenting steps (the first of equals).
+fn highlight_day(results: &[DayResult]) -> Option<usize> {
+    results
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| DayStatus::of(r) == DayStatus::Optimal)
+        .max_by_key(|(i, r)| (steps(r).unwrap_or(0), std::cmp::Reverse(*i)))
+        .map(|(i, _)| i)
+}
+
+/// Solves the highlighted day again with the trace on and writes the trace document and
+/// the step plot; returns their paths.
+fn write_highlight(
+    scenario: &Scenario,
+    prepared: &Prepared,
+    result: &DayResult,
+    args: &DemoArgs,
+) -> anyhow::Result<(PathBuf, PathBuf)> {
+    let day = result.id.clone().unwrap_or_default();
+    let variant = parse_day_lines(scenario, DAYS, DAYS_PATH)
+        .into_iter()
+        .find(|(line, _)| *line == result.line)
+        .map(|(_, v)| v)
+        .context("the highlighted day is no longer in the demo days")??;
+    let model = variant.apply(&scenario.compile()?, DAYS_PATH)?;
+    let cancel = || interrupted().load(std::sync::atomic::Ordering::Relaxed);
+    let doc = kernstep::trace::record(
+        prepared,
+        &model,
+        &augment::Options::default(),
+        None,
+        &cancel,
+    )?;
+    let dir = args
+        .trace_dir
+        .clone()
+        .unwrap_or_else(|| std::env::temp_dir().join("kernstep-demo"));
+    std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
+    let json = dir.join(format!("{day}.trace.json"));
+    let svg = dir.join(format!("{day}.svg"));
+    std::fs::write(&json, serde_json::to_string_pretty(&doc)?)
+        .with_context(|| format!("writing {}", json.display()))?;
+    let title = format!(
+        "{}: {day}, {} steps",
+        scenario.title.as_deref().unwrap_or("demo"),
+        doc.steps.len()
+    );
+    write_step_plot(&svg, &doc.steps, &title)?;
+    Ok((json, svg))
+}
+
+/// One row of the table of days.
+#[derive(Serialize)]
+struct DayRow {
+    day: String,
+    status: &'static str,
+    objective: Option<i128>,
+    steps: Option<u64>,
+    ms: f64,
+}
+
+impl DayRow {
+    fn of(r: &DayResult) -> DayRow {
+        DayRow {
+            day: r.id.clone().unwrap_or_else(|| format!("line {}", r.line)),
+            status: DayStatus::of(r).word(),
+            objective: answer(r).map(|(o, _)| o),
+            steps: steps(r),
+            ms: r.elapsed.as_secs_f64() * 1000.0,
+        }
+    }
+}
+
+/// Paths of the highlighted day's files.
+#[derive(Serialize)]
+struct TraceFiles<'a> {
+    json: &'a Path,
+    svg: &'a Path,
+}
+
+/// What the demo prints.
+#[derive(Serialize)]
+struct Report<'a> {
+    scenario: &'a str,
+    variables: usize,
+    rows: usize,
+    moves: usize,
+    set: String,
+    set_seconds: f64,
+    days: Vec<DayRow>,
+    tally: &'a Tally,
+    trace: Option<TraceFiles<'a>>,
+}
+
+impl Report<'_> {
+    fn write(&self, out: &mut impl Write) -> io::Result<()> {
+        writeln!(
+            out,
+            "{}: {} variables, {} rows; test set of {} moves {} in {:.2} s",
+            self.scenario, self.variables, self.rows, self.moves, self.set, self.set_seconds
+        )?;
+        writeln!(out)?;
+        let rows: Vec<Vec<String>> = self
+            .days
+            .iter()
+            .map(|d| {
+                vec![
+                    d.day.clone(),
+                    d.status.to_string(),
+                    d.objective
+                        .map(|o| o.to_string())
+                        .unwrap_or_else(|| "-".into()),
+                    d.steps.map(|s| s.to_string()).unwrap_or_else(|| "-".into()),
+                    format!("{:.2}", d.ms),
+                ]
+            })
+            .collect();
+        write_table(out, &["day", "status", "objective", "steps", "ms"], &rows)?;
+        let t = self.tally;
+        writeln!(out)?;
+        writeln!(
+            out,
+            "total: {} days, {} optimal, {} infeasible; total objective {}; solve time {:.1} ms",
+            t.days,
+            t.optimal,
+            t.infeasible,
+            t.total_objective,
+            t.solve_seconds * 1000.0
+        )?;
+        if let Some(files) = &self.trace {
+            writeln!(out, "steps of the longest day: {}", files.svg.display())?;
+            writeln!(out, "replayable trace: {}", files.json.display())?;
+        }
+        Ok(())
+    }
+}
