@@ -1,0 +1,371 @@
+//! `kernstep build` through the binary: summaries (table and JSON), a bad model among good
+//! ones, `--rebuild`, limits that stop a build, `--out`, two builders of one model at once,
+//! and a build killed mid-way then resumed from its checkpoint.
+//!
+//! The resume test builds the Graver basis of the 5 x 5 transportation matrix without a norm
+//! limit (3940 elements) three times (fresh, killed, resumed); it is the slowest test here,
+//! about 2 s with the test profile's optimisation and 15 s fully unoptimised.
+
+use std::path::{Path, PathBuf};
+use std::process::{Child, Command, Output, Stdio};
+use std::time::{Duration, Instant};
+
+use serde_json::Value;
+
+fn examples() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
+}
+
+fn command(cache: &Path, args: &[&str]) -> Command {
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_kernstep"));
+    cmd.args(args).arg("--cache-dir").arg(cache);
+    cmd
+}
+
+fn kernstep(cache: &Path, args: &[&str]) -> Output {
+    command(cache, args).output().expect("the binary runs")
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+/// Runs and requires exit code `code`; returns stdout.
+fn expect(cache: &Path, args: &[&str], code: i32) -> String {
+    let out = kernstep(cache, args);
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{args:?}\nstdout: {}\nstderr: {}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+}
+
+fn json(cache: &Path, args: &[&str], code: i32) -> Value {
+    serde_json::from_str(&expect(cache, args, code)).expect("JSON output")
+}
+
+/// Writes the `p x q` transportation model (supplies, then demands; invented zero plan).
+fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
+    let mut rows = Vec::new();
+    for i in 0..p {
+        rows.push(
+            (0..p * q)
+                .map(|j| i64::from(j / q == i))
+                .collect::<Vec<_>>(),
+        );
+    }
+    for k in 0..q {
+        rows.push(
+            (0..p * q)
+                .map(|j| i64::from(j % q == k))
+                .collect::<Vec<_>>(),
+        );
+    }
+    let doc = serde_json::json!({
+        "matrix": rows,
+        "rhs": vec![0; p + q],
+        "lower": vec![0; p * q],
+    });
+    let path = dir.join(format!("transport_{p}x{q}.json"));
+    std::fs::write(&path, doc.to_string()).unwrap();
+    path
+}
+
+fn files_with_suffix(dir: &Path, suffix: &str) -> Vec<PathBuf> {
+    let mut found: Vec<PathBuf> = std::fs::read_dir(dir)
+        .unwrap()
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().and_then(|e| e.to_str()) == Some(suffix))
+        .collect();
+    found.sort();
+    found
+}
+
+fn entries(dir: &Path) -> Vec<PathBuf> {
+    files_with_suffix(dir, cache::ENTRY_SUFFIX)
+}
+
+fn path_str(p: &Path) -> &str {
+    p.to_str().unwrap()
+}
+
+#[test]
+fn a_directory_of_models_gives_one_summary_row_each() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let ex = examples();
+    let table = expect(cache_dir.path(), &["build", path_str(&ex)], 0);
+    let lines: Vec<&str> = table.lines().collect();
+    assert!(lines[0].starts_with("model") && lines[0].contains("status"));
+    let models = std::fs::read_dir(&ex).unwrap().count();
+    assert_eq!(lines.len(), models + 1, "{table}");
+    assert!(lines[1..].iter().all(|l| l.ends_with("built")), "{table}");
+    assert_eq!(entries(cache_dir.path()).len(), models);
+
+    let again = json(cache_dir.path(), &["build", path_str(&ex), "--json"], 0);
+    let rows = again.as_array().unwrap();
+    assert_eq!(rows.len(), models);
+    for row in rows {
+        assert_eq!(row["status"], "present", "{row}");
+        assert_eq!(row["kind"], "Graver");
+        assert_eq!(row["key"].as_str().unwrap().len(), cache::DIGEST_HEX_LEN);
+        assert!(row["elements"].as_u64().unwrap() >= 1);
+    }
+    let transport = rows
+        .iter()
+        .find(|r| r["model"].as_str().unwrap().ends_with("transport_3x3.json"))
+        .unwrap();
+    // The 15 cycles of K_{3,3} (standard count: 9 four-cycles + 6 six-cycles).
+    assert_eq!(transport["elements"], 15);
+}
+
+#[test]
+fn a_bad_model_among_good_ones_exits_2_and_the_others_are_stored() {
+    let models = tempfile::tempdir().unwrap();
+    for name in ["transport_3x3.json", "feed_blend.toml"] {
+        std::fs::copy(examples().join(name), models.path().join(name)).unwrap();
+    }
+    let bad = models.path().join("broken_depot.json");
+    std::fs::write(&bad, r#"{"matrix": [[1, 2], [3]], "rhs": [1, 2]}"#).unwrap();
+    let cache_dir = tempfile::tempdir().unwrap();
+    let out = kernstep(
+        cache_dir.path(),
+        &["build", path_str(models.path()), "--json"],
+    );
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let statuses: Vec<&str> = rows
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["status"].as_str().unwrap())
+        .collect();
+    assert_eq!(statuses.len(), 3);
+    let failed = statuses.iter().find(|s| s.starts_with("failed")).unwrap();
+    assert!(failed.contains("broken_depot.json"), "{failed}");
+    assert_eq!(statuses.iter().filter(|s| **s == "built").count(), 2);
+    assert_eq!(entries(cache_dir.path()).len(), 2);
+}
+
+#[test]
+fn rebuild_replaces_a_valid_entry_with_an_equal_one() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let model = examples().join("transport_3x3.json");
+    let first = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+    let again = json(
+        cache_dir.path(),
+        &["build", path_str(&model), "--rebuild", "--json"],
+        0,
+    );
+    assert_eq!(first[0]["status"], "built");
+    assert_eq!(again[0]["status"], "built");
+    assert_eq!(first[0]["key"], again[0]["key"]);
+    let store = cache::Store::open(cache_dir.path()).unwrap();
+    let stored = store.export(again[0]["key"].as_str().unwrap()).unwrap();
+    assert_eq!(stored.elements.len(), 15);
+    assert_eq!(entries(cache_dir.path()).len(), 1);
+}
+
+#[test]
+fn limits_stop_a_build_with_exit_1_and_leave_no_entry() {
+    let model = examples().join("transport_3x3.json");
+    for limit in [
+        &["--max-elements", "1"][..],
+        &["--time-limit", "0.000001"][..],
+    ] {
+        let cache_dir = tempfile::tempdir().unwrap();
+        let mut args = vec!["build", path_str(&model), "--json"];
+        args.extend_from_slice(limit);
+        let rows = json(cache_dir.path(), &args, 1);
+        let status = rows[0]["status"].as_str().unwrap();
+        assert!(status.starts_with("stopped"), "{limit:?}: {status}");
+        assert!(rows[0]["elements"].is_null());
+        assert!(entries(cache_dir.path()).is_empty(), "{limit:?}");
+        // A stopped build may leave a checkpoint the next run resumes from.
+        let rows = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+        let status = rows[0]["status"].as_str().unwrap();
+        assert!(status.starts_with("built"), "{limit:?}: {status}");
+        assert_eq!(rows[0]["elements"], 15);
+    }
+}
+
+#[test]
+fn out_writes_the_set_the_cache_holds() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let out_dir = tempfile::tempdir().unwrap();
+    let out = out_dir.path().join("twisted.json");
+    let model = examples().join("twisted_cubic.json");
+    let written = json(
+        cache_dir.path(),
+        &["build", path_str(&model), "--out", path_str(&out), "--json"],
+        0,
+    );
+    assert!(written[0]["status"]
+        .as_str()
+        .unwrap()
+        .starts_with("written to"));
+    assert!(
+        entries(cache_dir.path()).is_empty(),
+        "--out bypasses the cache"
+    );
+    let stored = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+    assert_eq!(written[0]["key"], stored[0]["key"]);
+
+    let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
+    let store = cache::Store::open(cache_dir.path()).unwrap();
+    let entry = store.export(stored[0]["key"].as_str().unwrap()).unwrap();
+    assert_eq!(
+        file["elements"],
+        serde_json::to_value(&entry.elements).unwrap()
+    );
+    assert_eq!(file["key"], serde_json::to_value(&entry.key).unwrap());
+    assert_eq!(file["metadata"]["rank"], entry.metadata.rank);
+
+    let two = kernstep(
+        cache_dir.path(),
+        &["build", path_str(&examples()), "--out", path_str(&out)],
+    );
+    assert_eq!(two.status.code(), Some(2));
+    assert!(text(&two.stderr).contains("exactly one model"));
+}
+
+#[test]
+fn two_builders_of_one_model_store_one_entry() {
+    let models = tempfile::tempdir().unwrap();
+    let model = transport_model(models.path(), 4, 6);
+    let cache_dir = tempfile::tempdir().unwrap();
+    let args = ["build", path_str(&model), "--norm-limit", "none", "--json"];
+    let children: Vec<Child> = (0..2)
+        .map(|_| {
+            command(cache_dir.path(), &args)
+                .stdout(Stdio::piped())
+                .spawn()
+                .unwrap()
+        })
+        .collect();
+    let mut statuses: Vec<String> = children
+        .into_iter()
+        .map(|c| {
+            let out = c.wait_with_output().unwrap();
+            assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+            let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+            rows[0]["status"].as_str().unwrap().to_string()
+        })
+        .collect();
+    statuses.sort();
+    assert_eq!(statuses, ["built", "present"]);
+    assert_eq!(entries(cache_dir.path()).len(), 1);
+    expect(cache_dir.path(), &["cache", "verify"], 0);
+}
+
+/// Starts a build and kills it once it has run `after` and saved a checkpoint.
+fn kill_after_checkpoint(cache_dir: &Path, args: &[&str], after: Duration) -> usize {
+    let mut child = command(cache_dir, args)
+        .stdout(Stdio::null())
+        .spawn()
+        .unwrap();
+    let started = Instant::now();
+    let mut seen = Vec::new();
+    while child.try_wait().unwrap().is_none() {
+        let checkpoints = files_with_suffix(cache_dir, cache::CHECKPOINT_SUFFIX);
+        if let Some(size) = checkpoints
+            .first()
+            .and_then(|p| std::fs::metadata(p).ok())
+            .map(|m| m.len())
+        {
+            if seen.last() != Some(&size) {
+                seen.push(size);
+            }
+            if started.elapsed() >= after {
+                child.kill().unwrap();
+                break;
+            }
+        }
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    child.wait().unwrap();
+    assert!(
+        entries(cache_dir).is_empty(),
+        "the build finished before it could be killed; use a larger model"
+    );
+    seen.len()
+}
+
+/// The shortest of `runs` runs of `args` into fresh cache directories.
+fn fastest_fresh_build(args: &[&str], runs: usize) -> Duration {
+    (0..runs)
+        .map(|_| {
+            let dir = tempfile::tempdir().unwrap();
+            let started = Instant::now();
+            expect(dir.path(), args, 0);
+            started.elapsed()
+        })
+        .min()
+        .unwrap()
+}
+
+/// Runs a build that resumes from the checkpoint `saved`; returns its summary row and time.
+fn resumed_build(
+    cache_dir: &Path,
+    args: &[&str],
+    checkpoint: &Path,
+    saved: &[u8],
+) -> (Value, Duration) {
+    for entry in entries(cache_dir) {
+        std::fs::remove_file(entry).unwrap();
+    }
+    std::fs::write(checkpoint, saved).unwrap();
+    let started = Instant::now();
+    let rows = json(cache_dir, args, 0);
+    (rows[0].clone(), started.elapsed())
+}
+
+#[test]
+fn a_killed_build_resumes_from_its_checkpoint_and_gives_the_same_set() {
+    let models = tempfile::tempdir().unwrap();
+    let model = transport_model(models.path(), 5, 5);
+    let args = ["build", path_str(&model), "--norm-limit", "none", "--json"];
+    // Shortest of two runs each, so that a burst of load on a shared machine does not decide.
+    let fresh = fastest_fresh_build(&args, 2);
+
+    // Most of the time goes into the last lifting stage: kill well inside it.
+    let cache_dir = tempfile::tempdir().unwrap();
+    let checkpoints = kill_after_checkpoint(cache_dir.path(), &args, fresh.mul_f64(0.6));
+    assert!(checkpoints >= 1);
+    let checkpoint = files_with_suffix(cache_dir.path(), cache::CHECKPOINT_SUFFIX).remove(0);
+    let saved = std::fs::read(&checkpoint).unwrap();
+
+    let (row, first) = resumed_build(cache_dir.path(), &args, &checkpoint, &saved);
+    let status = row["status"].as_str().unwrap().to_string();
+    assert!(status.starts_with("built (resumed after "), "{status}");
+    assert!(status.ends_with(" components)"), "{status}");
+    assert!(
+        !checkpoint.exists(),
+        "the checkpoint is removed once the entry is stored"
+    );
+    let entry = cache::Store::open(cache_dir.path())
+        .unwrap()
+        .export(row["key"].as_str().unwrap())
+        .unwrap();
+    let (again, second) = resumed_build(cache_dir.path(), &args, &checkpoint, &saved);
+    assert_eq!(again["status"].as_str(), Some(status.as_str()));
+    let resumed = first.min(second);
+    eprintln!("fresh {fresh:?}, resumed {resumed:?} ({status}; {checkpoints} checkpoints seen)");
+    assert!(resumed < fresh, "resumed {resumed:?}, fresh {fresh:?}");
+
+    let out_dir = tempfile::tempdir().unwrap();
+    let reference = out_dir.path().join("fresh.json");
+    let mut out_args = args.to_vec();
+    out_args.extend(["--out", path_str(&reference)]);
+    expect(out_dir.path(), &out_args, 0);
+    let file: Value = serde_json::from_slice(&std::fs::read(&reference).unwrap()).unwrap();
+    // 3940 circuits of K_{5,5}: sum over k of C(5,k)^2 k!(k-1)!/2 (standard cycle count).
+    assert_eq!(entry.elements.len(), 3940);
+    assert_eq!(
+        file["elements"],
+        serde_json::to_value(&entry.elements).unwrap()
+    );
+    assert_eq!(file["key"], serde_json::to_value(&entry.key).unwrap());
+}
