@@ -50,7 +50,11 @@ impl Reader<'_> {
     pub(crate) fn error(&self, field: &str, message: impl Into<String>) -> Error {
         Error::Input {
             file: self.file.to_string(),
-            field: format!("{}{field}", self.prefix),
+            field: if field.is_empty() {
+                self.prefix.trim_end_matches([':', ' ']).to_string()
+            } else {
+                format!("{}{field}", self.prefix)
+            },
             message: message.into(),
         }
     }
