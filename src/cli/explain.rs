@@ -99,11 +99,20 @@ pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Mo
 /// Breaks `text` at spaces into lines of at most `width` characters (a longer word keeps its
 /// own line); lines after the first start with `indent` spaces.
 pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
+    wrap_units(text.split(' ').filter(|w| !w.is_empty()), width, indent)
+}
+
+/// Like [`wrap`], for units that must not be split (such as `+2 fennick_north,`).
+pub fn wrap_units<'a>(
+    units: impl IntoIterator<Item = &'a str>,
+    width: usize,
+    indent: usize,
+) -> Vec<String> {
     let mut lines = Vec::new();
     let mut line = String::new();
-    for word in text.split(' ').filter(|w| !w.is_empty()) {
+    for unit in units {
         let used = line.chars().count();
-        if used > 0 && used + 1 + word.chars().count() > width {
+        if used > 0 && used + 1 + unit.chars().count() > width {
             lines.push(std::mem::take(&mut line));
         }
         if line.is_empty() {
@@ -113,7 +122,7 @@ pub fn wrap(text: &str, width: usize, indent: usize) -> Vec<String> {
         } else {
             line.push(' ');
         }
-        line.push_str(word);
+        line.push_str(unit);
     }
     if !line.is_empty() {
         lines.push(line);

@@ -9,7 +9,7 @@ use std::process::ExitCode;
 use clap::Args;
 use kernstep::trace::{record, StepPhase, StepRecord, TraceDocument};
 
-use super::explain::{certificate_line, ensure_holds, status_line, terms, wrap};
+use super::explain::{certificate_line, ensure_holds, status_line, terms, wrap, wrap_units};
 use super::instance::{cancelled, Instance, InstanceArgs};
 use super::plot::write_step_plot;
 use super::solve::{exit_code, set_text};
@@ -121,14 +121,26 @@ fn write_point(
         sum.checked_add(i128::from(c) * i128::from(v))
     });
     let cost = cost.map_or("beyond 128 bits".to_string(), |c| c.to_string());
+    let head = format!("{label}: violation {violation}, cost {cost}:");
+    let mut units: Vec<String> = head.split(' ').map(str::to_string).collect();
     let entries = terms(x, &doc.variables);
-    let values = if entries.is_empty() {
-        "every variable 0".to_string()
-    } else {
-        entries.join(", ")
-    };
-    let text = format!("{label}: violation {violation}, cost {cost}: {values}");
-    write_wrapped(out, &text, 2)
+    if entries.is_empty() {
+        units.push("every variable 0".to_string());
+    }
+    let last = entries.len().saturating_sub(1);
+    units.extend(entries.into_iter().enumerate().map(
+        |(i, e)| {
+            if i < last {
+                format!("{e},")
+            } else {
+                e
+            }
+        },
+    ));
+    for line in wrap_units(units.iter().map(String::as_str), WIDTH, 2) {
+        writeln!(out, "{line}")?;
+    }
+    Ok(())
 }
 
 /// The step table: numbers in aligned columns, the signed move by name on the right.

@@ -11,7 +11,7 @@ use serde::{Deserialize, Serialize};
 use super::decimal::Decimal;
 use super::outcome::{sign_number, CoverageDoc, Outcome};
 use super::recheck::{recheck, Recheck};
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::solve::{Prepared, Verdict, WarmStart};
 
@@ -70,7 +70,8 @@ pub struct TraceDocument {
     pub moves: usize,
     /// What the set guarantees.
     pub coverage: CoverageDoc,
-    /// The integer start point with `A x = b`; `null` when there is none.
+    /// The solver's integer start point, with `A x = b` (recovered exactly from the final point
+    /// and the steps); `null` when there is none.
     pub start: Option<Vec<i64>>,
     /// Every augmenting step, in order.
     pub steps: Vec<StepRecord>,
@@ -96,7 +97,6 @@ pub fn record(
     warm: Option<&WarmStart>,
     cancel: &dyn Fn() -> bool,
 ) -> Result<TraceDocument> {
-    let start = prepared.start_point(&model.rhs, warm)?.ok();
     let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
     let checked = recheck(model, prepared.moves(), &verdict)?;
     let moves = prepared.moves();
@@ -109,7 +109,7 @@ pub fn record(
         upper: model.upper.clone(),
         moves: moves.len(),
         coverage: moves.coverage().into(),
-        start,
+        start: None,
         steps: Vec::new(),
         x: None,
         objective: None,
@@ -122,12 +122,28 @@ pub fn record(
         // The options above ask for a trace, so the solution carries one.
         let trace = solution.trace.as_deref().unwrap_or_default();
         document.steps = step_records(trace, moves);
+        document.start = Some(start_of(&solution.x, &document.steps)?);
         document.x = Some(solution.x.clone());
         document.objective = solution.objective.map(Decimal);
         document.violation = Some(Decimal(solution.violation));
         document.seconds = solution.elapsed.as_secs_f64();
     }
     Ok(document)
+}
+
+/// The point the solver started from: the final point minus every step. Taken from the
+/// solution itself, so it is the solver's own start whatever rounding chose it.
+fn start_of(x: &[i64], steps: &[StepRecord]) -> Result<Vec<i64>> {
+    let mut point = x.to_vec();
+    for step in steps {
+        for (v, &d) in point.iter_mut().zip(&step.direction) {
+            *v = d
+                .checked_mul(step.length)
+                .and_then(|change| v.checked_sub(change))
+                .ok_or_else(|| Error::Overflow("undoing a step to find the start point".into()))?;
+        }
+    }
+    Ok(point)
 }
 
 fn step_records(trace: &[TraceStep], moves: &augment::MoveSet) -> Vec<StepRecord> {

@@ -1,0 +1,365 @@
+//! `kernstep trace` through the binary, checked from its JSON alone: replaying the steps from
+//! the start point gives the final plan, every recorded value is recomputed from the points,
+//! phase-II points are feasible, and the certificate is re-checked against the move set that
+//! `kernstep build --out` writes. Also the SVG (parsed as XML) and the 100-column limit.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use serde::Deserialize;
+use serde_json::{json, Value};
+
+fn kernstep(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args(args)
+        .output()
+        .expect("run kernstep")
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8(bytes.to_vec()).unwrap()
+}
+
+/// The plain numbers of a model, as the test needs them.
+struct Instance {
+    matrix: Vec<Vec<i64>>,
+    rhs: Vec<i64>,
+    cost: Vec<i64>,
+    lower: Vec<Option<i64>>,
+    upper: Vec<Option<i64>>,
+}
+
+impl Instance {
+    fn write(&self, path: &Path) {
+        let model = json!({
+            "matrix": self.matrix, "rhs": self.rhs, "cost": self.cost,
+            "lower": self.lower, "upper": self.upper,
+        });
+        std::fs::write(path, model.to_string()).unwrap();
+    }
+
+    fn image(&self, x: &[i64]) -> Vec<i128> {
+        self.matrix
+            .iter()
+            .map(|row| {
+                row.iter()
+                    .zip(x)
+                    .map(|(&a, &v)| i128::from(a) * i128::from(v))
+                    .sum()
+            })
+            .collect()
+    }
+
+    fn cost_of(&self, x: &[i64]) -> i128 {
+        self.cost
+            .iter()
+            .zip(x)
+            .map(|(&c, &v)| i128::from(c) * i128::from(v))
+            .sum()
+    }
+
+    /// `sum_i dist(x_i, [l_i, u_i])`.
+    fn violation(&self, x: &[i64]) -> i128 {
+        x.iter()
+            .enumerate()
+            .map(|(i, &v)| {
+                let below = self.lower[i].map_or(0, |l| (l - v).max(0));
+                let above = self.upper[i].map_or(0, |u| (v - u).max(0));
+                i128::from(below + above)
+            })
+            .sum()
+    }
+}
+
+fn numbers(v: &Value) -> Vec<i64> {
+    v.as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e.as_i64().unwrap())
+        .collect()
+}
+
+fn decimal(v: &Value) -> i128 {
+    v.as_str().unwrap().parse().unwrap()
+}
+
+/// The move set of the model's matrix, written by `build --out`.
+fn move_set(model: &Path, dir: &Path) -> Vec<Vec<i64>> {
+    let out_file = dir.join("set.json");
+    let out = kernstep(&[
+        "build",
+        model.to_str().unwrap(),
+        "--out",
+        out_file.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let set: Value = serde_json::from_str(&std::fs::read_to_string(out_file).unwrap()).unwrap();
+    set["elements"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(numbers)
+        .collect()
+}
+
+fn trace_json(model: &Path, cache: &Path, extra: &[&str]) -> (i32, Value) {
+    let cache = cache.join("cache");
+    let (m, c) = (model.to_str().unwrap(), cache.to_str().unwrap());
+    let mut args = vec!["trace", m, "--json", "--build", "--cache-dir", c];
+    args.extend_from_slice(extra);
+    let out = kernstep(&args);
+    let code = out.status.code().unwrap();
+    assert!(code < 2, "{}", text(&out.stderr));
+    (code, serde_json::from_str(&text(&out.stdout)).unwrap())
+}
+
+fn add(x: &[i64], d: &[i64], times: i64) -> Vec<i64> {
+    x.iter().zip(d).map(|(&a, &b)| a + times * b).collect()
+}
+
+fn in_box(m: &Instance, x: &[i64]) -> bool {
+    m.violation(x) == 0
+}
+
+/// Replays the steps from the start point, recomputing every recorded value.
+fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
+    let Some(start) = doc["start"].as_array().map(|_| numbers(&doc["start"])) else {
+        assert_eq!(doc["outcome"]["tag"], "no_integer_solution");
+        return;
+    };
+    let rhs: Vec<i128> = m.rhs.iter().map(|&b| i128::from(b)).collect();
+    assert_eq!(m.image(&start), rhs, "A start = b");
+    let mut x = start;
+    let mut in_phase_two = false;
+    for (i, step) in doc["steps"].as_array().unwrap().iter().enumerate() {
+        assert_eq!(step["step"], i + 1);
+        let d = numbers(&step["direction"]);
+        let sign = step["sign"].as_i64().unwrap();
+        let stored = &set[step["move_index"].as_u64().unwrap() as usize];
+        assert_eq!(
+            d,
+            add(&vec![0; d.len()], stored, sign),
+            "direction = sign * move"
+        );
+        assert!(m.image(&d).iter().all(|&v| v == 0), "A d = 0");
+        let length = step["length"].as_i64().unwrap();
+        assert!(length >= 1);
+        let next = add(&x, &d, length);
+        let value: fn(&Instance, &[i64]) -> i128 = match step["phase"].as_str().unwrap() {
+            "feasibility" => {
+                assert!(!in_phase_two, "phase I after phase II");
+                Instance::violation
+            }
+            "cost" => {
+                in_phase_two = true;
+                assert!(in_box(m, &x) && in_box(m, &next), "phase II leaves the box");
+                Instance::cost_of
+            }
+            other => panic!("phase {other}"),
+        };
+        let (before, after, gain) = (
+            decimal(&step["before"]),
+            decimal(&step["after"]),
+            decimal(&step["gain"]),
+        );
+        assert_eq!((before, after), (value(m, &x), value(m, &next)));
+        assert!(gain > 0 && gain == before - after);
+        x = next;
+    }
+    assert_eq!(x, numbers(&doc["x"]), "start + steps = final point");
+    if !doc["objective"].is_null() {
+        assert_eq!(decimal(&doc["objective"]), m.cost_of(&x));
+    }
+}
+
+/// Re-checks the final claim from the JSON and the move set, without the solver.
+fn recheck(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
+    let tag = doc["outcome"]["tag"].as_str().unwrap();
+    let signed = || {
+        set.iter()
+            .flat_map(|g| [g.clone(), add(&vec![0; g.len()], g, -1)])
+    };
+    match tag {
+        "optimal" => {
+            let x = numbers(&doc["x"]);
+            assert!(in_box(m, &x));
+            let improving = signed()
+                .map(|g| add(&x, &g, 1))
+                .filter(|y| in_box(m, y) && m.cost_of(y) < m.cost_of(&x))
+                .count();
+            assert_eq!(improving, 0, "a move improves the final plan");
+            assert_eq!(doc["recheck"]["moves_checked"], set.len());
+        }
+        "no_lattice_point_in_box" => {
+            let x = numbers(&doc["x"]);
+            let base = m.violation(&x);
+            assert!(base > 0);
+            assert!(signed().all(|g| m.violation(&add(&x, &g, 1)) >= base));
+        }
+        "unbounded" => {
+            let d = numbers(&doc["outcome"]["direction"]);
+            assert!(m.image(&d).iter().all(|&v| v == 0) && m.cost_of(&d) < 0);
+            let free = d.iter().enumerate().all(|(i, &v)| {
+                v == 0 || (v > 0 && m.upper[i].is_none()) || (v < 0 && m.lower[i].is_none())
+            });
+            assert!(free && in_box(m, &numbers(&doc["x"])));
+        }
+        "no_integer_solution" => {}
+        other => panic!("unexpected outcome {other}"),
+    }
+}
+
+#[derive(Deserialize)]
+struct Fixture {
+    matrix: Vec<Vec<i64>>,
+    variants: Vec<Case>,
+}
+
+#[derive(Deserialize)]
+struct Case {
+    rhs: Vec<i64>,
+    cost: Vec<i64>,
+    lower: Vec<Option<i64>>,
+    upper: Vec<Option<i64>>,
+    expect: Expect,
+}
+
+#[derive(Deserialize)]
+struct Expect {
+    objective: Option<i64>,
+}
+
+fn fixture_instances(name: &str) -> Vec<(Instance, Option<i64>)> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/solve")
+        .join(name);
+    let f: Fixture = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
+    f.variants
+        .into_iter()
+        .map(|c| {
+            let instance = Instance {
+                matrix: f.matrix.clone(),
+                rhs: c.rhs,
+                cost: c.cost,
+                lower: c.lower,
+                upper: c.upper,
+            };
+            (instance, c.expect.objective)
+        })
+        .collect()
+}
+
+fn check_fixture(name: &str) {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("model.json");
+    let instances = fixture_instances(name);
+    instances[0].0.write(&model);
+    let set = move_set(&model, dir.path());
+    let mut steps_seen = [0usize; 2];
+    for (m, optimum) in &instances {
+        m.write(&model);
+        let (code, doc) = trace_json(&model, dir.path(), &[]);
+        assert_eq!(code == 0, doc["outcome"]["tag"] == "optimal");
+        replay(m, &doc, &set);
+        recheck(m, &doc, &set);
+        if let Some(optimum) = optimum {
+            // Optimum recorded by HiGHS 1.16 (fixture file).
+            assert_eq!(decimal(&doc["objective"]), i128::from(*optimum));
+        }
+        for step in doc["steps"].as_array().unwrap() {
+            steps_seen[usize::from(step["phase"] == "cost")] += 1;
+        }
+    }
+    assert!(steps_seen[0] > 0 && steps_seen[1] > 0, "{steps_seen:?}");
+}
+
+#[test]
+fn lanes_3x3_traces_replay_and_recheck() {
+    check_fixture("lanes_3x3.json");
+}
+
+#[test]
+fn dense_3x6_traces_replay_and_recheck() {
+    check_fixture("dense_3x6_b.json");
+}
+
+fn tables_model(dir: &Path) -> PathBuf {
+    let (m, _) = fixture_instances("tables_3x3x3.json").remove(0);
+    let path = dir.join("tables.json");
+    m.write(&path);
+    path
+}
+
+#[test]
+fn svg_is_xml_with_one_point_per_step() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = tables_model(dir.path());
+    let svg = dir.path().join("steps.svg");
+    let (_, doc) = trace_json(&model, dir.path(), &["--svg", svg.to_str().unwrap()]);
+    let content = std::fs::read_to_string(&svg).unwrap();
+    let tree = roxmltree::Document::parse(&content).unwrap();
+    assert_eq!(tree.root_element().tag_name().name(), "svg");
+    let circles = tree
+        .descendants()
+        .filter(|n| n.tag_name().name() == "circle")
+        .count();
+    let steps = doc["steps"].as_array().unwrap().len();
+    assert!(steps > 0);
+    assert_eq!(circles, steps);
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.ends_with(".tmp"))
+        .collect();
+    assert!(left.is_empty(), "temporary files left: {left:?}");
+}
+
+#[test]
+fn human_trace_fits_100_columns_and_states_the_certificate() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = tables_model(dir.path());
+    let (_, doc) = trace_json(&model, dir.path(), &[]);
+    let cache = dir.path().join("cache");
+    let cache = cache.to_str().unwrap();
+    let out = kernstep(&["trace", model.to_str().unwrap(), "--cache-dir", cache]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let shown = text(&out.stdout);
+    let widest = shown.lines().map(|l| l.chars().count()).max().unwrap();
+    assert!(widest <= 100, "a line has {widest} columns:\n{shown}");
+    let steps = doc["steps"].as_array().unwrap();
+    for step in steps {
+        let number = step["step"].to_string();
+        let row = shown
+            .lines()
+            .find(|l| l.split_whitespace().next() == Some(&number));
+        assert!(
+            row.is_some_and(|r| r.contains(step["gain"].as_str().unwrap())),
+            "{shown}"
+        );
+    }
+    let moves = doc["moves"].as_u64().unwrap();
+    let certificate = format!("none of the {moves} moves improves in either sign");
+    assert!(shown.contains(&certificate), "{shown}");
+}
+
+#[test]
+fn trace_exit_codes_follow_the_outcome() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("m.json");
+    let mut instance = Instance {
+        matrix: vec![vec![1, 1, 0, 0], vec![1, 0, 1, 0], vec![0, 1, 0, 1]],
+        rhs: vec![7, 5, 6],
+        cost: vec![4, 6, 5, 3],
+        lower: vec![Some(0); 4],
+        upper: vec![Some(5), None, Some(4), None],
+    };
+    instance.write(&model);
+    assert_eq!(trace_json(&model, dir.path(), &[]).0, 0);
+    instance.upper = vec![Some(1), Some(1), Some(1), Some(1)];
+    instance.write(&model);
+    let (code, doc) = trace_json(&model, dir.path(), &[]);
+    assert_eq!(
+        (code, doc["outcome"]["tag"].as_str()),
+        (1, Some("no_lattice_point_in_box"))
+    );
+}
