@@ -1,0 +1,380 @@
+//! `kernstep batch` through the binary: results equal one-by-one `Prepared::solve` runs (cold,
+//! and warm-started from the day before with `--chain`) for 1 and 2 threads; optima equal the
+//! HiGHS 1.16 optima recorded by `scripts/demo_reference.py` in `tests/fixtures/demo/`; a bad
+//! line is reported with its number while the other days solve; exit codes; CSV; model files.
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use augment::{Options, Status};
+use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+use kernstep::completion::Control;
+use kernstep::model::Model;
+use kernstep::scenario::{parse_day_lines, Scenario};
+use kernstep::solve::{coverage_of, Prepared, Verdict, WarmStart};
+use kernstep::testset::{build, BuildOutcome, BuildSpec};
+use serde_json::Value;
+
+fn scenarios() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/scenarios")
+}
+
+fn kernstep(cache: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args(args)
+        .arg("--cache-dir")
+        .arg(cache)
+        .output()
+        .expect("the binary runs")
+}
+
+/// Runs and requires exit code `code`; returns stdout and stderr.
+fn expect(cache: &Path, args: &[&str], code: i32) -> (String, String) {
+    let out = kernstep(cache, args);
+    let (stdout, stderr) = (
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    );
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{args:?}\n{stdout}\n{stderr}"
+    );
+    (stdout, stderr)
+}
+
+fn records(stdout: &str) -> Vec<Value> {
+    stdout
+        .lines()
+        .map(|l| serde_json::from_str(l).expect("a JSON line"))
+        .collect()
+}
+
+/// What one day's record says: status, objective, steps and the nonzero plan by name.
+type Summary = (String, Option<i64>, Option<u64>, BTreeMap<String, i64>);
+
+fn summary_of_record(r: &Value) -> Summary {
+    let plan = r["plan"]
+        .as_object()
+        .map(|m| {
+            m.iter()
+                .map(|(k, v)| (k.clone(), v.as_i64().unwrap()))
+                .collect()
+        })
+        .unwrap_or_default();
+    (
+        r["status"].as_str().unwrap().to_string(),
+        r["objective"].as_i64(),
+        r["steps"].as_u64(),
+        plan,
+    )
+}
+
+fn graver(model: &Model) -> Prepared {
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = BuildSpec::default().resolve(model, &analysis).unwrap();
+    let BuildOutcome::Built(built) =
+        build(&model.matrix, &analysis, &spec, &Control::new(), None).unwrap()
+    else {
+        panic!("the build stopped")
+    };
+    let coverage = coverage_of(&built.metadata.completeness);
+    Prepared::new(&model.matrix, &built.set, coverage).unwrap()
+}
+
+/// The days solved one at a time with the library, cold or warm-started from the last
+/// feasible plan, summarised as `batch` writes them.
+fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary> {
+    let scenario = Scenario::load(&scenarios().join(scenario_file)).unwrap();
+    let model = scenario.compile().unwrap();
+    let prepared = graver(&model);
+    let text = std::fs::read_to_string(scenarios().join(days_file)).unwrap();
+    let mut warm: Option<WarmStart> = None;
+    let mut out = Vec::new();
+    for (_, parsed) in parse_day_lines(&scenario, &text, days_file) {
+        let day = parsed.unwrap().apply(&model, days_file).unwrap();
+        let verdict = prepared
+            .solve(&day, &Options::default(), warm.as_ref(), &|| false)
+            .unwrap();
+        out.push(match verdict {
+            Verdict::Solved(s) => {
+                if chain && s.violation == 0 {
+                    warm = Some(WarmStart {
+                        rhs: day.rhs.clone(),
+                        x: s.x.clone(),
+                    });
+                }
+                let word = match s.status {
+                    Status::Optimal => "optimal",
+                    Status::Infeasible(_) => "infeasible",
+                    ref other => panic!("unexpected status {other:?}"),
+                };
+                let plan = (word == "optimal")
+                    .then(|| {
+                        let named = model.variable_names.iter().cloned().zip(s.x.clone());
+                        named.filter(|(_, v)| *v != 0).collect()
+                    })
+                    .unwrap_or_default();
+                let objective = (word == "optimal").then(|| s.objective.unwrap() as i64);
+                (word.to_string(), objective, Some(s.steps()), plan)
+            }
+            Verdict::NoIntegerSolution(_) => ("infeasible".into(), None, None, BTreeMap::new()),
+        });
+    }
+    out
+}
+
+#[test]
+fn batch_equals_one_by_one_solves_for_any_thread_count_with_and_without_chain() {
+    let cache = tempfile::tempdir().unwrap();
+    for (scenario, days) in [
+        ("brackle_lanes.toml", "brackle_lanes_days.jsonl"),
+        ("vell_valley.toml", "vell_valley_days.jsonl"),
+    ] {
+        let (s, d) = (scenarios().join(scenario), scenarios().join(days));
+        let (s, d) = (s.to_str().unwrap(), d.to_str().unwrap());
+        for chain in [false, true] {
+            let expected = one_by_one(scenario, days, chain);
+            for threads in ["1", "2"] {
+                let mut args = vec!["batch", s, d, "--build", "--threads", threads];
+                if chain {
+                    args.push("--chain");
+                }
+                let code = if expected.iter().all(|e| e.0 == "optimal") {
+                    0
+                } else {
+                    1
+                };
+                let (stdout, _) = expect(cache.path(), &args, code);
+                let got: Vec<Summary> = records(&stdout).iter().map(summary_of_record).collect();
+                assert_eq!(
+                    got, expected,
+                    "{scenario}, chain {chain}, {threads} threads"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn optima_equal_the_recorded_highs_optima() {
+    let cache = tempfile::tempdir().unwrap();
+    let fixtures = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/demo");
+    for name in ["vell_valley", "brackle_lanes", "hollin_trucks"] {
+        let text = std::fs::read_to_string(fixtures.join(format!("{name}.json"))).unwrap();
+        let fixture: Value = serde_json::from_str(&text).unwrap();
+        // Reference: HiGHS 1.16 through highspy, written by scripts/demo_reference.py.
+        assert_eq!(fixture["reference"]["solver"], "HiGHS");
+        let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+        let scenario = root.join(fixture["scenario"].as_str().unwrap());
+        let days = root.join(fixture["days_file"].as_str().unwrap());
+        let out = cache.path().join(format!("{name}.jsonl"));
+        let args = [
+            "batch",
+            scenario.to_str().unwrap(),
+            days.to_str().unwrap(),
+            "--build",
+            "--json",
+            "--out",
+            out.to_str().unwrap(),
+        ];
+        let output = kernstep(cache.path(), &args);
+        assert!(matches!(output.status.code(), Some(0 | 1)), "{name}");
+        let summary: Value = serde_json::from_slice(&output.stdout).unwrap();
+        assert_eq!(
+            summary["total_objective"], fixture["total_objective"],
+            "{name}"
+        );
+        let got = records(&std::fs::read_to_string(&out).unwrap());
+        let want = fixture["days"].as_array().unwrap();
+        assert_eq!(got.len(), want.len(), "{name}");
+        for (g, w) in got.iter().zip(want) {
+            assert_eq!(g["day"], w["day"], "{name}");
+            assert_eq!(g["status"], w["status"], "{name} {}", w["day"]);
+            assert_eq!(g["objective"], w["objective"], "{name} {}", w["day"]);
+        }
+    }
+}
+
+#[test]
+fn a_bad_line_is_reported_with_its_number_and_the_other_days_solve() {
+    let dir = tempfile::tempdir().unwrap();
+    let days = dir.path().join("days.jsonl");
+    std::fs::write(
+        &days,
+        "{\"day\": \"d1\", \"demand\": {\"old_docks\": 10}}\n\
+         {\"day\": \"d2\", \"demand\": {\"old_dock\": 10}}\n\
+         {\"day\": \"d3\", \"supply\": {\"windmill\": 40}}\n",
+    )
+    .unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let args = [
+        "batch",
+        scenario.to_str().unwrap(),
+        days.to_str().unwrap(),
+        "--build",
+        "--threads",
+        "2",
+    ];
+    let (stdout, stderr) = expect(dir.path(), &args, 2);
+    assert!(
+        stderr.contains("days.jsonl: line 2: demand.old_dock: no zone named \"old_dock\""),
+        "{stderr}"
+    );
+    let got = records(&stdout);
+    let statuses: Vec<&str> = got.iter().map(|r| r["status"].as_str().unwrap()).collect();
+    assert_eq!(statuses, ["optimal", "error", "optimal"]);
+    assert_eq!(got[1]["line"], 2);
+    assert!(got[1]["detail"].as_str().unwrap().contains("line 2"));
+    assert!(
+        stderr
+            .lines()
+            .any(|l| l.starts_with("bad lines or errors") && l.ends_with(" 1")),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn csv_days_and_csv_results() {
+    let cache = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let days = scenarios().join("brackle_lanes_days.csv");
+    let args = [
+        "batch",
+        scenario.to_str().unwrap(),
+        days.to_str().unwrap(),
+        "--build",
+        "--format",
+        "csv",
+    ];
+    // Two of the example days are infeasible on purpose: exit code 1.
+    let (stdout, stderr) = expect(cache.path(), &args, 1);
+    let lines: Vec<&str> = stdout.lines().collect();
+    assert_eq!(lines.len(), 9);
+    assert!(lines[0]
+        .starts_with("day,line,status,objective,steps,seconds,detail,quayside->north_bank,"));
+    let cells = lines[0].split(',').count();
+    assert!(lines
+        .iter()
+        .all(|l| l.split(',').count() == cells || l.contains('"')));
+    assert!(
+        lines[1].starts_with("2026-03-02,2,optimal,265,"),
+        "{}",
+        lines[1]
+    );
+    let infeasible = stderr.lines().find(|l| l.starts_with("infeasible"));
+    assert_eq!(
+        infeasible.map(|l| l.split_whitespace().collect::<Vec<_>>()),
+        Some(vec!["infeasible", "2"]),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn model_files_take_numeric_variants() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/lane_plan.toml");
+    let days = dir.path().join("v.jsonl");
+    // lane_plan.toml: brackwater ships 7, north needs 5, east needs 6; costs 4 6 5 3;
+    // brackwater_north <= 5, fennick_north <= 4. Optimum by hand: 5 north, 2 east from
+    // brackwater (4*5 + 6*2 = 32), fennick 0 north, 4 east (3*4 = 12): 44.
+    std::fs::write(
+        &days,
+        "{\"id\": \"base\"}\n{\"id\": \"more\", \"rhs\": [7, 5, 8]}\n",
+    )
+    .unwrap();
+    let args = [
+        "batch",
+        model.to_str().unwrap(),
+        days.to_str().unwrap(),
+        "--build",
+    ];
+    let (stdout, _) = expect(dir.path(), &args, 0);
+    let got = records(&stdout);
+    assert_eq!(got[0]["day"], "base");
+    assert_eq!(got[0]["objective"], 44);
+    assert_eq!(got[0]["plan"]["brackwater_north"], 5);
+    // Two more units east come from fennick at 3 each.
+    assert_eq!(got[1]["objective"], 50);
+    let csv = dir.path().join("v.csv");
+    std::fs::write(&csv, "day,field,name,value\n").unwrap();
+    let args = [
+        "batch",
+        model.to_str().unwrap(),
+        csv.to_str().unwrap(),
+        "--build",
+    ];
+    let (_, stderr) = expect(dir.path(), &args, 2);
+    assert!(stderr.contains("CSV days name scenario fields"), "{stderr}");
+}
+
+#[test]
+fn without_a_cached_set_batch_says_what_to_build() {
+    let cache = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let days = scenarios().join("brackle_lanes_days.jsonl");
+    let args = ["batch", scenario.to_str().unwrap(), days.to_str().unwrap()];
+    let (_, stderr) = expect(cache.path(), &args, 2);
+    assert!(stderr.contains("kernstep build"), "{stderr}");
+}
+
+#[test]
+fn ctrl_c_writes_the_finished_days_and_counts_the_others() {
+    let dir = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("vell_valley.toml");
+    let base = std::fs::read_to_string(scenarios().join("vell_valley_days.jsonl")).unwrap();
+    let base: Vec<Value> = records(&base);
+    let mut text = String::new();
+    for i in 0..6000 {
+        let mut day = base[i % base.len()].clone();
+        day["day"] = Value::from(format!("d{i}"));
+        text.push_str(&format!("{day}\n"));
+    }
+    let days = dir.path().join("many.jsonl");
+    std::fs::write(&days, text).unwrap();
+    let first = dir.path().join("first.jsonl");
+    std::fs::write(&first, base[0].to_string()).unwrap();
+    let s = scenario.to_str().unwrap();
+    expect(
+        dir.path(),
+        &["batch", s, first.to_str().unwrap(), "--build"],
+        0,
+    );
+    let out = dir.path().join("results.jsonl");
+    let child = Command::new(env!("CARGO_BIN_EXE_kernstep"))
+        .args([
+            "batch",
+            s,
+            days.to_str().unwrap(),
+            "--json",
+            "--threads",
+            "1",
+        ])
+        .arg("--out")
+        .arg(&out)
+        .arg("--cache-dir")
+        .arg(dir.path())
+        .stdout(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(800));
+    let signal = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(signal.success());
+    let output = child.wait_with_output().unwrap();
+    assert_eq!(output.status.code(), Some(1));
+    let summary: Value = serde_json::from_slice(&output.stdout).unwrap();
+    let (optimal, interrupted) = (
+        summary["optimal"].as_u64().unwrap(),
+        summary["interrupted"].as_u64().unwrap(),
+    );
+    assert!(optimal > 0 && interrupted > 0, "{summary}");
+    let got = records(&std::fs::read_to_string(&out).unwrap());
+    assert_eq!(got.len(), 6000);
+    let last = got.last().unwrap();
+    assert_eq!(last["status"], "interrupted");
+    assert_eq!(last["day"], "d5999");
+}
