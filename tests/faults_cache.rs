@@ -576,6 +576,27 @@ fn unusable_directory(target: &Target, tally: &mut Tally) {
         path_str(&out_file),
     ];
     let written = kernstep(&bad, &args);
+    let solve = ["solve", path_str(&target.model), "--build", "--json"];
+    let cached: serde_json::Value =
+        serde_json::from_slice(&kernstep(base.path(), &solve).stdout).unwrap_or_default();
+    let fallback = kernstep(&bad, &solve);
+    let answer: serde_json::Value = serde_json::from_slice(&fallback.stdout).unwrap_or_default();
+    tally.record(
+        "solve --build with an unusable directory",
+        ensure(
+            fallback.status.code() == Some(0)
+                && answer["status"]["tag"] == "optimal"
+                && answer["objective"] == cached["objective"]
+                && text(&fallback.stderr).contains("building without the cache"),
+            || {
+                format!(
+                    "solve gave {:?}: {}",
+                    fallback.status,
+                    text(&fallback.stderr)
+                )
+            },
+        ),
+    );
     tally.record(
         "uncached build beside an unusable directory",
         ensure(
