@@ -124,6 +124,8 @@ def kernstep(binary, model_path, variants_path, threads):
     wall = time.perf_counter() - start
     lines = [json.loads(l) for l in run.stdout.splitlines() if l.strip()]
     summary = lines[-1]
+    summary["mean_steps"] = [sum(l["steps"][k] for l in lines[:-1]) / max(1, len(lines) - 1)
+                             for k in (0, 1)]
     objectives = [int(l["objective"]) if l["objective"] is not None else None for l in lines[:-1]]
     return objectives, summary, wall
 
@@ -172,7 +174,9 @@ def main():
             tail = f"   equal optima {equal}/{count}" if equal is not None else ""
             print(f"{name:<14}{label:<34}{ms:>12.4f}{ratio:>14.1f}x{tail}")
         print(f"{name:<14}(Graver basis: {runs[0][1]['elements']} moves, built in "
-              f"{runs[0][1]['build_seconds']:.3f} s, included in whole-process time)")
+              f"{runs[0][1]['build_seconds']:.3f} s, included in whole-process time; "
+              f"mean steps phase I {runs[0][1]['mean_steps'][0]:.1f}, "
+              f"phase II {runs[0][1]['mean_steps'][1]:.1f})")
 
 
 if __name__ == "__main__":

@@ -54,28 +54,20 @@ fn main() {
         .build()
         .expect("pool");
     let start = Instant::now();
-    let results: Vec<(String, Option<i128>)> = pool.install(|| {
+    let results: Vec<(String, Option<i128>, [u64; 2])> = pool.install(|| {
         variants
             .par_iter()
-            .map(
-                |m| match prepared.solve(m, &Options::default(), None, &|| false) {
-                    Ok(Verdict::Solved(s)) => match s.status {
-                        Status::Optimal => ("optimal".to_string(), s.objective),
-                        Status::Unbounded(_) => ("unbounded".to_string(), None),
-                        Status::Infeasible(_) => ("infeasible".to_string(), None),
-                        other => (format!("{other:?}"), None),
-                    },
-                    Ok(Verdict::NoIntegerSolution(_)) => ("infeasible".to_string(), None),
-                    Err(e) => (format!("error: {e}"), None),
-                },
-            )
+            .map(|m| outcome(&prepared.solve(m, &Options::default(), None, &|| false)))
             .collect()
     });
     let solve_s = start.elapsed().as_secs_f64();
-    for (id, (status, objective)) in ids.iter().zip(&results) {
+    for (id, (status, objective, steps)) in ids.iter().zip(&results) {
         println!(
             "{}",
-            serde_json::json!({"id": id, "status": status, "objective": objective.map(|o| o.to_string())})
+            serde_json::json!({
+                "id": id, "status": status, "objective": objective.map(|o| o.to_string()),
+                "steps": steps,
+            })
         );
     }
     println!(
@@ -85,4 +77,25 @@ fn main() {
             "solve_seconds": solve_s, "variants": variants.len(), "threads": threads,
         })
     );
+}
+
+/// Status name, optimum and steps per phase of one solve.
+fn outcome(result: &kernstep::Result<Verdict>) -> (String, Option<i128>, [u64; 2]) {
+    match result {
+        Ok(Verdict::Solved(s)) => {
+            let steps = [s.feasibility_steps, s.optimality_steps];
+            let status = match &s.status {
+                Status::Optimal => "optimal".to_string(),
+                Status::Unbounded(_) => "unbounded".to_string(),
+                Status::Infeasible(_) => "infeasible".to_string(),
+                other => format!("{other:?}"),
+            };
+            let objective = (s.status == Status::Optimal)
+                .then_some(s.objective)
+                .flatten();
+            (status, objective, steps)
+        }
+        Ok(Verdict::NoIntegerSolution(_)) => ("infeasible".to_string(), None, [0, 0]),
+        Err(e) => (format!("error: {e}"), None, [0, 0]),
+    }
 }

@@ -40,6 +40,7 @@
 
 mod certify;
 mod error;
+mod linear;
 mod moves;
 mod objective;
 mod options;

@@ -10,6 +10,7 @@ use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::error::{overflow, Result};
+use crate::linear::LinearScan;
 use crate::moves::{MoveSet, Sign};
 use crate::objective::Separable;
 use crate::problem::Problem;
@@ -57,6 +58,17 @@ pub(crate) struct Scan<'a, F: ?Sized> {
 impl<F: Separable + ?Sized> Scan<'_, F> {
     /// The step the rule selects, or `None` when no move improves.
     pub(crate) fn select(&self, parallel: bool) -> Result<Option<Candidate>> {
+        if let (Some(slopes), Some(problem)) = (self.slopes, self.bounds) {
+            let scan = LinearScan {
+                moves: self.moves,
+                slopes,
+                problem,
+                x: self.search.x,
+                powers_of_two: self.search.powers_of_two,
+                rule: self.rule,
+            };
+            return scan.select(parallel);
+        }
         let count = self.moves.len();
         match (self.rule, parallel) {
             (Rule::FirstImproving, false) => {
@@ -208,7 +220,7 @@ fn room(problem: &Problem, x: &[i64], dir: &Direction) -> Result<Option<i64>> {
 }
 
 /// Compares `a / b` with `c / d` exactly for `a, c >= 0` and `b, d > 0`, without overflow.
-fn ratio_cmp(a: i128, b: i64, c: i128, d: i64) -> Ordering {
+pub(crate) fn ratio_cmp(a: i128, b: i64, c: i128, d: i64) -> Ordering {
     let (b, d) = (i128::from(b), i128::from(d));
     (a / b).cmp(&(c / d)).then_with(|| {
         // Both remainders are below 2^63, so the cross products stay below 2^126.

@@ -13,7 +13,7 @@ use crate::objective::Separable;
 use crate::options::Options;
 use crate::problem::Problem;
 use crate::search::{LineSearch, Step};
-use crate::select::{linear_slopes, Candidate, Scan};
+use crate::select::{linear_slopes, Candidate, Rule, Scan};
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 
 /// Solves `problem` by augmentation from `x0` with the given moves.
@@ -117,11 +117,15 @@ impl Run<'_> {
             .linear_costs()
             .map(|costs| linear_slopes(costs, self.moves))
             .transpose()?;
-        let ray = self
-            .scan(objective, Phase::Optimality, slopes.as_deref())
-            .first_ray(self.problem)?;
-        if let Some(found) = ray {
-            return Ok(Status::Unbounded(self.ray(&found)));
+        // Graver-best and steepest scans rank a ray above every finite step, so they meet
+        // the first ray at their first scan; first-improving would take finite steps first.
+        if self.options.selected_rule() == Rule::FirstImproving {
+            let ray = self
+                .scan(objective, Phase::Optimality, slopes.as_deref())
+                .first_ray(self.problem)?;
+            if let Some(found) = ray {
+                return Ok(Status::Unbounded(self.ray(&found)));
+            }
         }
         Ok(
             match self.descend(objective, Phase::Optimality, value, slopes.as_deref())? {

@@ -3,11 +3,13 @@
 //! The start point comes from the lattice core: an integer solution of `A x = b` (or, for a
 //! warm start, yesterday's plan plus a particular solution of `A z = b - b_prev`); the
 //! augmentation crate then does phase I and phase II. No integer solution at all is reported
-//! with the lattice certificate.
+//! with the lattice certificate. A cold start is first moved by kernel vectors towards the
+//! box (see `rounding.rs`), which leaves `A x = b` exact and saves phase I most of its work.
 
 use augment::{Coverage, Objective, Options, Problem, Solution};
 use cache::Completeness;
 
+use super::rounding::Rounding;
 use crate::completion::MoveSet;
 use crate::error::{Error, Result};
 use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution};
@@ -18,6 +20,7 @@ use crate::model::Model;
 #[derive(Clone, Debug)]
 pub struct Prepared {
     hermite: HermiteForm,
+    rounding: Rounding,
     moves: augment::MoveSet,
 }
 
@@ -59,8 +62,15 @@ impl Prepared {
                 a.cols()
             )));
         }
+        let hermite = HermiteForm::new(a);
+        let basis = hermite
+            .reduced_kernel()
+            .iter()
+            .map(|v| to_i64_vec(v, "kernel basis vector"))
+            .collect::<Result<Vec<_>>>()?;
         Ok(Self {
-            hermite: HermiteForm::new(a),
+            rounding: Rounding::new(a, hermite.pivot_rows(), basis),
+            hermite,
             moves: augment::MoveSet::from_rows(set.width, &set.elements, coverage)?,
         })
     }
@@ -78,10 +88,14 @@ impl Prepared {
         warm: Option<&WarmStart>,
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
-        let start = match self.start_point(&model.rhs, warm)? {
+        let mut start = match self.start_point(&model.rhs, warm)? {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
+        if warm.is_none() {
+            self.rounding
+                .towards_box(&mut start, &model.rhs, &model.lower, &model.upper)?;
+        }
         let problem = Problem::new(
             Objective::linear(model.cost.clone()),
             model.lower.clone(),

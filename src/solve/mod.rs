@@ -1,6 +1,7 @@
 //! Re-optimising instances of a model with a test set: variants, start points, verdicts.
 
 mod instance;
+mod rounding;
 mod variant;
 
 pub use instance::{coverage_of, Prepared, Verdict, WarmStart};
