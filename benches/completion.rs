@@ -111,9 +111,10 @@ fn child(name: &str, method: &str, limit: u64) {
     } else {
         Method::ProjectAndLift
     };
-    request.truncation.norm_limit = std::env::var("KERNSTEP_BENCH_NORM")
-        .ok()
-        .and_then(|v| v.parse().ok());
+    if method == "lift" {
+        let analysis = MatrixAnalysis::of(&a, &AnalysisOptions::new());
+        request.truncation.norm_limit = Some(analysis.norm_limit());
+    }
     let control = Control::new().time_limit(Duration::from_secs(limit));
     let start = Instant::now();
     let outcome = complete_kernel(&a, &request, &control, None).expect("completion runs");
