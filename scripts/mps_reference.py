@@ -1,8 +1,8 @@
 #!/usr/bin/env python3
 """Reference MPS fixtures for kernstep's MPS reader.
 
-Writes a few small integer models as MPS with PuLP (`LpProblem.writeMPS`), adds one
-hand-written file that uses RANGES (PuLP does not write them), solves every file with HiGHS
+Writes a few small integer models as MPS with PuLP (`LpProblem.writeMPS`), adds two
+hand-written files that use RANGES and OBJNAME (PuLP does not write them), solves every file with HiGHS
 through `highspy` (reading the very same MPS file) and stores the files plus the HiGHS status
 and optimum in tests/fixtures/mps/reference.json.
 
@@ -104,6 +104,36 @@ ENDATA
 """
 
 
+DYE_BATCHES = """\
+* Dye batches: a negative range on an E row, a second free row to ignore (hand-written).
+NAME dye_batches
+OBJNAME
+    spend
+ROWS
+ N  spend
+ N  colour
+ E  indigo
+ L  vats
+COLUMNS
+    M1 'MARKER' 'INTORG'
+    small colour 9 spend 2
+    small indigo 1 vats 1
+    large colour 1 spend 5
+    large indigo 3 vats 2
+    M2 'MARKER' 'INTEND'
+RHS
+    rhs indigo 11 vats 9
+RANGES
+    rng indigo -4
+BOUNDS
+ MI bnd small
+ LO bnd large -1
+ UP bnd small 6
+ UP bnd large 4
+ENDATA
+"""
+
+
 def solve(path):
     """The HiGHS status and objective for one MPS file, read by HiGHS itself."""
     h = highspy.Highs()
@@ -126,13 +156,14 @@ def main():
         problem = build()
         problem.writeMPS(str(OUT / f"{problem.name}.mps"), with_objsense=True)
     (OUT / "kiln_schedule.mps").write_text(KILN_SCHEDULE)
+    (OUT / "dye_batches.mps").write_text(DYE_BATCHES)
     cases, version = [], None
     for path in sorted(OUT.glob("*.mps")):
         entry, version = solve(path)
         cases.append(entry)
     reference = {
         "source": f"HiGHS {version} via highspy, reading each MPS file; "
-        f"files written by PuLP {pulp.__version__} (writeMPS) and by hand (kiln_schedule)",
+        f"files written by PuLP {pulp.__version__} (writeMPS) and by hand (kiln_schedule, dye_batches)",
         "cases": cases,
     }
     (OUT / "reference.json").write_text(json.dumps(reference, indent=2) + "\n")

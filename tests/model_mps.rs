@@ -60,7 +60,7 @@ fn every_fixture_matches_the_highs_optimum() {
         "{}",
         reference.source
     );
-    assert_eq!(reference.cases.len(), 5);
+    assert_eq!(reference.cases.len(), 6);
     for case in &reference.cases {
         let path = fixture_dir().join(&case.file);
         let text = std::fs::read_to_string(&path).unwrap();
@@ -192,6 +192,28 @@ fn objective_sense_can_stand_on_the_header_line() {
     assert!(import.maximize);
     assert_eq!(import.model.cost, vec![-30, -25, -10, 0, 0]);
     assert_eq!(import.file_objective(-55), 5.5);
+}
+
+#[test]
+fn objname_picks_a_later_free_row_and_set_names_may_be_left_out() {
+    let text = SMALL
+        .replace(" N  cost\n", " N  cost\n N  weight\n")
+        .replace(
+            "north cost 3 dock 0.5",
+            "north cost 3 dock 0.5\n    north weight 7",
+        )
+        .replace("NAME depots\n", "NAME depots\nOBJNAME weight\n")
+        .replace("    RHS dock", "    dock")
+        .replace("    RNG demand", "    demand")
+        .replace(" BND ", " ");
+    let named = mps::read(&text, "named.mps").unwrap();
+    assert_eq!(named.model.cost, vec![7, 0, 0, 0, 0]);
+    let plain = mps::read(SMALL, "depots.mps").unwrap();
+    assert_eq!(named.model.matrix, plain.model.matrix);
+    assert_eq!(
+        (named.model.rhs, named.model.lower, named.model.upper),
+        (plain.model.rhs, plain.model.lower, plain.model.upper)
+    );
 }
 
 fn error(text: &str) -> String {
