@@ -323,3 +323,33 @@ fn every_strategy_reaches_the_same_optimum() {
         "{objectives:?}"
     );
 }
+
+#[test]
+fn human_certificates_for_parity_and_rays() {
+    let f = fixture("dense_3x6_b.json");
+    let dir = tempfile::tempdir().unwrap();
+    let cache = dir.path().join("cache").display().to_string();
+    let wanted = [
+        ("parity", "certified: the row multipliers y = ("),
+        ("unbounded", "certified: the ray "),
+        (
+            "box-infeasible",
+            "certified: no lattice point of this fibre lies in the box",
+        ),
+    ];
+    for (kind, needle) in wanted {
+        let case = f.variants.iter().find(|c| c.kind == kind).unwrap();
+        let model = write_model(dir.path(), &f, case);
+        let out = kernstep(&[
+            "solve",
+            model.to_str().unwrap(),
+            "--build",
+            "--cache-dir",
+            &cache,
+        ]);
+        assert_eq!(out.status.code(), Some(1), "{}", case.id);
+        let text = stdout(&out);
+        assert!(text.contains(needle), "{}: {text}", case.id);
+        assert!(text.lines().all(|l| l.chars().count() <= 100), "{text}");
+    }
+}

@@ -182,3 +182,85 @@ fn shifted(x: &[i64], g: &[i64], factor: i64) -> Result<Vec<i64>> {
         .collect::<Option<Vec<i64>>>()
         .ok_or_else(|| Error::Overflow("adding a move to a point".into()))
 }
+
+#[cfg(test)]
+mod tests {
+    use std::time::Duration;
+
+    use augment::{Coverage, InfeasibleReason, Ray};
+
+    use super::*;
+    use crate::model::ModelKind;
+
+    /// The lane plan of `examples/lane_plan.toml`; its kernel is spanned by `(1, -1, -1, 1)`.
+    fn lanes(upper: &str) -> (Model, augment::MoveSet) {
+        let text = format!(
+            r#"{{"matrix": [[1,1,0,0],[1,0,1,0],[0,1,0,1]], "rhs": [7,5,6],
+                "cost": [4,6,5,3], "lower": [0,0,0,0], "upper": {upper}}}"#
+        );
+        let model = Model::from_str(&text, ModelKind::Json, "lanes").unwrap();
+        let moves = augment::MoveSet::from_rows(4, &[vec![1, -1, -1, 1]], Coverage::Complete);
+        (model, moves.unwrap())
+    }
+
+    fn claimed(status: Status, x: Vec<i64>) -> Verdict {
+        Verdict::Solved(Solution {
+            status,
+            x,
+            objective: None,
+            violation: 0,
+            feasibility_steps: 0,
+            optimality_steps: 0,
+            elapsed: Duration::ZERO,
+            trace: None,
+        })
+    }
+
+    #[test]
+    fn optimality_holds_at_the_optimum_and_fails_one_move_short() {
+        let (model, moves) = lanes("[5, null, 4, null]");
+        // By hand: with x_1 = t the cost is 64 - 4t and t <= 5, so (5, 2, 0, 4) is optimal.
+        let good = recheck(&model, &moves, &claimed(Status::Optimal, vec![5, 2, 0, 4]));
+        let good = good.unwrap().unwrap();
+        assert!(good.holds && good.claim == Claim::NoImprovingMove && good.moves_checked == 1);
+        let bad = recheck(&model, &moves, &claimed(Status::Optimal, vec![4, 3, 1, 3]));
+        let bad = bad.unwrap().unwrap();
+        assert!(!bad.holds);
+        let expected = SignedMove {
+            move_index: 0,
+            sign: 1,
+            gain: Decimal(4),
+        };
+        assert_eq!(bad.counterexample, Some(expected));
+    }
+
+    #[test]
+    fn an_empty_box_claim_fails_where_a_move_lowers_the_violation() {
+        let (model, moves) = lanes("[1, 1, 1, 1]");
+        let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
+        // (5, 2, 0, 4) violates by 4 + 1 + 3 = 8; minus the move, (4, 3, 1, 3) by 3 + 2 + 2 = 7.
+        let verdict = claimed(Status::Infeasible(reason), vec![5, 2, 0, 4]);
+        let check = recheck(&model, &moves, &verdict).unwrap().unwrap();
+        assert_eq!(check.claim, Claim::NoViolationDecrease);
+        assert!(!check.holds);
+        assert_eq!(check.counterexample.map(|c| c.sign), Some(-1));
+    }
+
+    #[test]
+    fn a_ray_must_avoid_finite_bounds() {
+        let ray = Ray {
+            move_index: 0,
+            sign: augment::Sign::Plus,
+            direction: vec![1, -1, -1, 1],
+        };
+        let unbounded = |upper: &str| {
+            let (mut model, moves) = lanes(upper);
+            model.lower = vec![None; 4];
+            let verdict = claimed(Status::Unbounded(ray.clone()), vec![5, 2, 0, 4]);
+            recheck(&model, &moves, &verdict).unwrap().unwrap().holds
+        };
+        // c.d = 4 - 6 - 5 + 3 = -4 < 0.
+        assert!(unbounded("[null, null, null, null]"));
+        assert!(!unbounded("[5, null, null, null]"));
+    }
+}
