@@ -105,9 +105,9 @@ fn best_of(mut load: impl FnMut() -> usize, expected: usize) -> Duration {
         .expect("at least one load")
 }
 
-fn main() {
-    let library = SetLibrary::open(Some(&bench_dir())).expect("bench cache directory");
-    let cases = [
+/// The benchmarked matrices.
+fn cases() -> [Case; 3] {
+    [
         Case {
             name: "transport 5x5",
             rows: transport(5, 5),
@@ -120,7 +120,12 @@ fn main() {
             name: "3x3x3 line sums",
             rows: three_way(),
         },
-    ];
+    ]
+}
+
+fn main() {
+    let library = SetLibrary::open(Some(&bench_dir())).expect("bench cache directory");
+    let cases = cases();
     println!("cache: {}", library.store().dir().display());
     println!(
         "{:<16} {:>8} {:>5} {:>8} {:>10} {:>9} {:>9} {:>9} {:>13} {:>13}",

@@ -555,31 +555,36 @@ fn unusable_directory(target: &Target, tally: &mut Tally) {
             || format!("list gave {:?}: {stderr}", out.status),
         ),
     );
-    // Work that does not need the cache still runs: the library refuses the directory with
-    // a typed error, and the set is built without it (as the solving verbs fall back to).
+    work_without_the_cache(target, base.path(), &bad, tally);
+}
+
+/// Work that does not need the cache still runs beside the unusable directory `bad`: the
+/// library refuses it with a typed error, the set is built without it, and `solve --build`
+/// falls back to that.
+fn work_without_the_cache(target: &Target, base: &Path, bad: &Path, tally: &mut Tally) {
     let refused = matches!(
-        SetLibrary::open(Some(&bad)),
+        SetLibrary::open(Some(bad)),
         Err(kernstep::Error::Cache(
             cache::CacheError::DirUnusable { .. }
         ))
     );
-    let reference = target.obtain(&SetLibrary::open(Some(base.path())).unwrap());
+    let reference = target.obtain(&SetLibrary::open(Some(base)).unwrap());
     let expected = match reference {
         Obtained::Built { built, .. } => built.set.elements,
         other => panic!("{other:?}"),
     };
-    let out_file = base.path().join("set.json");
+    let out_file = base.join("set.json");
     let args = [
         "build",
         path_str(&target.model),
         "--out",
         path_str(&out_file),
     ];
-    let written = kernstep(&bad, &args);
+    let written = kernstep(bad, &args);
     let solve = ["solve", path_str(&target.model), "--build", "--json"];
     let cached: serde_json::Value =
-        serde_json::from_slice(&kernstep(base.path(), &solve).stdout).unwrap_or_default();
-    let fallback = kernstep(&bad, &solve);
+        serde_json::from_slice(&kernstep(base, &solve).stdout).unwrap_or_default();
+    let fallback = kernstep(bad, &solve);
     let answer: serde_json::Value = serde_json::from_slice(&fallback.stdout).unwrap_or_default();
     tally.record(
         "solve --build with an unusable directory",
