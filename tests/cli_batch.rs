@@ -110,12 +110,12 @@ fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary>
                     Status::Infeasible(_) => "infeasible",
                     ref other => panic!("unexpected status {other:?}"),
                 };
-                let plan = (word == "optimal")
-                    .then(|| {
-                        let named = model.variable_names.iter().cloned().zip(s.x.clone());
-                        named.filter(|(_, v)| *v != 0).collect()
-                    })
-                    .unwrap_or_default();
+                let plan = if word == "optimal" {
+                    let named = model.variable_names.iter().cloned().zip(s.x.clone());
+                    named.filter(|(_, v)| *v != 0).collect()
+                } else {
+                    BTreeMap::new()
+                };
                 let objective = (word == "optimal").then(|| s.objective.unwrap() as i64);
                 (word.to_string(), objective, Some(s.steps()), plan)
             }
