@@ -363,3 +363,29 @@ fn trace_exit_codes_follow_the_outcome() {
         (1, Some("no_lattice_point_in_box"))
     );
 }
+
+#[test]
+fn warm_started_traces_replay_from_the_solver_start() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("model.json");
+    let instances = fixture_instances("lanes_3x3.json");
+    instances[0].0.write(&model);
+    let set = move_set(&model, dir.path());
+    let (_, yesterday) = trace_json(&model, dir.path(), &[]);
+    let previous = dir.path().join("yesterday.json");
+    std::fs::write(&previous, yesterday.to_string()).unwrap();
+    let warm = ["--warm-start", previous.to_str().unwrap()];
+    for (m, optimum) in instances
+        .iter()
+        .skip(1)
+        .filter(|(_, o)| o.is_some())
+        .take(5)
+    {
+        m.write(&model);
+        let (_, doc) = trace_json(&model, dir.path(), &warm);
+        replay(m, &doc, &set);
+        recheck(m, &doc, &set);
+        // Optimum recorded by HiGHS 1.16 (fixture file).
+        assert_eq!(decimal(&doc["objective"]), i128::from(optimum.unwrap()));
+    }
+}

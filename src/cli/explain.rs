@@ -83,8 +83,8 @@ pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Mo
         ),
         Outcome::EmptyRange { variable } => format!("certified: the range of {variable} is empty"),
         Outcome::Unbounded { direction, .. } if re(Claim::Ray) => format!(
-            "certified: the ray {} keeps A x = b, changes only unbounded variables and lowers \
-             the cost by {} per unit",
+            "certified: the ray {} has A d = 0, changes only variables without a bound in its \
+             direction and lowers the cost by {} per unit step",
             terms(direction, &model.variable_names).join(", "),
             slope(direction, &model.cost)
                 .map_or("an unrepresentable amount".into(), |s| (-s).to_string())
