@@ -105,8 +105,8 @@ impl Prepared {
         Ok(Verdict::Solved(solution))
     }
 
-    /// The point a solve of right-hand side `rhs` starts from: an integer point of the fibre
-    /// `A x = rhs` (from `warm` when given), or the certificate that there is none.
+    /// An integer point of the fibre `A x = rhs` (from `warm` when given), or the certificate
+    /// that there is none; [`Prepared::solve`] rounds a cold one towards the box first.
     pub fn start_point(
         &self,
         rhs: &[i64],
