@@ -107,7 +107,7 @@ impl Prepared {
 
     /// An integer point of the fibre `A x = rhs` (from `warm` when given), or the certificate
     /// that there is none; [`Prepared::solve`] rounds a cold one towards the box first.
-    pub fn start_point(
+    fn start_point(
         &self,
         rhs: &[i64],
         warm: Option<&WarmStart>,
