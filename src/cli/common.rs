@@ -12,7 +12,7 @@ use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, MoveSet};
 use kernstep::model::Model;
 use kernstep::solve::coverage_of;
-use kernstep::testset::{entry_key, from_data, BuildSpec, Obtained, SetLibrary};
+use kernstep::testset::{entry_key, from_data, BoxPolicy, BuildSpec, Obtained, SetLibrary};
 
 /// The cache directory option of every verb that reads or writes test sets.
 #[derive(Debug, Clone, Args)]
@@ -125,13 +125,21 @@ pub fn graver_for(
         }
         Err(e) => return Err(e),
     };
-    let key = entry_key(&model.matrix, &spec);
-    if let Some(stored) = library.find(&key)? {
-        return Ok(SolverSet {
-            set: from_data(&stored.data),
-            coverage: coverage_of(&stored.metadata.completeness),
-            source: SetSource::Cached(stored.digest.to_hex()),
-        });
+    // The complete set first; else a set truncated to a box that holds this instance's box
+    // (a test set for every instance inside it).
+    let boxed = BuildSpec {
+        bounds: BoxPolicy::FromBounds,
+        ..BuildSpec::default()
+    }
+    .resolve(model, &analysis)?;
+    for candidate in [&spec, &boxed] {
+        if let Some(stored) = library.find(&entry_key(&model.matrix, candidate))? {
+            return Ok(SolverSet {
+                set: from_data(&stored.data),
+                coverage: coverage_of(&stored.metadata.completeness),
+                source: SetSource::Cached(stored.digest.to_hex()),
+            });
+        }
     }
     if !build_on_miss {
         anyhow::bail!(
