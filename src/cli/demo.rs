@@ -49,8 +49,8 @@ pub struct DemoArgs {
     pub json: bool,
 }
 
-/// Runs `demo`; exit code 0 whenever every day was solved (the demo includes an infeasible
-/// day on purpose), 2 on any error.
+/// Runs `demo`; exit code 0 when every day was solved (the demo includes an infeasible day on
+/// purpose), 1 when Ctrl-C cut it short, 2 on any error.
 pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     let scenario = Scenario::from_str(SCENARIO, ModelKind::Toml, SCENARIO_PATH)?;
     let model = scenario.compile()?;
@@ -92,8 +92,10 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         report.write(&mut out)?;
     }
     out.flush()?;
-    Ok(if tally.errors + tally.interrupted > 0 {
+    Ok(if tally.errors > 0 {
         ExitCode::from(2)
+    } else if tally.interrupted > 0 {
+        ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
     })

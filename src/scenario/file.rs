@@ -226,32 +226,41 @@ fn read_table(
             &s.products,
         )?),
         Field::Cost if s.kind == ScenarioKind::ProductLines => {
-            let mut out = Vec::new();
-            for (i, e) in entries.iter().enumerate() {
-                let at = format!("lanes[{i}].cost");
-                let v = e.get("cost").ok_or_else(|| r.error(&at, "missing"))?;
-                out.extend(some(flat(r, v, &at, &s.products, "product line")?));
-            }
-            out
+            product_costs(r, entries, &s.products)?
         }
         Field::Capacity => lane_values(r, entries, key, false)?,
         Field::Cost | Field::Volume | Field::TruckCost => lane_values(r, entries, key, true)?,
     };
     let names = table_names(field, s, &lane_names);
-    if field.is_quantity() {
-        if let Some((name, v)) = names
-            .iter()
-            .zip(&values)
-            .find_map(|(n, v)| v.filter(|v| *v < 0).map(|v| (n, v)))
-        {
-            return Err(r.error(&join(key, name), format!("{v} is negative")));
+    let negative = names
+        .iter()
+        .zip(&values)
+        .find_map(|(n, v)| v.filter(|v| *v < 0).map(|v| (n, v)));
+    match negative {
+        Some((name, v)) if field.is_quantity() => {
+            Err(r.error(&join(key, name), format!("{v} is negative")))
         }
+        _ => Ok(Table {
+            field,
+            names,
+            values,
+        }),
     }
-    Ok(Table {
-        field,
-        names,
-        values,
-    })
+}
+
+/// Product-line costs, lane-major: every lane's `cost = { product = n }`.
+fn product_costs(
+    r: &Reader,
+    entries: &[&Map<String, Value>],
+    products: &[String],
+) -> Result<Vec<Option<i64>>> {
+    let mut out = Vec::with_capacity(entries.len() * products.len());
+    for (i, e) in entries.iter().enumerate() {
+        let at = format!("lanes[{i}].cost");
+        let v = e.get("cost").ok_or_else(|| r.error(&at, "missing"))?;
+        out.extend(some(flat(r, v, &at, products, "product line")?));
+    }
+    Ok(out)
 }
 
 /// The names a field's values are addressed by (see [`Field`]).
