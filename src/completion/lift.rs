@@ -77,15 +77,15 @@ pub(crate) fn lift(
     for orbit in &start {
         lifting.add(&orbit.rep, orbit.symmetric);
     }
-    let mut level = 1;
-    while level <= lifting.highest_level() {
+    let mut next = lifting.next_level(1);
+    while let Some(level) = next {
         let fresh = lifting.merge(lifting.level_sums(level)?)?;
         lifting.catch_up(fresh, level)?;
         let (n, m) = stage.number;
         if let Some(stop) = control.checkpoint(n, m, level, lifting.set.len()) {
             return Ok(Err(stop));
         }
-        level += 1;
+        next = lifting.next_level(level + 1);
     }
     Ok(Ok(lifting.finish(&comps)))
 }
@@ -110,17 +110,14 @@ impl Lifting<'_> {
         ids
     }
 
-    /// The largest norm level any current pair can have.
-    fn highest_level(&self) -> u64 {
-        let top = |g: &Groups| {
-            g.keys()
-                .fold((0, 0), |(a, x), &(n, v)| (a.max(n), x.max(v)))
-        };
-        let ((a, x), (b, y)) = (top(&self.pos), top(&self.neg));
-        if self.pos.is_empty() || self.neg.is_empty() {
-            return 0;
-        }
-        a + b + x.max(y)
+    /// The smallest norm level at least `from` that some pair of groups has, if any (levels
+    /// without pairs are skipped, so entries of any size cost nothing extra).
+    fn next_level(&self, from: u64) -> Option<u64> {
+        self.pos
+            .keys()
+            .flat_map(|&(a, x)| self.neg.keys().map(move |&(b, y)| a + b + x.abs_diff(y)))
+            .filter(|&level| level >= from)
+            .min()
     }
 
     /// Normal forms of all admissible sums `p + q` of norm exactly `level`.
