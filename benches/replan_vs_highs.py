@@ -1,13 +1,17 @@
 #!/usr/bin/env python3
 """Re-optimisation of many variants: kernstep against the HiGHS MILP solver, side by side.
 
-For each family (3x4 capacitated lanes, 3x3x3 tables with all 2-margins) the script draws
+For each family (3x4 capacitated lanes; 3x3x3 tables with all 2-margins, which is the planar
+three-index plan of product lines; truckloads on 2x3 lanes with trucks of capacity 4) the
+script draws
 VARIANTS feasible variants (new right-hand side and costs, fixed seed), then times
   - HiGHS (highspy) in its best re-optimisation mode: one model kept alive, only the
     right-hand side and costs changed between variants, one thread;
   - HiGHS from scratch: a new model per variant;
   - kernstep (benches/solve_variants.rs): Graver basis built once, then every variant solved,
     with 1 and 2 threads;
+  - `kernstep batch` as a whole process (reading the files, building the set into an empty
+    cache, solving every variant, writing the results), with 1 and 2 threads;
 and prints per-variant times, the ratios, and how many optima agree.
 
 Usage: python3 benches/replan_vs_highs.py [VARIANTS]   (default 1000; needs `pip install highspy`)
@@ -52,11 +56,52 @@ def tables(p, q, s):
     return matrix, [0] * n, [None] * n
 
 
-def variants(matrix, lower, upper, count, rng):
+def truckloads(depots, zones, capacity, rng):
+    """Lanes d->z with units u, spare s (0..C-1) and trucks t (u + s = C t); kept stock k_d."""
+    lanes = [(d, z) for d in range(depots) for z in range(zones)]
+    n = 3 * len(lanes) + depots
+    rows = []
+    for d in range(depots):
+        row = [0] * n
+        for e, (dd, _) in enumerate(lanes):
+            row[3 * e] = 1 if dd == d else 0
+        row[3 * len(lanes) + d] = 1
+        rows.append(row)
+    for z in range(zones):
+        rows.append([1 if j % 3 == 0 and j < 3 * len(lanes) and lanes[j // 3][1] == z else 0
+                     for j in range(n)])
+    for e in range(len(lanes)):
+        row = [0] * n
+        row[3 * e], row[3 * e + 1], row[3 * e + 2] = 1, 1, -capacity
+        rows.append(row)
+    upper = []
+    for _ in lanes:
+        upper += [None, capacity - 1, rng.randint(2, 4)]
+    upper += [None] * depots
+    return rows, [0] * n, upper
+
+
+def truck_point(matrix, upper, capacity, rng):
+    """A feasible point: trucks first, then units that fit, spare filling the trucks."""
+    n = len(upper)
+    x = [0] * n
+    e = 0
+    while 3 * e + 2 < n and upper[3 * e + 2] is not None:
+        t = rng.randint(0, upper[3 * e + 2])
+        u = rng.randint(max(0, capacity * t - capacity + 1), capacity * t) if t else 0
+        x[3 * e], x[3 * e + 1], x[3 * e + 2] = u, capacity * t - u, t
+        e += 1
+    for j in range(3 * e, n):
+        x[j] = rng.randint(0, 5)
+    return x
+
+
+def variants(matrix, lower, upper, count, rng, point=None):
     """Feasible by construction: the right-hand side of a random point inside the box."""
     out = []
     for v in range(count):
-        x = [rng.randint(lo, hi if hi is not None else lo + 5) for lo, hi in zip(lower, upper)]
+        x = point() if point else [rng.randint(lo, hi if hi is not None else lo + 5)
+                                   for lo, hi in zip(lower, upper)]
         rhs = [sum(a * b for a, b in zip(row, x)) for row in matrix]
         cost = [rng.randint(1, 9) for _ in x]
         out.append({"id": f"v{v:04d}", "rhs": rhs, "cost": cost})
@@ -130,6 +175,19 @@ def kernstep(binary, model_path, variants_path, threads):
     return objectives, summary, wall
 
 
+def batch(model_path, variants_path, threads):
+    """Whole-process `kernstep batch`: read, build the set into an empty cache, solve, write."""
+    with tempfile.TemporaryDirectory() as cache:
+        start = time.perf_counter()
+        run = subprocess.run([os.path.join(ROOT, "target", "release", "kernstep"), "batch",
+                              model_path, variants_path, "--build", "--threads", str(threads),
+                              "--cache-dir", cache], capture_output=True, text=True)
+        wall = time.perf_counter() - start
+    days = [json.loads(l) for l in run.stdout.splitlines() if l.startswith("{")]
+    objectives = [int(d["objective"]) if d.get("objective") is not None else None for d in days]
+    return objectives, wall
+
+
 def bench_binary():
     out = subprocess.run(["cargo", "bench", "--bench", "solve_variants", "--no-run",
                           "--message-format=json"], cwd=ROOT, capture_output=True, text=True,
@@ -145,12 +203,15 @@ def main():
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
     binary = bench_binary()
     rng = random.Random(20261201)
-    families = [("lanes 3x4", lanes(3, 4, rng)), ("tables 3x3x3", tables(3, 3, 3))]
+    subprocess.run(["cargo", "build", "--release"], cwd=ROOT, check=True, capture_output=True)
+    trucks = truckloads(2, 3, 4, rng)
+    families = [("lanes 3x4", lanes(3, 4, rng), None), ("tables 3x3x3", tables(3, 3, 3), None),
+                ("trucks 2x3 C4", trucks, lambda: truck_point(trucks[0], trucks[2], 4, rng))]
     print(f"HiGHS {new_highs().version()} (highspy), one thread; {count} variants per family")
-    header = f"{'family':<14}{'method':<34}{'ms/variant':>12}{'vs HiGHS kept':>15}"
+    header = f"{'family':<14}{'method':<38}{'ms/variant':>12}{'vs HiGHS kept':>15}"
     print(header)
-    for name, (matrix, lower, upper) in families:
-        cases = variants(matrix, lower, upper, count, rng)
+    for name, (matrix, lower, upper), point in families:
+        cases = variants(matrix, lower, upper, count, rng, point)
         with tempfile.TemporaryDirectory() as tmp:
             model_path = os.path.join(tmp, "model.json")
             with open(model_path, "w") as f:
@@ -162,17 +223,21 @@ def main():
             kept, kept_s = highs_kept(matrix, lower, upper, cases)
             fresh, fresh_s = highs_fresh(matrix, lower, upper, cases)
             runs = [kernstep(binary, model_path, variants_path, t) for t in (1, 2)]
+            batches = [batch(model_path, variants_path, t) for t in (1, 2)]
         base = kept_s / count * 1000
         rows = [("HiGHS, model kept (best mode)", kept_s, None), ("HiGHS, from scratch", fresh_s, None)]
         for t, (objs, summary, wall) in zip((1, 2), runs):
             equal = sum(a == b for a, b in zip(objs, kept))
             rows.append((f"kernstep, {t} thread(s), solves only", summary["solve_seconds"], equal))
             rows.append((f"kernstep, {t} thread(s), whole process", wall, equal))
+        for t, (objs, wall) in zip((1, 2), batches):
+            equal = sum(a == b for a, b in zip(objs, kept))
+            rows.append((f"kernstep batch, {t} thread(s), process", wall, equal))
         for label, seconds, equal in rows:
             ms = seconds / count * 1000
             ratio = base / ms if ms > 0 else float("inf")
             tail = f"   equal optima {equal}/{count}" if equal is not None else ""
-            print(f"{name:<14}{label:<34}{ms:>12.4f}{ratio:>14.1f}x{tail}")
+            print(f"{name:<14}{label:<38}{ms:>12.4f}{ratio:>14.1f}x{tail}")
         print(f"{name:<14}(Graver basis: {runs[0][1]['elements']} moves, built in "
               f"{runs[0][1]['build_seconds']:.3f} s, included in whole-process time; "
               f"mean steps phase I {runs[0][1]['mean_steps'][0]:.1f}, "
