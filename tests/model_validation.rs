@@ -145,7 +145,7 @@ fn unknown_extension_and_missing_file() {
     let err = Model::load(std::path::Path::new("plan.csv")).unwrap_err();
     assert_eq!(
         err.to_string(),
-        "plan.csv: file name: unknown model file type; use a .json or .toml extension"
+        "plan.csv: file name: unknown model file type; use a .json, .toml or .mps extension"
     );
     let err = Model::load(std::path::Path::new("surely/not/here.toml")).unwrap_err();
     assert!(
