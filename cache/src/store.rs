@@ -93,8 +93,12 @@ impl Store {
             source,
         };
         fs::create_dir_all(&dir).map_err(unusable)?;
+        // Unique per call, so threads of one process opening the store at once do not remove
+        // each other's probe.
+        static PROBES: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+        let serial = PROBES.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
         let probe = dir.join(format!(
-            ".probe-{}{}",
+            ".probe-{}-{serial}{}",
             std::process::id(),
             atomic::TEMP_SUFFIX
         ));

@@ -107,6 +107,17 @@ impl<'a> Control<'a> {
         self.start.elapsed()
     }
 
+    /// Whether a time limit or cancellation asks to stop now (no progress report; cheap
+    /// enough to call inside long batches).
+    pub(crate) fn interrupted(&self) -> Option<StopReason> {
+        if self.cancel.is_some_and(|f| f.load(Ordering::Relaxed)) {
+            return Some(StopReason::Cancelled);
+        }
+        self.time_limit
+            .is_some_and(|t| self.elapsed() > t)
+            .then_some(StopReason::TimeLimit)
+    }
+
     /// Reports progress and tells whether the completion must stop now.
     pub(crate) fn checkpoint(
         &self,
@@ -124,15 +135,9 @@ impl<'a> Control<'a> {
                 elapsed: self.elapsed(),
             });
         }
-        if self.cancel.is_some_and(|f| f.load(Ordering::Relaxed)) {
-            return Some(StopReason::Cancelled);
-        }
         if self.max_elements.is_some_and(|m| elements > m) {
             return Some(StopReason::ElementLimit);
         }
-        if self.time_limit.is_some_and(|t| self.elapsed() > t) {
-            return Some(StopReason::TimeLimit);
-        }
-        None
+        self.interrupted()
     }
 }

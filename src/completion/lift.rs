@@ -44,6 +44,9 @@ pub(crate) struct Stage<'a> {
     pub number: (usize, usize),
 }
 
+/// Members whose pairs are reduced between two checks of the time limit.
+const BATCH: usize = 1024;
+
 /// Members on one side of component `j`, grouped by (norm on `S`, `|v_j|`).
 type Groups = BTreeMap<(u64, u64), Vec<u32>>;
 
@@ -79,8 +82,14 @@ pub(crate) fn lift(
     }
     let mut next = lifting.next_level(1);
     while let Some(level) = next {
-        let fresh = lifting.merge(lifting.level_sums(level)?)?;
-        lifting.catch_up(fresh, level)?;
+        let sums = match lifting.level_sums(level, control)? {
+            Ok(sums) => sums,
+            Err(stop) => return Ok(Err(stop)),
+        };
+        let fresh = lifting.merge(sums)?;
+        if let Err(stop) = lifting.catch_up(fresh, level, control)? {
+            return Ok(Err(stop));
+        }
         let (n, m) = stage.number;
         if let Some(stop) = control.checkpoint(n, m, level, lifting.set.len()) {
             return Ok(Err(stop));
@@ -120,8 +129,13 @@ impl Lifting<'_> {
             .min()
     }
 
-    /// Normal forms of all admissible sums `p + q` of norm exactly `level`.
-    fn level_sums(&self, level: u64) -> Result<Vec<Vec<Entry>>> {
+    /// Normal forms of all admissible sums `p + q` of norm exactly `level`, in batches between
+    /// which a time limit or cancellation can stop the stage.
+    fn level_sums(
+        &self,
+        level: u64,
+        control: &Control<'_>,
+    ) -> Result<std::result::Result<Vec<Vec<Entry>>, StopReason>> {
         let mut tasks: Vec<(u32, &[u32])> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
@@ -130,11 +144,18 @@ impl Lifting<'_> {
                 }
             }
         }
-        let chunks: Vec<Vec<Vec<Entry>>> = tasks
-            .par_iter()
-            .map(|&(p, qs)| self.reduce_pairs(p, qs.iter().copied()))
-            .collect::<Result<_>>()?;
-        Ok(chunks.into_iter().flatten().collect())
+        let mut sums = Vec::new();
+        for batch in tasks.chunks(BATCH) {
+            if let Some(stop) = control.interrupted() {
+                return Ok(Err(stop));
+            }
+            let chunks: Vec<Vec<Vec<Entry>>> = batch
+                .par_iter()
+                .map(|&(p, qs)| self.reduce_pairs(p, qs.iter().copied()))
+                .collect::<Result<_>>()?;
+            sums.extend(chunks.into_iter().flatten());
+        }
+        Ok(Ok(sums))
     }
 
     /// Normal forms of the admissible sums of `p` with each of `partners`.
@@ -195,8 +216,16 @@ impl Lifting<'_> {
 
     /// Processes the pairs of new members whose norm is at most `level` (later levels see them
     /// through the groups), until no new member appears.
-    fn catch_up(&mut self, mut fresh: Vec<u32>, level: u64) -> Result<()> {
+    fn catch_up(
+        &mut self,
+        mut fresh: Vec<u32>,
+        level: u64,
+        control: &Control<'_>,
+    ) -> Result<std::result::Result<(), StopReason>> {
         while !fresh.is_empty() {
+            if let Some(stop) = control.interrupted() {
+                return Ok(Err(stop));
+            }
             let first_new = fresh[0];
             let j = self.stage.new;
             let sums: Vec<Vec<Vec<Entry>>> = fresh
@@ -220,7 +249,7 @@ impl Lifting<'_> {
                 .collect::<Result<_>>()?;
             fresh = self.merge(sums.into_iter().flatten().collect())?;
         }
-        Ok(())
+        Ok(Ok(()))
     }
 
     /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members.
