@@ -58,7 +58,11 @@ impl LinearScan<'_> {
     fn select_in(&self, range: std::ops::Range<usize>) -> Result<Option<Candidate>> {
         let mut best: Option<Candidate> = None;
         for index in range {
-            let Some(found) = self.evaluate(index)? else {
+            let floor = match (self.rule, best.map(|b| b.step)) {
+                (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
+                _ => None,
+            };
+            let Some(found) = self.evaluate(index, floor)? else {
                 continue;
             };
             if found.step == Step::Ray || self.rule == Rule::FirstImproving {
@@ -69,8 +73,10 @@ impl LinearScan<'_> {
         Ok(best)
     }
 
-    /// The improving sign of move `index` and its longest feasible step, if it improves.
-    fn evaluate(&self, index: usize) -> Result<Option<Candidate>> {
+    /// The improving sign of move `index` and its longest feasible step, if it improves and,
+    /// given a `floor`, can gain strictly more than it (the room only shrinks as the support
+    /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
+    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
         let slope = self.slopes[index];
         if slope == 0 {
             return Ok(None);
@@ -94,7 +100,12 @@ impl LinearScan<'_> {
                     return Ok(None);
                 }
                 let r = i64::try_from(r).unwrap_or(i64::MAX);
-                room = Some(room.map_or(r, |current| current.min(r)));
+                let shrunk = room.map_or(r, |current: i64| current.min(r));
+                let bound = slope.abs().checked_mul(i128::from(shrunk));
+                if floor.zip(bound).is_some_and(|(f, b)| b <= f) {
+                    return Ok(None);
+                }
+                room = Some(shrunk);
             }
         }
         let Some(room) = room else {
