@@ -23,7 +23,7 @@ use xxhash_rust::xxh3::xxh3_64;
 use crate::atomic::{sync_dir, write_atomic};
 use crate::digest::Digest;
 use crate::error::CacheError;
-use crate::format::{check_magic_version, key_mismatch, too_short};
+use crate::format::{check_magic_version, checked_body, key_mismatch, too_short};
 use crate::key::EntryKey;
 use crate::store::Store;
 
@@ -108,24 +108,7 @@ fn decode_checkpoint<'a>(
         return Err(too_short(path, HEAD + TRAILER, bytes.len()));
     }
     let len = u64::from_le_bytes(bytes[28..36].try_into().expect("8 bytes"));
-    let expected = len.checked_add((HEAD + TRAILER) as u64);
-    if expected != Some(bytes.len() as u64) {
-        return Err(CacheError::LengthMismatch {
-            path: path.to_owned(),
-            expected: expected.unwrap_or(u64::MAX),
-            actual: bytes.len() as u64,
-        });
-    }
-    let (body, trailer) = bytes.split_at(bytes.len() - TRAILER);
-    let stored = u64::from_le_bytes(trailer.try_into().expect("8 bytes"));
-    let computed = xxh3_64(body);
-    if stored != computed {
-        return Err(CacheError::ChecksumMismatch {
-            path: path.to_owned(),
-            stored,
-            computed,
-        });
-    }
+    let body = checked_body(bytes, path, len.checked_add((HEAD + TRAILER) as u64))?;
     if bytes[10..12] != [0, 0] {
         return Err(CacheError::Malformed {
             path: path.to_owned(),

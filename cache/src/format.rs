@@ -123,18 +123,18 @@ pub(crate) fn encode_entry(
     Ok(out)
 }
 
-/// Checks and decodes a whole entry file whose name says it holds `named`.
-pub(crate) fn decode_entry(
-    bytes: &[u8],
+/// Checks that `bytes` has the `expected` length (`None`: a length that overflowed) and that
+/// its trailing XXH3-64 matches everything before it; returns that checked body. Shared by
+/// entries and checkpoints.
+pub(crate) fn checked_body<'a>(
+    bytes: &'a [u8],
     path: &Path,
-    named: Digest,
-) -> Result<DecodedEntry, CacheError> {
-    let header = parse_header(bytes, path)?;
-    let expected = total_len(&header, path)?;
-    if expected != bytes.len() as u64 {
+    expected: Option<u64>,
+) -> Result<&'a [u8], CacheError> {
+    if expected != Some(bytes.len() as u64) {
         return Err(CacheError::LengthMismatch {
             path: path.to_owned(),
-            expected,
+            expected: expected.unwrap_or(u64::MAX),
             actual: bytes.len() as u64,
         });
     }
@@ -148,6 +148,17 @@ pub(crate) fn decode_entry(
             computed,
         });
     }
+    Ok(body)
+}
+
+/// Checks and decodes a whole entry file whose name says it holds `named`.
+pub(crate) fn decode_entry(
+    bytes: &[u8],
+    path: &Path,
+    named: Digest,
+) -> Result<DecodedEntry, CacheError> {
+    let header = parse_header(bytes, path)?;
+    let body = checked_body(bytes, path, Some(total_len(&header, path)?))?;
     let key_end = HEADER_LEN + header.key_len;
     let meta_end = key_end + header.meta_len;
     let key = decode_key(&bytes[HEADER_LEN..key_end], &header, path, named)?;

@@ -18,7 +18,7 @@ use kernstep::testset::{
 };
 use serde::Serialize;
 
-use super::common::{interrupted, model_paths, with_threads, CacheArgs};
+use super::common::{interrupted, model_paths, with_threads, write_atomically, CacheArgs};
 use super::table::write_table;
 
 /// Arguments of `build`.
@@ -361,14 +361,5 @@ fn write_set_file(path: &Path, built: &BuiltSet) -> anyhow::Result<()> {
         metadata: &built.metadata,
         elements: &built.set.elements,
     };
-    let text = serde_json::to_string(&doc)?;
-    let tmp = path.with_extension(format!("tmp-{}", std::process::id()));
-    let write = || -> io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(text.as_bytes())?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    };
-    write().with_context(|| format!("writing {}", path.display()))?;
-    Ok(())
+    write_atomically(path, serde_json::to_string(&doc)?.as_bytes())
 }

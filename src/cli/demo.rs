@@ -18,7 +18,7 @@ use kernstep::testset::{build, BuildOutcome, BuildSpec};
 use serde::Serialize;
 
 use super::batch::{answer, solve_days, steps, DayStatus, Tally};
-use super::common::{interrupted, CacheArgs, SetSource, SolverSet};
+use super::common::{interrupted, write_atomically, CacheArgs, SetSource, SolverSet};
 use super::plot::write_step_plot;
 use super::table::write_table;
 
@@ -179,8 +179,7 @@ fn write_highlight(
     std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
     let json = dir.join(format!("{day}.trace.json"));
     let svg = dir.join(format!("{day}.svg"));
-    std::fs::write(&json, serde_json::to_string_pretty(&doc)?)
-        .with_context(|| format!("writing {}", json.display()))?;
+    write_atomically(&json, serde_json::to_string_pretty(&doc)?.as_bytes())?;
     let title = format!(
         "{}: {day}, {} steps",
         scenario.title.as_deref().unwrap_or("demo"),

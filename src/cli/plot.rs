@@ -2,11 +2,12 @@
 //! phase II, each in its own panel, one marked point per augmenting step.
 
 use std::ops::Range;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
-use anyhow::Context;
 use kernstep::trace::{StepPhase, StepRecord};
 use plotters::prelude::*;
+
+use super::common::write_atomically;
 
 /// Size of the picture in pixels.
 const SIZE: (u32, u32) = (900, 560);
@@ -22,20 +23,7 @@ struct Series {
 /// Draws the steps of a trace as an SVG and writes it to `path` atomically (a temporary file
 /// beside it, then a rename); `title` heads the picture.
 pub fn write_step_plot(path: &Path, steps: &[StepRecord], title: &str) -> anyhow::Result<()> {
-    let svg = render(steps, title)?;
-    let temp = temporary_path(path);
-    std::fs::write(&temp, svg).with_context(|| format!("writing {}", temp.display()))?;
-    std::fs::rename(&temp, path).with_context(|| {
-        let _ = std::fs::remove_file(&temp);
-        format!("moving {} to {}", temp.display(), path.display())
-    })
-}
-
-fn temporary_path(path: &Path) -> PathBuf {
-    let name = path
-        .file_name()
-        .map_or("plot.svg".into(), |n| n.to_string_lossy());
-    path.with_file_name(format!(".{name}.{}.tmp", std::process::id()))
+    write_atomically(path, render(steps, title)?.as_bytes())
 }
 
 /// The SVG text of the plot.
