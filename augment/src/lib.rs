@@ -41,6 +41,7 @@
 mod certify;
 mod error;
 mod linear;
+mod marks;
 mod moves;
 mod objective;
 mod options;

@@ -9,6 +9,7 @@
 use rayon::prelude::*;
 
 use crate::error::{overflow, Result};
+use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::problem::Problem;
 use crate::search::Step;
@@ -31,6 +32,8 @@ pub(crate) struct LinearScan<'a> {
     pub powers_of_two: bool,
     /// The selection rule.
     pub rule: Rule,
+    /// Skips moves blocked by a bound at `x`.
+    pub filter: &'a Filter,
 }
 
 impl LinearScan<'_> {
@@ -82,6 +85,9 @@ impl LinearScan<'_> {
             return Ok(None);
         }
         let sign = if slope < 0 { Sign::Plus } else { Sign::Minus };
+        if !self.filter.admits(self.moves, index, sign) {
+            return Ok(None);
+        }
         let factor = sign.factor();
         let (indices, values) = self.moves.support(index);
         let (lower, upper) = (self.problem.lower(), self.problem.upper());

@@ -3,7 +3,9 @@
 //! A [`MoveSet`] holds one vector of each `±` pair; the solver tries both signs. Each move is
 //! stored twice: densely (row-major, `width` entries per move, for callers and certificates)
 //! and sparsely (support indices and values, so that evaluating a move touches only its
-//! nonzeros). The set also records its [`Coverage`], which decides how honest "optimal" is.
+//! nonzeros), and its sign pattern is kept as two bit masks (coordinates the move raises and
+//! lowers), so a scan can discard a move blocked by a bound with a few word operations. The
+//! set also records its [`Coverage`], which decides how honest "optimal" is.
 
 use serde::{Deserialize, Serialize};
 
@@ -54,6 +56,9 @@ pub struct MoveSet {
     indices: Vec<usize>,
     values: Vec<i64>,
     norms: Vec<i64>,
+    /// Per move `words` masks of positive entries, then `words` masks of negative entries.
+    patterns: Vec<u64>,
+    words: usize,
     coverage: Coverage,
 }
 
@@ -75,6 +80,8 @@ impl MoveSet {
             indices: Vec::new(),
             values: Vec::new(),
             norms: Vec::with_capacity(count),
+            patterns: Vec::with_capacity(count * 2 * width.div_ceil(64)),
+            words: width.div_ceil(64),
             dense,
             coverage,
         };
@@ -105,8 +112,12 @@ impl MoveSet {
     fn index_row(&mut self, index: usize) -> Result<()> {
         let row = &self.dense[index * self.width..(index + 1) * self.width];
         let mut norm: i64 = 0;
+        let at = self.patterns.len();
+        self.patterns.resize(at + 2 * self.words, 0);
         for (i, &v) in row.iter().enumerate() {
             if v != 0 {
+                let half = if v > 0 { 0 } else { self.words };
+                self.patterns[at + half + i / 64] |= 1 << (i % 64);
                 self.indices.push(i);
                 self.values.push(v);
                 norm = norm
@@ -151,6 +162,22 @@ impl MoveSet {
     pub fn support(&self, index: usize) -> (&[usize], &[i64]) {
         let range = self.starts[index]..self.starts[index + 1];
         (&self.indices[range.clone()], &self.values[range])
+    }
+
+    /// Number of 64-bit words in one sign mask.
+    pub(crate) fn words(&self) -> usize {
+        self.words
+    }
+
+    /// Bit masks of the coordinates that move `index` raises and lowers when applied with
+    /// `sign` (bit `i % 64` of word `i / 64` stands for coordinate `i`).
+    pub(crate) fn pattern(&self, index: usize, sign: Sign) -> (&[u64], &[u64]) {
+        let at = index * 2 * self.words;
+        let (pos, neg) = self.patterns[at..at + 2 * self.words].split_at(self.words);
+        match sign {
+            Sign::Plus => (pos, neg),
+            Sign::Minus => (neg, pos),
+        }
     }
 
     /// The l1 norm of move `index`.

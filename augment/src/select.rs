@@ -11,6 +11,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::error::{overflow, Result};
 use crate::linear::LinearScan;
+use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::objective::Separable;
 use crate::problem::Problem;
@@ -53,6 +54,8 @@ pub(crate) struct Scan<'a, F: ?Sized> {
     pub slopes: Option<&'a [i128]>,
     /// The selection rule.
     pub rule: Rule,
+    /// Skips moves that cannot improve at the current point.
+    pub filter: Filter,
 }
 
 impl<F: Separable + ?Sized> Scan<'_, F> {
@@ -66,6 +69,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
                 x: self.search.x,
                 powers_of_two: self.search.powers_of_two,
                 rule: self.rule,
+                filter: &self.filter,
             };
             return scan.select(parallel);
         }
@@ -181,6 +185,9 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
 
     /// The best step along move `index` in direction `sign`, if it improves.
     fn evaluate(&self, index: usize, sign: Sign) -> Result<Option<Candidate>> {
+        if !self.filter.admits(self.moves, index, sign) {
+            return Ok(None);
+        }
         let (indices, values) = self.moves.support(index);
         let dir = Direction {
             indices,

@@ -8,6 +8,7 @@
 use std::time::Instant;
 
 use crate::error::{overflow, AugmentError, Result};
+use crate::marks::Filter;
 use crate::moves::{Coverage, MoveSet};
 use crate::objective::Separable;
 use crate::options::Options;
@@ -191,6 +192,10 @@ impl Run<'_> {
             bounds: (phase == Phase::Optimality).then_some(self.problem),
             slopes,
             rule: self.options.selected_rule(),
+            filter: match phase {
+                Phase::Feasibility => Filter::repairing(self.problem, &self.x, self.moves.words()),
+                Phase::Optimality => Filter::blocking(self.problem, &self.x, self.moves.words()),
+            },
         }
     }
 

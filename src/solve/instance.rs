@@ -5,6 +5,8 @@
 //! augmentation crate then does phase I and phase II. No integer solution at all is reported
 //! with the lattice certificate. A cold start is first moved by kernel vectors towards the
 //! box (see `rounding.rs`), which leaves `A x = b` exact and saves phase I most of its work.
+//! Particular solutions come from a machine-integer copy of the Hermite form when it can
+//! answer ([`QuickSolver`]), and from the exact big-integer solver otherwise.
 
 use augment::{Coverage, Objective, Options, Problem, Solution};
 use cache::Completeness;
@@ -12,14 +14,19 @@ use cache::Completeness;
 use super::rounding::Rounding;
 use crate::completion::MoveSet;
 use crate::error::{Error, Result};
-use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution};
+use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution, QuickSolver};
 use crate::matrix::IntMatrix;
 use crate::model::Model;
+
+/// Largest entry of a quick particular solution that the floating-point rounding handles
+/// precisely; larger ones are recomputed (and size-reduced) by the exact solver.
+const QUICK_LIMIT: u64 = 1 << 40;
 
 /// What is computed once per matrix and shared by every instance of it.
 #[derive(Clone, Debug)]
 pub struct Prepared {
     hermite: HermiteForm,
+    quick: Option<QuickSolver>,
     rounding: Rounding,
     moves: augment::MoveSet,
 }
@@ -70,6 +77,7 @@ impl Prepared {
             .collect::<Result<Vec<_>>>()?;
         Ok(Self {
             rounding: Rounding::new(a, hermite.pivot_rows(), basis),
+            quick: QuickSolver::new(&hermite),
             hermite,
             moves: augment::MoveSet::from_rows(set.width, &set.elements, coverage)?,
         })
@@ -133,9 +141,20 @@ impl Prepared {
             }
             None => (rhs.to_vec(), None),
         };
-        let z = match self.hermite.solve(&target) {
-            IntegerSolution::Solution(z) => to_i64_vec(&z, "particular solution")?,
-            IntegerSolution::NoSolution(c) => return Ok(Err(c)),
+        let quick = self.quick.as_ref().and_then(|q| q.solve(&target));
+        let z = match quick.filter(|z| z.iter().all(|v| v.unsigned_abs() < QUICK_LIMIT)) {
+            // A cold start is rounded towards the box by the caller; a warm start's difference
+            // is size-reduced here, as the exact solver does.
+            Some(mut z) => {
+                if base.is_some() {
+                    self.rounding.nearest(&mut z, &target)?;
+                }
+                z
+            }
+            None => match self.hermite.solve(&target) {
+                IntegerSolution::Solution(z) => to_i64_vec(&z, "particular solution")?,
+                IntegerSolution::NoSolution(c) => return Ok(Err(c)),
+            },
         };
         let Some(base) = base else {
             return Ok(Ok(z));
