@@ -46,10 +46,12 @@ mod moves;
 mod objective;
 mod options;
 mod problem;
+mod repair;
 mod search;
 mod select;
 mod solution;
 mod solve;
+mod sweep;
 
 pub use certify::{certify, Certificate};
 pub use error::{AugmentError, Result};

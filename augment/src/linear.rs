@@ -6,79 +6,85 @@
 //! is exactly what the general scan returns (same rules, same tie-breaking: lowest move index,
 //! a ray before any finite step).
 
-use rayon::prelude::*;
-
 use crate::error::{overflow, Result};
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::problem::Problem;
 use crate::search::Step;
-use crate::select::{ratio_cmp, Candidate, Rule};
-
-/// Moves per parallel chunk.
-const CHUNK: usize = 256;
+use crate::select::{Candidate, Rule};
+use crate::sweep::Evaluate;
 
 /// What a linear scan needs.
 pub(crate) struct LinearScan<'a> {
     /// The moves.
-    pub moves: &'a MoveSet,
+    moves: &'a MoveSet,
     /// `c.g` per move.
-    pub slopes: &'a [i128],
-    /// The box.
-    pub problem: &'a Problem,
-    /// The current (feasible) point.
-    pub x: &'a [i64],
+    slopes: &'a [i128],
+    /// Per variable, the distance to its upper bound (entry `2 i`) and to its lower bound
+    /// (entry `2 i + 1`) at the current point; [`UNBOUNDED`] when there is no such bound.
+    gaps: Vec<u64>,
     /// Restrict lengths to powers of two.
-    pub powers_of_two: bool,
+    powers_of_two: bool,
     /// The selection rule.
-    pub rule: Rule,
-    /// Skips moves blocked by a bound at `x`.
-    pub filter: &'a Filter,
+    rule: Rule,
+    /// Skips moves blocked by a bound at the current point.
+    filter: &'a Filter,
 }
 
-impl LinearScan<'_> {
-    /// The step the rule selects, or `None` when no move improves.
-    pub(crate) fn select(&self, parallel: bool) -> Result<Option<Candidate>> {
-        let count = self.moves.len();
-        if !parallel {
-            return self.select_in(0..count);
-        }
-        let chunks: Vec<Result<Option<Candidate>>> = (0..count.div_ceil(CHUNK))
-            .into_par_iter()
-            .map(|c| self.select_in(c * CHUNK..((c + 1) * CHUNK).min(count)))
+/// The gap recorded for a missing bound. A real gap of `u64::MAX` (from `i64::MIN` to
+/// `i64::MAX`) is stored one less, which changes no step: lengths are capped at `i64::MAX`.
+const UNBOUNDED: u64 = u64::MAX;
+
+impl<'a> LinearScan<'a> {
+    /// The scan at the feasible point `x` of `problem`.
+    pub(crate) fn new(
+        moves: &'a MoveSet,
+        slopes: &'a [i128],
+        problem: &Problem,
+        x: &[i64],
+        (powers_of_two, rule): (bool, Rule),
+        filter: &'a Filter,
+    ) -> Self {
+        let gap = |bound: Option<i64>, high: bool, v: i64| {
+            bound.map_or(UNBOUNDED, |b| {
+                let (top, bottom) = if high { (b, v) } else { (v, b) };
+                top.abs_diff(bottom).min(UNBOUNDED - 1)
+            })
+        };
+        let gaps = x
+            .iter()
+            .enumerate()
+            .flat_map(|(i, &v)| {
+                [
+                    gap(problem.upper()[i], true, v),
+                    gap(problem.lower()[i], false, v),
+                ]
+            })
             .collect();
-        let mut best = None;
-        for found in chunks {
-            let found = found?;
-            if self.rule == Rule::FirstImproving && found.is_some() {
-                return Ok(found);
-            }
-            best = self.keep_better(best, found);
+        Self {
+            moves,
+            slopes,
+            gaps,
+            powers_of_two,
+            rule,
+            filter,
         }
-        Ok(best)
+    }
+}
+
+impl Evaluate for LinearScan<'_> {
+    fn moves(&self) -> &MoveSet {
+        self.moves
     }
 
-    fn select_in(&self, range: std::ops::Range<usize>) -> Result<Option<Candidate>> {
-        let mut best: Option<Candidate> = None;
-        for index in range {
-            let floor = match (self.rule, best.map(|b| b.step)) {
-                (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
-                _ => None,
-            };
-            let Some(found) = self.evaluate(index, floor)? else {
-                continue;
-            };
-            if found.step == Step::Ray || self.rule == Rule::FirstImproving {
-                return Ok(self.keep_better(best, Some(found)));
-            }
-            best = self.keep_better(best, Some(found));
-        }
-        Ok(best)
+    fn rule(&self) -> Rule {
+        self.rule
     }
 
     /// The improving sign of move `index` and its longest feasible step, if it improves and,
     /// given a `floor`, can gain strictly more than it (the room only shrinks as the support
     /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
+    #[inline]
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
         let slope = self.slopes[index];
         if slope == 0 {
@@ -88,39 +94,37 @@ impl LinearScan<'_> {
         if !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }
-        let factor = sign.factor();
+        let rate = slope.unsigned_abs();
+        let floor = floor.map(i128::unsigned_abs);
         let (indices, values) = self.moves.support(index);
-        let (lower, upper) = (self.problem.lower(), self.problem.upper());
-        let mut room: Option<i64> = None;
+        let mut room = UNBOUNDED;
         for (&i, &v) in indices.iter().zip(values) {
-            let d = v * factor;
-            let gap = if d > 0 {
-                upper[i].map(|u| gap_to(u, self.x[i]))
-            } else {
-                lower[i].map(|l| gap_to(self.x[i], l))
-            };
-            if let Some(gap) = gap {
-                let step = d.unsigned_abs();
-                let r = if step == 1 { gap } else { gap / step };
-                if r == 0 {
+            // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
+            let down = (v < 0) == (sign == Sign::Plus);
+            let gap = self.gaps[2 * i + usize::from(down)];
+            if gap == UNBOUNDED {
+                continue;
+            }
+            let step = v.unsigned_abs();
+            let r = if step == 1 { gap } else { gap / step };
+            if r == 0 {
+                return Ok(None);
+            }
+            if r < room {
+                room = r;
+                if floor.is_some_and(|f| rate.saturating_mul(u128::from(room)) <= f) {
                     return Ok(None);
                 }
-                let r = i64::try_from(r).unwrap_or(i64::MAX);
-                let shrunk = room.map_or(r, |current: i64| current.min(r));
-                let bound = slope.abs().checked_mul(i128::from(shrunk));
-                if floor.zip(bound).is_some_and(|(f, b)| b <= f) {
-                    return Ok(None);
-                }
-                room = Some(shrunk);
             }
         }
-        let Some(room) = room else {
+        if room == UNBOUNDED {
             return Ok(Some(Candidate {
                 index,
                 sign,
                 step: Step::Ray,
             }));
-        };
+        }
+        let room = i64::try_from(room).unwrap_or(i64::MAX);
         let length = if self.powers_of_two {
             1i64 << (63 - room.leading_zeros())
         } else {
@@ -137,31 +141,7 @@ impl LinearScan<'_> {
         }))
     }
 
-    /// `current` unless `challenger` is strictly better (a ray beats every finite step).
-    fn keep_better(
-        &self,
-        current: Option<Candidate>,
-        challenger: Option<Candidate>,
-    ) -> Option<Candidate> {
-        let (Some(a), Some(b)) = (current, challenger) else {
-            return current.or(challenger);
-        };
-        let better = match (a.step, b.step) {
-            (Step::Ray, _) => false,
-            (_, Step::Ray) => true,
-            (Step::Finite { gain: ga, .. }, Step::Finite { gain: gb, .. }) => match self.rule {
-                Rule::Steepest => {
-                    ratio_cmp(gb, self.moves.norm(b.index), ga, self.moves.norm(a.index)).is_gt()
-                }
-                Rule::GraverBest | Rule::FirstImproving => gb > ga,
-            },
-            _ => false,
-        };
-        Some(if better { b } else { a })
+    fn ceiling(&self) -> Option<i128> {
+        None
     }
-}
-
-/// `high - low` for a feasible point (`high >= low`), exact for any `i64` pair.
-fn gap_to(high: i64, low: i64) -> u64 {
-    high.abs_diff(low)
 }

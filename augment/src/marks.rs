@@ -56,6 +56,7 @@ impl Filter {
     }
 
     /// False when move `index` applied with `sign` certainly does not improve.
+    #[inline]
     pub(crate) fn admits(&self, moves: &MoveSet, index: usize, sign: Sign) -> bool {
         let (raised, lowered) = moves.pattern(index, sign);
         let meets = raised

@@ -59,6 +59,7 @@ pub struct MoveSet {
     /// Per move `words` masks of positive entries, then `words` masks of negative entries.
     patterns: Vec<u64>,
     words: usize,
+    max_norm: i64,
     coverage: Coverage,
 }
 
@@ -82,6 +83,7 @@ impl MoveSet {
             norms: Vec::with_capacity(count),
             patterns: Vec::with_capacity(count * 2 * width.div_ceil(64)),
             words: width.div_ceil(64),
+            max_norm: 0,
             dense,
             coverage,
         };
@@ -129,6 +131,7 @@ impl MoveSet {
             return Err(AugmentError::ZeroMove { index });
         }
         self.norms.push(norm);
+        self.max_norm = self.max_norm.max(norm);
         self.starts.push(self.indices.len());
         Ok(())
     }
@@ -178,6 +181,11 @@ impl MoveSet {
             Sign::Plus => (pos, neg),
             Sign::Minus => (neg, pos),
         }
+    }
+
+    /// The largest l1 norm of a move (0 for an empty set).
+    pub fn max_norm(&self) -> i64 {
+        self.max_norm
     }
 
     /// The l1 norm of move `index`.

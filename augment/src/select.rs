@@ -16,6 +16,7 @@ use crate::moves::{MoveSet, Sign};
 use crate::objective::Separable;
 use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
+use crate::sweep;
 
 /// How the next augmenting step is chosen.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, Serialize, Deserialize)]
@@ -48,8 +49,8 @@ pub(crate) struct Scan<'a, F: ?Sized> {
     pub search: LineSearch<'a, F>,
     /// The moves.
     pub moves: &'a MoveSet,
-    /// The box that steps must respect, `None` in phase I (any point is allowed there).
-    pub bounds: Option<&'a Problem>,
+    /// The box that steps must respect.
+    pub bounds: &'a Problem,
     /// `c.g` per move when the function is linear.
     pub slopes: Option<&'a [i128]>,
     /// The selection rule.
@@ -61,17 +62,16 @@ pub(crate) struct Scan<'a, F: ?Sized> {
 impl<F: Separable + ?Sized> Scan<'_, F> {
     /// The step the rule selects, or `None` when no move improves.
     pub(crate) fn select(&self, parallel: bool) -> Result<Option<Candidate>> {
-        if let (Some(slopes), Some(problem)) = (self.slopes, self.bounds) {
-            let scan = LinearScan {
-                moves: self.moves,
+        if let Some(slopes) = self.slopes {
+            let scan = LinearScan::new(
+                self.moves,
                 slopes,
-                problem,
-                x: self.search.x,
-                powers_of_two: self.search.powers_of_two,
-                rule: self.rule,
-                filter: &self.filter,
-            };
-            return scan.select(parallel);
+                self.bounds,
+                self.search.x,
+                (self.search.powers_of_two, self.rule),
+                &self.filter,
+            );
+            return sweep::select(&scan, parallel);
         }
         let count = self.moves.len();
         match (self.rule, parallel) {
@@ -199,10 +199,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
             // A linear objective that does not fall along the move: no need for its room.
             return Ok(None);
         }
-        let room = match self.bounds {
-            Some(problem) => room(problem, self.search.x, &dir)?,
-            None => None,
-        };
+        let room = room(self.bounds, self.search.x, &dir)?;
         Ok(match self.search.best(&dir, room, slope)? {
             Step::Useless => None,
             step => Some(Candidate { index, sign, step }),
@@ -236,7 +233,25 @@ pub(crate) fn ratio_cmp(a: i128, b: i64, c: i128, d: i64) -> Ordering {
 }
 
 /// `c.g` for every move, the rate of a linear objective along each stored move.
+///
+/// `|c.g| <= max_i |c_i| * ||g||_1`, so when that bound fits in `i64` for the widest move the
+/// sums are taken in plain `i64` (nothing can overflow); otherwise in checked `i128`.
 pub(crate) fn linear_slopes(costs: &[i64], moves: &MoveSet) -> Result<Vec<i128>> {
+    let widest = costs.iter().map(|c| c.unsigned_abs()).max().unwrap_or(0);
+    let bound = u128::from(widest) * u128::from(moves.max_norm().unsigned_abs());
+    if bound <= i64::MAX as u128 {
+        return Ok((0..moves.len())
+            .map(|index| {
+                let (indices, values) = moves.support(index);
+                let slope: i64 = indices
+                    .iter()
+                    .zip(values)
+                    .map(|(&i, &v)| costs[i] * v)
+                    .sum();
+                i128::from(slope)
+            })
+            .collect());
+    }
     (0..moves.len())
         .map(|index| {
             let (indices, values) = moves.support(index);

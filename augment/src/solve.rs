@@ -13,9 +13,11 @@ use crate::moves::{Coverage, MoveSet};
 use crate::objective::Separable;
 use crate::options::Options;
 use crate::problem::Problem;
+use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
 use crate::select::{linear_slopes, Candidate, Rule, Scan};
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
+use crate::sweep;
 
 /// Solves `problem` by augmentation from `x0` with the given moves.
 ///
@@ -122,7 +124,7 @@ impl Run<'_> {
         // the first ray at their first scan; first-improving would take finite steps first.
         if self.options.selected_rule() == Rule::FirstImproving {
             let ray = self
-                .scan(objective, Phase::Optimality, slopes.as_deref())
+                .scan(objective, slopes.as_deref())
                 .first_ray(self.problem)?;
             if let Some(found) = ray {
                 return Ok(Status::Unbounded(self.ray(&found)));
@@ -155,8 +157,12 @@ impl Run<'_> {
             if (self.cancel)() {
                 return Ok(Outcome::Stopped(Status::Cancelled));
             }
-            let scan = self.scan(f, phase, slopes);
-            let Some(found) = scan.select(self.options.is_parallel())? else {
+            let parallel = self.options.is_parallel();
+            let found = match phase {
+                Phase::Feasibility => sweep::select(&self.repair_scan(value), parallel)?,
+                Phase::Optimality => self.scan(f, slopes).select(parallel)?,
+            };
+            let Some(found) = found else {
                 return Ok(Outcome::Stationary(value));
             };
             let Step::Finite { length, gain } = found.step else {
@@ -175,13 +181,22 @@ impl Run<'_> {
         }
     }
 
-    /// A scan of the moves at the current point; phase I ignores the bounds.
-    fn scan<'s, F: Separable>(
-        &'s self,
-        f: &'s F,
-        phase: Phase,
-        slopes: Option<&'s [i128]>,
-    ) -> Scan<'s, F> {
+    /// The phase-I scan at the current point, whose violation is `violation`.
+    fn repair_scan(&self, violation: i128) -> RepairScan<'_> {
+        RepairScan {
+            function: self.problem.violation_function(),
+            x: &self.x,
+            powers_of_two: self.options.uses_powers_of_two(),
+            moves: self.moves,
+            problem: self.problem,
+            violation,
+            rule: self.options.selected_rule(),
+            filter: Filter::repairing(self.problem, &self.x, self.moves.words()),
+        }
+    }
+
+    /// The phase-II scan of the moves at the current point.
+    fn scan<'s, F: Separable>(&'s self, f: &'s F, slopes: Option<&'s [i128]>) -> Scan<'s, F> {
         Scan {
             search: LineSearch {
                 f,
@@ -189,13 +204,10 @@ impl Run<'_> {
                 powers_of_two: self.options.uses_powers_of_two(),
             },
             moves: self.moves,
-            bounds: (phase == Phase::Optimality).then_some(self.problem),
+            bounds: self.problem,
             slopes,
             rule: self.options.selected_rule(),
-            filter: match phase {
-                Phase::Feasibility => Filter::repairing(self.problem, &self.x, self.moves.words()),
-                Phase::Optimality => Filter::blocking(self.problem, &self.x, self.moves.words()),
-            },
+            filter: Filter::blocking(self.problem, &self.x, self.moves.words()),
         }
     }
 

@@ -1,0 +1,113 @@
+//! The scan of phase I: which move lowers the bound violation most.
+//!
+//! The violation `V(x) = sum_i dist(x_i, [l_i, u_i])` is piecewise linear, and two facts about
+//! it make most moves cheap to dismiss without a line search:
+//! - a signed move lowers `V` only on the coordinates it moves from outside the box towards
+//!   it, and by at most their distance to the box; so that sum, the move's *reach*, bounds its
+//!   gain, and a move whose reach does not beat the best gain so far cannot be chosen;
+//! - no step gains more than `V(x)` itself, so under Graver-best a step reaching violation 0
+//!   ends the scan (later moves could at most tie, and ties keep the lower index).
+//!
+//! The remaining moves get the exact line search. The selection is exactly what evaluating
+//! every move would give.
+
+use crate::error::Result;
+use crate::marks::Filter;
+use crate::moves::{MoveSet, Sign};
+use crate::problem::{Problem, Violation};
+use crate::search::{Direction, LineSearch, Step};
+use crate::select::{Candidate, Rule};
+use crate::sweep::{keep_better, Evaluate};
+
+/// What a phase-I scan needs.
+pub(crate) struct RepairScan<'a> {
+    /// The violation function.
+    pub function: Violation<'a>,
+    /// The current point.
+    pub x: &'a [i64],
+    /// Restrict step lengths to powers of two.
+    pub powers_of_two: bool,
+    /// The moves.
+    pub moves: &'a MoveSet,
+    /// The box.
+    pub problem: &'a Problem,
+    /// `V(x)` at the current point.
+    pub violation: i128,
+    /// The selection rule.
+    pub rule: Rule,
+    /// Keeps only moves that repair a violated coordinate.
+    pub filter: Filter,
+}
+
+impl Evaluate for RepairScan<'_> {
+    fn moves(&self) -> &MoveSet {
+        self.moves
+    }
+
+    fn rule(&self) -> Rule {
+        self.rule
+    }
+
+    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
+        let mut best: Option<Candidate> = None;
+        for sign in Sign::BOTH {
+            if !self.filter.admits(self.moves, index, sign) {
+                continue;
+            }
+            let (indices, values) = self.moves.support(index);
+            let dir = Direction {
+                indices,
+                values,
+                sign: sign.factor(),
+            };
+            if self.rule == Rule::GraverBest {
+                let bar = match best.map(|b| b.step) {
+                    Some(Step::Finite { gain, .. }) => Some(floor.map_or(gain, |f| f.max(gain))),
+                    _ => floor,
+                };
+                if bar.is_some_and(|bar| self.reach(&dir) <= bar) {
+                    continue;
+                }
+            }
+            let search = LineSearch {
+                f: &self.function,
+                x: self.x,
+                powers_of_two: self.powers_of_two,
+            };
+            let step = search.best(&dir, None, None)?;
+            if step == Step::Useless {
+                continue;
+            }
+            let found = Candidate { index, sign, step };
+            if self.rule == Rule::FirstImproving {
+                return Ok(Some(found));
+            }
+            best = keep_better(self.rule, self.moves, best, Some(found));
+        }
+        Ok(best)
+    }
+
+    fn ceiling(&self) -> Option<i128> {
+        Some(self.violation)
+    }
+}
+
+impl RepairScan<'_> {
+    /// The total distance to the box of the coordinates `dir` moves towards it from outside:
+    /// an upper bound on the violation any multiple of `dir` removes.
+    fn reach(&self, dir: &Direction) -> i128 {
+        let (lower, upper, x) = (self.problem.lower(), self.problem.upper(), self.x);
+        dir.indices
+            .iter()
+            .zip(dir.values)
+            .map(|(&i, &v)| {
+                let raises = (v > 0) == (dir.sign > 0);
+                match (raises, lower[i], upper[i]) {
+                    (true, Some(l), _) if x[i] < l => i128::from(l) - i128::from(x[i]),
+                    (false, _, Some(u)) if x[i] > u => i128::from(x[i]) - i128::from(u),
+                    _ => 0,
+                }
+            })
+            .sum()
+    }
+}

@@ -1,0 +1,188 @@
+#!/usr/bin/env python3
+"""Daily re-planning throughput: `kernstep batch` on scenario and day files against HiGHS.
+
+For each example scenario in examples/scenarios/ (one per kind: lanes, product_lines,
+truckloads) the script draws DAYS feasible days (fixed seed) and writes them as a named day
+file (JSON Lines, the README's "Daily variants" schema). Then, in one run:
+  - HiGHS (highspy), best re-optimisation mode: the day-0 program passed once, then per day
+    only costs, column bounds and row bounds changed, one thread. Each day's program is
+    compiled from the scenario by scripts/demo_reference.py (an independent Python reading of
+    the schema) before the clock starts, so HiGHS is timed on solving only;
+  - `kernstep batch SCENARIO DAYS --threads T` as a whole process with the test set already
+    in the cache (reading both files, loading the set, preparing, solving, writing every
+    plan), T = 1 and 2; and once with an empty cache and `--build` (set built in the run);
+and prints per-day times, the throughput ratio against HiGHS kept, and how many optima agree.
+
+Usage: python3 benches/replan_scenarios.py [DAYS]   (default 1000; needs `pip install highspy`)
+"""
+
+import json
+import os
+import random
+import subprocess
+import sys
+import tempfile
+import time
+import tomllib
+
+import highspy
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+sys.path.insert(0, os.path.join(ROOT, "scripts"))
+import demo_reference as ref  # noqa: E402
+
+INF = highspy.kHighsInf
+SCENARIOS = ["brackle_lanes.toml", "vell_valley.toml", "hollin_trucks.toml"]
+
+
+def lane_names(s):
+    return [f"{l['from']}->{l['to']}" for l in s["lanes"]]
+
+
+def draw_day(s, rng, label):
+    """One feasible day: a random plan inside the limits, and the numbers it satisfies."""
+    lanes = lane_names(s)
+    day = {"day": label}
+    if s["kind"] == "product_lines":
+        p = s["products"]
+        x = {(l["from"], l["to"], q): rng.randint(0, 6) for l in s["lanes"] for q in p}
+        day["volume"] = {n: sum(x[(l["from"], l["to"], q)] for q in p)
+                         for n, l in zip(lanes, s["lanes"])}
+        day["stock"] = {f"{d}/{q}": sum(v for (dd, _, qq), v in x.items() if (dd, qq) == (d, q))
+                        for d in s["depots"] for q in p}
+        day["demand"] = {f"{z}/{q}": sum(v for (_, zz, qq), v in x.items() if (zz, qq) == (z, q))
+                         for z in s["zones"] for q in p}
+        day["cost"] = {f"{rng.choice(lanes)}/{rng.choice(p)}": rng.randint(1, 12)
+                       for _ in range(4)}
+        return day
+    trucks = s["kind"] == "truckloads"
+    c = s.get("truck_capacity", 1)
+    units = {}
+    for n, l in zip(lanes, s["lanes"]):
+        if trucks:
+            t = rng.randint(0, l.get("capacity", 4))
+            units[n] = rng.randint(c * (t - 1) + 1, c * t) if t else 0
+        else:
+            units[n] = rng.randint(0, l.get("capacity", 15))
+    day["supply"] = {d: sum(u for n, u in units.items() if n.split("->")[0] == d)
+                     + rng.randint(0, 4) for d in s["depots"]}
+    day["demand"] = {z: sum(u for n, u in units.items() if n.split("->")[1] == z)
+                     for z in s["zones"]}
+    day["cost"] = {rng.choice(lanes): rng.randint(1, 9) for _ in range(3)}
+    if trucks:
+        day["truck_cost"] = {rng.choice(lanes): rng.randint(3, 16) for _ in range(2)}
+    return day
+
+
+def compiled_days(s, days):
+    """Per day the program as arrays in one fixed column and row order."""
+    base = ref.tables(s)
+    out = []
+    for change in days:
+        cols, rows = ref.program(s, ref.day_tables(base, change))
+        out.append((cols, rows))
+    return out
+
+
+def highs_kept(programs):
+    cols, rows = programs[0]
+    names = list(cols)
+    h = highspy.Highs()
+    h.setOptionValue("output_flag", False)
+    h.setOptionValue("threads", 1)
+    h.setOptionValue("mip_rel_gap", 0.0)
+    h.setOptionValue("mip_abs_gap", 0.0)
+    index = {n: i for i, n in enumerate(names)}
+    for n in names:
+        cost, lo, up = cols[n]
+        h.addVar(lo, INF if up is None else up)
+        h.changeColCost(index[n], cost)
+        h.changeColIntegrality(index[n], highspy.HighsVarType.kInteger)
+    for coeffs, rhs in rows:
+        idx = [index[n] for n in coeffs]
+        h.addRow(rhs, rhs, len(idx), idx, [float(coeffs[n]) for n in coeffs])
+    every = list(range(len(names)))
+    every_row = list(range(len(rows)))
+    numbers = []
+    for cols_d, rows_d in programs:
+        assert list(cols_d) == names, "the column order is the same every day"
+        numbers.append(([float(cols_d[n][0]) for n in names],
+                        [float(cols_d[n][1]) for n in names],
+                        [INF if cols_d[n][2] is None else float(cols_d[n][2]) for n in names],
+                        [float(r) for _, r in rows_d]))
+    objectives = []
+    start = time.perf_counter()
+    for cost, lower, upper, rhs in numbers:
+        h.changeColsCost(len(every), every, cost)
+        h.changeColsBounds(len(every), every, lower, upper)
+        h.changeRowsBounds(len(every_row), every_row, rhs, rhs)
+        h.run()
+        if h.getModelStatus() == highspy.HighsModelStatus.kOptimal:
+            objectives.append(round(h.getInfo().objective_function_value))
+        else:
+            objectives.append(None)
+    return objectives, time.perf_counter() - start, h.version()
+
+
+def kernstep(*args):
+    binary = os.path.join(ROOT, "target", "release", "kernstep")
+    start = time.perf_counter()
+    run = subprocess.run([binary, *args], capture_output=True, text=True)
+    return run, time.perf_counter() - start
+
+
+def batch(scenario, days_path, cache, threads, build=False):
+    with tempfile.TemporaryDirectory() as out_dir:
+        out = os.path.join(out_dir, "plans.jsonl")
+        run, wall = kernstep("batch", scenario, days_path, "--threads", str(threads),
+                             "--cache-dir", cache, "--out", out, *(["--build"] if build else []))
+        if run.returncode not in (0, 1):
+            raise SystemExit(f"kernstep batch failed: {run.stderr}")
+        with open(out) as f:
+            results = [json.loads(line) for line in f if line.strip()]
+    objectives = [r["objective"] if r["status"] == "optimal" else None for r in results]
+    return objectives, wall
+
+
+def main():
+    count = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
+    subprocess.run(["cargo", "build", "--release"], cwd=ROOT, check=True, capture_output=True)
+    rng = random.Random(20261202)
+    print(f"HiGHS {highspy.Highs().version()} (highspy), one thread, model kept; "
+          f"{count} days per scenario")
+    print(f"{'scenario':<20}{'method':<42}{'ms/day':>10}{'vs HiGHS kept':>15}")
+    for file in SCENARIOS:
+        path = os.path.join(ROOT, "examples", "scenarios", file)
+        with open(path, "rb") as f:
+            s = tomllib.load(f)
+        days = [draw_day(s, rng, f"d{k:04d}") for k in range(count)]
+        kept, kept_s, _ = highs_kept(compiled_days(s, days))
+        name = f"{s['kind']} ({file.split('.')[0]})"
+        with tempfile.TemporaryDirectory() as tmp:
+            days_path = os.path.join(tmp, "days.jsonl")
+            with open(days_path, "w") as f:
+                f.writelines(json.dumps(d) + "\n" for d in days)
+            cold_cache = os.path.join(tmp, "cold")
+            cold, cold_s = batch(path, days_path, cold_cache, 1, build=True)
+            warm_cache = os.path.join(tmp, "warm")
+            built, build_s = kernstep("build", path, "--cache-dir", warm_cache)
+            if built.returncode != 0:
+                raise SystemExit(f"kernstep build failed: {built.stderr}")
+            warm = [batch(path, days_path, warm_cache, t) for t in (1, 2)]
+        base = kept_s / count * 1000
+        rows = [("HiGHS, model kept (best mode)", kept_s, kept)]
+        rows += [(f"kernstep batch, {t} thread(s), set cached", w, o)
+                 for t, (o, w) in zip((1, 2), warm)]
+        rows.append(("kernstep batch, 1 thread, empty cache", cold_s, cold))
+        for label, seconds, objectives in rows:
+            ms = seconds / count * 1000
+            equal = sum(a == b for a, b in zip(objectives, kept))
+            print(f"{name:<20}{label:<42}{ms:>10.4f}{base / ms:>14.1f}x"
+                  f"   equal optima {equal}/{count}")
+        optimal = sum(o is not None for o in kept)
+        print(f"{name:<20}(HiGHS optimal on {optimal}/{count} days; `kernstep build` alone "
+              f"{build_s:.3f} s)")
+
+
+if __name__ == "__main__":
+    main()
