@@ -85,22 +85,9 @@ def compiled_days(s, days):
 
 
 def highs_kept(programs):
-    cols, rows = programs[0]
-    names = list(cols)
-    h = highspy.Highs()
-    h.setOptionValue("output_flag", False)
+    h, names = ref.highs_program(*programs[0])
     h.setOptionValue("threads", 1)
-    h.setOptionValue("mip_rel_gap", 0.0)
-    h.setOptionValue("mip_abs_gap", 0.0)
-    index = {n: i for i, n in enumerate(names)}
-    for n in names:
-        cost, lo, up = cols[n]
-        h.addVar(lo, INF if up is None else up)
-        h.changeColCost(index[n], cost)
-        h.changeColIntegrality(index[n], highspy.HighsVarType.kInteger)
-    for coeffs, rhs in rows:
-        idx = [index[n] for n in coeffs]
-        h.addRow(rhs, rhs, len(idx), idx, [float(coeffs[n]) for n in coeffs])
+    rows = programs[0][1]
     every = list(range(len(names)))
     every_row = list(range(len(rows)))
     numbers = []

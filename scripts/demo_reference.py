@@ -84,8 +84,8 @@ def program(s, t):
     return cols, rows
 
 
-def solve(cols, rows):
-    """HiGHS on the integer program; returns ("optimal", objective) or ("infeasible", None)."""
+def highs_program(cols, rows):
+    """A HiGHS instance holding the integer program; returns it and the column names."""
     h = highspy.Highs()
     h.setOptionValue("output_flag", False)
     h.setOptionValue("mip_rel_gap", 0.0)
@@ -101,6 +101,12 @@ def solve(cols, rows):
     for coeffs, rhs in rows:
         idx = [index[n] for n in coeffs]
         h.addRow(rhs, rhs, len(idx), idx, [float(coeffs[n]) for n in coeffs])
+    return h, names
+
+
+def solve(cols, rows):
+    """HiGHS on the integer program; returns ("optimal", objective) or ("infeasible", None)."""
+    h, _ = highs_program(cols, rows)
     h.run()
     status = h.getModelStatus()
     if status == highspy.HighsModelStatus.kOptimal:

@@ -5,6 +5,7 @@ use std::process::ExitCode;
 
 use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
 use kernstep::model::Model;
+use kernstep::scenario::PlanInput;
 use serde::Serialize;
 
 use super::args::AnalyzeArgs;
@@ -20,7 +21,7 @@ struct Report<'a> {
 
 /// Loads the model, analyses its matrix and prints the figures.
 pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
-    let model = Model::load(&args.model)?;
+    let model = PlanInput::load(&args.model)?.into_model();
     let options = AnalysisOptions::new().subdet_limit(args.subdet_limit);
     let analysis = MatrixAnalysis::of(&model.matrix, &options);
     let mut out = io::stdout().lock();

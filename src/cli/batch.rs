@@ -73,12 +73,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();
-    let set = graver_for(model, &args.cache, args.build).map_err(|e| match &input {
-        PlanInput::Scenario(..) if !args.build => e.context(
-            "no test set for this scenario yet: run batch once with --build to build and store it",
-        ),
-        _ => e,
-    })?;
+    let set = graver_for(model, &args.input, &args.cache, args.build)?;
     let started = Instant::now();
     let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
     let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;

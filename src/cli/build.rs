@@ -13,6 +13,7 @@ use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, Method, Progress, Sign};
 use kernstep::model::Model;
+use kernstep::scenario::PlanInput;
 use kernstep::testset::{
     build, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, NormLimit, Obtained,
 };
@@ -237,7 +238,7 @@ fn build_one(args: &BuildArgs, path: &Path) -> Row {
 }
 
 fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<String> {
-    let model = Model::load(path)?;
+    let model = PlanInput::load(path)?.into_model();
     let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
     let spec = args.spec(&model)?.resolve(&model, &analysis)?;
     row.kind = Some(spec.kind);

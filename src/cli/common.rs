@@ -127,10 +127,11 @@ pub struct SolverSet {
     pub source: SetSource,
 }
 
-/// Finds the Graver basis of `model`'s matrix in the cache; on a miss builds it when
-/// `build_on_miss`, else says which `build` to run.
+/// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
+/// builds it when `build_on_miss`, else says which `build` to run.
 pub fn graver_for(
     model: &Model,
+    input: &Path,
     cache: &CacheArgs,
     build_on_miss: bool,
 ) -> anyhow::Result<SolverSet> {
@@ -161,9 +162,15 @@ pub fn graver_for(
         }
     }
     if !build_on_miss {
+        let dir = cache
+            .cache_dir
+            .as_ref()
+            .map(|d| format!(" --cache-dir {}", d.display()))
+            .unwrap_or_default();
         anyhow::bail!(
-            "no test set for this matrix in the cache ({}); run `kernstep build MODEL` first, or pass --build",
-            library.store().dir().display()
+            "no test set for this matrix in the cache ({}); run `kernstep build {}{dir}` first, or pass --build",
+            library.store().dir().display(),
+            input.display()
         );
     }
     let control = Control::new().cancel_flag(interrupted());

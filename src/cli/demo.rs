@@ -104,7 +104,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
 /// The Graver basis from the cache or built (and stored); built in memory when the cache
 /// cannot be used at all.
 fn obtain_set(model: &Model, cache: &CacheArgs) -> anyhow::Result<SolverSet> {
-    match super::common::graver_for(model, cache, true) {
+    match super::common::graver_for(model, Path::new(SCENARIO_PATH), cache, true) {
         Ok(set) => Ok(set),
         Err(e) => {
             eprintln!("kernstep: warning: {e:#}; building the test set in memory");

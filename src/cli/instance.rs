@@ -96,7 +96,7 @@ impl InstanceArgs {
             .as_deref()
             .map(read_warm_start)
             .transpose()?;
-        let set = graver_for(&model, &self.cache, self.build)?;
+        let set = graver_for(&model, &self.model, &self.cache, self.build)?;
         let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,

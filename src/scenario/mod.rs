@@ -252,6 +252,13 @@ impl PlanInput {
             PlanInput::Scenario(_, model) | PlanInput::Model(model) => model,
         }
     }
+
+    /// The model, owned; the scenario (if any) is dropped.
+    pub fn into_model(self) -> Model {
+        match self {
+            PlanInput::Scenario(_, model) | PlanInput::Model(model) => model,
+        }
+    }
 }
 
 fn read_input(path: &Path) -> Result<(String, ModelKind, String)> {
