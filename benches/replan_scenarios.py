@@ -137,7 +137,7 @@ def main():
     rng = random.Random(20261202)
     print(f"HiGHS {highspy.Highs().version()} (highspy), one thread, model kept; "
           f"{count} days per scenario")
-    print(f"{'scenario':<20}{'method':<42}{'ms/day':>10}{'vs HiGHS kept':>15}")
+    print(f"{'scenario':<30}{'method':<42}{'ms/day':>10}{'vs HiGHS kept':>15}")
     for file in SCENARIOS:
         path = os.path.join(ROOT, "examples", "scenarios", file)
         with open(path, "rb") as f:
@@ -164,10 +164,10 @@ def main():
         for label, seconds, objectives in rows:
             ms = seconds / count * 1000
             equal = sum(a == b for a, b in zip(objectives, kept))
-            print(f"{name:<20}{label:<42}{ms:>10.4f}{base / ms:>14.1f}x"
+            print(f"{name:<30}{label:<42}{ms:>10.4f}{base / ms:>14.1f}x"
                   f"   equal optima {equal}/{count}")
         optimal = sum(o is not None for o in kept)
-        print(f"{name:<20}(HiGHS optimal on {optimal}/{count} days; `kernstep build` alone "
+        print(f"{name:<30}(HiGHS optimal on {optimal}/{count} days; `kernstep build` alone "
               f"{build_s:.3f} s)")
 
 

@@ -49,6 +49,7 @@ mod problem;
 mod repair;
 mod search;
 mod select;
+mod slopes;
 mod solution;
 mod solve;
 mod sweep;

@@ -2,7 +2,7 @@
 //!
 //! With `f(x) = c.x` a signed move improves only in the sign where `c.g < 0`, its best step is
 //! the longest feasible one, and the gain is `|c.g|` times that length; so one pass over the
-//! sparse moves with precomputed slopes decides the step, without a line search. The result
+//! sparse moves with the slopes decides the step, without a line search. The result
 //! is exactly what the general scan returns (same rules, same tie-breaking: lowest move index,
 //! a ray before any finite step).
 
@@ -12,6 +12,7 @@ use crate::moves::{MoveSet, Sign};
 use crate::problem::Problem;
 use crate::search::Step;
 use crate::select::{Candidate, Rule};
+use crate::slopes::Slopes;
 use crate::sweep::Evaluate;
 
 /// What a linear scan needs.
@@ -19,7 +20,7 @@ pub(crate) struct LinearScan<'a> {
     /// The moves.
     moves: &'a MoveSet,
     /// `c.g` per move.
-    slopes: &'a [i128],
+    slopes: &'a Slopes<'a>,
     /// Per variable, the distance to its upper bound (entry `2 i`) and to its lower bound
     /// (entry `2 i + 1`) at the current point; [`UNBOUNDED`] when there is no such bound.
     gaps: Vec<u64>,
@@ -39,7 +40,7 @@ impl<'a> LinearScan<'a> {
     /// The scan at the feasible point `x` of `problem`.
     pub(crate) fn new(
         moves: &'a MoveSet,
-        slopes: &'a [i128],
+        slopes: &'a Slopes<'a>,
         problem: &Problem,
         x: &[i64],
         (powers_of_two, rule): (bool, Rule),
@@ -86,12 +87,20 @@ impl Evaluate for LinearScan<'_> {
     /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
     #[inline]
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
-        let slope = self.slopes[index];
-        if slope == 0 {
+        // Most moves are blocked both ways at the sparse points augmentation visits; those
+        // are dropped before their rate is needed.
+        let plus = self.filter.admits(self.moves, index, Sign::Plus);
+        let minus = self.filter.admits(self.moves, index, Sign::Minus);
+        if !plus && !minus {
             return Ok(None);
         }
-        let sign = if slope < 0 { Sign::Plus } else { Sign::Minus };
-        if !self.filter.admits(self.moves, index, sign) {
+        let slope = self.slopes.get(index);
+        let sign = match slope {
+            0 => return Ok(None),
+            s if s < 0 => Sign::Plus,
+            _ => Sign::Minus,
+        };
+        if !(if sign == Sign::Plus { plus } else { minus }) {
             return Ok(None);
         }
         let rate = slope.unsigned_abs();
@@ -139,6 +148,10 @@ impl Evaluate for LinearScan<'_> {
             sign,
             step: Step::Finite { length, gain },
         }))
+    }
+
+    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>) {
+        self.filter.candidates(self.moves, range, out);
     }
 
     fn ceiling(&self) -> Option<i128> {

@@ -59,12 +59,53 @@ impl Filter {
     #[inline]
     pub(crate) fn admits(&self, moves: &MoveSet, index: usize, sign: Sign) -> bool {
         let (raised, lowered) = moves.pattern(index, sign);
+        if let ([r], [l], [mr], [ml]) = (raised, lowered, &self.raising[..], &self.lowering[..]) {
+            return ((r & mr) | (l & ml) != 0) != self.blocking;
+        }
         let meets = raised
             .iter()
             .zip(&self.raising)
             .zip(lowered.iter().zip(&self.lowering))
             .any(|((r, mr), (l, ml))| (r & mr) | (l & ml) != 0);
         meets != self.blocking
+    }
+}
+
+impl Filter {
+    /// Appends to `out` the moves of `range` that at least one sign of passes [`Filter::admits`].
+    ///
+    /// With one mask word (up to 64 variables) this is a branch-free pass over the flat sign
+    /// patterns, the hot loop of every scan.
+    pub(crate) fn candidates(
+        &self,
+        moves: &MoveSet,
+        range: std::ops::Range<usize>,
+        out: &mut Vec<usize>,
+    ) {
+        let ([raise], [lower]) = (&self.raising[..], &self.lowering[..]) else {
+            out.extend(range.filter(|&index| {
+                self.admits(moves, index, Sign::Plus) || self.admits(moves, index, Sign::Minus)
+            }));
+            return;
+        };
+        let patterns = &moves.patterns()[2 * range.start..2 * range.end];
+        let start = out.len();
+        out.resize(start + range.len(), 0);
+        let mut kept = start;
+        for (index, pair) in range.zip(patterns.chunks_exact(2)) {
+            let (pos, neg) = (pair[0], pair[1]);
+            let plus = (pos & raise) | (neg & lower) != 0;
+            let minus = (neg & raise) | (pos & lower) != 0;
+            // Blocking: keep unless both signs meet a bound; repairing: keep if either meets.
+            let keep = if self.blocking {
+                !(plus && minus)
+            } else {
+                plus || minus
+            };
+            out[kept] = index;
+            kept += usize::from(keep);
+        }
+        out.truncate(kept);
     }
 }
 

@@ -172,6 +172,11 @@ impl MoveSet {
         self.words
     }
 
+    /// Every move's masks, `words` of positive entries then `words` of negative entries.
+    pub(crate) fn patterns(&self) -> &[u64] {
+        &self.patterns
+    }
+
     /// Bit masks of the coordinates that move `index` raises and lowers when applied with
     /// `sign` (bit `i % 64` of word `i / 64` stands for coordinate `i`).
     pub(crate) fn pattern(&self, index: usize, sign: Sign) -> (&[u64], &[u64]) {

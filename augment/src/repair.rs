@@ -87,6 +87,10 @@ impl Evaluate for RepairScan<'_> {
         Ok(best)
     }
 
+    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>) {
+        self.filter.candidates(self.moves, range, out);
+    }
+
     fn ceiling(&self) -> Option<i128> {
         Some(self.violation)
     }

@@ -9,13 +9,14 @@ use std::cmp::Ordering;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
-use crate::error::{overflow, Result};
+use crate::error::Result;
 use crate::linear::LinearScan;
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::objective::Separable;
 use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
+use crate::slopes::Slopes;
 use crate::sweep;
 
 /// How the next augmenting step is chosen.
@@ -52,7 +53,7 @@ pub(crate) struct Scan<'a, F: ?Sized> {
     /// The box that steps must respect.
     pub bounds: &'a Problem,
     /// `c.g` per move when the function is linear.
-    pub slopes: Option<&'a [i128]>,
+    pub slopes: Option<&'a Slopes<'a>>,
     /// The selection rule.
     pub rule: Rule,
     /// Skips moves that cannot improve at the current point.
@@ -125,7 +126,9 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
                     let (i, d) = dir.entry(k)?;
                     free &= problem.unbounded_towards(i, d);
                 }
-                let slope = self.slopes.map(|s| s[index] * i128::from(sign.factor()));
+                let slope = self
+                    .slopes
+                    .map(|s| s.get(index) * i128::from(sign.factor()));
                 if free && self.search.falls_forever(&dir, slope)? {
                     return Ok(Some(Candidate {
                         index,
@@ -194,13 +197,8 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
             values,
             sign: sign.factor(),
         };
-        let slope = self.slopes.map(|s| s[index] * i128::from(sign.factor()));
-        if slope.is_some_and(|s| s >= 0) {
-            // A linear objective that does not fall along the move: no need for its room.
-            return Ok(None);
-        }
         let room = room(self.bounds, self.search.x, &dir)?;
-        Ok(match self.search.best(&dir, room, slope)? {
+        Ok(match self.search.best(&dir, room, None)? {
             Step::Useless => None,
             step => Some(Candidate { index, sign, step }),
         })
@@ -230,35 +228,4 @@ pub(crate) fn ratio_cmp(a: i128, b: i64, c: i128, d: i64) -> Ordering {
         // Both remainders are below 2^63, so the cross products stay below 2^126.
         ((a % b) * d).cmp(&((c % d) * b))
     })
-}
-
-/// `c.g` for every move, the rate of a linear objective along each stored move.
-///
-/// `|c.g| <= max_i |c_i| * ||g||_1`, so when that bound fits in `i64` for the widest move the
-/// sums are taken in plain `i64` (nothing can overflow); otherwise in checked `i128`.
-pub(crate) fn linear_slopes(costs: &[i64], moves: &MoveSet) -> Result<Vec<i128>> {
-    let widest = costs.iter().map(|c| c.unsigned_abs()).max().unwrap_or(0);
-    let bound = u128::from(widest) * u128::from(moves.max_norm().unsigned_abs());
-    if bound <= i64::MAX as u128 {
-        return Ok((0..moves.len())
-            .map(|index| {
-                let (indices, values) = moves.support(index);
-                let slope: i64 = indices
-                    .iter()
-                    .zip(values)
-                    .map(|(&i, &v)| costs[i] * v)
-                    .sum();
-                i128::from(slope)
-            })
-            .collect());
-    }
-    (0..moves.len())
-        .map(|index| {
-            let (indices, values) = moves.support(index);
-            indices.iter().zip(values).try_fold(0i128, |sum, (&i, &v)| {
-                sum.checked_add(i128::from(costs[i]) * i128::from(v))
-                    .ok_or(overflow("computing the cost of a move"))
-            })
-        })
-        .collect()
 }

@@ -15,7 +15,8 @@ use crate::options::Options;
 use crate::problem::Problem;
 use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
-use crate::select::{linear_slopes, Candidate, Rule, Scan};
+use crate::select::{Candidate, Rule, Scan};
+use crate::slopes::Slopes;
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 use crate::sweep;
 
@@ -118,20 +119,20 @@ impl Run<'_> {
         self.objective = Some(value);
         let slopes = objective
             .linear_costs()
-            .map(|costs| linear_slopes(costs, self.moves))
+            .map(|costs| Slopes::new(costs, self.moves))
             .transpose()?;
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
         if self.options.selected_rule() == Rule::FirstImproving {
             let ray = self
-                .scan(objective, slopes.as_deref())
+                .scan(objective, slopes.as_ref())
                 .first_ray(self.problem)?;
             if let Some(found) = ray {
                 return Ok(Status::Unbounded(self.ray(&found)));
             }
         }
         Ok(
-            match self.descend(objective, Phase::Optimality, value, slopes.as_deref())? {
+            match self.descend(objective, Phase::Optimality, value, slopes.as_ref())? {
                 Outcome::Stopped(status) => status,
                 Outcome::Stationary(_) => match self.moves.coverage() {
                     Coverage::Complete | Coverage::BoxValid => Status::Optimal,
@@ -148,7 +149,7 @@ impl Run<'_> {
         f: &F,
         phase: Phase,
         mut value: i128,
-        slopes: Option<&[i128]>,
+        slopes: Option<&Slopes>,
     ) -> Result<Outcome> {
         loop {
             if phase == Phase::Feasibility && value == 0 {
@@ -196,7 +197,7 @@ impl Run<'_> {
     }
 
     /// The phase-II scan of the moves at the current point.
-    fn scan<'s, F: Separable>(&'s self, f: &'s F, slopes: Option<&'s [i128]>) -> Scan<'s, F> {
+    fn scan<'s, F: Separable>(&'s self, f: &'s F, slopes: Option<&'s Slopes<'s>>) -> Scan<'s, F> {
         Scan {
             search: LineSearch {
                 f,

@@ -30,6 +30,9 @@ pub(crate) trait Evaluate: Sync {
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
     /// A gain no step can exceed at the current point, if one is known.
     fn ceiling(&self) -> Option<i128>;
+    /// Appends to `out` the moves of `range` worth evaluating (a superset of those that
+    /// improve), in increasing order.
+    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>);
 }
 
 /// The step the rule selects among all moves, or `None` when no move improves.
@@ -57,7 +60,9 @@ fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Opt
     let rule = scan.rule();
     let ceiling = scan.ceiling().filter(|_| rule == Rule::GraverBest);
     let mut best: Option<Candidate> = None;
-    for index in range {
+    let mut indices = Vec::new();
+    scan.candidates(range, &mut indices);
+    for index in indices {
         let floor = match (rule, best.map(|b| b.step)) {
             (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
             _ => None,

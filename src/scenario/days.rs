@@ -62,7 +62,7 @@ fn day_line(
             .and_then(|m| m.keys().find(|k| !allowed.contains(&k.as_str())))
             .and_then(|k| Field::from_key(k));
         match unknown_field {
-            Some(field) => r.error(field.key(), not_applicable(scenario, field)),
+            Some(field) => r.error(field.key(), not_applicable(scenario.kind, field)),
             None => e,
         }
     })?;
@@ -108,12 +108,12 @@ fn remember_day(
     }
 }
 
-fn not_applicable(scenario: &Scenario, field: Field) -> String {
-    let fields: Vec<&str> = scenario.kind.fields().iter().map(|f| f.key()).collect();
+fn not_applicable(kind: super::ScenarioKind, field: Field) -> String {
+    let fields: Vec<&str> = kind.fields().iter().map(|f| f.key()).collect();
     format!(
         "{} does not apply to {} scenarios (fields: {})",
         field.key(),
-        scenario.kind.name(),
+        kind.name(),
         fields.join(", ")
     )
 }
@@ -128,12 +128,11 @@ fn set(
     at: &str,
 ) -> Result<()> {
     let kind = s.kind;
-    let not_here = not_applicable(s, field);
     let table = s
         .tables
         .iter_mut()
         .find(|t| t.field == field)
-        .ok_or_else(|| r.error(field.key(), not_here))?;
+        .ok_or_else(|| r.error(field.key(), not_applicable(kind, field)))?;
     let index = table
         .names
         .iter()

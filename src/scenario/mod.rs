@@ -236,7 +236,11 @@ impl PlanInput {
         if kind == ModelKind::Mps {
             return Ok(PlanInput::Model(Model::from_str(&text, kind, &origin)?));
         }
-        let tree = reader::parse_tree(&text, kind, &origin)?;
+        // A file that does not parse at all is reported by the model reader, whose messages
+        // give the line and column.
+        let Ok(tree) = reader::parse_tree(&text, kind, &origin) else {
+            return Ok(PlanInput::Model(Model::from_str(&text, kind, &origin)?));
+        };
         if tree.get("kind").is_some() {
             let scenario = file::scenario(&tree, &origin)?;
             let model = scenario.compile()?;
@@ -266,7 +270,8 @@ fn read_input(path: &Path) -> Result<(String, ModelKind, String)> {
     let kind = ModelKind::from_path(path).ok_or_else(|| Error::Input {
         file: origin.clone(),
         field: "file name".to_string(),
-        message: "unknown file type; use a .json or .toml extension".to_string(),
+        message: "unknown model file type; use a .json, .toml or .mps extension (scenarios: .json or .toml)"
+            .to_string(),
     })?;
     let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
         path: path.to_path_buf(),
