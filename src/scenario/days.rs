@@ -21,12 +21,15 @@ use super::file::unknown;
 use super::reader::{join, strip_position, Reader};
 use super::{Field, Scenario};
 use crate::error::{Error, Result};
+use crate::model::VALUE_LIMIT;
 use crate::solve::{ParsedLine, Variant};
 
 /// Parses JSON Lines of daily changes; each non-blank line gives its 1-based number and the
 /// day's variant or the error that spoils it.
 pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLine> {
     let mut seen: HashMap<String, usize> = HashMap::new();
+    let names = Names::of(scenario);
+    let mut working = scenario.clone();
     text.lines()
         .enumerate()
         .filter(|(_, l)| !l.trim().is_empty())
@@ -36,18 +39,22 @@ pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<Par
                 file: origin,
                 prefix: format!("line {number}: "),
             };
-            (number, day_line(scenario, &r, line, number, &mut seen))
+            let day = day_line(scenario, &names, &r, line, number, &mut seen)
+                .map(|(day, changes)| numbers_with(&mut working, &changes, &day));
+            (number, day)
         })
         .collect()
 }
 
+/// The name and the checked changes of one JSON line.
 fn day_line(
     scenario: &Scenario,
+    names: &Names,
     r: &Reader,
     line: &str,
     number: usize,
     seen: &mut HashMap<String, usize>,
-) -> Result<Variant> {
+) -> Result<(String, Vec<Change>)> {
     let value: Value = serde_json::from_str(line).map_err(|e| {
         r.error(
             "",
@@ -71,22 +78,108 @@ fn day_line(
         .ok_or_else(|| r.error("day", "missing; name the day"))?;
     let day = r.string(day, "day")?;
     remember_day(r, seen, day, number)?;
-    let mut changed = scenario.clone();
+    let mut changed = Vec::new();
     for (key, changes) in map.iter().filter(|(k, _)| *k != "day") {
         let field = Field::from_key(key).ok_or_else(|| r.error(key, "unknown field"))?;
         let entries = changes
             .as_object()
             .ok_or_else(|| r.error(key, "expected a table from names to values"))?;
         for (name, v) in entries {
-            let at = join(key, name);
             let value = match v {
                 Value::Null => None,
-                other => Some(r.int(other, &at)?),
+                other => match other
+                    .as_i64()
+                    .filter(|n| i128::from(*n).abs() <= VALUE_LIMIT)
+                {
+                    Some(n) => Some(n),
+                    None => Some(r.int(other, &join(key, name))?),
+                },
             };
-            set(&mut changed, r, field, name, value, &at)?;
+            changed.push(names.resolve(scenario, r, (field, key), name, value)?);
         }
     }
-    Ok(variant_numbers(&changed, day))
+    Ok((day.to_string(), changed))
+}
+
+/// One checked change: entry `index` of table `table` becomes `value`.
+#[derive(Clone, Copy, Debug)]
+struct Change {
+    table: usize,
+    index: usize,
+    value: Option<i64>,
+}
+
+/// The scenario's numbers with `changes` applied, as a variant named `id`. The changes are
+/// made on `working` (a copy of the scenario) and undone afterwards, so no day pays for a
+/// copy of every name.
+fn numbers_with(working: &mut Scenario, changes: &[Change], id: &str) -> Variant {
+    let before: Vec<Option<i64>> = changes
+        .iter()
+        .map(|c| std::mem::replace(&mut working.tables[c.table].values[c.index], c.value))
+        .collect();
+    let variant = variant_numbers(working, id);
+    for (c, old) in changes.iter().zip(before).rev() {
+        working.tables[c.table].values[c.index] = old;
+    }
+    variant
+}
+
+/// Where every name of every table of a scenario sits, for lookups in constant time.
+struct Names<'s> {
+    tables: Vec<HashMap<&'s str, usize>>,
+}
+
+impl<'s> Names<'s> {
+    fn of(scenario: &'s Scenario) -> Self {
+        let tables = scenario
+            .tables
+            .iter()
+            .map(|t| {
+                t.names
+                    .iter()
+                    .enumerate()
+                    .map(|(i, n)| (n.as_str(), i))
+                    .collect()
+            })
+            .collect();
+        Self { tables }
+    }
+
+    /// Checks one change of `field` (spelt `key` in the input) to the entry `name`: the
+    /// field, the name and the value; and locates it.
+    fn resolve(
+        &self,
+        s: &Scenario,
+        r: &Reader,
+        (field, key): (Field, &str),
+        name: &str,
+        value: Option<i64>,
+    ) -> Result<Change> {
+        let at = || join(key, name);
+        let table = s
+            .tables
+            .iter()
+            .position(|t| t.field == field)
+            .ok_or_else(|| r.error(field.key(), not_applicable(s.kind, field)))?;
+        let index = *self.tables[table].get(name).ok_or_else(|| {
+            r.error(
+                &at(),
+                unknown(what(s.kind, field), name, &s.tables[table].names),
+            )
+        })?;
+        match value {
+            None if field != Field::Capacity => return Err(r.error(&at(), "needs a number")),
+            Some(v) if v < 0 && field.is_quantity() => {
+                return Err(r.error(&at(), format!("{v} is negative")))
+            }
+            _ => {}
+        }
+        Ok(Change {
+            table,
+            index,
+            value,
+        })
+    }
 }
 
 /// Refuses a day named twice.
@@ -118,37 +211,6 @@ fn not_applicable(kind: super::ScenarioKind, field: Field) -> String {
     )
 }
 
-/// Overwrites one value of `field`, checking the field, the name and the value.
-fn set(
-    s: &mut Scenario,
-    r: &Reader,
-    field: Field,
-    name: &str,
-    value: Option<i64>,
-    at: &str,
-) -> Result<()> {
-    let kind = s.kind;
-    let table = s
-        .tables
-        .iter_mut()
-        .find(|t| t.field == field)
-        .ok_or_else(|| r.error(field.key(), not_applicable(kind, field)))?;
-    let index = table
-        .names
-        .iter()
-        .position(|n| n == name)
-        .ok_or_else(|| r.error(at, unknown(what(kind, field), name, &table.names)))?;
-    match value {
-        None if field != Field::Capacity => return Err(r.error(at, "needs a number")),
-        Some(v) if v < 0 && field.is_quantity() => {
-            return Err(r.error(at, format!("{v} is negative")))
-        }
-        _ => {}
-    }
-    table.values[index] = value;
-    Ok(())
-}
-
 /// What the names of `field` are, for messages.
 fn what(kind: super::ScenarioKind, field: Field) -> &'static str {
     let per_product = kind == super::ScenarioKind::ProductLines;
@@ -162,10 +224,10 @@ fn what(kind: super::ScenarioKind, field: Field) -> &'static str {
     }
 }
 
-/// One day gathered from CSV rows: where it first appears and its changed scenario.
+/// One day gathered from CSV rows: where it first appears and its checked changes.
 struct CsvDay {
     line: usize,
-    result: Result<Scenario>,
+    result: Result<Vec<Change>>,
 }
 
 /// Parses CSV daily changes (`day,field,name,value`); one entry per day, numbered by the line
@@ -191,7 +253,9 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
         };
         return vec![(line, Err(error))];
     }
+    let names = Names::of(scenario);
     let mut order: Vec<(String, CsvDay)> = Vec::new();
+    let mut position: HashMap<String, usize> = HashMap::new();
     let mut out_of_day: Vec<ParsedLine> = Vec::new();
     for (i, line) in rows {
         let r = Reader {
@@ -211,27 +275,29 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
             out_of_day.push((i + 1, Err(r.error("day", "a day needs a name"))));
             continue;
         }
-        let k = match order.iter().position(|(d, _)| d == day) {
-            Some(k) => k,
-            None => {
-                let fresh = CsvDay {
-                    line: i + 1,
-                    result: Ok(scenario.clone()),
-                };
-                order.push((day.to_string(), fresh));
-                order.len() - 1
-            }
-        };
+        let k = *position.entry(day.to_string()).or_insert_with(|| {
+            let fresh = CsvDay {
+                line: i + 1,
+                result: Ok(Vec::new()),
+            };
+            order.push((day.to_string(), fresh));
+            order.len() - 1
+        });
         let slot = &mut order[k].1;
-        if let Ok(s) = &mut slot.result {
-            if let Err(e) = csv_change(s, &r, field, name, value) {
-                slot.result = Err(e);
+        if let Ok(changes) = &mut slot.result {
+            match csv_change(scenario, &names, &r, field, name, value) {
+                Ok(change) => changes.push(change),
+                Err(e) => slot.result = Err(e),
             }
         }
     }
+    let mut working = scenario.clone();
     let mut out: Vec<ParsedLine> = order
         .into_iter()
-        .map(|(day, d)| (d.line, d.result.map(|s| variant_numbers(&s, &day))))
+        .map(|(day, d)| {
+            let variant = d.result.map(|c| numbers_with(&mut working, &c, &day));
+            (d.line, variant)
+        })
         .chain(out_of_day)
         .collect();
     out.sort_by_key(|(line, _)| *line);
@@ -246,7 +312,14 @@ fn is_header(line: &str) -> bool {
     cells == ["day", "field", "name", "value"]
 }
 
-fn csv_change(s: &mut Scenario, r: &Reader, field: &str, name: &str, value: &str) -> Result<()> {
+fn csv_change(
+    s: &Scenario,
+    names: &Names,
+    r: &Reader,
+    field: &str,
+    name: &str,
+    value: &str,
+) -> Result<Change> {
     let f = Field::from_key(field).ok_or_else(|| {
         let fields: Vec<&str> = s.kind.fields().iter().map(|f| f.key()).collect();
         r.error(
@@ -262,9 +335,9 @@ fn csv_change(s: &mut Scenario, r: &Reader, field: &str, name: &str, value: &str
             value
                 .parse::<i64>()
                 .ok()
-                .filter(|v| i128::from(*v).abs() <= crate::model::VALUE_LIMIT)
+                .filter(|v| i128::from(*v).abs() <= VALUE_LIMIT)
                 .ok_or_else(|| r.error(&at, format!("{value:?} is not an integer within ±2^62")))?,
         )
     };
-    set(s, r, f, name, parsed, &at)
+    names.resolve(s, r, (f, field), name, parsed)
 }
