@@ -75,11 +75,12 @@ impl MoveSet {
                 width,
             });
         }
+        let nonzeros = dense.iter().filter(|&&v| v != 0).count();
         let mut set = MoveSet {
             width,
             starts: Vec::with_capacity(count + 1),
-            indices: Vec::new(),
-            values: Vec::new(),
+            indices: Vec::with_capacity(nonzeros),
+            values: Vec::with_capacity(nonzeros),
             norms: Vec::with_capacity(count),
             patterns: Vec::with_capacity(count * 2 * width.div_ceil(64)),
             words: width.div_ceil(64),
@@ -115,7 +116,7 @@ impl MoveSet {
         let row = &self.dense[index * self.width..(index + 1) * self.width];
         let mut norm: i64 = 0;
         let at = self.patterns.len();
-        self.patterns.resize(at + 2 * self.words, 0);
+        self.patterns.extend(std::iter::repeat_n(0, 2 * self.words));
         for (i, &v) in row.iter().enumerate() {
             if v != 0 {
                 let half = if v > 0 { 0 } else { self.words };
