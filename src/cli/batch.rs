@@ -290,7 +290,8 @@ fn write_results(
                     seconds: r.elapsed.as_secs_f64(),
                     plan: answer.map(|(_, x)| Plan { names, x }),
                 };
-                writeln!(out, "{}", serde_json::to_string(&record)?)?;
+                serde_json::to_writer(&mut *out, &record)?;
+                writeln!(out)?;
             }
         }
         Format::Csv => write_csv(out, results, names)?,

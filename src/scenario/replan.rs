@@ -119,17 +119,21 @@ impl Run<'_> {
         if (self.cancel)() {
             return (finish(DayOutcome::NotRun), None);
         }
-        let day_model = match parsed.and_then(|v| v.apply(self.model, self.origin)) {
-            Ok(m) => m,
+        let variant = match parsed {
+            Ok(v) => v,
             Err(e) => return (finish(DayOutcome::Failed(e)), None),
         };
-        let solved = self
-            .prepared
-            .solve(&day_model, &self.settings.options, warm, self.cancel);
+        let numbers = match variant.numbers(self.model, self.origin) {
+            Ok(n) => n,
+            Err(e) => return (finish(DayOutcome::Failed(e)), None),
+        };
+        let solved =
+            self.prepared
+                .solve_numbers(numbers, &self.settings.options, warm, self.cancel);
         let outcome = match solved {
             Ok(verdict) => DayOutcome::Solved(verdict),
             Err(e) => DayOutcome::Failed(e),
         };
-        (finish(outcome), Some(day_model.rhs))
+        (finish(outcome), Some(numbers.rhs.to_vec()))
     }
 }

@@ -12,6 +12,7 @@ use augment::{Coverage, Objective, Options, Problem, Solution};
 use cache::Completeness;
 
 use super::rounding::Rounding;
+use super::variant::Numbers;
 use crate::completion::MoveSet;
 use crate::error::{Error, Result};
 use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution, QuickSolver};
@@ -96,18 +97,29 @@ impl Prepared {
         warm: Option<&WarmStart>,
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
-        let mut start = match self.start_point(&model.rhs, warm)? {
+        self.solve_numbers(Numbers::of(model), options, warm, cancel)
+    }
+
+    /// Solves the instance with these numbers of the prepared matrix, from `warm` if given.
+    pub fn solve_numbers(
+        &self,
+        numbers: Numbers<'_>,
+        options: &Options,
+        warm: Option<&WarmStart>,
+        cancel: &dyn Fn() -> bool,
+    ) -> Result<Verdict> {
+        let mut start = match self.start_point(numbers.rhs, warm)? {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
         if warm.is_none() {
             self.rounding
-                .towards_box(&mut start, &model.rhs, &model.lower, &model.upper)?;
+                .towards_box(&mut start, numbers.rhs, numbers.lower, numbers.upper)?;
         }
         let problem = Problem::new(
-            Objective::linear(model.cost.clone()),
-            model.lower.clone(),
-            model.upper.clone(),
+            Objective::linear(numbers.cost.to_vec()),
+            numbers.lower.to_vec(),
+            numbers.upper.to_vec(),
         )?;
         let solution = augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?;
         Ok(Verdict::Solved(solution))

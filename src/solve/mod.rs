@@ -5,4 +5,4 @@ mod rounding;
 mod variant;
 
 pub use instance::{coverage_of, Prepared, Verdict, WarmStart};
-pub use variant::{parse_lines, ParsedLine, Variant};
+pub use variant::{parse_lines, Numbers, ParsedLine, Variant};

@@ -47,38 +47,72 @@ pub fn parse_lines(text: &str, origin: &str) -> Vec<ParsedLine> {
 }
 
 impl Variant {
-    /// The model with this variant's numbers, checked for lengths and empty ranges.
+    /// The model with this variant's numbers, checked for lengths.
     pub fn apply(&self, model: &Model, origin: &str) -> Result<Model> {
-        let mut out = model.clone();
-        let field = |name: &str| format!("variant {:?}: {name}", self.id);
+        let numbers = self.numbers(model, origin)?;
+        Ok(Model {
+            rhs: numbers.rhs.to_vec(),
+            cost: numbers.cost.to_vec(),
+            lower: numbers.lower.to_vec(),
+            upper: numbers.upper.to_vec(),
+            ..model.clone()
+        })
+    }
+
+    /// This variant's numbers over `model` (the model's where the variant gives none), checked
+    /// for lengths; nothing is copied.
+    pub fn numbers<'a>(&'a self, model: &'a Model, origin: &str) -> Result<Numbers<'a>> {
         let check = |name: &str, len: usize, want: usize| {
             if len == want {
                 Ok(())
             } else {
                 Err(Error::Input {
                     file: origin.to_string(),
-                    field: field(name),
+                    field: format!("variant {:?}: {name}", self.id),
                     message: format!("has {len} entries, the model needs {want}"),
                 })
             }
         };
-        if let Some(rhs) = &self.rhs {
-            check("rhs", rhs.len(), model.constraints())?;
-            out.rhs = rhs.clone();
+        let (m, n) = (model.constraints(), model.variables());
+        let rhs = self.rhs.as_deref().unwrap_or(&model.rhs);
+        let cost = self.cost.as_deref().unwrap_or(&model.cost);
+        let lower = self.lower.as_deref().unwrap_or(&model.lower);
+        let upper = self.upper.as_deref().unwrap_or(&model.upper);
+        check("rhs", rhs.len(), m)?;
+        check("cost", cost.len(), n)?;
+        check("lower", lower.len(), n)?;
+        check("upper", upper.len(), n)?;
+        Ok(Numbers {
+            rhs,
+            cost,
+            lower,
+            upper,
+        })
+    }
+}
+
+/// The numbers of one instance of a model's matrix: what changes from day to day.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Numbers<'a> {
+    /// Right-hand side `b`.
+    pub rhs: &'a [i64],
+    /// Linear cost `c`.
+    pub cost: &'a [i64],
+    /// Lower bounds, `None` for none.
+    pub lower: &'a [Option<i64>],
+    /// Upper bounds, `None` for none.
+    pub upper: &'a [Option<i64>],
+}
+
+impl<'a> Numbers<'a> {
+    /// The model's own numbers.
+    pub fn of(model: &'a Model) -> Self {
+        Self {
+            rhs: &model.rhs,
+            cost: &model.cost,
+            lower: &model.lower,
+            upper: &model.upper,
         }
-        if let Some(cost) = &self.cost {
-            check("cost", cost.len(), model.variables())?;
-            out.cost = cost.clone();
-        }
-        if let Some(lower) = &self.lower {
-            check("lower", lower.len(), model.variables())?;
-            out.lower = lower.clone();
-        }
-        if let Some(upper) = &self.upper {
-            check("upper", upper.len(), model.variables())?;
-            out.upper = upper.clone();
-        }
-        Ok(out)
     }
 }
 
