@@ -17,25 +17,10 @@ fn main() -> ExitCode {
         Ok(code) => code,
         Err(err) if is_broken_pipe(&err) => ExitCode::SUCCESS,
         Err(err) => {
-            eprintln!("kernstep: {}", render_chain(&err));
+            eprintln!("kernstep: {}", cli::render_chain(&err));
             ExitCode::from(2)
         }
     }
-}
-
-/// The error and its causes joined by `: `, skipping a cause whose text the message before
-/// it already shows (errors that print their source themselves).
-fn render_chain(err: &anyhow::Error) -> String {
-    let mut text = String::new();
-    for cause in err.chain() {
-        let part = cause.to_string();
-        if text.is_empty() {
-            text = part;
-        } else if !text.contains(&part) {
-            text = format!("{text}: {part}");
-        }
-    }
-    text
 }
 
 fn is_broken_pipe(err: &anyhow::Error) -> bool {

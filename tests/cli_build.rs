@@ -153,6 +153,23 @@ fn a_bad_model_among_good_ones_exits_2_and_the_others_are_stored() {
 }
 
 #[test]
+fn a_missing_model_fails_with_the_os_error_said_once() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let missing = cache_dir.path().join("absent.json");
+    let rows = json(
+        cache_dir.path(),
+        &["build", path_str(&missing), "--json"],
+        2,
+    );
+    let status = rows[0]["status"].as_str().unwrap();
+    assert!(
+        status.starts_with("failed: ") && status.contains("absent.json"),
+        "{status}"
+    );
+    assert_eq!(status.matches("(os error 2)").count(), 1, "{status}");
+}
+
+#[test]
 fn rebuild_replaces_a_valid_entry_with_an_equal_one() {
     let cache_dir = tempfile::tempdir().unwrap();
     let model = examples().join("transport_3x3.json");

@@ -19,7 +19,9 @@ use kernstep::testset::{
 };
 use serde::Serialize;
 
-use super::common::{interrupted, model_paths, with_threads, write_atomically, CacheArgs};
+use super::common::{
+    interrupted, model_paths, render_chain, with_threads, write_atomically, CacheArgs,
+};
 use super::table::write_table;
 
 /// Arguments of `build`.
@@ -231,7 +233,7 @@ fn build_one(args: &BuildArgs, path: &Path) -> Row {
     };
     match try_build(args, path, &mut row) {
         Ok(status) => row.status = status,
-        Err(e) => row.status = format!("failed: {e:#}"),
+        Err(e) => row.status = format!("failed: {}", render_chain(&e)),
     }
     row.seconds = start.elapsed().as_secs_f64();
     row

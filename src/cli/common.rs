@@ -30,6 +30,21 @@ impl CacheArgs {
     }
 }
 
+/// The error and its causes joined by `: `, skipping a cause whose text the message before
+/// it already shows (errors that print their source themselves).
+pub fn render_chain(err: &anyhow::Error) -> String {
+    let mut text = String::new();
+    for cause in err.chain() {
+        let part = cause.to_string();
+        if text.is_empty() {
+            text = part;
+        } else if !text.contains(&part) {
+            text = format!("{text}: {part}");
+        }
+    }
+    text
+}
+
 /// A flag set by Ctrl-C or SIGTERM (the handler is installed on first use).
 pub fn interrupted() -> &'static AtomicBool {
     static FLAG: OnceLock<&'static AtomicBool> = OnceLock::new();
@@ -140,7 +155,10 @@ pub fn graver_for(
     let library = match cache.open() {
         Ok(library) => library,
         Err(e) if build_on_miss => {
-            eprintln!("kernstep: warning: {e:#}; building without the cache");
+            eprintln!(
+                "kernstep: warning: {}; building without the cache",
+                render_chain(&e)
+            );
             return build_uncached(model, &analysis, &spec);
         }
         Err(e) => return Err(e),

@@ -107,7 +107,10 @@ fn obtain_set(model: &Model, cache: &CacheArgs) -> anyhow::Result<SolverSet> {
     match super::common::graver_for(model, Path::new(SCENARIO_PATH), cache, true) {
         Ok(set) => Ok(set),
         Err(e) => {
-            eprintln!("kernstep: warning: {e:#}; building the test set in memory");
+            eprintln!(
+                "kernstep: warning: {}; building the test set in memory",
+                super::common::render_chain(&e)
+            );
             in_memory(model)
         }
     }

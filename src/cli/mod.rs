@@ -19,6 +19,7 @@ mod trace;
 use std::process::ExitCode;
 
 use args::{Cli, Command};
+pub use common::render_chain;
 
 /// Runs the verb chosen on the command line and returns the exit code its outcome maps to.
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
