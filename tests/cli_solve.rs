@@ -162,6 +162,26 @@ fn lane_plan_optimum_and_certificate_in_words() {
 }
 
 #[test]
+fn a_norm_truncated_set_is_used_when_no_complete_one_is_stored_and_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let cache = dir.path().display().to_string();
+    let model = example("transport_3x3.json");
+    // K_{3,3}: 9 four-cycles (norm 4) and 6 six-cycles; the Graver basis is its 15 circuits.
+    let build = ["build", &model, "--norm-limit", "4", "--cache-dir", &cache];
+    assert_eq!(kernstep(&build).status.code(), Some(0));
+    let out = kernstep(&["solve", &model, "--json", "--cache-dir", &cache]);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let partial: Value = serde_json::from_str(&stdout(&out)).unwrap();
+    assert_eq!(partial["status"]["tag"], "optimal_for_moves_up_to");
+    assert_eq!(partial["status"]["norm"], 4);
+    assert_eq!(partial["set"]["moves"], 9);
+    // Once the complete set is stored it is preferred, and the answer is certified.
+    let (_, full) = solve_json(&model, dir.path(), &[]);
+    assert_eq!(full["status"]["tag"], "optimal");
+    assert_eq!(full["set"]["moves"], 15);
+}
+
+#[test]
 fn cache_miss_needs_build_then_the_cache_is_used() {
     let dir = tempfile::tempdir().unwrap();
     let cache = dir.path().display().to_string();

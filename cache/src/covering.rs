@@ -26,6 +26,17 @@ impl Store {
     /// headers (family digest first) and fully checked before one is returned; damaged ones
     /// are reported in [`CoverSearch::damaged`] and never returned.
     pub fn find_covering(&self, wanted: &EntryKey) -> Result<CoverSearch, CacheError> {
+        self.search_covering(wanted, false)
+    }
+
+    /// Like [`Store::find_covering`], but preferring the most elements: the widest stored
+    /// truncation that still covers `wanted` (used to fall back on the largest norm-truncated
+    /// set when no complete one is stored).
+    pub fn find_largest_covering(&self, wanted: &EntryKey) -> Result<CoverSearch, CacheError> {
+        self.search_covering(wanted, true)
+    }
+
+    fn search_covering(&self, wanted: &EntryKey, largest: bool) -> Result<CoverSearch, CacheError> {
         wanted.validate()?;
         let family = wanted.family();
         let mut search = CoverSearch::default();
@@ -41,6 +52,9 @@ impl Store {
             }
         }
         candidates.sort();
+        if largest {
+            candidates.reverse();
+        }
         for (_, digest) in candidates {
             match self.load_if_present(digest) {
                 Ok(Some(set)) if set.key.covers(wanted) => {

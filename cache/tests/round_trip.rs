@@ -252,6 +252,40 @@ fn covering_entry_is_found_for_a_smaller_box() {
 }
 
 #[test]
+fn the_largest_covering_entry_is_the_widest_norm_truncation() {
+    let (_dir, store) = store();
+    let norm = |limit: u64| Truncation {
+        norm_limit: Some(limit),
+        bounds: None,
+    };
+    for (limit, count, seed) in [(4, 5, 1), (8, 9, 2), (6, 2, 3)] {
+        store
+            .insert(
+                &key("lanes", 4, norm(limit)),
+                &transport_like(count, 2, 2, seed),
+                &metadata(seed),
+            )
+            .unwrap();
+    }
+    let any = key("lanes", 4, norm(1));
+    assert_eq!(
+        store
+            .find_largest_covering(&any)
+            .unwrap()
+            .found
+            .unwrap()
+            .key,
+        key("lanes", 4, norm(8))
+    );
+    assert_eq!(
+        store.find_covering(&any).unwrap().found.unwrap().key,
+        key("lanes", 4, norm(6))
+    );
+    let above = key("lanes", 4, norm(9));
+    assert!(store.find_largest_covering(&above).unwrap().found.is_none());
+}
+
+#[test]
 fn prune_removes_old_entries_only() {
     let (_dir, store) = store();
     let now = std::time::SystemTime::now()

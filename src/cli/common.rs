@@ -172,14 +172,20 @@ pub fn graver_for(
     .resolve(model, &analysis)?;
     for candidate in [&spec, &boxed] {
         if let Some(stored) = library.find(&entry_key(&model.matrix, candidate))? {
-            return Ok(SolverSet {
-                set: from_data(&stored.data),
-                coverage: coverage_of(&stored.metadata.completeness),
-                source: SetSource::Cached(stored.digest.to_hex()),
-            });
+            return Ok(cached(&stored));
         }
     }
     if !build_on_miss {
+        // Else the largest set truncated by norm alone (e.g. `build --norm-limit N`): its
+        // answers say "optimal among moves of norm <= N", never plain "optimal".
+        let mut by_norm = entry_key(&model.matrix, &spec);
+        by_norm.truncation = cache::Truncation {
+            norm_limit: Some(1),
+            bounds: None,
+        };
+        if let Some(stored) = library.find_largest(&by_norm)? {
+            return Ok(cached(&stored));
+        }
         let dir = cache
             .cache_dir
             .as_ref()
@@ -193,17 +199,22 @@ pub fn graver_for(
     }
     let control = Control::new().cancel_flag(interrupted());
     match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
-        Obtained::Reused(stored) => Ok(SolverSet {
-            set: from_data(&stored.data),
-            coverage: coverage_of(&stored.metadata.completeness),
-            source: SetSource::Cached(stored.digest.to_hex()),
-        }),
+        Obtained::Reused(stored) => Ok(cached(&stored)),
         Obtained::Built { built, .. } => Ok(SolverSet {
             coverage: coverage_of(&built.metadata.completeness),
             set: built.set,
             source: SetSource::Built,
         }),
         Obtained::Stopped(reason) => anyhow::bail!("building the test set stopped: {reason:?}"),
+    }
+}
+
+/// The solver's view of a stored set.
+fn cached(stored: &cache::StoredSet) -> SolverSet {
+    SolverSet {
+        set: from_data(&stored.data),
+        coverage: coverage_of(&stored.metadata.completeness),
+        source: SetSource::Cached(stored.digest.to_hex()),
     }
 }
 

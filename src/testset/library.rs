@@ -54,6 +54,11 @@ impl SetLibrary {
         Ok(self.store.find_covering(key)?.found)
     }
 
+    /// The stored set with the most elements that covers `key`, skipping damaged entries.
+    pub fn find_largest(&self, key: &EntryKey) -> Result<Option<StoredSet>> {
+        Ok(self.store.find_largest_covering(key)?.found)
+    }
+
     /// Returns the stored set for `spec`, or builds and stores it. Two processes asking for
     /// the same key build it once: the second waits and then reuses the first one's entry.
     /// With `rebuild` an existing entry is replaced.
