@@ -5,7 +5,9 @@ use cache::{Completeness, SetKind};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, Sign};
 use kernstep::model::{Model, ModelKind};
-use kernstep::testset::{from_data, BoxPolicy, BuildSpec, NormLimit, Obtained, SetLibrary};
+use kernstep::testset::{
+    default_graver_key, entry_key, from_data, BoxPolicy, BuildSpec, NormLimit, Obtained, SetLibrary,
+};
 use kernstep::IntMatrix;
 
 fn model(rows: &[Vec<i64>], upper: i64) -> Model {
@@ -115,4 +117,33 @@ fn signs_and_truncations_make_their_own_entries() {
     assert!(matches!(obtain(&lib, &m, &boxed), Obtained::Reused(_)));
     assert!(matches!(obtain(&lib, &m, &short), Obtained::Reused(_)));
     assert_eq!(lib.store().list().unwrap().len(), 3);
+}
+
+#[test]
+fn the_lookup_key_without_analysis_equals_the_resolved_default_key() {
+    // A unimodular transport matrix, and a non-unimodular one (Delta = 4) with a norm bound
+    // far above its shortest moves; each without and with a finite box.
+    for rows in [transport(), vec![vec![1, 2, 3, 4], vec![4, 3, 2, 1]]] {
+        for upper in [None, Some(7)] {
+            let n = rows[0].len();
+            let text = serde_json::json!({
+                "matrix": rows, "rhs": vec![0; rows.len()], "lower": vec![0; n],
+                "upper": vec![upper; n],
+            });
+            let m = Model::from_str(&text.to_string(), ModelKind::Json, "test.json").unwrap();
+            let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+            for bounds in [BoxPolicy::Unlimited, BoxPolicy::FromBounds] {
+                let spec = BuildSpec {
+                    bounds,
+                    ..BuildSpec::default()
+                };
+                let resolved = spec.resolve(&m, &analysis).unwrap();
+                assert_eq!(
+                    default_graver_key(&m, bounds),
+                    entry_key(&m.matrix, &resolved),
+                    "{rows:?} upper {upper:?} {bounds:?}"
+                );
+            }
+        }
+    }
 }

@@ -7,12 +7,15 @@ use std::sync::OnceLock;
 
 use anyhow::Context;
 use augment::Coverage;
+use cache::EntryKey;
 use clap::Args;
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, MoveSet};
 use kernstep::model::Model;
 use kernstep::solve::coverage_of;
-use kernstep::testset::{entry_key, from_data, BoxPolicy, BuildSpec, Obtained, SetLibrary};
+use kernstep::testset::{
+    default_graver_key, from_data, BoxPolicy, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
+};
 
 /// The cache directory option of every verb that reads or writes test sets.
 #[derive(Debug, Clone, Args)]
@@ -150,8 +153,12 @@ pub fn graver_for(
     cache: &CacheArgs,
     build_on_miss: bool,
 ) -> anyhow::Result<SolverSet> {
-    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
-    let spec = BuildSpec::default().resolve(model, &analysis)?;
+    // The analysis (subdeterminants) is only needed to build; lookups use keys without it.
+    let resolve = || -> anyhow::Result<(MatrixAnalysis, ResolvedSpec)> {
+        let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+        let spec = BuildSpec::default().resolve(model, &analysis)?;
+        Ok((analysis, spec))
+    };
     let library = match cache.open() {
         Ok(library) => library,
         Err(e) if build_on_miss => {
@@ -159,29 +166,28 @@ pub fn graver_for(
                 "kernstep: warning: {}; building without the cache",
                 render_chain(&e)
             );
+            let (analysis, spec) = resolve()?;
             return build_uncached(model, &analysis, &spec);
         }
         Err(e) => return Err(e),
     };
     // The complete set first; else a set truncated to a box that holds this instance's box
     // (a test set for every instance inside it).
-    let boxed = BuildSpec {
-        bounds: BoxPolicy::FromBounds,
-        ..BuildSpec::default()
-    }
-    .resolve(model, &analysis)?;
-    for candidate in [&spec, &boxed] {
-        if let Some(stored) = library.find(&entry_key(&model.matrix, candidate))? {
+    let complete = default_graver_key(model, BoxPolicy::Unlimited);
+    for key in [&complete, &default_graver_key(model, BoxPolicy::FromBounds)] {
+        if let Some(stored) = library.find(key)? {
             return Ok(cached(&stored));
         }
     }
     if !build_on_miss {
         // Else the largest set truncated by norm alone (e.g. `build --norm-limit N`): its
         // answers say "optimal among moves of norm <= N", never plain "optimal".
-        let mut by_norm = entry_key(&model.matrix, &spec);
-        by_norm.truncation = cache::Truncation {
-            norm_limit: Some(1),
-            bounds: None,
+        let by_norm = EntryKey {
+            truncation: cache::Truncation {
+                norm_limit: Some(1),
+                bounds: None,
+            },
+            ..complete
         };
         if let Some(stored) = library.find_largest(&by_norm)? {
             return Ok(cached(&stored));
@@ -197,6 +203,7 @@ pub fn graver_for(
             input.display()
         );
     }
+    let (analysis, spec) = resolve()?;
     let control = Control::new().cancel_flag(interrupted());
     match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
         Obtained::Reused(stored) => Ok(cached(&stored)),
@@ -221,7 +228,7 @@ fn cached(stored: &cache::StoredSet) -> SolverSet {
 fn build_uncached(
     model: &Model,
     analysis: &MatrixAnalysis,
-    spec: &kernstep::testset::ResolvedSpec,
+    spec: &ResolvedSpec,
 ) -> anyhow::Result<SolverSet> {
     let control = Control::new().cancel_flag(interrupted());
     match kernstep::testset::build(&model.matrix, analysis, spec, &control, None)? {

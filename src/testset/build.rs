@@ -4,7 +4,7 @@ use std::time::Instant;
 
 use cache::{EntryKey, SetMetadata, TestSetData};
 
-use super::spec::ResolvedSpec;
+use super::spec::{model_box, BoxPolicy, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{
     complete_kernel, Checkpoint, Completion, Control, Method, MoveSet, Request, Sign,
@@ -12,6 +12,7 @@ use crate::completion::{
 use crate::error::Result;
 use crate::lattice::RowSpaceKey;
 use crate::matrix::IntMatrix;
+use crate::model::Model;
 
 /// A finished set with everything the cache stores about it.
 #[derive(Clone, Debug, PartialEq)]
@@ -45,6 +46,25 @@ pub fn entry_key(a: &IntMatrix, spec: &ResolvedSpec) -> EntryKey {
         truncation: cache::Truncation {
             norm_limit: spec.key_truncation.norm_limit,
             bounds: spec.key_truncation.bounds.clone(),
+        },
+    }
+}
+
+/// The key of `model`'s default Graver basis (all signs free, the norm limit `auto`), complete
+/// or truncated to the model's box: what solving looks up first. The automatic norm limit is
+/// the proven bound, which truncates nothing, so unlike [`entry_key`] of a resolved spec this
+/// needs no analysis of the matrix (no subdeterminants).
+pub fn default_graver_key(model: &Model, bounds: BoxPolicy) -> EntryKey {
+    EntryKey {
+        row_space: RowSpaceKey::of(&model.matrix).canonical_text(),
+        kind: cache::SetKind::Graver,
+        signs: vec![cache::Sign::Free; model.variables()],
+        truncation: cache::Truncation {
+            norm_limit: None,
+            bounds: match bounds {
+                BoxPolicy::FromBounds => model_box(model),
+                BoxPolicy::Unlimited => None,
+            },
         },
     }
 }

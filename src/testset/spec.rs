@@ -133,7 +133,7 @@ impl BuildSpec {
 
 /// `u_i - l_i` per variable (`u64::MAX` where a bound is infinite); `None` if no variable
 /// has both bounds.
-fn model_box(model: &Model) -> Option<Vec<u64>> {
+pub(crate) fn model_box(model: &Model) -> Option<Vec<u64>> {
     let widths: Vec<u64> = model
         .lower
         .iter()
