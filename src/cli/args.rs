@@ -43,7 +43,7 @@ pub enum Command {
 /// Arguments of `analyze`.
 #[derive(Debug, Args)]
 pub struct AnalyzeArgs {
-    /// The model file (.json or .toml).
+    /// The model file (.json, .toml or .mps), or a transport scenario file (its compiled matrix).
     pub model: PathBuf,
     /// Print every figure as JSON instead of a table.
     #[arg(long)]
