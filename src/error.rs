@@ -35,10 +35,33 @@ pub enum Error {
         /// The underlying error.
         source: std::io::Error,
     },
+    /// The instance's box is wider than the box the test set was truncated to, so the set is
+    /// no test set for it (`variable` is the column index).
+    #[error(
+        "variable {variable}: its range ({}) is wider than the box the test set was truncated to (width {limit}), so the set is no test set here; build the complete set (without --box)",
+        range_text(*width)
+    )]
+    BeyondSetBox {
+        /// The first variable whose range is too wide.
+        variable: usize,
+        /// `u - l` of the instance (`u64::MAX` when unbounded).
+        width: u64,
+        /// The width the set was truncated to.
+        limit: u64,
+    },
     /// The test-set cache refused an operation or found a damaged entry.
     #[error(transparent)]
     Cache(#[from] cache::CacheError),
     /// The augmentation solver rejected its input or hit an arithmetic limit.
     #[error(transparent)]
     Augment(#[from] augment::AugmentError),
+}
+
+/// `u - l` in words for [`Error::BeyondSetBox`].
+fn range_text(width: u64) -> String {
+    if width == u64::MAX {
+        "unbounded".to_string()
+    } else {
+        format!("width {width}")
+    }
 }

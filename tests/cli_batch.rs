@@ -330,6 +330,30 @@ fn without_a_cached_set_batch_says_what_to_build_and_that_build_serves_it() {
 }
 
 #[test]
+fn a_box_truncated_set_refuses_days_whose_box_is_wider() {
+    let cache = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let days = scenarios().join("brackle_lanes_days.jsonl");
+    let s = scenario.to_str().unwrap();
+    expect(cache.path(), &["build", s, "--box", "auto"], 0);
+    // Day 2026-03-09 lifts the capacity of tannery->north_bank: its range is then unbounded,
+    // wider than the box the set was built for, so no answer may claim optimality.
+    let (stdout, stderr) = expect(cache.path(), &["batch", s, days.to_str().unwrap()], 2);
+    let got = records(&stdout);
+    assert_eq!(got.len(), 8);
+    for r in &got {
+        if r["day"] == "2026-03-09" {
+            assert_eq!(r["status"], "error", "{r}");
+            let detail = r["detail"].as_str().unwrap();
+            assert!(detail.contains("wider than the box"), "{detail}");
+        } else {
+            assert_ne!(r["status"], "error", "{r}");
+        }
+    }
+    assert!(stderr.contains("build the complete set"), "{stderr}");
+}
+
+#[test]
 fn ctrl_c_writes_the_finished_days_and_counts_the_others() {
     let dir = tempfile::tempdir().unwrap();
     let scenario = scenarios().join("vell_valley.toml");

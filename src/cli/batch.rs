@@ -75,7 +75,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let model = input.model();
     let set = graver_for(model, &args.input, &args.cache, args.build)?;
     let started = Instant::now();
-    let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+    let prepared = set.prepare(&model.matrix)?;
     let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
     let wall = started.elapsed();
     for error in results.iter().filter_map(failure) {

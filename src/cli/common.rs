@@ -12,7 +12,7 @@ use clap::Args;
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, MoveSet};
 use kernstep::model::Model;
-use kernstep::solve::coverage_of;
+use kernstep::solve::{coverage_of, Prepared};
 use kernstep::testset::{
     default_graver_key, from_data, BoxPolicy, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
@@ -143,6 +143,16 @@ pub struct SolverSet {
     pub coverage: Coverage,
     /// Where it came from.
     pub source: SetSource,
+    /// The box the set was truncated to, if any (it serves only instances inside it).
+    pub box_limit: Option<Vec<u64>>,
+}
+
+impl SolverSet {
+    /// The set prepared for solving instances of `matrix`, refusing instances wider than its
+    /// box.
+    pub fn prepare(&self, matrix: &kernstep::IntMatrix) -> kernstep::Result<Prepared> {
+        Ok(Prepared::new(matrix, &self.set, self.coverage)?.with_box_limit(self.box_limit.clone()))
+    }
 }
 
 /// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
@@ -211,6 +221,7 @@ pub fn graver_for(
             coverage: coverage_of(&built.metadata.completeness),
             set: built.set,
             source: SetSource::Built,
+            box_limit: None,
         }),
         Obtained::Stopped(reason) => anyhow::bail!("building the test set stopped: {reason:?}"),
     }
@@ -222,6 +233,7 @@ fn cached(stored: &cache::StoredSet) -> SolverSet {
         set: from_data(&stored.data),
         coverage: coverage_of(&stored.metadata.completeness),
         source: SetSource::Cached(stored.digest.to_hex()),
+        box_limit: stored.key.truncation.bounds.clone(),
     }
 }
 
@@ -236,6 +248,7 @@ fn build_uncached(
             coverage: coverage_of(&built.metadata.completeness),
             set: built.set,
             source: SetSource::Built,
+            box_limit: None,
         }),
         kernstep::testset::BuildOutcome::Stopped(reason) => {
             anyhow::bail!("building the test set stopped: {reason:?}")

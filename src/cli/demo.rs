@@ -59,7 +59,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     let started = Instant::now();
     let set = obtain_set(&model, &args.cache)?;
     let set_seconds = started.elapsed().as_secs_f64();
-    let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+    let prepared = set.prepare(&model.matrix)?;
     let results = solve_days(&prepared, &model, days, false, None, Path::new(DAYS_PATH))?;
     let tally = Tally::of(&results);
     let highlight = highlight_day(&results);
@@ -125,6 +125,7 @@ fn in_memory(model: &Model) -> anyhow::Result<SolverSet> {
             coverage: coverage_of(&built.metadata.completeness),
             set: built.set,
             source: SetSource::Built,
+            box_limit: None,
         }),
         BuildOutcome::Stopped(reason) => {
             anyhow::bail!("building the test set stopped: {reason:?}")

@@ -97,7 +97,7 @@ impl InstanceArgs {
             .map(read_warm_start)
             .transpose()?;
         let set = graver_for(&model, &self.model, &self.cache, self.build)?;
-        let prepared = Prepared::new(&model.matrix, &set.set, set.coverage)?;
+        let prepared = set.prepare(&model.matrix)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,
             StrategyArg::First => Rule::FirstImproving,

@@ -30,6 +30,7 @@ pub struct Prepared {
     quick: Option<QuickSolver>,
     rounding: Rounding,
     moves: augment::MoveSet,
+    box_limit: Option<Vec<u64>>,
 }
 
 /// A previous plan to start from.
@@ -81,7 +82,16 @@ impl Prepared {
             quick: QuickSolver::new(&hermite),
             hermite,
             moves: augment::MoveSet::from_rows(set.width, &set.elements, coverage)?,
+            box_limit: None,
         })
+    }
+
+    /// Records that the set was truncated to the box `widths` (`|g_i| <= widths[i]`): it is a
+    /// test set only for instances whose ranges `u_i - l_i` fit inside, and any other instance
+    /// is refused with [`Error::BeyondSetBox`] instead of being given an unfounded "optimal".
+    pub fn with_box_limit(mut self, widths: Option<Vec<u64>>) -> Self {
+        self.box_limit = widths;
+        self
     }
 
     /// The moves as the solver sees them.
@@ -108,6 +118,7 @@ impl Prepared {
         warm: Option<&WarmStart>,
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
+        self.check_box(&numbers)?;
         let mut start = match self.start_point(numbers.rhs, warm)? {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
@@ -123,6 +134,33 @@ impl Prepared {
         )?;
         let solution = augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?;
         Ok(Verdict::Solved(solution))
+    }
+
+    /// Refuses an instance wider than the box the set was truncated to.
+    fn check_box(&self, numbers: &Numbers<'_>) -> Result<()> {
+        let Some(limit) = &self.box_limit else {
+            return Ok(());
+        };
+        for (variable, ((l, u), &limit)) in numbers
+            .lower
+            .iter()
+            .zip(numbers.upper)
+            .zip(limit)
+            .enumerate()
+        {
+            let width = match (l, u) {
+                (Some(l), Some(u)) => u.abs_diff(*l),
+                _ => u64::MAX,
+            };
+            if width > limit {
+                return Err(Error::BeyondSetBox {
+                    variable,
+                    width,
+                    limit,
+                });
+            }
+        }
+        Ok(())
     }
 
     /// An integer point of the fibre `A x = rhs` (from `warm` when given), or the certificate
