@@ -4,8 +4,8 @@
 //! line is reported with its number while the other days solve; exit codes; CSV; model files.
 
 use std::collections::BTreeMap;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::path::Path;
+use std::process::Command;
 
 use augment::{Options, Status};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
@@ -16,33 +16,8 @@ use kernstep::solve::{coverage_of, Prepared, Verdict, WarmStart};
 use kernstep::testset::{build, BuildOutcome, BuildSpec};
 use serde_json::Value;
 
-fn scenarios() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/scenarios")
-}
-
-fn kernstep(cache: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_kernstep"))
-        .args(args)
-        .arg("--cache-dir")
-        .arg(cache)
-        .output()
-        .expect("the binary runs")
-}
-
-/// Runs and requires exit code `code`; returns stdout and stderr.
-fn expect(cache: &Path, args: &[&str], code: i32) -> (String, String) {
-    let out = kernstep(cache, args);
-    let (stdout, stderr) = (
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    );
-    assert_eq!(
-        out.status.code(),
-        Some(code),
-        "{args:?}\n{stdout}\n{stderr}"
-    );
-    (stdout, stderr)
-}
+mod cli_support;
+use cli_support::{expect_both as expect, kernstep, scenarios};
 
 fn records(stdout: &str) -> Vec<Value> {
     stdout

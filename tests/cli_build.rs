@@ -7,41 +7,13 @@
 //! about 2 s with the test profile's optimisation and 15 s fully unoptimised.
 
 use std::path::{Path, PathBuf};
-use std::process::{Child, Command, Output, Stdio};
+use std::process::{Child, Stdio};
 use std::time::{Duration, Instant};
 
 use serde_json::Value;
 
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
-}
-
-fn command(cache: &Path, args: &[&str]) -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_kernstep"));
-    cmd.args(args).arg("--cache-dir").arg(cache);
-    cmd
-}
-
-fn kernstep(cache: &Path, args: &[&str]) -> Output {
-    command(cache, args).output().expect("the binary runs")
-}
-
-fn text(bytes: &[u8]) -> String {
-    String::from_utf8_lossy(bytes).into_owned()
-}
-
-/// Runs and requires exit code `code`; returns stdout.
-fn expect(cache: &Path, args: &[&str], code: i32) -> String {
-    let out = kernstep(cache, args);
-    assert_eq!(
-        out.status.code(),
-        Some(code),
-        "{args:?}\nstdout: {}\nstderr: {}",
-        text(&out.stdout),
-        text(&out.stderr)
-    );
-    text(&out.stdout)
-}
+mod cli_support;
+use cli_support::{command, examples, expect, kernstep, text};
 
 fn json(cache: &Path, args: &[&str], code: i32) -> Value {
     serde_json::from_str(&expect(cache, args, code)).expect("JSON output")

@@ -2,39 +2,11 @@
 //! cache filled by `kernstep build`, in table and JSON form, with exit codes.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
 
 use serde_json::Value;
 
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
-}
-
-fn kernstep(cache: &Path, args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_kernstep"))
-        .args(args)
-        .arg("--cache-dir")
-        .arg(cache)
-        .output()
-        .expect("the binary runs")
-}
-
-fn text(bytes: &[u8]) -> String {
-    String::from_utf8_lossy(bytes).into_owned()
-}
-
-/// Runs and requires exit code `code`; returns stdout.
-fn expect(cache: &Path, args: &[&str], code: i32) -> String {
-    let out = kernstep(cache, args);
-    assert_eq!(
-        out.status.code(),
-        Some(code),
-        "{args:?}\nstdout: {}\nstderr: {}",
-        text(&out.stdout),
-        text(&out.stderr)
-    );
-    text(&out.stdout)
-}
+mod cli_support;
+use cli_support::{examples, expect, kernstep, text};
 
 fn json(cache: &Path, args: &[&str]) -> Value {
     serde_json::from_str(&expect(cache, args, 0)).expect("JSON output")

@@ -13,7 +13,7 @@
 
 use std::env;
 use std::path::{Path, PathBuf};
-use std::process::{Child, Command, Output, Stdio};
+use std::process::{Child, Command, Stdio};
 use std::sync::{Arc, Barrier};
 use std::time::{Duration, Instant};
 
@@ -24,6 +24,9 @@ use kernstep::model::Model;
 use kernstep::testset::{
     build, entry_key, BuildOutcome, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
+
+mod cli_support;
+use cli_support::{command, examples, kernstep, text};
 
 const WRITER_ENV: &str = "KERNSTEP_FAULTS_WRITER_DIR";
 const SUITE: &str = "every_cache_fault_is_detected_and_handled";
@@ -50,24 +53,6 @@ fn ensure(ok: bool, why: impl FnOnce() -> String) -> Result<(), String> {
     } else {
         Err(why())
     }
-}
-
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
-}
-
-fn command(cache: &Path, args: &[&str]) -> Command {
-    let mut cmd = Command::new(env!("CARGO_BIN_EXE_kernstep"));
-    cmd.args(args).arg("--cache-dir").arg(cache);
-    cmd
-}
-
-fn kernstep(cache: &Path, args: &[&str]) -> Output {
-    command(cache, args).output().expect("the binary runs")
-}
-
-fn text(bytes: &[u8]) -> String {
-    String::from_utf8_lossy(bytes).into_owned()
 }
 
 fn path_str(p: &Path) -> &str {

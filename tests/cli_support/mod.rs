@@ -1,0 +1,50 @@
+//! Running the `kernstep` binary from the integration tests: paths of the bundled examples,
+//! the command with a private cache directory, and exit-code checks that print both streams.
+#![allow(dead_code)] // each test binary uses its own part of this shared module
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// `examples/` of this repository.
+pub fn examples() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("examples")
+}
+
+/// `examples/scenarios/` of this repository.
+pub fn scenarios() -> PathBuf {
+    examples().join("scenarios")
+}
+
+/// `kernstep ARGS --cache-dir CACHE`, not yet run.
+pub fn command(cache: &Path, args: &[&str]) -> Command {
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_kernstep"));
+    cmd.args(args).arg("--cache-dir").arg(cache);
+    cmd
+}
+
+/// Runs `kernstep ARGS --cache-dir CACHE` to completion.
+pub fn kernstep(cache: &Path, args: &[&str]) -> Output {
+    command(cache, args).output().expect("the binary runs")
+}
+
+/// Process output as text.
+pub fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+/// Runs and requires exit code `code`; returns stdout and stderr.
+pub fn expect_both(cache: &Path, args: &[&str], code: i32) -> (String, String) {
+    let out = kernstep(cache, args);
+    let (stdout, stderr) = (text(&out.stdout), text(&out.stderr));
+    assert_eq!(
+        out.status.code(),
+        Some(code),
+        "{args:?}\nstdout: {stdout}\nstderr: {stderr}"
+    );
+    (stdout, stderr)
+}
+
+/// Runs and requires exit code `code`; returns stdout.
+pub fn expect(cache: &Path, args: &[&str], code: i32) -> String {
+    expect_both(cache, args, code).0
+}
