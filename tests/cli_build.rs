@@ -13,37 +13,10 @@ use std::time::{Duration, Instant};
 use serde_json::Value;
 
 mod cli_support;
-use cli_support::{command, examples, expect, kernstep, text};
+use cli_support::{command, examples, expect, kernstep, text, transport_model};
 
 fn json(cache: &Path, args: &[&str], code: i32) -> Value {
     serde_json::from_str(&expect(cache, args, code)).expect("JSON output")
-}
-
-/// Writes the `p x q` transportation model (supplies, then demands; invented zero plan).
-fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
-    let mut rows = Vec::new();
-    for i in 0..p {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j / q == i))
-                .collect::<Vec<_>>(),
-        );
-    }
-    for k in 0..q {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j % q == k))
-                .collect::<Vec<_>>(),
-        );
-    }
-    let doc = serde_json::json!({
-        "matrix": rows,
-        "rhs": vec![0; p + q],
-        "lower": vec![0; p * q],
-    });
-    let path = dir.join(format!("transport_{p}x{q}.json"));
-    std::fs::write(&path, doc.to_string()).unwrap();
-    path
 }
 
 fn files_with_suffix(dir: &Path, suffix: &str) -> Vec<PathBuf> {

@@ -26,7 +26,7 @@ use kernstep::testset::{
 };
 
 mod cli_support;
-use cli_support::{command, examples, kernstep, text};
+use cli_support::{command, examples, kernstep, text, transport_model};
 
 const WRITER_ENV: &str = "KERNSTEP_FAULTS_WRITER_DIR";
 const SUITE: &str = "every_cache_fault_is_detected_and_handled";
@@ -322,30 +322,6 @@ fn checkpoints(f: &Fixture, tally: &mut Tally) {
     }
 }
 
-/// The 4 x 6 transportation model: its Graver basis takes a noticeable moment to build.
-fn transport_4x6(dir: &Path) -> PathBuf {
-    let (p, q) = (4, 6);
-    let mut rows = Vec::new();
-    for i in 0..p {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j / q == i))
-                .collect::<Vec<_>>(),
-        );
-    }
-    for k in 0..q {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j % q == k))
-                .collect::<Vec<_>>(),
-        );
-    }
-    let doc = serde_json::json!({ "matrix": rows, "rhs": vec![0; p + q], "lower": vec![0; p * q] });
-    let path = dir.join("transport_4x6.json");
-    std::fs::write(&path, doc.to_string()).unwrap();
-    path
-}
-
 fn concurrent_threads(target: &Arc<Target>, tally: &mut Tally) {
     let dir = tempfile::tempdir().unwrap();
     let barrier = Arc::new(Barrier::new(3));
@@ -612,7 +588,8 @@ fn every_cache_fault_is_detected_and_handled() {
     foreign_version_and_renamed(&fixture, &mut tally);
     checkpoints(&fixture, &mut tally);
     let models = tempfile::tempdir().unwrap();
-    let wide = Arc::new(Target::new(transport_4x6(models.path())));
+    // The 4 x 6 transportation model: its Graver basis takes a noticeable moment to build.
+    let wide = Arc::new(Target::new(transport_model(models.path(), 4, 6)));
     concurrent_threads(&wide, &mut tally);
     concurrent_processes(&wide, &mut tally);
     for attempt in 0..3 {

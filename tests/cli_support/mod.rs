@@ -48,3 +48,30 @@ pub fn expect_both(cache: &Path, args: &[&str], code: i32) -> (String, String) {
 pub fn expect(cache: &Path, args: &[&str], code: i32) -> String {
     expect_both(cache, args, code).0
 }
+
+/// Writes the `p x q` transportation model (supplies, then demands; invented zero plan).
+pub fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
+    let mut rows = Vec::new();
+    for i in 0..p {
+        rows.push(
+            (0..p * q)
+                .map(|j| i64::from(j / q == i))
+                .collect::<Vec<_>>(),
+        );
+    }
+    for k in 0..q {
+        rows.push(
+            (0..p * q)
+                .map(|j| i64::from(j % q == k))
+                .collect::<Vec<_>>(),
+        );
+    }
+    let doc = serde_json::json!({
+        "matrix": rows,
+        "rhs": vec![0; p + q],
+        "lower": vec![0; p * q],
+    });
+    let path = dir.join(format!("transport_{p}x{q}.json"));
+    std::fs::write(&path, doc.to_string()).unwrap();
+    path
+}
