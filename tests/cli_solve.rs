@@ -5,7 +5,8 @@
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-use serde::Deserialize;
+mod highs_fixtures;
+use highs_fixtures::{fixture, Case, Fixture};
 use serde_json::{json, Value};
 
 fn kernstep(args: &[&str]) -> Output {
@@ -40,52 +41,6 @@ fn solve_json(model: &str, cache: &Path, extra: &[&str]) -> (i32, Value) {
     let code = out.status.code().unwrap();
     assert!(code < 2, "exit {code}: {}", stderr(&out));
     (code, serde_json::from_str(&stdout(&out)).unwrap())
-}
-
-#[derive(Deserialize)]
-struct Fixture {
-    reference: Reference,
-    variables: Vec<String>,
-    matrix: Vec<Vec<i64>>,
-    variants: Vec<Case>,
-}
-
-#[derive(Deserialize)]
-struct Reference {
-    solver: String,
-    version: String,
-}
-
-#[derive(Deserialize)]
-struct Case {
-    id: String,
-    kind: String,
-    rhs: Vec<i64>,
-    cost: Vec<i64>,
-    lower: Vec<Option<i64>>,
-    upper: Vec<Option<i64>>,
-    expect: Expect,
-}
-
-#[derive(Deserialize)]
-struct Expect {
-    status: String,
-    objective: Option<i64>,
-}
-
-fn fixture(name: &str) -> Fixture {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/fixtures/solve")
-        .join(name);
-    let fixture: Fixture = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
-    assert_eq!(
-        (
-            fixture.reference.solver.as_str(),
-            fixture.reference.version.as_str()
-        ),
-        ("HiGHS", "1.16.0")
-    );
-    fixture
 }
 
 /// A model file holding one fixture variant.
