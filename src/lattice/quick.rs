@@ -14,6 +14,7 @@ use super::hermite::HermiteForm;
 #[derive(Clone, Debug)]
 pub struct QuickSolver {
     rows: usize,
+    cols: usize,
     pivot_rows: Vec<usize>,
     /// `h[k][i]`: column `k < r` of `H`, all rows.
     h: Vec<Vec<i64>>,
@@ -32,6 +33,7 @@ impl QuickSolver {
         };
         Some(Self {
             rows: form.rows(),
+            cols: form.cols(),
             pivot_rows: form.pivot_rows().to_vec(),
             h: small(form.hermite_columns())?,
             u: small(form.transform_columns())?,
@@ -63,8 +65,7 @@ impl QuickSolver {
                 return None;
             }
         }
-        let width = self.u.first().map_or(0, Vec::len);
-        (0..width)
+        (0..self.cols)
             .map(|j| {
                 let sum = z.iter().zip(&self.u).try_fold(0i128, |s, (zk, uk)| {
                     s.checked_add(zk.checked_mul(i128::from(uk[j]))?)
@@ -118,6 +119,14 @@ mod tests {
                 }
             }
         }
+    }
+
+    #[test]
+    fn a_zero_matrix_gives_the_zero_point_of_full_length() {
+        let a = matrix(&[&[0, 0, 0]]);
+        let quick = QuickSolver::new(&HermiteForm::new(&a)).unwrap();
+        assert_eq!(quick.solve(&[0]), Some(vec![0, 0, 0]));
+        assert_eq!(quick.solve(&[1]), None);
     }
 
     #[test]
