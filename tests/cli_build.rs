@@ -7,13 +7,13 @@
 //! about 2 s with the test profile's optimisation and 15 s fully unoptimised.
 
 use std::path::{Path, PathBuf};
-use std::process::{Child, Stdio};
+use std::process::Stdio;
 use std::time::{Duration, Instant};
 
 use serde_json::Value;
 
 mod cli_support;
-use cli_support::{command, examples, expect, kernstep, text, transport_model};
+use cli_support::{command, examples, expect, kernstep, run_concurrently, text, transport_model};
 
 fn json(cache: &Path, args: &[&str], code: i32) -> Value {
     serde_json::from_str(&expect(cache, args, code)).expect("JSON output")
@@ -202,18 +202,9 @@ fn two_builders_of_one_model_store_one_entry() {
     let model = transport_model(models.path(), 4, 6);
     let cache_dir = tempfile::tempdir().unwrap();
     let args = ["build", path_str(&model), "--norm-limit", "none", "--json"];
-    let children: Vec<Child> = (0..2)
-        .map(|_| {
-            command(cache_dir.path(), &args)
-                .stdout(Stdio::piped())
-                .spawn()
-                .unwrap()
-        })
-        .collect();
-    let mut statuses: Vec<String> = children
+    let mut statuses: Vec<String> = run_concurrently(cache_dir.path(), &args, 2)
         .into_iter()
-        .map(|c| {
-            let out = c.wait_with_output().unwrap();
+        .map(|out| {
             assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
             let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
             rows[0]["status"].as_str().unwrap().to_string()

@@ -13,7 +13,7 @@
 
 use std::env;
 use std::path::{Path, PathBuf};
-use std::process::{Child, Command, Stdio};
+use std::process::{Command, Stdio};
 use std::sync::{Arc, Barrier};
 use std::time::{Duration, Instant};
 
@@ -26,7 +26,7 @@ use kernstep::testset::{
 };
 
 mod cli_support;
-use cli_support::{command, examples, kernstep, text, transport_model};
+use cli_support::{examples, kernstep, run_concurrently, text, transport_model};
 
 const WRITER_ENV: &str = "KERNSTEP_FAULTS_WRITER_DIR";
 const SUITE: &str = "every_cache_fault_is_detected_and_handled";
@@ -356,18 +356,9 @@ fn concurrent_threads(target: &Arc<Target>, tally: &mut Tally) {
 fn concurrent_processes(target: &Target, tally: &mut Tally) {
     let dir = tempfile::tempdir().unwrap();
     let args = ["build", path_str(&target.model), "--json"];
-    let children: Vec<Child> = (0..3)
-        .map(|_| {
-            command(dir.path(), &args)
-                .stdout(Stdio::piped())
-                .spawn()
-                .unwrap()
-        })
-        .collect();
-    let mut statuses: Vec<String> = children
+    let mut statuses: Vec<String> = run_concurrently(dir.path(), &args, 3)
         .into_iter()
-        .map(|c| {
-            let out = c.wait_with_output().unwrap();
+        .map(|out| {
             let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_default();
             rows[0]["status"].as_str().unwrap_or("").to_string()
         })

@@ -87,20 +87,15 @@ impl Evaluate for LinearScan<'_> {
     /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
     #[inline]
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
-        // Most moves are blocked both ways at the sparse points augmentation visits; those
-        // are dropped before their rate is needed.
-        let plus = self.filter.admits(self.moves, index, Sign::Plus);
-        let minus = self.filter.admits(self.moves, index, Sign::Minus);
-        if !plus && !minus {
-            return Ok(None);
-        }
+        // The candidate pass already dropped the moves blocked both ways (most of them at the
+        // sparse points augmentation visits), so their rates are never computed.
         let slope = self.slopes.get(index);
         let sign = match slope {
             0 => return Ok(None),
             s if s < 0 => Sign::Plus,
             _ => Sign::Minus,
         };
-        if !(if sign == Sign::Plus { plus } else { minus }) {
+        if !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }
         let rate = slope.unsigned_abs();

@@ -106,8 +106,10 @@ impl Run<'_> {
             }));
         }
         let violation = self.problem.violation(&self.x)?;
-        let function = self.problem.violation_function();
-        match self.descend(&function, Phase::Feasibility, violation, None)? {
+        let repair = |run: &Self, violation| {
+            sweep::select(&run.repair_scan(violation), run.options.is_parallel())
+        };
+        match self.descend(Phase::Feasibility, violation, repair)? {
             Outcome::Stopped(status) => return Ok(status),
             Outcome::Stationary(0) => {}
             Outcome::Stationary(left) => return Ok(Status::Infeasible(self.infeasible(left))),
@@ -131,25 +133,27 @@ impl Run<'_> {
                 return Ok(Status::Unbounded(self.ray(&found)));
             }
         }
-        Ok(
-            match self.descend(objective, Phase::Optimality, value, slopes.as_ref())? {
-                Outcome::Stopped(status) => status,
-                Outcome::Stationary(_) => match self.moves.coverage() {
-                    Coverage::Complete | Coverage::BoxValid => Status::Optimal,
-                    Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
-                },
-                Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
+        let improve = |run: &Self, _| {
+            run.scan(objective, slopes.as_ref())
+                .select(run.options.is_parallel())
+        };
+        Ok(match self.descend(Phase::Optimality, value, improve)? {
+            Outcome::Stopped(status) => status,
+            Outcome::Stationary(_) => match self.moves.coverage() {
+                Coverage::Complete | Coverage::BoxValid => Status::Optimal,
+                Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
             },
-        )
+            Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
+        })
     }
 
-    /// Augments until no move improves `f` (phase I also stops at violation 0).
-    fn descend<F: Separable>(
+    /// Augments along the steps `select` picks at the current point and value until it finds
+    /// none (phase I also stops at violation 0).
+    fn descend(
         &mut self,
-        f: &F,
         phase: Phase,
         mut value: i128,
-        slopes: Option<&Slopes>,
+        select: impl Fn(&Self, i128) -> Result<Option<Candidate>>,
     ) -> Result<Outcome> {
         loop {
             if phase == Phase::Feasibility && value == 0 {
@@ -158,12 +162,7 @@ impl Run<'_> {
             if (self.cancel)() {
                 return Ok(Outcome::Stopped(Status::Cancelled));
             }
-            let parallel = self.options.is_parallel();
-            let found = match phase {
-                Phase::Feasibility => sweep::select(&self.repair_scan(value), parallel)?,
-                Phase::Optimality => self.scan(f, slopes).select(parallel)?,
-            };
-            let Some(found) = found else {
+            let Some(found) = select(self, value)? else {
                 return Ok(Outcome::Stationary(value));
             };
             let Step::Finite { length, gain } = found.step else {

@@ -25,7 +25,8 @@ pub(crate) trait Evaluate: Sync {
     /// The selection rule.
     fn rule(&self) -> Rule;
     /// The rule's candidate for move `index` (its better sign, or its first improving sign
-    /// under first-improving), or `None` when it does not improve. Given a `floor`, a move
+    /// under first-improving), or `None` when it does not improve. Called only for moves
+    /// that [`Evaluate::candidates`] kept. Given a `floor`, a move
     /// that cannot gain strictly more than it may also give `None`.
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
     /// A gain no step can exceed at the current point, if one is known.

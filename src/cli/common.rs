@@ -14,7 +14,7 @@ use kernstep::completion::{Control, MoveSet};
 use kernstep::model::Model;
 use kernstep::solve::{coverage_of, Prepared};
 use kernstep::testset::{
-    default_graver_key, from_data, BoxPolicy, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
+    default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
 
 /// The cache directory option of every verb that reads or writes test sets.
@@ -183,8 +183,8 @@ pub fn graver_for(
     };
     // The complete set first; else a set truncated to a box that holds this instance's box
     // (a test set for every instance inside it).
-    let complete = default_graver_key(model, BoxPolicy::Unlimited);
-    for key in [&complete, &default_graver_key(model, BoxPolicy::FromBounds)] {
+    let (complete, boxed) = default_graver_keys(model);
+    for key in std::iter::once(&complete).chain(&boxed) {
         if let Some(stored) = library.find(key)? {
             return Ok(cached(&stored));
         }

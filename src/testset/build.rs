@@ -4,7 +4,7 @@ use std::time::Instant;
 
 use cache::{EntryKey, SetMetadata, TestSetData};
 
-use super::spec::{model_box, BoxPolicy, ResolvedSpec};
+use super::spec::{model_box, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{
     complete_kernel, Checkpoint, Completion, Control, Method, MoveSet, Request, Sign,
@@ -50,23 +50,25 @@ pub fn entry_key(a: &IntMatrix, spec: &ResolvedSpec) -> EntryKey {
     }
 }
 
-/// The key of `model`'s default Graver basis (all signs free, the norm limit `auto`), complete
-/// or truncated to the model's box: what solving looks up first. The automatic norm limit is
-/// the proven bound, which truncates nothing, so unlike [`entry_key`] of a resolved spec this
-/// needs no analysis of the matrix (no subdeterminants).
-pub fn default_graver_key(model: &Model, bounds: BoxPolicy) -> EntryKey {
-    EntryKey {
+/// The keys solving looks up first for `model`: its default Graver basis (all signs free, the
+/// norm limit `auto`) complete, and truncated to the model's box when the model has a finite
+/// one. The automatic norm limit is the proven bound, which truncates nothing, so unlike
+/// [`entry_key`] of a resolved spec these need no analysis of the matrix (no subdeterminants).
+pub fn default_graver_keys(model: &Model) -> (EntryKey, Option<EntryKey>) {
+    let complete = EntryKey {
         row_space: RowSpaceKey::of(&model.matrix).canonical_text(),
         kind: cache::SetKind::Graver,
         signs: vec![cache::Sign::Free; model.variables()],
+        truncation: cache::Truncation::default(),
+    };
+    let boxed = model_box(model).map(|bounds| EntryKey {
         truncation: cache::Truncation {
             norm_limit: None,
-            bounds: match bounds {
-                BoxPolicy::FromBounds => model_box(model),
-                BoxPolicy::Unlimited => None,
-            },
+            bounds: Some(bounds),
         },
-    }
+        ..complete.clone()
+    });
+    (complete, boxed)
 }
 
 /// Runs the completion for `a` as `spec` says, from `resume` if given.

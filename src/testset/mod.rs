@@ -6,7 +6,7 @@ mod library;
 mod spec;
 
 pub use build::{
-    build, default_graver_key, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
+    build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
 pub use library::{Obtained, SetLibrary};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};

@@ -3,7 +3,7 @@
 #![allow(dead_code)] // each test binary uses its own part of this shared module
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::{Child, Command, Output, Stdio};
 
 /// `examples/` of this repository.
 pub fn examples() -> PathBuf {
@@ -25,6 +25,17 @@ pub fn command(cache: &Path, args: &[&str]) -> Command {
 /// Runs `kernstep ARGS --cache-dir CACHE` to completion.
 pub fn kernstep(cache: &Path, args: &[&str]) -> Output {
     command(cache, args).output().expect("the binary runs")
+}
+
+/// Starts `count` copies of `kernstep ARGS --cache-dir CACHE` at once and waits for them all.
+pub fn run_concurrently(cache: &Path, args: &[&str], count: usize) -> Vec<Output> {
+    let children: Vec<Child> = (0..count)
+        .map(|_| command(cache, args).stdout(Stdio::piped()).spawn().unwrap())
+        .collect();
+    children
+        .into_iter()
+        .map(|c| c.wait_with_output().unwrap())
+        .collect()
 }
 
 /// Process output as text.
