@@ -20,7 +20,7 @@ pub(crate) struct LinearScan<'a> {
     /// The moves.
     moves: &'a MoveSet,
     /// `c.g` per move.
-    slopes: &'a Slopes<'a>,
+    slopes: &'a Slopes,
     /// Per variable, the distance to its upper bound (entry `2 i`) and to its lower bound
     /// (entry `2 i + 1`) at the current point; [`UNBOUNDED`] when there is no such bound.
     gaps: Vec<u64>,
@@ -40,7 +40,7 @@ impl<'a> LinearScan<'a> {
     /// The scan at the feasible point `x` of `problem`.
     pub(crate) fn new(
         moves: &'a MoveSet,
-        slopes: &'a Slopes<'a>,
+        slopes: &'a Slopes,
         problem: &Problem,
         x: &[i64],
         (powers_of_two, rule): (bool, Rule),
@@ -82,22 +82,16 @@ impl Evaluate for LinearScan<'_> {
         self.rule
     }
 
-    /// The improving sign of move `index` and its longest feasible step, if it improves and,
+    /// The improving sign of the move of `slot` and its longest feasible step, if it improves and,
     /// given a `floor`, can gain strictly more than it (the room only shrinks as the support
     /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
     #[inline]
-    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
-        // The candidate pass already dropped the moves blocked both ways (most of them at the
-        // sparse points augmentation visits), so their rates are never computed.
+    fn evaluate(&self, slot: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
+        // The candidate pass kept only moves whose improving sign no bound blocks (most moves
+        // are blocked at the sparse points augmentation visits).
+        let index = self.slopes.slots()[slot];
         let slope = self.slopes.get(index);
-        let sign = match slope {
-            0 => return Ok(None),
-            s if s < 0 => Sign::Plus,
-            _ => Sign::Minus,
-        };
-        if !self.filter.admits(self.moves, index, sign) {
-            return Ok(None);
-        }
+        let sign = if slope < 0 { Sign::Plus } else { Sign::Minus };
         let rate = slope.unsigned_abs();
         let floor = floor.map(i128::unsigned_abs);
         let (indices, values) = self.moves.support(index);
@@ -145,8 +139,14 @@ impl Evaluate for LinearScan<'_> {
         }))
     }
 
-    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>) {
-        self.filter.candidates(self.moves, range, out);
+    fn slots(&self) -> usize {
+        self.slopes.slots().len()
+    }
+
+    fn candidates(&self, start: usize, len: usize) -> u64 {
+        let signed = self.slopes.signed();
+        self.filter
+            .free_entries(signed, self.moves.words(), start, len)
     }
 
     fn ceiling(&self) -> Option<i128> {

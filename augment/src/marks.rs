@@ -72,41 +72,67 @@ impl Filter {
 }
 
 impl Filter {
-    /// Appends to `out` the moves of `range` that at least one sign of passes [`Filter::admits`].
-    ///
-    /// With one mask word (up to 64 variables) this is a branch-free pass over the flat sign
-    /// patterns, the hot loop of every scan.
-    pub(crate) fn candidates(
-        &self,
-        moves: &MoveSet,
-        range: std::ops::Range<usize>,
-        out: &mut Vec<usize>,
-    ) {
-        let ([raise], [lower]) = (&self.raising[..], &self.lowering[..]) else {
-            out.extend(range.filter(|&index| {
-                self.admits(moves, index, Sign::Plus) || self.admits(moves, index, Sign::Minus)
-            }));
-            return;
-        };
-        let patterns = &moves.patterns()[2 * range.start..2 * range.end];
-        let start = out.len();
-        out.resize(start + range.len(), 0);
-        let mut kept = start;
-        for (index, pair) in range.zip(patterns.chunks_exact(2)) {
-            let (pos, neg) = (pair[0], pair[1]);
-            let plus = (pos & raise) | (neg & lower) != 0;
-            let minus = (neg & raise) | (pos & lower) != 0;
-            // Blocking: keep unless both signs meet a bound; repairing: keep if either meets.
-            let keep = if self.blocking {
-                !(plus && minus)
-            } else {
-                plus || minus
-            };
-            out[kept] = index;
-            kept += usize::from(keep);
+    /// Phase I: bit `j` set when move `start + j` (`j < len <= 64`) has a sign that passes
+    /// [`Filter::admits`], that is when its support meets a coordinate outside the box.
+    pub(crate) fn repairing_candidates(&self, moves: &MoveSet, start: usize, len: usize) -> u64 {
+        let words = moves.words();
+        let patterns = &moves.patterns()[2 * words * start..2 * words * (start + len)];
+        let mut mask = 0;
+        for (j, pattern) in patterns.chunks_exact(2 * words).enumerate() {
+            let (pos, neg) = pattern.split_at(words);
+            let meets = pos
+                .iter()
+                .zip(neg)
+                .zip(self.raising.iter().zip(&self.lowering))
+                .any(|((p, n), (r, l))| (p | n) & (r | l) != 0);
+            mask |= u64::from(meets) << j;
         }
-        out.truncate(kept);
+        mask
     }
+
+    /// Phase II: bit `j` set when the signed move whose masks are entry `start + j` of
+    /// `signed` (`j < len <= 64`; `words` masks of raised then of lowered coordinates per
+    /// entry) passes [`Filter::admits`], a branch-free test of every entry: the hot loop of
+    /// phase II.
+    pub(crate) fn free_entries(
+        &self,
+        signed: &[u64],
+        words: usize,
+        start: usize,
+        len: usize,
+    ) -> u64 {
+        let entries = &signed[2 * words * start..2 * words * (start + len)];
+        let mut mask = 0;
+        if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
+            let mut free = [0u8; 64];
+            for (flag, pair) in free.iter_mut().zip(entries.chunks_exact(2)) {
+                *flag = u8::from((pair[0] & raise) | (pair[1] & lower) == 0);
+            }
+            return gather_bits(&free);
+        }
+        for (j, entry) in entries.chunks_exact(2 * words).enumerate() {
+            let (raised, lowered) = entry.split_at(words);
+            let free = raised
+                .iter()
+                .zip(&self.raising)
+                .chain(lowered.iter().zip(&self.lowering))
+                .all(|(m, b)| m & b == 0);
+            mask |= u64::from(free) << j;
+        }
+        mask
+    }
+}
+
+/// The 64 flags (each 0 or 1) as the bits of one word, flag `j` in bit `j`. Each group of 8
+/// flags is one multiplication: flag `k` of the group times bit `7 (8 - k)` of the constant
+/// lands in bit `56 + k`, and no two products share a bit, so nothing carries.
+fn gather_bits(flags: &[u8; 64]) -> u64 {
+    let mut mask = 0;
+    for (k, group) in flags.chunks_exact(8).enumerate() {
+        let bytes = u64::from_le_bytes(group.try_into().expect("groups of 8"));
+        mask |= (bytes.wrapping_mul(0x0102_0408_1020_4080) >> 56) << (8 * k);
+    }
+    mask
 }
 
 /// Two masks over `n` coordinates from a per-coordinate pair of marks.
@@ -150,6 +176,70 @@ mod tests {
         assert!(filter.admits(&moves, 0, Sign::Plus), "raises x_0 = -1");
         assert!(!filter.admits(&moves, 0, Sign::Minus));
         assert!(!filter.admits(&moves, 1, Sign::Plus) && !filter.admits(&moves, 1, Sign::Minus));
+    }
+
+    #[test]
+    fn the_mask_passes_agree_with_admits_move_by_move() {
+        // Every move over {-1, 0, 1}^3 but 0, at every point of the box [0, 2]^3, in both
+        // widths of the masks (3 and 67 variables, the extra ones left at 0 and free).
+        for width in [3, 67] {
+            let rows: Vec<Vec<i64>> = (1..27)
+                .map(|code: i64| {
+                    let mut row = vec![0; width];
+                    for (i, entry) in row.iter_mut().take(3).enumerate() {
+                        *entry = code / 3i64.pow(i as u32) % 3 - 1;
+                    }
+                    row
+                })
+                .filter(|r| r.iter().any(|&v| v != 0))
+                .collect();
+            let moves = MoveSet::from_rows(width, &rows, Coverage::Complete).unwrap();
+            let mut bounds = (vec![None; width], vec![None; width]);
+            for i in 0..3 {
+                (bounds.0[i], bounds.1[i]) = (Some(0), Some(2));
+            }
+            let p = problem(bounds.0, bounds.1);
+            let signed: Vec<u64> = (0..moves.len())
+                .flat_map(|index| {
+                    let (raised, lowered) = moves.pattern(index, Sign::Plus);
+                    [raised, lowered].concat()
+                })
+                .collect();
+            for code in 0..125 {
+                let mut x = vec![0i64; width];
+                for (i, v) in x.iter_mut().take(3).enumerate() {
+                    *v = code / 5i64.pow(i as u32) % 5 - 1;
+                }
+                let repair = Filter::repairing(&p, &x, moves.words());
+                let kept = repair.repairing_candidates(&moves, 0, moves.len());
+                if x.iter().all(|&v| (0..=2).contains(&v)) {
+                    let block = Filter::blocking(&p, &x, moves.words());
+                    let free = block.free_entries(&signed, moves.words(), 0, moves.len());
+                    for index in 0..moves.len() {
+                        let admitted = block.admits(&moves, index, Sign::Plus);
+                        assert_eq!(free >> index & 1 == 1, admitted, "{x:?} move {index}");
+                    }
+                }
+                for index in 0..moves.len() {
+                    let admitted = Sign::BOTH.iter().any(|&s| repair.admits(&moves, index, s));
+                    assert_eq!(kept >> index & 1 == 1, admitted, "{x:?} move {index}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn flags_gather_into_their_bits() {
+        let mut flags = [0u8; 64];
+        for j in [0, 1, 7, 8, 30, 56, 62, 63] {
+            flags[j] = 1;
+        }
+        let expected = [0, 1, 7, 8, 30, 56, 62, 63]
+            .iter()
+            .fold(0u64, |m, j| m | 1 << j);
+        assert_eq!(gather_bits(&flags), expected);
+        assert_eq!(gather_bits(&[1; 64]), u64::MAX);
+        assert_eq!(gather_bits(&[0; 64]), 0);
     }
 
     #[test]

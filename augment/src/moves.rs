@@ -4,8 +4,11 @@
 //! stored twice: densely (row-major, `width` entries per move, for callers and certificates)
 //! and sparsely (support indices and values, so that evaluating a move touches only its
 //! nonzeros), and its sign pattern is kept as two bit masks (coordinates the move raises and
-//! lowers), so a scan can discard a move blocked by a bound with a few word operations. The
-//! set also records its [`Coverage`], which decides how honest "optimal" is.
+//! lowers), so a scan can discard a move blocked by a bound with a few word operations. When
+//! every entry fits in an `i8` (the usual case: Graver elements of Δ-modular matrices have
+//! entries of at most Δ) a column-major copy lets the rates `c.g` of all moves be computed in
+//! one vectorisable pass per cost vector. The set also records its [`Coverage`], which decides
+//! how honest "optimal" is.
 
 use serde::{Deserialize, Serialize};
 
@@ -59,6 +62,9 @@ pub struct MoveSet {
     /// Per move `words` masks of positive entries, then `words` masks of negative entries.
     patterns: Vec<u64>,
     words: usize,
+    /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
+    /// otherwise empty.
+    columns: Vec<i8>,
     max_norm: i64,
     coverage: Coverage,
 }
@@ -84,6 +90,7 @@ impl MoveSet {
             norms: Vec::with_capacity(count),
             patterns: Vec::with_capacity(count * 2 * width.div_ceil(64)),
             words: width.div_ceil(64),
+            columns: Vec::new(),
             max_norm: 0,
             dense,
             coverage,
@@ -92,6 +99,7 @@ impl MoveSet {
         for index in 0..count {
             set.index_row(index)?;
         }
+        set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
         Ok(set)
     }
 
@@ -189,6 +197,13 @@ impl MoveSet {
         }
     }
 
+    /// Entries of variable `variable` over all moves, in move order, when every entry of the
+    /// set fits in an `i8`.
+    pub(crate) fn column(&self, variable: usize) -> Option<&[i8]> {
+        let count = self.len();
+        (!self.columns.is_empty()).then(|| &self.columns[variable * count..(variable + 1) * count])
+    }
+
     /// The largest l1 norm of a move (0 for an empty set).
     pub fn max_norm(&self) -> i64 {
         self.max_norm
@@ -198,4 +213,16 @@ impl MoveSet {
     pub fn norm(&self, index: usize) -> i64 {
         self.norms[index]
     }
+}
+
+/// The column-major copy of row-major `dense` (`count` rows of `width`), or `None` when an entry
+/// does not fit in an `i8`.
+fn narrow_columns(dense: &[i64], width: usize, count: usize) -> Option<Vec<i8>> {
+    let mut columns = vec![0i8; dense.len()];
+    for (index, row) in dense.chunks_exact(width.max(1)).enumerate().take(count) {
+        for (variable, &v) in row.iter().enumerate() {
+            columns[variable * count + index] = i8::try_from(v).ok()?;
+        }
+    }
+    Some(columns)
 }

@@ -87,8 +87,12 @@ impl Evaluate for RepairScan<'_> {
         Ok(best)
     }
 
-    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>) {
-        self.filter.candidates(self.moves, range, out);
+    fn slots(&self) -> usize {
+        self.moves.len()
+    }
+
+    fn candidates(&self, start: usize, len: usize) -> u64 {
+        self.filter.repairing_candidates(self.moves, start, len)
     }
 
     fn ceiling(&self) -> Option<i128> {

@@ -53,7 +53,7 @@ pub(crate) struct Scan<'a, F: ?Sized> {
     /// The box that steps must respect.
     pub bounds: &'a Problem,
     /// `c.g` per move when the function is linear.
-    pub slopes: Option<&'a Slopes<'a>>,
+    pub slopes: Option<&'a Slopes>,
     /// The selection rule.
     pub rule: Rule,
     /// Skips moves that cannot improve at the current point.

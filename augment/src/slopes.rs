@@ -1,78 +1,169 @@
-//! The rates `c.g` of a linear objective along the moves, each computed when first needed.
+//! The rates `c.g` of a linear objective along every move, and the moves' improving signs,
+//! computed once per solve.
 //!
-//! A scan consults a move's rate only when a bound does not already block both of its signs;
-//! on the sparse points augmentation visits that is a small share of the set (a 3x3x3
-//! three-way table: about 30% of the evaluations, a truckload model: 12%), so rates are cached
-//! lazily. `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i64` for the widest move
-//! the rates are plain `i64` sums (nothing can overflow) kept in atomic cells, so parallel
-//! scans can fill the cache concurrently (both writers store the same value). Otherwise every
-//! rate is computed up front in checked `i128`, and an overflow is an error.
+//! With linear costs a move improves only in the sign where `c.g < 0` (`+` when `c.g < 0`, `-`
+//! when `c.g > 0`, neither when `c.g = 0`), whatever the point. So phase II fixes, once per
+//! solve, the list of moves with a nonzero rate and the sign masks of their improving sign;
+//! each scan's first pass then tests one pair of masks per move (is the improving sign
+//! blocked by a bound?) without looking at the rate or the move again.
+//!
+//! `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i16` or `i32` and the moves have
+//! a narrow column-major copy, the rates are column sums `sum_i c_i * column_i` in lanes of that
+//! width, which the compiler vectorises (nothing can overflow: every partial sum obeys the
+//! bound). When the bound fits in `i64` they are plain `i64` sums per move; otherwise every
+//! rate is computed in checked `i128`, and an overflow is an error.
 
-use std::sync::atomic::{AtomicI64, Ordering};
+use std::ops::{Add, Mul};
 
 use crate::error::{overflow, Result};
-use crate::moves::MoveSet;
+use crate::moves::{MoveSet, Sign};
 
-/// Marks a rate not computed yet; no cached rate can equal it, as `|c.g| < 2^63`.
-const UNKNOWN: i64 = i64::MIN;
-
-/// `c.g` for every move of one set. (Norms below `2^63` and costs of at most `2^63` in size keep
-/// every rate below `2^126`, so the checked sums never fail in practice; the check stays.)
-pub(crate) struct Slopes<'a> {
-    costs: &'a [i64],
-    moves: &'a MoveSet,
-    cache: Cache,
+/// `c.g` for every move of one set, and the moves that can improve.
+pub(crate) struct Slopes {
+    rates: Rates,
+    /// The moves with `c.g != 0`, increasing: the scan's slots.
+    slots: Vec<usize>,
+    /// Per slot, the masks of its move applied in the improving sign: `words` masks of the
+    /// coordinates it raises, then `words` of those it lowers.
+    signed: Vec<u64>,
 }
 
-enum Cache {
-    /// Rates that fit in `i64`, filled on demand.
-    Lazy(Vec<AtomicI64>),
-    /// Every rate, computed with checked arithmetic.
-    Eager(Vec<i128>),
+/// The rates in the narrowest type their bound allows.
+enum Rates {
+    I16(Vec<i16>),
+    I32(Vec<i32>),
+    I64(Vec<i64>),
+    I128(Vec<i128>),
 }
 
-impl<'a> Slopes<'a> {
+impl Slopes {
     /// The rates of `costs` along `moves`; fails only when a rate overflows `i128`.
-    pub(crate) fn new(costs: &'a [i64], moves: &'a MoveSet) -> Result<Self> {
-        let widest = costs.iter().map(|c| c.unsigned_abs()).max().unwrap_or(0);
-        let bound = u128::from(widest) * u128::from(moves.max_norm().unsigned_abs());
-        let cache = if bound <= i64::MAX as u128 {
-            Cache::Lazy((0..moves.len()).map(|_| AtomicI64::new(UNKNOWN)).collect())
-        } else {
-            Cache::Eager(
-                (0..moves.len())
-                    .map(|index| checked_rate(costs, moves, index))
-                    .collect::<Result<_>>()?,
-            )
+    pub(crate) fn new(costs: &[i64], moves: &MoveSet) -> Result<Self> {
+        let rates = rates(costs, moves)?;
+        let (slots, signed) = match &rates {
+            Rates::I16(r) => improving(moves, r),
+            Rates::I32(r) => improving(moves, r),
+            Rates::I64(r) => improving(moves, r),
+            Rates::I128(r) => improving(moves, r),
         };
         Ok(Self {
-            costs,
-            moves,
-            cache,
+            rates,
+            slots,
+            signed,
         })
     }
 
     /// `c.g` for move `index`.
     #[inline]
     pub(crate) fn get(&self, index: usize) -> i128 {
-        match &self.cache {
-            Cache::Eager(rates) => rates[index],
-            Cache::Lazy(cells) => {
-                let known = cells[index].load(Ordering::Relaxed);
-                if known != UNKNOWN {
-                    return i128::from(known);
-                }
-                let (indices, values) = self.moves.support(index);
-                let rate: i64 = indices
-                    .iter()
-                    .zip(values)
-                    .map(|(&i, &v)| self.costs[i] * v)
-                    .sum();
-                cells[index].store(rate, Ordering::Relaxed);
-                i128::from(rate)
-            }
+        match &self.rates {
+            Rates::I16(r) => r[index].into(),
+            Rates::I32(r) => r[index].into(),
+            Rates::I64(r) => r[index].into(),
+            Rates::I128(r) => r[index],
         }
     }
+
+    /// The moves with a nonzero rate, increasing.
+    pub(crate) fn slots(&self) -> &[usize] {
+        &self.slots
+    }
+
+    /// Per slot the masks of the move in its improving sign (see [`Filter::free_entries`]).
+    ///
+    /// [`Filter::free_entries`]: crate::marks::Filter::free_entries
+    pub(crate) fn signed(&self) -> &[u64] {
+        &self.signed
+    }
+}
+
+/// The moves with a nonzero rate and the masks of their improving signs (`+` when the rate
+/// is negative). With one mask word per sign this is a branch-free compaction.
+fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<usize>, Vec<u64>) {
+    let zero = T::default();
+    let words = moves.words();
+    if words != 1 {
+        let mut slots = Vec::new();
+        let mut signed = Vec::new();
+        for (index, &rate) in rates.iter().enumerate().filter(|(_, &r)| r != zero) {
+            let sign = if rate < zero { Sign::Plus } else { Sign::Minus };
+            let (raised, lowered) = moves.pattern(index, sign);
+            slots.push(index);
+            signed.extend_from_slice(raised);
+            signed.extend_from_slice(lowered);
+        }
+        return (slots, signed);
+    }
+    let mut slots = vec![0; rates.len()];
+    let mut signed = vec![0; 2 * rates.len()];
+    let mut kept = 0;
+    for (index, (pair, &rate)) in moves.patterns().chunks_exact(2).zip(rates).enumerate() {
+        let (pos, neg) = (pair[0], pair[1]);
+        let minus = rate > zero;
+        slots[kept] = index;
+        signed[2 * kept] = if minus { neg } else { pos };
+        signed[2 * kept + 1] = if minus { pos } else { neg };
+        kept += usize::from(rate != zero);
+    }
+    slots.truncate(kept);
+    signed.truncate(2 * kept);
+    (slots, signed)
+}
+
+/// The rates of `costs` along `moves`, by the cheapest exact path.
+fn rates(costs: &[i64], moves: &MoveSet) -> Result<Rates> {
+    let widest = costs.iter().map(|c| c.unsigned_abs()).max().unwrap_or(0);
+    let bound = u128::from(widest) * u128::from(moves.max_norm().unsigned_abs());
+    if bound <= i16::MAX as u128 {
+        if let Some(rates) = column_rates(costs, moves) {
+            return Ok(Rates::I16(rates));
+        }
+    }
+    if bound <= i32::MAX as u128 {
+        if let Some(rates) = column_rates(costs, moves) {
+            return Ok(Rates::I32(rates));
+        }
+    }
+    if bound <= i64::MAX as u128 {
+        return Ok(Rates::I64(
+            (0..moves.len())
+                .map(|index| {
+                    let (indices, values) = moves.support(index);
+                    indices
+                        .iter()
+                        .zip(values)
+                        .map(|(&i, &v)| costs[i] * v)
+                        .sum()
+                })
+                .collect(),
+        ));
+    }
+    Ok(Rates::I128(
+        (0..moves.len())
+            .map(|index| checked_rate(costs, moves, index))
+            .collect::<Result<_>>()?,
+    ))
+}
+
+/// The rates as column sums over the narrow column-major copy of `moves`, in lanes of `T`;
+/// the caller has checked that `max_i |c_i| * max ||g||_1` fits in `T`. `None` when the set
+/// has no narrow copy.
+fn column_rates<T>(costs: &[i64], moves: &MoveSet) -> Option<Vec<T>>
+where
+    T: Copy + Default + Add<Output = T> + Mul<Output = T> + From<i8> + TryFrom<i64>,
+{
+    let mut sums = vec![T::default(); moves.len()];
+    for (variable, &cost) in costs.iter().enumerate() {
+        if cost == 0 {
+            continue;
+        }
+        let cost = T::try_from(cost).ok()?;
+        let column = moves.column(variable)?;
+        for (sum, &g) in sums.iter_mut().zip(column) {
+            *sum = *sum + cost * T::from(g);
+        }
+    }
+    Some(sums)
 }
 
 /// `c.g` in checked `i128`.
@@ -89,34 +180,96 @@ mod tests {
     use super::*;
     use crate::moves::Coverage;
 
+    fn dot(row: &[i64], costs: &[i64]) -> i128 {
+        row.iter()
+            .zip(costs)
+            .map(|(&g, &c)| i128::from(g) * i128::from(c))
+            .sum()
+    }
+
     #[test]
-    fn lazy_and_eager_rates_agree_with_the_dot_product() {
+    fn every_path_agrees_with_the_dot_product() {
         let rows = vec![vec![1, -2, 0], vec![0, 3, -1], vec![-4, 0, 5]];
-        let moves = MoveSet::from_rows(3, &rows, Coverage::Complete).unwrap();
-        for costs in [
-            vec![7, -1, 2],
-            vec![i64::MAX / 4, 1, -3],
-            vec![i64::MIN, 0, 0],
-        ] {
-            let slopes = Slopes::new(&costs, &moves).unwrap();
-            for (index, row) in rows.iter().enumerate() {
-                let expected: i128 = row
-                    .iter()
-                    .zip(&costs)
-                    .map(|(&g, &c)| i128::from(g) * i128::from(c))
-                    .sum();
-                assert_eq!(slopes.get(index), expected, "{costs:?} move {index}");
-                assert_eq!(slopes.get(index), expected, "cached");
+        let wide_rows = vec![vec![1, -2, 0], vec![0, 300, -1], vec![-4, 0, 5]];
+        for rows in [rows, wide_rows] {
+            let moves = MoveSet::from_rows(3, &rows, Coverage::Complete).unwrap();
+            for costs in [
+                vec![7, -1, 2],
+                vec![i64::from(i32::MAX) / 600, 1, -3],
+                vec![i64::MAX / 4000, 1, -3],
+                vec![i64::MIN, 0, 0],
+            ] {
+                let slopes = Slopes::new(&costs, &moves).unwrap();
+                for (index, row) in rows.iter().enumerate() {
+                    assert_eq!(
+                        slopes.get(index),
+                        dot(row, &costs),
+                        "{costs:?} move {index}"
+                    );
+                }
             }
         }
     }
 
     #[test]
-    fn rates_beyond_i64_are_exact_in_the_eager_cache() {
+    fn small_costs_over_narrow_moves_take_the_column_path() {
+        let rows = vec![vec![1, -2, 0], vec![0, 3, -1]];
+        let moves = MoveSet::from_rows(3, &rows, Coverage::Complete).unwrap();
+        let costs = [i64::from(i32::MAX) / 5, -1, 2];
+        assert!(column_rates::<i32>(&costs, &moves).is_some());
+        let wide = MoveSet::from_rows(3, &[vec![1, 200, 0]], Coverage::Complete).unwrap();
+        assert!(
+            column_rates::<i32>(&costs, &wide).is_none(),
+            "200 does not fit in i8"
+        );
+    }
+
+    #[test]
+    fn slots_are_the_moves_with_a_rate_in_their_improving_sign() {
+        for width in [3, 70] {
+            let row = |entries: &[(usize, i64)]| {
+                let mut r = vec![0; width];
+                for &(i, v) in entries {
+                    r[i] = v;
+                }
+                r
+            };
+            let rows = [
+                row(&[(0, 1), (width - 1, -1)]),
+                row(&[(1, 1), (width - 1, 1)]),
+                row(&[(0, -2), (1, 1)]),
+            ];
+            let moves = MoveSet::from_rows(width, &rows, Coverage::Complete).unwrap();
+            let mut costs = vec![0; width];
+            costs[0] = 1;
+            costs[1] = 2;
+            costs[width - 1] = -2;
+            // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
+            let slopes = Slopes::new(&costs, &moves).unwrap();
+            assert_eq!(slopes.slots(), &[0]);
+            let (raised, lowered) = moves.pattern(0, Sign::Minus);
+            assert_eq!(slopes.signed(), [raised, lowered].concat(), "width {width}");
+            costs[1] = 1;
+            // Rates 3, -1 and -1: every move improves, move 0 in `-`, the others in `+`.
+            let slopes = Slopes::new(&costs, &moves).unwrap();
+            assert_eq!(slopes.slots(), &[0, 1, 2]);
+            let expected: Vec<u64> = [(0, Sign::Minus), (1, Sign::Plus), (2, Sign::Plus)]
+                .iter()
+                .flat_map(|&(index, sign)| {
+                    let (raised, lowered) = moves.pattern(index, sign);
+                    [raised, lowered].concat()
+                })
+                .collect();
+            assert_eq!(slopes.signed(), expected, "width {width}");
+        }
+    }
+
+    #[test]
+    fn rates_beyond_i64_are_exact_in_checked_arithmetic() {
         let big = 1i64 << 62;
         let moves = MoveSet::from_rows(2, &[vec![big, big / 2]], Coverage::Complete).unwrap();
         let slopes = Slopes::new(&[i64::MAX, -3], &moves).unwrap();
-        assert!(matches!(slopes.cache, Cache::Eager(_)));
+        assert!(matches!(slopes.rates, Rates::I128(_)));
         let expected = i128::from(big) * i128::from(i64::MAX) - 3 * i128::from(big / 2);
         assert_eq!(slopes.get(0), expected);
     }

@@ -196,7 +196,7 @@ impl Run<'_> {
     }
 
     /// The phase-II scan of the moves at the current point.
-    fn scan<'s, F: Separable>(&'s self, f: &'s F, slopes: Option<&'s Slopes<'s>>) -> Scan<'s, F> {
+    fn scan<'s, F: Separable>(&'s self, f: &'s F, slopes: Option<&'s Slopes>) -> Scan<'s, F> {
         Scan {
             search: LineSearch {
                 f,

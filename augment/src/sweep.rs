@@ -1,7 +1,8 @@
 //! One pass over every move for the selection rule's choice, sequentially or in parallel.
 //!
 //! The specialised scans (linear phase II in `linear.rs`, phase I in `repair.rs`) only say
-//! how one move is evaluated; this driver owns the order. Ties go to the lowest move index
+//! which moves are worth a look (64 at a time, as a bit mask) and how one move is evaluated;
+//! this driver owns the order. Ties go to the lowest move index
 //! (and, inside a move, to `+`), a ray beats every finite step, and the parallel pass splits
 //! the moves into chunks whose winners are combined in index order, so both passes return the
 //! same candidate. Under Graver-best, the best gain found so far is handed to the next
@@ -15,30 +16,35 @@ use crate::moves::MoveSet;
 use crate::search::Step;
 use crate::select::{ratio_cmp, Candidate, Rule};
 
-/// Moves per parallel chunk.
+/// Slots per parallel chunk (a multiple of 64, the slots of one candidate mask).
 const CHUNK: usize = 256;
 
 /// How one kind of scan evaluates a single move.
+///
+/// A scan goes through its *slots* in order, each standing for one move, in increasing move
+/// index (every move, or only those the scan can ever select).
 pub(crate) trait Evaluate: Sync {
     /// The moves scanned.
     fn moves(&self) -> &MoveSet;
     /// The selection rule.
     fn rule(&self) -> Rule;
-    /// The rule's candidate for move `index` (its better sign, or its first improving sign
-    /// under first-improving), or `None` when it does not improve. Called only for moves
-    /// that [`Evaluate::candidates`] kept. Given a `floor`, a move
-    /// that cannot gain strictly more than it may also give `None`.
-    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
+    /// The number of slots.
+    fn slots(&self) -> usize;
+    /// Bit `j` set when slot `start + j` is worth evaluating, for `j < len <= 64` (a superset
+    /// of the slots that improve).
+    fn candidates(&self, start: usize, len: usize) -> u64;
+    /// The rule's candidate for the move of `slot` (its better sign, or its first improving
+    /// sign under first-improving), or `None` when it does not improve. Called only for slots
+    /// that [`Evaluate::candidates`] kept. Given a `floor`, a move that cannot gain strictly
+    /// more than it may also give `None`.
+    fn evaluate(&self, slot: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
     /// A gain no step can exceed at the current point, if one is known.
     fn ceiling(&self) -> Option<i128>;
-    /// Appends to `out` the moves of `range` worth evaluating (a superset of those that
-    /// improve), in increasing order.
-    fn candidates(&self, range: std::ops::Range<usize>, out: &mut Vec<usize>);
 }
 
 /// The step the rule selects among all moves, or `None` when no move improves.
 pub(crate) fn select<E: Evaluate>(scan: &E, parallel: bool) -> Result<Option<Candidate>> {
-    let count = scan.moves().len();
+    let count = scan.slots();
     if !parallel {
         return select_in(scan, 0..count);
     }
@@ -61,26 +67,29 @@ fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Opt
     let rule = scan.rule();
     let ceiling = scan.ceiling().filter(|_| rule == Rule::GraverBest);
     let mut best: Option<Candidate> = None;
-    let mut indices = Vec::new();
-    scan.candidates(range, &mut indices);
-    for index in indices {
-        let floor = match (rule, best.map(|b| b.step)) {
-            (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
-            _ => None,
-        };
-        let Some(found) = scan.evaluate(index, floor)? else {
-            continue;
-        };
-        let last = match found.step {
-            Step::Ray => true,
-            Step::Finite { gain, .. } => {
-                rule == Rule::FirstImproving || ceiling.is_some_and(|c| gain >= c)
+    for start in range.clone().step_by(64) {
+        let mut mask = scan.candidates(start, (range.end - start).min(64));
+        while mask != 0 {
+            let slot = start + mask.trailing_zeros() as usize;
+            mask &= mask - 1;
+            let floor = match (rule, best.map(|b| b.step)) {
+                (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
+                _ => None,
+            };
+            let Some(found) = scan.evaluate(slot, floor)? else {
+                continue;
+            };
+            let last = match found.step {
+                Step::Ray => true,
+                Step::Finite { gain, .. } => {
+                    rule == Rule::FirstImproving || ceiling.is_some_and(|c| gain >= c)
+                }
+                Step::Useless => false,
+            };
+            best = keep_better(rule, scan.moves(), best, Some(found));
+            if last {
+                return Ok(best);
             }
-            Step::Useless => false,
-        };
-        best = keep_better(rule, scan.moves(), best, Some(found));
-        if last {
-            return Ok(best);
         }
     }
     Ok(best)
