@@ -82,16 +82,20 @@ impl Evaluate for LinearScan<'_> {
         self.rule
     }
 
-    /// The improving sign of the move of `slot` and its longest feasible step, if it improves and,
+    /// The improving sign of move `index` and its longest feasible step, if it improves and,
     /// given a `floor`, can gain strictly more than it (the room only shrinks as the support
     /// is read, so a move whose bound `|c.g| * room` falls to the floor is left early).
     #[inline]
-    fn evaluate(&self, slot: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
+    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
         // The candidate pass kept only moves whose improving sign no bound blocks (most moves
-        // are blocked at the sparse points augmentation visits).
-        let index = self.slopes.slots()[slot];
+        // are blocked at the sparse points augmentation visits), and moves of rate 0 only at
+        // points on no bound.
         let slope = self.slopes.get(index);
-        let sign = if slope < 0 { Sign::Plus } else { Sign::Minus };
+        let sign = match slope {
+            0 => return Ok(None),
+            s if s < 0 => Sign::Plus,
+            _ => Sign::Minus,
+        };
         let rate = slope.unsigned_abs();
         let floor = floor.map(i128::unsigned_abs);
         let (indices, values) = self.moves.support(index);
@@ -139,14 +143,10 @@ impl Evaluate for LinearScan<'_> {
         }))
     }
 
-    fn slots(&self) -> usize {
-        self.slopes.slots().len()
-    }
-
     fn candidates(&self, start: usize, len: usize) -> u64 {
-        let signed = self.slopes.signed();
+        let improving = self.slopes.improving();
         self.filter
-            .free_entries(signed, self.moves.words(), start, len)
+            .free_entries(improving, self.moves.words(), start, len)
     }
 
     fn ceiling(&self) -> Option<i128> {

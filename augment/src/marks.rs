@@ -76,10 +76,15 @@ impl Filter {
     /// [`Filter::admits`], that is when its support meets a coordinate outside the box.
     pub(crate) fn repairing_candidates(&self, moves: &MoveSet, start: usize, len: usize) -> u64 {
         let words = moves.words();
-        let patterns = &moves.patterns()[2 * words * start..2 * words * (start + len)];
+        let range = words * start..words * (start + len);
+        let (positive, negative) = moves.masks();
+        let (positive, negative) = (&positive[range.clone()], &negative[range]);
         let mut mask = 0;
-        for (j, pattern) in patterns.chunks_exact(2 * words).enumerate() {
-            let (pos, neg) = pattern.split_at(words);
+        for (j, (pos, neg)) in positive
+            .chunks_exact(words)
+            .zip(negative.chunks_exact(words))
+            .enumerate()
+        {
             let meets = pos
                 .iter()
                 .zip(neg)
@@ -90,32 +95,35 @@ impl Filter {
         mask
     }
 
-    /// Phase II: bit `j` set when the signed move whose masks are entry `start + j` of
-    /// `signed` (`j < len <= 64`; `words` masks of raised then of lowered coordinates per
-    /// entry) passes [`Filter::admits`], a branch-free test of every entry: the hot loop of
-    /// phase II.
+    /// Phase II: bit `j` set when the signed move `start + j` (`j < len <= 64`) passes
+    /// [`Filter::admits`], its masks being entry `start + j` of `raised` and of `lowered`
+    /// (`words` per entry): a branch-free test of every entry, the hot loop of phase II.
     pub(crate) fn free_entries(
         &self,
-        signed: &[u64],
+        (raised, lowered): (&[u64], &[u64]),
         words: usize,
         start: usize,
         len: usize,
     ) -> u64 {
-        let entries = &signed[2 * words * start..2 * words * (start + len)];
-        let mut mask = 0;
+        let range = words * start..words * (start + len);
+        let (raised, lowered) = (&raised[range.clone()], &lowered[range]);
         if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
             let mut free = [0u8; 64];
-            for (flag, pair) in free.iter_mut().zip(entries.chunks_exact(2)) {
-                *flag = u8::from((pair[0] & raise) | (pair[1] & lower) == 0);
+            for ((flag, r), l) in free.iter_mut().zip(raised).zip(lowered) {
+                *flag = u8::from((r & raise) | (l & lower) == 0);
             }
             return gather_bits(&free);
         }
-        for (j, entry) in entries.chunks_exact(2 * words).enumerate() {
-            let (raised, lowered) = entry.split_at(words);
-            let free = raised
+        let mut mask = 0;
+        for (j, (r, l)) in raised
+            .chunks_exact(words)
+            .zip(lowered.chunks_exact(words))
+            .enumerate()
+        {
+            let free = r
                 .iter()
                 .zip(&self.raising)
-                .chain(lowered.iter().zip(&self.lowering))
+                .chain(l.iter().zip(&self.lowering))
                 .all(|(m, b)| m & b == 0);
             mask |= u64::from(free) << j;
         }
@@ -199,12 +207,7 @@ mod tests {
                 (bounds.0[i], bounds.1[i]) = (Some(0), Some(2));
             }
             let p = problem(bounds.0, bounds.1);
-            let signed: Vec<u64> = (0..moves.len())
-                .flat_map(|index| {
-                    let (raised, lowered) = moves.pattern(index, Sign::Plus);
-                    [raised, lowered].concat()
-                })
-                .collect();
+            let signed = moves.masks();
             for code in 0..125 {
                 let mut x = vec![0i64; width];
                 for (i, v) in x.iter_mut().take(3).enumerate() {
@@ -214,7 +217,7 @@ mod tests {
                 let kept = repair.repairing_candidates(&moves, 0, moves.len());
                 if x.iter().all(|&v| (0..=2).contains(&v)) {
                     let block = Filter::blocking(&p, &x, moves.words());
-                    let free = block.free_entries(&signed, moves.words(), 0, moves.len());
+                    let free = block.free_entries(signed, moves.words(), 0, moves.len());
                     for index in 0..moves.len() {
                         let admitted = block.admits(&moves, index, Sign::Plus);
                         assert_eq!(free >> index & 1 == 1, admitted, "{x:?} move {index}");

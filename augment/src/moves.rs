@@ -59,8 +59,10 @@ pub struct MoveSet {
     indices: Vec<usize>,
     values: Vec<i64>,
     norms: Vec<i64>,
-    /// Per move `words` masks of positive entries, then `words` masks of negative entries.
-    patterns: Vec<u64>,
+    /// Per move `words` masks of its positive entries.
+    positive: Vec<u64>,
+    /// Per move `words` masks of its negative entries.
+    negative: Vec<u64>,
     words: usize,
     /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
     /// otherwise empty.
@@ -88,7 +90,8 @@ impl MoveSet {
             indices: Vec::with_capacity(nonzeros),
             values: Vec::with_capacity(nonzeros),
             norms: Vec::with_capacity(count),
-            patterns: Vec::with_capacity(count * 2 * width.div_ceil(64)),
+            positive: Vec::with_capacity(count * width.div_ceil(64)),
+            negative: Vec::with_capacity(count * width.div_ceil(64)),
             words: width.div_ceil(64),
             columns: Vec::new(),
             max_norm: 0,
@@ -123,12 +126,17 @@ impl MoveSet {
     fn index_row(&mut self, index: usize) -> Result<()> {
         let row = &self.dense[index * self.width..(index + 1) * self.width];
         let mut norm: i64 = 0;
-        let at = self.patterns.len();
-        self.patterns.extend(std::iter::repeat_n(0, 2 * self.words));
+        let at = self.positive.len();
+        self.positive.extend(std::iter::repeat_n(0, self.words));
+        self.negative.extend(std::iter::repeat_n(0, self.words));
         for (i, &v) in row.iter().enumerate() {
             if v != 0 {
-                let half = if v > 0 { 0 } else { self.words };
-                self.patterns[at + half + i / 64] |= 1 << (i % 64);
+                let masks = if v > 0 {
+                    &mut self.positive
+                } else {
+                    &mut self.negative
+                };
+                masks[at + i / 64] |= 1 << (i % 64);
                 self.indices.push(i);
                 self.values.push(v);
                 norm = norm
@@ -181,16 +189,17 @@ impl MoveSet {
         self.words
     }
 
-    /// Every move's masks, `words` of positive entries then `words` of negative entries.
-    pub(crate) fn patterns(&self) -> &[u64] {
-        &self.patterns
+    /// Every move's masks of its positive entries (`words` per move), then of its negative
+    /// entries.
+    pub(crate) fn masks(&self) -> (&[u64], &[u64]) {
+        (&self.positive, &self.negative)
     }
 
     /// Bit masks of the coordinates that move `index` raises and lowers when applied with
     /// `sign` (bit `i % 64` of word `i / 64` stands for coordinate `i`).
     pub(crate) fn pattern(&self, index: usize, sign: Sign) -> (&[u64], &[u64]) {
-        let at = index * 2 * self.words;
-        let (pos, neg) = self.patterns[at..at + 2 * self.words].split_at(self.words);
+        let range = index * self.words..(index + 1) * self.words;
+        let (pos, neg) = (&self.positive[range.clone()], &self.negative[range]);
         match sign {
             Sign::Plus => (pos, neg),
             Sign::Minus => (neg, pos),

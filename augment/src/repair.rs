@@ -87,10 +87,6 @@ impl Evaluate for RepairScan<'_> {
         Ok(best)
     }
 
-    fn slots(&self) -> usize {
-        self.moves.len()
-    }
-
     fn candidates(&self, start: usize, len: usize) -> u64 {
         self.filter.repairing_candidates(self.moves, start, len)
     }

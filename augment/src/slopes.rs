@@ -3,9 +3,10 @@
 //!
 //! With linear costs a move improves only in the sign where `c.g < 0` (`+` when `c.g < 0`, `-`
 //! when `c.g > 0`, neither when `c.g = 0`), whatever the point. So phase II fixes, once per
-//! solve, the list of moves with a nonzero rate and the sign masks of their improving sign;
-//! each scan's first pass then tests one pair of masks per move (is the improving sign
-//! blocked by a bound?) without looking at the rate or the move again.
+//! solve, the sign masks of every move's improving sign; each scan's first pass then tests
+//! one pair of masks per move (is the improving sign blocked by a bound?) without looking at
+//! the rate or the move again. A move with rate 0 gets full masks, which every bound blocks
+//! (at a point on no bound the scan looks at it and finds the rate 0).
 //!
 //! `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i16` or `i32` and the moves have
 //! a narrow column-major copy, the rates are column sums `sum_i c_i * column_i` in lanes of that
@@ -16,16 +17,17 @@
 use std::ops::{Add, Mul};
 
 use crate::error::{overflow, Result};
-use crate::moves::{MoveSet, Sign};
+use crate::moves::MoveSet;
 
-/// `c.g` for every move of one set, and the moves that can improve.
+/// `c.g` for every move of one set, and the masks of the moves' improving signs.
 pub(crate) struct Slopes {
     rates: Rates,
-    /// The moves with `c.g != 0`, increasing: the scan's slots.
-    slots: Vec<usize>,
-    /// Per slot, the masks of its move applied in the improving sign: `words` masks of the
-    /// coordinates it raises, then `words` of those it lowers.
-    signed: Vec<u64>,
+    /// Per move `words` masks of the coordinates its improving sign raises (all ones when
+    /// its rate is 0).
+    raised: Vec<u64>,
+    /// Per move `words` masks of the coordinates its improving sign lowers (all ones when
+    /// its rate is 0).
+    lowered: Vec<u64>,
 }
 
 /// The rates in the narrowest type their bound allows.
@@ -40,7 +42,7 @@ impl Slopes {
     /// The rates of `costs` along `moves`; fails only when a rate overflows `i128`.
     pub(crate) fn new(costs: &[i64], moves: &MoveSet) -> Result<Self> {
         let rates = rates(costs, moves)?;
-        let (slots, signed) = match &rates {
+        let (raised, lowered) = match &rates {
             Rates::I16(r) => improving(moves, r),
             Rates::I32(r) => improving(moves, r),
             Rates::I64(r) => improving(moves, r),
@@ -48,8 +50,8 @@ impl Slopes {
         };
         Ok(Self {
             rates,
-            slots,
-            signed,
+            raised,
+            lowered,
         })
     }
 
@@ -64,50 +66,50 @@ impl Slopes {
         }
     }
 
-    /// The moves with a nonzero rate, increasing.
-    pub(crate) fn slots(&self) -> &[usize] {
-        &self.slots
-    }
-
-    /// Per slot the masks of the move in its improving sign (see [`Filter::free_entries`]).
+    /// Per move the masks of the coordinates its improving sign raises and lowers (see
+    /// [`Filter::free_entries`]).
     ///
     /// [`Filter::free_entries`]: crate::marks::Filter::free_entries
-    pub(crate) fn signed(&self) -> &[u64] {
-        &self.signed
+    pub(crate) fn improving(&self) -> (&[u64], &[u64]) {
+        (&self.raised, &self.lowered)
     }
 }
 
-/// The moves with a nonzero rate and the masks of their improving signs (`+` when the rate
-/// is negative). With one mask word per sign this is a branch-free compaction.
-fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<usize>, Vec<u64>) {
+/// The masks of every move's improving sign (`+` when the rate is negative, `-` when it is
+/// positive, all ones when it is 0), as two arrays like [`MoveSet::masks`].
+fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>, Vec<u64>) {
     let zero = T::default();
     let words = moves.words();
-    if words != 1 {
-        let mut slots = Vec::new();
-        let mut signed = Vec::new();
-        for (index, &rate) in rates.iter().enumerate().filter(|(_, &r)| r != zero) {
-            let sign = if rate < zero { Sign::Plus } else { Sign::Minus };
-            let (raised, lowered) = moves.pattern(index, sign);
-            slots.push(index);
-            signed.extend_from_slice(raised);
-            signed.extend_from_slice(lowered);
+    let (positive, negative) = moves.masks();
+    // Per entry: the move's own mask when its rate is negative, the other sign's when it is
+    // positive, all ones when it is 0.
+    let pick = |rate: T, own: u64, other: u64| {
+        if rate < zero {
+            own
+        } else if rate > zero {
+            other
+        } else {
+            u64::MAX
         }
-        return (slots, signed);
+    };
+    if words == 1 {
+        let side = |own: &[u64], other: &[u64]| {
+            own.iter()
+                .zip(other)
+                .zip(rates)
+                .map(|((&o, &t), &rate)| pick(rate, o, t))
+                .collect()
+        };
+        return (side(positive, negative), side(negative, positive));
     }
-    let mut slots = vec![0; rates.len()];
-    let mut signed = vec![0; 2 * rates.len()];
-    let mut kept = 0;
-    for (index, (pair, &rate)) in moves.patterns().chunks_exact(2).zip(rates).enumerate() {
-        let (pos, neg) = (pair[0], pair[1]);
-        let minus = rate > zero;
-        slots[kept] = index;
-        signed[2 * kept] = if minus { neg } else { pos };
-        signed[2 * kept + 1] = if minus { pos } else { neg };
-        kept += usize::from(rate != zero);
-    }
-    slots.truncate(kept);
-    signed.truncate(2 * kept);
-    (slots, signed)
+    let side = |own: &[u64], other: &[u64]| {
+        let mut out = Vec::with_capacity(own.len());
+        for (k, (&o, &t)) in own.iter().zip(other).enumerate() {
+            out.push(pick(rates[k / words], o, t));
+        }
+        out
+    };
+    (side(positive, negative), side(negative, positive))
 }
 
 /// The rates of `costs` along `moves`, by the cheapest exact path.
@@ -178,7 +180,7 @@ fn checked_rate(costs: &[i64], moves: &MoveSet, index: usize) -> Result<i128> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::moves::Coverage;
+    use crate::moves::{Coverage, Sign};
 
     fn dot(row: &[i64], costs: &[i64]) -> i128 {
         row.iter()
@@ -225,7 +227,7 @@ mod tests {
     }
 
     #[test]
-    fn slots_are_the_moves_with_a_rate_in_their_improving_sign() {
+    fn every_move_gets_the_masks_of_its_improving_sign() {
         for width in [3, 70] {
             let row = |entries: &[(usize, i64)]| {
                 let mut r = vec![0; width];
@@ -240,27 +242,37 @@ mod tests {
                 row(&[(0, -2), (1, 1)]),
             ];
             let moves = MoveSet::from_rows(width, &rows, Coverage::Complete).unwrap();
+            let masks = |signs: [Option<Sign>; 3]| {
+                let full = vec![u64::MAX; moves.words()];
+                let (mut raised, mut lowered) = (Vec::new(), Vec::new());
+                for (index, sign) in signs.into_iter().enumerate() {
+                    let (r, l) = sign.map_or((&full[..], &full[..]), |s| moves.pattern(index, s));
+                    raised.extend_from_slice(r);
+                    lowered.extend_from_slice(l);
+                }
+                (raised, lowered)
+            };
             let mut costs = vec![0; width];
             costs[0] = 1;
             costs[1] = 2;
             costs[width - 1] = -2;
             // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            assert_eq!(slopes.slots(), &[0]);
-            let (raised, lowered) = moves.pattern(0, Sign::Minus);
-            assert_eq!(slopes.signed(), [raised, lowered].concat(), "width {width}");
+            let (raised, lowered) = masks([Some(Sign::Minus), None, None]);
+            assert_eq!(
+                slopes.improving(),
+                (&raised[..], &lowered[..]),
+                "width {width}"
+            );
             costs[1] = 1;
-            // Rates 3, -1 and -1: every move improves, move 0 in `-`, the others in `+`.
+            // Rates 3, -1 and -1: move 0 improves in `-`, the others in `+`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            assert_eq!(slopes.slots(), &[0, 1, 2]);
-            let expected: Vec<u64> = [(0, Sign::Minus), (1, Sign::Plus), (2, Sign::Plus)]
-                .iter()
-                .flat_map(|&(index, sign)| {
-                    let (raised, lowered) = moves.pattern(index, sign);
-                    [raised, lowered].concat()
-                })
-                .collect();
-            assert_eq!(slopes.signed(), expected, "width {width}");
+            let (raised, lowered) = masks([Some(Sign::Minus), Some(Sign::Plus), Some(Sign::Plus)]);
+            assert_eq!(
+                slopes.improving(),
+                (&raised[..], &lowered[..]),
+                "width {width}"
+            );
         }
     }
 

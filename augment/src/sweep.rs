@@ -16,35 +16,30 @@ use crate::moves::MoveSet;
 use crate::search::Step;
 use crate::select::{ratio_cmp, Candidate, Rule};
 
-/// Slots per parallel chunk (a multiple of 64, the slots of one candidate mask).
+/// Moves per parallel chunk (a multiple of 64, the moves of one candidate mask).
 const CHUNK: usize = 256;
 
 /// How one kind of scan evaluates a single move.
-///
-/// A scan goes through its *slots* in order, each standing for one move, in increasing move
-/// index (every move, or only those the scan can ever select).
 pub(crate) trait Evaluate: Sync {
     /// The moves scanned.
     fn moves(&self) -> &MoveSet;
     /// The selection rule.
     fn rule(&self) -> Rule;
-    /// The number of slots.
-    fn slots(&self) -> usize;
-    /// Bit `j` set when slot `start + j` is worth evaluating, for `j < len <= 64` (a superset
-    /// of the slots that improve).
+    /// Bit `j` set when move `start + j` is worth evaluating, for `j < len <= 64` (a superset
+    /// of the moves that improve).
     fn candidates(&self, start: usize, len: usize) -> u64;
-    /// The rule's candidate for the move of `slot` (its better sign, or its first improving
-    /// sign under first-improving), or `None` when it does not improve. Called only for slots
+    /// The rule's candidate for move `index` (its better sign, or its first improving sign
+    /// under first-improving), or `None` when it does not improve. Called only for moves
     /// that [`Evaluate::candidates`] kept. Given a `floor`, a move that cannot gain strictly
     /// more than it may also give `None`.
-    fn evaluate(&self, slot: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
+    fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>>;
     /// A gain no step can exceed at the current point, if one is known.
     fn ceiling(&self) -> Option<i128>;
 }
 
 /// The step the rule selects among all moves, or `None` when no move improves.
 pub(crate) fn select<E: Evaluate>(scan: &E, parallel: bool) -> Result<Option<Candidate>> {
-    let count = scan.slots();
+    let count = scan.moves().len();
     if !parallel {
         return select_in(scan, 0..count);
     }
@@ -70,13 +65,13 @@ fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Opt
     for start in range.clone().step_by(64) {
         let mut mask = scan.candidates(start, (range.end - start).min(64));
         while mask != 0 {
-            let slot = start + mask.trailing_zeros() as usize;
+            let index = start + mask.trailing_zeros() as usize;
             mask &= mask - 1;
             let floor = match (rule, best.map(|b| b.step)) {
                 (Rule::GraverBest, Some(Step::Finite { gain, .. })) => Some(gain),
                 _ => None,
             };
-            let Some(found) = scan.evaluate(slot, floor)? else {
+            let Some(found) = scan.evaluate(index, floor)? else {
                 continue;
             };
             let last = match found.step {
