@@ -73,6 +73,46 @@ impl<'a> LinearScan<'a> {
     }
 }
 
+impl LinearScan<'_> {
+    /// The longest feasible step along a signed move given as `(gap slot, |v|)` per support
+    /// entry ([`UNBOUNDED`] for a ray), or `None` when it is 0 or, given a `floor`, when
+    /// `rate` times the room cannot beat the floor (the room only shrinks as entries are read,
+    /// so such a move is left early).
+    #[inline]
+    fn room(
+        &self,
+        steps: impl Iterator<Item = (usize, u64)>,
+        rate: u128,
+        floor: Option<u128>,
+    ) -> Option<u64> {
+        let mut room = UNBOUNDED;
+        for (slot, step) in steps {
+            let gap = self.gaps[slot];
+            if gap == UNBOUNDED {
+                continue;
+            }
+            // `gap / step < room` exactly when `gap < room * step`: divide only then.
+            let r = if step == 1 {
+                gap
+            } else if gap < room.saturating_mul(step) {
+                gap / step
+            } else {
+                continue;
+            };
+            if r == 0 {
+                return None;
+            }
+            if r < room {
+                room = r;
+                if floor.is_some_and(|f| rate.saturating_mul(u128::from(room)) <= f) {
+                    return None;
+                }
+            }
+        }
+        Some(room)
+    }
+}
+
 impl Evaluate for LinearScan<'_> {
     fn moves(&self) -> &MoveSet {
         self.moves
@@ -98,27 +138,27 @@ impl Evaluate for LinearScan<'_> {
         };
         let rate = slope.unsigned_abs();
         let floor = floor.map(i128::unsigned_abs);
-        let (indices, values) = self.moves.support(index);
-        let mut room = UNBOUNDED;
-        for (&i, &v) in indices.iter().zip(values) {
-            // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
-            let down = (v < 0) == (sign == Sign::Plus);
-            let gap = self.gaps[2 * i + usize::from(down)];
-            if gap == UNBOUNDED {
-                continue;
+        let room = match self.moves.bound_steps(index) {
+            Some(entries) => {
+                let flip = usize::from(sign == Sign::Minus);
+                let steps = entries
+                    .iter()
+                    .map(|&e| ((e >> 8) as usize ^ flip, u64::from(e & 0xff)));
+                self.room(steps, rate, floor)
             }
-            let step = v.unsigned_abs();
-            let r = if step == 1 { gap } else { gap / step };
-            if r == 0 {
-                return Ok(None);
+            None => {
+                let (indices, values) = self.moves.support(index);
+                // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
+                let steps = indices.iter().zip(values).map(|(&i, &v)| {
+                    let down = (v < 0) == (sign == Sign::Plus);
+                    (2 * i + usize::from(down), v.unsigned_abs())
+                });
+                self.room(steps, rate, floor)
             }
-            if r < room {
-                room = r;
-                if floor.is_some_and(|f| rate.saturating_mul(u128::from(room)) <= f) {
-                    return Ok(None);
-                }
-            }
-        }
+        };
+        let Some(room) = room else {
+            return Ok(None);
+        };
         if room == UNBOUNDED {
             return Ok(Some(Candidate {
                 index,

@@ -67,6 +67,9 @@ pub struct MoveSet {
     /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
     /// otherwise empty.
     columns: Vec<i8>,
+    /// The support in one word per entry (see [`MoveSet::bound_steps`]), parallel to
+    /// `indices`, when every entry fits; otherwise empty.
+    steps: Vec<u32>,
     max_norm: i64,
     coverage: Coverage,
 }
@@ -94,6 +97,7 @@ impl MoveSet {
             negative: Vec::with_capacity(count * width.div_ceil(64)),
             words: width.div_ceil(64),
             columns: Vec::new(),
+            steps: Vec::new(),
             max_norm: 0,
             dense,
             coverage,
@@ -103,6 +107,7 @@ impl MoveSet {
             set.index_row(index)?;
         }
         set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
+        set.steps = bound_steps(&set.indices, &set.values).unwrap_or_default();
         Ok(set)
     }
 
@@ -206,6 +211,16 @@ impl MoveSet {
         }
     }
 
+    /// The support of move `index` as it meets the bounds, when the set is small enough: per
+    /// entry `i` with value `v`, `(2 i + [v < 0]) << 8 | |v|`. Applied with `+`, the entry moves
+    /// `x_i` towards its upper bound (slot `2 i`) or its lower bound (slot `2 i + 1`) by `|v|`
+    /// per step; with `-` the slot's last bit flips. One 32-bit word instead of two 64-bit
+    /// ones keeps a scan's reads of scattered moves to about one cache line each.
+    #[inline]
+    pub(crate) fn bound_steps(&self, index: usize) -> Option<&[u32]> {
+        (!self.steps.is_empty()).then(|| &self.steps[self.starts[index]..self.starts[index + 1]])
+    }
+
     /// Entries of variable `variable` over all moves, in move order, when every entry of the
     /// set fits in an `i8`.
     pub(crate) fn column(&self, variable: usize) -> Option<&[i8]> {
@@ -234,4 +249,20 @@ fn narrow_columns(dense: &[i64], width: usize, count: usize) -> Option<Vec<i8>> 
         }
     }
     Some(columns)
+}
+
+/// The packed support entries of [`MoveSet::bound_steps`], or `None` when a value exceeds 255
+/// in size or a slot `2 i + 1` does not fit in 24 bits.
+fn bound_steps(indices: &[usize], values: &[i64]) -> Option<Vec<u32>> {
+    indices
+        .iter()
+        .zip(values)
+        .map(|(&i, &v)| {
+            let slot = u32::try_from(2 * i + usize::from(v < 0))
+                .ok()
+                .filter(|&s| s < 1 << 24)?;
+            let step = u8::try_from(v.unsigned_abs()).ok()?;
+            Some(slot << 8 | u32::from(step))
+        })
+        .collect()
 }

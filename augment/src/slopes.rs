@@ -82,15 +82,11 @@ fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>
     let words = moves.words();
     let (positive, negative) = moves.masks();
     // Per entry: the move's own mask when its rate is negative, the other sign's when it is
-    // positive, all ones when it is 0.
+    // positive, all ones when it is 0 (branch-free, so that it vectorises).
     let pick = |rate: T, own: u64, other: u64| {
-        if rate < zero {
-            own
-        } else if rate > zero {
-            other
-        } else {
-            u64::MAX
-        }
+        let below = u64::from(rate < zero).wrapping_neg();
+        let above = u64::from(rate > zero).wrapping_neg();
+        (own & below) | (other & above) | !(below | above)
     };
     if words == 1 {
         let side = |own: &[u64], other: &[u64]| {

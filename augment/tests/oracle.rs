@@ -168,6 +168,38 @@ proptest! {
         }
     }
 
+    /// A set whose entries do not fit the scan's compact forms (here one extra move with an
+    /// entry of 300 on an extra free variable of cost 0, which can never improve) takes the
+    /// general paths for rates and rooms and returns exactly the same solution, trace included.
+    #[test]
+    fn wide_entries_take_the_general_path_with_the_same_result(
+        (inst, costs) in instance().prop_flat_map(|inst| {
+            let n = inst.x0.len();
+            (Just(inst), prop::collection::vec(-5i64..=5, n))
+        })
+    ) {
+        let n = inst.x0.len();
+        let rows = graver(&inst.a, n, inst.bound);
+        let narrow = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
+        let mut wide_rows: Vec<Vec<i64>> = rows.iter().map(|r| [&r[..], &[0]].concat()).collect();
+        wide_rows.push([vec![0; n], vec![300]].concat());
+        let wide = MoveSet::from_rows(n + 1, &wide_rows, Coverage::Complete).unwrap();
+        let options = Options::default().trace(true);
+        let problem = problem(&inst, Objective::linear(costs.clone()));
+        let expected = solve(&problem, &narrow, &inst.x0, &options).unwrap();
+        let wide_problem = Problem::new(
+            Objective::linear([&costs[..], &[0]].concat()),
+            problem.lower().iter().copied().chain([None]).collect(),
+            problem.upper().iter().copied().chain([None]).collect(),
+        ).unwrap();
+        let x0 = [&inst.x0[..], &[0]].concat();
+        let found = solve(&wide_problem, &wide, &x0, &options).unwrap();
+        prop_assert_eq!(&found.status, &expected.status);
+        prop_assert_eq!(found.objective, expected.objective);
+        prop_assert_eq!(&found.x[..n], &expected.x[..]);
+        prop_assert_eq!(found.trace, expected.trace);
+    }
+
     /// A set truncated to the box (|g_i| <= u_i - l_i) still solves every start inside the box.
     #[test]
     fn box_truncated_set_is_enough_inside_the_box((inst, objective) in case()) {
