@@ -3,40 +3,45 @@
 //! Re-planning solves the same matrix for thousands of right-hand sides; the exact solver in
 //! `solve.rs` allocates big integers for every one. [`QuickSolver`] runs the same forward
 //! substitution (`H z = b` on the pivot rows, then `x = U_r z` with `U_r` the first `r`
-//! columns of `U`) in checked 128-bit arithmetic. It answers only when everything fits and a
-//! solution exists; every other case (overflow, a pivot that does not divide, an inconsistent
-//! row) returns `None`, and the caller asks the exact solver, which also yields the
-//! certificate. Its solutions are not size-reduced; callers round them themselves.
+//! columns of `U`) in checked 64-bit arithmetic over row-major copies (each step a dot
+//! product of two contiguous slices). It answers only when everything fits and a solution
+//! exists; every other case (overflow, a pivot that does not divide, an inconsistent row)
+//! returns `None`, and the caller asks the exact solver, which also yields the certificate.
+//! Its solutions are not size-reduced; callers round them themselves.
 
 use super::hermite::HermiteForm;
 
-/// The pivot rows of `H` and the first `r` columns of `U` in `i64`.
+/// The first `r` columns of `H` and of `U` in `i64`, row by row.
 #[derive(Clone, Debug)]
 pub struct QuickSolver {
     rows: usize,
     cols: usize,
     pivot_rows: Vec<usize>,
-    /// `h[k][i]`: column `k < r` of `H`, all rows.
-    h: Vec<Vec<i64>>,
-    /// `u[k]`: column `k < r` of `U`.
-    u: Vec<Vec<i64>>,
+    /// `h[i * r + k]`: entry `(i, k)` of `H`, `k < r`.
+    h: Vec<i64>,
+    /// `u[j * r + k]`: entry `(j, k)` of `U`, `k < r`.
+    u: Vec<i64>,
 }
 
 impl QuickSolver {
     /// The copy of `form`, or `None` when one of its entries does not fit in `i64`.
     pub fn new(form: &HermiteForm) -> Option<Self> {
-        let small = |columns: &[Vec<num_bigint::BigInt>]| -> Option<Vec<Vec<i64>>> {
-            columns[..form.rank()]
-                .iter()
-                .map(|c| c.iter().map(|v| i64::try_from(v).ok()).collect())
-                .collect()
+        let rank = form.rank();
+        let small = |columns: &[Vec<num_bigint::BigInt>], length: usize| -> Option<Vec<i64>> {
+            let mut flat = vec![0; length * rank];
+            for (k, column) in columns[..rank].iter().enumerate() {
+                for (i, v) in column.iter().enumerate() {
+                    flat[i * rank + k] = i64::try_from(v).ok()?;
+                }
+            }
+            Some(flat)
         };
         Some(Self {
             rows: form.rows(),
             cols: form.cols(),
             pivot_rows: form.pivot_rows().to_vec(),
-            h: small(form.hermite_columns())?,
-            u: small(form.transform_columns())?,
+            h: small(form.hermite_columns(), form.rows())?,
+            u: small(form.transform_columns(), form.cols())?,
         })
     }
 
@@ -50,14 +55,15 @@ impl QuickSolver {
             self.rows,
             "right-hand side length must equal the row count"
         );
-        let mut z: Vec<i128> = Vec::with_capacity(self.pivot_rows.len());
+        let rank = self.pivot_rows.len();
+        let mut z: Vec<i64> = Vec::with_capacity(rank);
         for (k, &p) in self.pivot_rows.iter().enumerate() {
             let residual = self.residual(p, b, &z)?;
-            let pivot = i128::from(self.h[k][p]);
-            if residual % pivot != 0 {
+            let pivot = self.h[p * rank + k];
+            if residual.checked_rem(pivot)? != 0 {
                 return None;
             }
-            z.push(residual / pivot);
+            z.push(residual.checked_div(pivot)?);
         }
         let mut pivots = self.pivot_rows.iter().peekable();
         for i in 0..self.rows {
@@ -65,24 +71,25 @@ impl QuickSolver {
                 return None;
             }
         }
-        (0..self.cols)
-            .map(|j| {
-                let sum = z.iter().zip(&self.u).try_fold(0i128, |s, (zk, uk)| {
-                    s.checked_add(zk.checked_mul(i128::from(uk[j]))?)
-                })?;
-                i64::try_from(sum).ok()
-            })
-            .collect()
+        if rank == 0 {
+            return Some(vec![0; self.cols]);
+        }
+        self.u.chunks_exact(rank).map(|row| dot(row, &z)).collect()
     }
 
-    /// `b_i - sum_k H[i][k] z_k`, checked.
-    fn residual(&self, i: usize, b: &[i64], z: &[i128]) -> Option<i128> {
-        z.iter()
-            .zip(&self.h)
-            .try_fold(i128::from(b[i]), |acc, (zk, col)| {
-                acc.checked_sub(zk.checked_mul(i128::from(col[i]))?)
-            })
+    /// `b_i - sum_k H[i][k] z_k` over the `z` known so far, checked.
+    fn residual(&self, i: usize, b: &[i64], z: &[i64]) -> Option<i64> {
+        let rank = self.pivot_rows.len();
+        let row = &self.h[i * rank..i * rank + z.len()];
+        b[i].checked_sub(dot(row, z)?)
     }
+}
+
+/// `sum_k a_k b_k`, checked.
+fn dot(a: &[i64], b: &[i64]) -> Option<i64> {
+    a.iter()
+        .zip(b)
+        .try_fold(0i64, |sum, (x, y)| sum.checked_add(x.checked_mul(*y)?))
 }
 
 #[cfg(test)]
