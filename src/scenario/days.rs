@@ -17,6 +17,7 @@ use std::collections::HashMap;
 use serde_json::Value;
 
 use super::compile::variant_numbers;
+use super::day_record::DayRecord;
 use super::file::unknown;
 use super::reader::{join, strip_position, Reader};
 use super::{Field, Scenario};
@@ -48,6 +49,22 @@ pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<Par
 
 /// The name and the checked changes of one JSON line.
 fn day_line(
+    scenario: &Scenario,
+    names: &Names,
+    r: &Reader,
+    line: &str,
+    number: usize,
+    seen: &mut HashMap<String, usize>,
+) -> Result<(String, Vec<Change>)> {
+    if let Some((day, changed)) = quick_changes(scenario, names, r, line) {
+        remember_day(r, seen, day, number)?;
+        return Ok((day.to_string(), changed));
+    }
+    careful_line(scenario, names, r, line, number, seen)
+}
+
+/// [`day_line`] for any line, with a message for every error.
+fn careful_line(
     scenario: &Scenario,
     names: &Names,
     r: &Reader,
@@ -101,8 +118,41 @@ fn day_line(
     Ok((day.to_string(), changed))
 }
 
+/// The day and changes of a line of the simple shape ([`DayRecord`]) whose every key, name
+/// and value is valid; `None` otherwise, and [`careful_line`] then finds
+/// the error. A valid line gives the same changes either way, in another order (here by
+/// entry, there by key; a name given twice is left to the careful reading, where the last
+/// value wins).
+fn quick_changes<'a>(
+    scenario: &Scenario,
+    names: &Names,
+    r: &Reader,
+    line: &'a str,
+) -> Option<(&'a str, Vec<Change>)> {
+    let record = DayRecord::read(line)?;
+    let fields = scenario.kind.fields();
+    let mut changed = Vec::new();
+    for &(key, ref entries) in &record.tables {
+        let field = Field::from_key(key).filter(|f| fields.contains(f))?;
+        for &(name, value) in entries {
+            if value.is_some_and(|v| i128::from(v).abs() > VALUE_LIMIT) {
+                return None;
+            }
+            changed.push(names.resolve(scenario, r, (field, key), name, value).ok()?);
+        }
+    }
+    changed.sort_unstable_by_key(|c| (c.table, c.index));
+    if changed
+        .windows(2)
+        .any(|w| (w[0].table, w[0].index) == (w[1].table, w[1].index))
+    {
+        return None;
+    }
+    Some((record.day?, changed))
+}
+
 /// One checked change: entry `index` of table `table` becomes `value`.
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 struct Change {
     table: usize,
     index: usize,
@@ -340,4 +390,66 @@ fn csv_change(
         )
     };
     names.resolve(s, r, (f, field), name, parsed)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::ModelKind;
+
+    const LANES: &str = r#"
+kind = "lanes"
+depots = ["a", "b"]
+zones = ["x", "y"]
+supply = { a = 7, b = 5 }
+demand = { x = 4, y = 6 }
+lanes = [
+  { from = "a", to = "x", cost = 3, capacity = 4 },
+  { from = "a", to = "y", cost = 5 },
+  { from = "b", to = "y", cost = 2, capacity = 6 },
+]
+"#;
+
+    /// Sorted, since the quick reading keeps input order and the careful one key order.
+    fn sorted(mut changes: Vec<Change>) -> Vec<Change> {
+        changes.sort_by_key(|c| (c.table, c.index));
+        changes
+    }
+
+    #[test]
+    fn the_quick_reading_gives_the_careful_changes_or_leaves_the_line_to_it() {
+        let s = Scenario::from_str(LANES, ModelKind::Toml, "s.toml").unwrap();
+        let names = Names::of(&s);
+        let r = Reader {
+            file: "days.jsonl",
+            prefix: String::new(),
+        };
+        let quick = [
+            r#"{"day": "mon"}"#,
+            r#"{"demand": {"y": 3, "x": 0}, "day": "tue", "supply": {"b": 9}}"#,
+            r#"{"day": "wed", "capacity": {"a->x": null, "b->y": 2}, "cost": {"a->y": -4}}"#,
+        ];
+        for line in quick {
+            let (day, changes) = quick_changes(&s, &names, &r, line).expect(line);
+            let careful = careful_line(&s, &names, &r, line, 1, &mut HashMap::new()).unwrap();
+            assert_eq!(
+                (day.to_string(), sorted(changes)),
+                (careful.0, sorted(careful.1))
+            );
+        }
+        let careful_only = [
+            r#"{"day": "mon", "demand": {"z": 3}}"#,
+            r#"{"day": "mon", "demand": {"x": -3}}"#,
+            r#"{"day": "mon", "supply": {"a": null}}"#,
+            r#"{"day": "mon", "stock": {"a": 1}}"#,
+            r#"{"day": "mon", "colour": {"a": 1}}"#,
+            r#"{"day": "mon", "cost": {"a->y": 9223372036854775807}}"#,
+            r#"{"demand": {"x": 3}}"#,
+            r#"{"day": "mon", "cost": {"a->y": 2}, "cost": {"a->y": 3}}"#,
+            r#"{"day": "mon", "cost": {"b->y": 1, "b->y": 8}}"#,
+        ];
+        for line in careful_only {
+            assert!(quick_changes(&s, &names, &r, line).is_none(), "{line}");
+        }
+    }
 }

@@ -23,6 +23,7 @@
 //! [`Field`], which daily changes overwrite by name.
 
 mod compile;
+mod day_record;
 mod days;
 mod file;
 mod reader;
