@@ -12,13 +12,16 @@ use std::fmt;
 
 use serde::de::{Deserialize, Deserializer, Error, MapAccess, Visitor};
 
+/// A table's entries: names and new values (`None` for `null`), in input order.
+pub(super) type Entries<'a> = Vec<(&'a str, Option<i64>)>;
+
 /// One day line: its name and, per key, the changed entries.
 #[derive(Debug, Default, PartialEq)]
 pub(super) struct DayRecord<'a> {
     /// The value of `day`, if given.
     pub day: Option<&'a str>,
     /// Every other key with its entries, in input order.
-    pub tables: Vec<(&'a str, Vec<(&'a str, Option<i64>)>)>,
+    pub tables: Vec<(&'a str, Entries<'a>)>,
 }
 
 impl<'a> DayRecord<'a> {
@@ -53,7 +56,7 @@ impl<'de> Visitor<'de> for RecordVisitor {
             } else if record.tables.iter().any(|(k, _)| *k == key) {
                 return Err(M::Error::custom("key given twice"));
             } else {
-                record.tables.push((key, map.next_value::<Entries>()?.0));
+                record.tables.push((key, map.next_value::<Table>()?.0));
             }
         }
         Ok(record)
@@ -61,9 +64,9 @@ impl<'de> Visitor<'de> for RecordVisitor {
 }
 
 /// A table from names to integers or `null`, in input order.
-struct Entries<'a>(Vec<(&'a str, Option<i64>)>);
+struct Table<'a>(Entries<'a>);
 
-impl<'de> Deserialize<'de> for Entries<'de> {
+impl<'de> Deserialize<'de> for Table<'de> {
     fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
         deserializer.deserialize_map(EntriesVisitor)
     }
@@ -72,7 +75,7 @@ impl<'de> Deserialize<'de> for Entries<'de> {
 struct EntriesVisitor;
 
 impl<'de> Visitor<'de> for EntriesVisitor {
-    type Value = Entries<'de>;
+    type Value = Table<'de>;
 
     fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
         f.write_str("a table from names to integers")
@@ -83,7 +86,7 @@ impl<'de> Visitor<'de> for EntriesVisitor {
         while let Some(name) = map.next_key::<&'de str>()? {
             entries.push((name, map.next_value()?));
         }
-        Ok(Entries(entries))
+        Ok(Table(entries))
     }
 }
 
