@@ -77,15 +77,13 @@ impl Slopes {
 
 /// The masks of every move's improving sign (`+` when the rate is negative, `-` when it is
 /// positive, all ones when it is 0), as two arrays like [`MoveSet::masks`].
-fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>, Vec<u64>) {
-    let zero = T::default();
+fn improving<T: Rate>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>, Vec<u64>) {
     let words = moves.words();
     let (positive, negative) = moves.masks();
     // Per entry: the move's own mask when its rate is negative, the other sign's when it is
     // positive, all ones when it is 0 (branch-free, so that it vectorises).
     let pick = |rate: T, own: u64, other: u64| {
-        let below = u64::from(rate < zero).wrapping_neg();
-        let above = u64::from(rate > zero).wrapping_neg();
+        let (below, above) = rate.sign_masks();
         (own & below) | (other & above) | !(below | above)
     };
     if words == 1 {
@@ -107,6 +105,27 @@ fn improving<T: Copy + Ord + Default>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>
     };
     (side(positive, negative), side(negative, positive))
 }
+
+/// A stored rate's sign as two word masks: all ones when it is negative (first) or positive
+/// (second), by arithmetic shifts rather than comparisons, which vectorise on every x86-64.
+trait Rate: Copy {
+    fn sign_masks(self) -> (u64, u64);
+}
+
+macro_rules! rate_by_shifts {
+    ($($t:ty),*) => {$(
+        impl Rate for $t {
+            #[inline]
+            fn sign_masks(self) -> (u64, u64) {
+                // Rates obey `|c.g| <= <$t>::MAX`, so the negation does not overflow.
+                let shift = <$t>::BITS - 1;
+                ((self >> shift) as u64, (-self >> shift) as u64)
+            }
+        }
+    )*};
+}
+
+rate_by_shifts!(i16, i32, i64, i128);
 
 /// The rates of `costs` along `moves`, by the cheapest exact path.
 fn rates(costs: &[i64], moves: &MoveSet) -> Result<Rates> {
