@@ -67,6 +67,8 @@ pub struct MoveSet {
     /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
     /// otherwise empty.
     columns: Vec<i8>,
+    /// Per variable the largest `|g_i|` over all moves (empty when `columns` is).
+    column_extents: Vec<u8>,
     /// The support in one word per entry (see [`MoveSet::bound_steps`]), parallel to
     /// `indices`, when every entry fits; otherwise empty.
     steps: Vec<u32>,
@@ -97,6 +99,7 @@ impl MoveSet {
             negative: Vec::with_capacity(count * width.div_ceil(64)),
             words: width.div_ceil(64),
             columns: Vec::new(),
+            column_extents: Vec::new(),
             steps: Vec::new(),
             max_norm: 0,
             dense,
@@ -107,6 +110,17 @@ impl MoveSet {
             set.index_row(index)?;
         }
         set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
+        if !set.columns.is_empty() {
+            set.column_extents = (0..width)
+                .map(|i| {
+                    set.columns[i * count..(i + 1) * count]
+                        .iter()
+                        .map(|v| v.unsigned_abs())
+                        .max()
+                        .unwrap_or(0)
+                })
+                .collect();
+        }
         set.steps = bound_steps(&set.indices, &set.values).unwrap_or_default();
         Ok(set)
     }
@@ -226,6 +240,11 @@ impl MoveSet {
     pub(crate) fn column(&self, variable: usize) -> Option<&[i8]> {
         let count = self.len();
         (!self.columns.is_empty()).then(|| &self.columns[variable * count..(variable + 1) * count])
+    }
+
+    /// The largest `|g_i|` over all moves, when the set has a narrow column-major copy.
+    pub(crate) fn column_extent(&self, variable: usize) -> Option<u8> {
+        self.column_extents.get(variable).copied()
     }
 
     /// The largest l1 norm of a move (0 for an empty set).

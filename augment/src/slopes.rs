@@ -8,6 +8,11 @@
 //! the rate or the move again. A move with rate 0 gets full masks, which every bound blocks
 //! (at a point on no bound the scan looks at it and finds the rate 0).
 //!
+//! Phase II also visits only points inside the box, where a move with `|g_i| > u_i - l_i` on
+//! some variable can never be applied; such moves get full masks too, so no scan evaluates
+//! them (with the narrow column copy this is a few byte comparisons per move and bounded
+//! variable).
+//!
 //! `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i16` or `i32` and the moves have
 //! a narrow column-major copy, the rates are column sums `sum_i c_i * column_i` in lanes of that
 //! width, which the compiler vectorises (nothing can overflow: every partial sum obeys the
@@ -18,6 +23,7 @@ use std::ops::{Add, Mul};
 
 use crate::error::{overflow, Result};
 use crate::moves::MoveSet;
+use crate::problem::Problem;
 
 /// `c.g` for every move of one set, and the masks of the moves' improving signs.
 pub(crate) struct Slopes {
@@ -39,15 +45,18 @@ enum Rates {
 }
 
 impl Slopes {
-    /// The rates of `costs` along `moves`; fails only when a rate overflows `i128`.
-    pub(crate) fn new(costs: &[i64], moves: &MoveSet) -> Result<Self> {
+    /// The rates of `costs` along `moves` for phase II of `problem`; fails only when a rate
+    /// overflows `i128`.
+    pub(crate) fn new(costs: &[i64], moves: &MoveSet, problem: &Problem) -> Result<Self> {
         let rates = rates(costs, moves)?;
-        let (raised, lowered) = match &rates {
-            Rates::I16(r) => improving(moves, r),
-            Rates::I32(r) => improving(moves, r),
-            Rates::I64(r) => improving(moves, r),
-            Rates::I128(r) => improving(moves, r),
+        let mut signs = match &rates {
+            Rates::I16(r) => signs(r),
+            Rates::I32(r) => signs(r),
+            Rates::I64(r) => signs(r),
+            Rates::I128(r) => signs(r),
         };
+        drop_too_wide(moves, problem, &mut signs);
+        let (raised, lowered) = improving(moves, &signs);
         Ok(Self {
             rates,
             raised,
@@ -75,23 +84,48 @@ impl Slopes {
     }
 }
 
-/// The masks of every move's improving sign (`+` when the rate is negative, `-` when it is
-/// positive, all ones when it is 0), as two arrays like [`MoveSet::masks`].
-fn improving<T: Rate>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>, Vec<u64>) {
+/// Per move the sign of its rate: `-1`, `0` or `1`.
+fn signs<T: Rate>(rates: &[T]) -> Vec<i8> {
+    rates.iter().map(|&r| r.sign()).collect()
+}
+
+/// Sets to 0 the sign of every move wider than the box of `problem` on some variable
+/// (`|g_i| > u_i - l_i`), which phase II can never apply. Needs the narrow column copy;
+/// without one nothing changes (the scan's room test then rejects such moves one by one).
+fn drop_too_wide(moves: &MoveSet, problem: &Problem, signs: &mut [i8]) {
+    for (i, (lower, upper)) in problem.lower().iter().zip(problem.upper()).enumerate() {
+        let (Some(l), Some(u), Some(extent)) = (lower, upper, moves.column_extent(i)) else {
+            continue;
+        };
+        let Some(width) = u8::try_from(u.abs_diff(*l)).ok().filter(|&w| w < extent) else {
+            continue;
+        };
+        let column = moves.column(i).expect("a narrow copy has every column");
+        for (sign, g) in signs.iter_mut().zip(column) {
+            // All ones when the entry fits, else 0.
+            *sign &= i8::from(g.unsigned_abs() > width).wrapping_sub(1);
+        }
+    }
+}
+
+/// The masks of every move's improving sign (`+` when its sign is `-1`, `-` when it is `1`,
+/// all ones when it is 0), as two arrays like [`MoveSet::masks`].
+fn improving(moves: &MoveSet, signs: &[i8]) -> (Vec<u64>, Vec<u64>) {
     let words = moves.words();
     let (positive, negative) = moves.masks();
-    // Per entry: the move's own mask when its rate is negative, the other sign's when it is
-    // positive, all ones when it is 0 (branch-free, so that it vectorises).
-    let pick = |rate: T, own: u64, other: u64| {
-        let (below, above) = rate.sign_masks();
+    // Per entry: the move's own mask when its sign is -1, the other sign's when it is 1, all
+    // ones when it is 0; by arithmetic shifts, branch-free, so that it vectorises.
+    let pick = |sign: i8, own: u64, other: u64| {
+        let below = i64::from(sign >> 7) as u64;
+        let above = i64::from(sign.wrapping_neg() >> 7) as u64;
         (own & below) | (other & above) | !(below | above)
     };
     if words == 1 {
         let side = |own: &[u64], other: &[u64]| {
             own.iter()
                 .zip(other)
-                .zip(rates)
-                .map(|((&o, &t), &rate)| pick(rate, o, t))
+                .zip(signs)
+                .map(|((&o, &t), &sign)| pick(sign, o, t))
                 .collect()
         };
         return (side(positive, negative), side(negative, positive));
@@ -99,33 +133,31 @@ fn improving<T: Rate>(moves: &MoveSet, rates: &[T]) -> (Vec<u64>, Vec<u64>) {
     let side = |own: &[u64], other: &[u64]| {
         let mut out = Vec::with_capacity(own.len());
         for (k, (&o, &t)) in own.iter().zip(other).enumerate() {
-            out.push(pick(rates[k / words], o, t));
+            out.push(pick(signs[k / words], o, t));
         }
         out
     };
     (side(positive, negative), side(negative, positive))
 }
 
-/// A stored rate's sign as two word masks: all ones when it is negative (first) or positive
-/// (second), by arithmetic shifts rather than comparisons, which vectorise on every x86-64.
+/// A stored rate type, whose sign the masks are built from.
 trait Rate: Copy {
-    fn sign_masks(self) -> (u64, u64);
+    /// `-1`, `0` or `1`.
+    fn sign(self) -> i8;
 }
 
-macro_rules! rate_by_shifts {
+macro_rules! rate_sign {
     ($($t:ty),*) => {$(
         impl Rate for $t {
             #[inline]
-            fn sign_masks(self) -> (u64, u64) {
-                // Rates obey `|c.g| <= <$t>::MAX`, so the negation does not overflow.
-                let shift = <$t>::BITS - 1;
-                ((self >> shift) as u64, (-self >> shift) as u64)
+            fn sign(self) -> i8 {
+                i8::from(self > 0) - i8::from(self < 0)
             }
         }
     )*};
 }
 
-rate_by_shifts!(i16, i32, i64, i128);
+rate_sign!(i16, i32, i64, i128);
 
 /// The rates of `costs` along `moves`, by the cheapest exact path.
 fn rates(costs: &[i64], moves: &MoveSet) -> Result<Rates> {
@@ -196,6 +228,18 @@ fn checked_rate(costs: &[i64], moves: &MoveSet, index: usize) -> Result<i128> {
 mod tests {
     use super::*;
     use crate::moves::{Coverage, Sign};
+    use crate::objective::Objective;
+
+    /// A problem over `costs` with every variable unbounded (no move is too wide).
+    fn free(costs: &[i64]) -> Problem {
+        let n = costs.len();
+        Problem::new(
+            Objective::linear(costs.to_vec()),
+            vec![None; n],
+            vec![None; n],
+        )
+        .unwrap()
+    }
 
     fn dot(row: &[i64], costs: &[i64]) -> i128 {
         row.iter()
@@ -216,7 +260,7 @@ mod tests {
                 vec![i64::MAX / 4000, 1, -3],
                 vec![i64::MIN, 0, 0],
             ] {
-                let slopes = Slopes::new(&costs, &moves).unwrap();
+                let slopes = Slopes::new(&costs, &moves, &free(&costs)).unwrap();
                 for (index, row) in rows.iter().enumerate() {
                     assert_eq!(
                         slopes.get(index),
@@ -272,7 +316,7 @@ mod tests {
             costs[1] = 2;
             costs[width - 1] = -2;
             // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
-            let slopes = Slopes::new(&costs, &moves).unwrap();
+            let slopes = Slopes::new(&costs, &moves, &free(&costs)).unwrap();
             let (raised, lowered) = masks([Some(Sign::Minus), None, None]);
             assert_eq!(
                 slopes.improving(),
@@ -281,7 +325,7 @@ mod tests {
             );
             costs[1] = 1;
             // Rates 3, -1 and -1: move 0 improves in `-`, the others in `+`.
-            let slopes = Slopes::new(&costs, &moves).unwrap();
+            let slopes = Slopes::new(&costs, &moves, &free(&costs)).unwrap();
             let (raised, lowered) = masks([Some(Sign::Minus), Some(Sign::Plus), Some(Sign::Plus)]);
             assert_eq!(
                 slopes.improving(),
@@ -292,10 +336,29 @@ mod tests {
     }
 
     #[test]
+    fn moves_wider_than_the_box_get_full_masks() {
+        // x_0 in [0, 2], x_1 in [-1, 5], x_2 free: move 0 (|g_0| = 3) never fits, move 1 does.
+        let moves =
+            MoveSet::from_rows(3, &[vec![3, -1, 1], vec![2, -6, 1]], Coverage::Complete).unwrap();
+        let costs = [1, 1, 1];
+        let problem = Problem::new(
+            Objective::linear(costs.to_vec()),
+            vec![Some(0), Some(-1), None],
+            vec![Some(2), Some(5), None],
+        )
+        .unwrap();
+        let slopes = Slopes::new(&costs, &moves, &problem).unwrap();
+        let (raised, lowered) = moves.pattern(1, Sign::Plus);
+        assert_eq!(slopes.improving().0, &[u64::MAX, raised[0]]);
+        assert_eq!(slopes.improving().1, &[u64::MAX, lowered[0]]);
+        assert_eq!(slopes.get(0), 3, "the rate itself is kept");
+    }
+
+    #[test]
     fn rates_beyond_i64_are_exact_in_checked_arithmetic() {
         let big = 1i64 << 62;
         let moves = MoveSet::from_rows(2, &[vec![big, big / 2]], Coverage::Complete).unwrap();
-        let slopes = Slopes::new(&[i64::MAX, -3], &moves).unwrap();
+        let slopes = Slopes::new(&[i64::MAX, -3], &moves, &free(&[i64::MAX, -3])).unwrap();
         assert!(matches!(slopes.rates, Rates::I128(_)));
         let expected = i128::from(big) * i128::from(i64::MAX) - 3 * i128::from(big / 2);
         assert_eq!(slopes.get(0), expected);

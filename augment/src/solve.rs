@@ -121,7 +121,7 @@ impl Run<'_> {
         self.objective = Some(value);
         let slopes = objective
             .linear_costs()
-            .map(|costs| Slopes::new(costs, self.moves))
+            .map(|costs| Slopes::new(costs, self.moves, self.problem))
             .transpose()?;
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
