@@ -13,6 +13,7 @@
 
 use crate::moves::{MoveSet, Sign};
 use crate::problem::Problem;
+use crate::slopes::Improving;
 
 /// Which moves a scan may skip at the current point.
 pub(crate) struct Filter {
@@ -96,38 +97,48 @@ impl Filter {
     }
 
     /// Phase II: bit `j` set when the signed move `start + j` (`j < len <= 64`) passes
-    /// [`Filter::admits`], its masks being entry `start + j` of `raised` and of `lowered`
-    /// (`words` per entry): a branch-free test of every entry, the hot loop of phase II.
+    /// [`Filter::admits`], its masks being entry `start + j` of `improving` (`words` per
+    /// entry when split): a branch-free test of every entry, the hot loop of phase II.
     pub(crate) fn free_entries(
         &self,
-        (raised, lowered): (&[u64], &[u64]),
+        improving: &Improving,
         words: usize,
         start: usize,
         len: usize,
     ) -> u64 {
-        let range = words * start..words * (start + len);
-        let (raised, lowered) = (&raised[range.clone()], &lowered[range]);
-        if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
-            let mut free = [0u8; 64];
-            for ((flag, r), l) in free.iter_mut().zip(raised).zip(lowered) {
-                *flag = u8::from((r & raise) | (l & lower) == 0);
+        let mut free = [0u8; 64];
+        match improving {
+            Improving::Packed(entries) => {
+                // At most 32 variables: the bound masks fit in one half each.
+                let bounds = self.raising[0] | self.lowering[0] << 32;
+                for (flag, e) in free.iter_mut().zip(&entries[start..start + len]) {
+                    *flag = u8::from(e & bounds == 0);
+                }
             }
-            return gather_bits(&free);
+            Improving::Split(raised, lowered) => {
+                let range = words * start..words * (start + len);
+                let (raised, lowered) = (&raised[range.clone()], &lowered[range]);
+                if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
+                    for ((flag, r), l) in free.iter_mut().zip(raised).zip(lowered) {
+                        *flag = u8::from((r & raise) | (l & lower) == 0);
+                    }
+                    return gather_bits(&free);
+                }
+                for ((flag, r), l) in free
+                    .iter_mut()
+                    .zip(raised.chunks_exact(words))
+                    .zip(lowered.chunks_exact(words))
+                {
+                    let clear = r
+                        .iter()
+                        .zip(&self.raising)
+                        .chain(l.iter().zip(&self.lowering))
+                        .all(|(m, b)| m & b == 0);
+                    *flag = u8::from(clear);
+                }
+            }
         }
-        let mut mask = 0;
-        for (j, (r, l)) in raised
-            .chunks_exact(words)
-            .zip(lowered.chunks_exact(words))
-            .enumerate()
-        {
-            let free = r
-                .iter()
-                .zip(&self.raising)
-                .chain(l.iter().zip(&self.lowering))
-                .all(|(m, b)| m & b == 0);
-            mask |= u64::from(free) << j;
-        }
-        mask
+        gather_bits(&free)
     }
 }
 
@@ -188,9 +199,10 @@ mod tests {
 
     #[test]
     fn the_mask_passes_agree_with_admits_move_by_move() {
-        // Every move over {-1, 0, 1}^3 but 0, at every point of the box [0, 2]^3, in both
-        // widths of the masks (3 and 67 variables, the extra ones left at 0 and free).
-        for width in [3, 67] {
+        // Every move over {-1, 0, 1}^3 but 0, at every point of the box [0, 2]^3, in every
+        // layout of the masks (packed for 3 variables, one split word for 40, two for 67; the
+        // extra variables left at 0 and free).
+        for width in [3, 40, 67] {
             let rows: Vec<Vec<i64>> = (1..27)
                 .map(|code: i64| {
                     let mut row = vec![0; width];
@@ -207,7 +219,10 @@ mod tests {
                 (bounds.0[i], bounds.1[i]) = (Some(0), Some(2));
             }
             let p = problem(bounds.0, bounds.1);
-            let signed = moves.masks();
+            let signed = match moves.packed_masks() {
+                Some(packed) => Improving::Packed(packed.to_vec()),
+                None => Improving::Split(moves.masks().0.to_vec(), moves.masks().1.to_vec()),
+            };
             for code in 0..125 {
                 let mut x = vec![0i64; width];
                 for (i, v) in x.iter_mut().take(3).enumerate() {
@@ -217,7 +232,7 @@ mod tests {
                 let kept = repair.repairing_candidates(&moves, 0, moves.len());
                 if x.iter().all(|&v| (0..=2).contains(&v)) {
                     let block = Filter::blocking(&p, &x, moves.words());
-                    let free = block.free_entries(signed, moves.words(), 0, moves.len());
+                    let free = block.free_entries(&signed, moves.words(), 0, moves.len());
                     for index in 0..moves.len() {
                         let admitted = block.admits(&moves, index, Sign::Plus);
                         assert_eq!(free >> index & 1 == 1, admitted, "{x:?} move {index}");

@@ -63,6 +63,9 @@ pub struct MoveSet {
     positive: Vec<u64>,
     /// Per move `words` masks of its negative entries.
     negative: Vec<u64>,
+    /// With at most 32 variables, per move one word: the positive entries in the low half,
+    /// the negative ones in the high half; otherwise empty.
+    packed: Vec<u64>,
     words: usize,
     /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
     /// otherwise empty.
@@ -97,6 +100,7 @@ impl MoveSet {
             norms: Vec::with_capacity(count),
             positive: Vec::with_capacity(count * width.div_ceil(64)),
             negative: Vec::with_capacity(count * width.div_ceil(64)),
+            packed: Vec::new(),
             words: width.div_ceil(64),
             columns: Vec::new(),
             column_extents: Vec::new(),
@@ -108,6 +112,14 @@ impl MoveSet {
         set.starts.push(0);
         for index in 0..count {
             set.index_row(index)?;
+        }
+        if width <= 32 {
+            set.packed = set
+                .positive
+                .iter()
+                .zip(&set.negative)
+                .map(|(&p, &n)| p | n << 32)
+                .collect();
         }
         set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
         if !set.columns.is_empty() {
@@ -212,6 +224,12 @@ impl MoveSet {
     /// entries.
     pub(crate) fn masks(&self) -> (&[u64], &[u64]) {
         (&self.positive, &self.negative)
+    }
+
+    /// With at most 32 variables, per move its positive entries in the low half of one word
+    /// and its negative entries in the high half (swapping the halves negates the move).
+    pub(crate) fn packed_masks(&self) -> Option<&[u64]> {
+        (self.width <= 32).then_some(&self.packed[..])
     }
 
     /// Bit masks of the coordinates that move `index` raises and lowers when applied with

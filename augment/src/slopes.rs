@@ -28,12 +28,20 @@ use crate::problem::Problem;
 /// `c.g` for every move of one set, and the masks of the moves' improving signs.
 pub(crate) struct Slopes {
     rates: Rates,
-    /// Per move `words` masks of the coordinates its improving sign raises (all ones when
-    /// its rate is 0).
-    raised: Vec<u64>,
-    /// Per move `words` masks of the coordinates its improving sign lowers (all ones when
-    /// its rate is 0).
-    lowered: Vec<u64>,
+    /// Per move the masks of the coordinates its improving sign raises and lowers (all ones
+    /// when it has none).
+    improving: Improving,
+}
+
+/// Per move the masks of the coordinates a signed move raises and lowers, in the layout of
+/// its set's width.
+#[derive(Debug, PartialEq, Eq)]
+pub(crate) enum Improving {
+    /// At most 32 variables: one word per move, raised coordinates in the low half and
+    /// lowered ones in the high half.
+    Packed(Vec<u64>),
+    /// `words` masks per move of the raised coordinates, and as many of the lowered ones.
+    Split(Vec<u64>, Vec<u64>),
 }
 
 /// The rates in the narrowest type their bound allows.
@@ -56,11 +64,9 @@ impl Slopes {
             Rates::I128(r) => signs(r),
         };
         drop_too_wide(moves, problem, &mut signs);
-        let (raised, lowered) = improving(moves, &signs);
         Ok(Self {
             rates,
-            raised,
-            lowered,
+            improving: improving(moves, &signs),
         })
     }
 
@@ -79,8 +85,8 @@ impl Slopes {
     /// [`Filter::free_entries`]).
     ///
     /// [`Filter::free_entries`]: crate::marks::Filter::free_entries
-    pub(crate) fn improving(&self) -> (&[u64], &[u64]) {
-        (&self.raised, &self.lowered)
+    pub(crate) fn improving(&self) -> &Improving {
+        &self.improving
     }
 }
 
@@ -109,27 +115,27 @@ fn drop_too_wide(moves: &MoveSet, problem: &Problem, signs: &mut [i8]) {
 }
 
 /// The masks of every move's improving sign (`+` when its sign is `-1`, `-` when it is `1`,
-/// all ones when it is 0), as two arrays like [`MoveSet::masks`].
-fn improving(moves: &MoveSet, signs: &[i8]) -> (Vec<u64>, Vec<u64>) {
-    let words = moves.words();
-    let (positive, negative) = moves.masks();
-    // Per entry: the move's own mask when its sign is -1, the other sign's when it is 1, all
-    // ones when it is 0; by arithmetic shifts, branch-free, so that it vectorises.
+/// all ones when it is 0).
+fn improving(moves: &MoveSet, signs: &[i8]) -> Improving {
+    // Per entry: `own` when the sign is -1, `other` when it is 1, all ones when it is 0; by
+    // arithmetic shifts, branch-free, so that it vectorises.
     let pick = |sign: i8, own: u64, other: u64| {
         let below = i64::from(sign >> 7) as u64;
         let above = i64::from(sign.wrapping_neg() >> 7) as u64;
         (own & below) | (other & above) | !(below | above)
     };
-    if words == 1 {
-        let side = |own: &[u64], other: &[u64]| {
-            own.iter()
-                .zip(other)
+    if let Some(packed) = moves.packed_masks() {
+        // Swapping the halves of a packed word negates the move.
+        return Improving::Packed(
+            packed
+                .iter()
                 .zip(signs)
-                .map(|((&o, &t), &sign)| pick(sign, o, t))
-                .collect()
-        };
-        return (side(positive, negative), side(negative, positive));
+                .map(|(&p, &sign)| pick(sign, p, p.rotate_left(32)))
+                .collect(),
+        );
     }
+    let words = moves.words();
+    let (positive, negative) = moves.masks();
     let side = |own: &[u64], other: &[u64]| {
         let mut out = Vec::with_capacity(own.len());
         for (k, (&o, &t)) in own.iter().zip(other).enumerate() {
@@ -137,7 +143,7 @@ fn improving(moves: &MoveSet, signs: &[i8]) -> (Vec<u64>, Vec<u64>) {
         }
         out
     };
-    (side(positive, negative), side(negative, positive))
+    Improving::Split(side(positive, negative), side(negative, positive))
 }
 
 /// A stored rate type, whose sign the masks are built from.
@@ -285,6 +291,27 @@ mod tests {
         );
     }
 
+    /// The masks of each move applied with its given sign (full masks for `None`), in the
+    /// layout of the set's width, built entry by entry from [`MoveSet::pattern`].
+    fn masks(moves: &MoveSet, signs: &[Option<Sign>]) -> Improving {
+        let full = vec![u64::MAX; moves.words()];
+        let (mut raised, mut lowered) = (Vec::new(), Vec::new());
+        for (index, sign) in signs.iter().enumerate() {
+            let (r, l) = sign.map_or((&full[..], &full[..]), |s| moves.pattern(index, s));
+            raised.extend_from_slice(r);
+            lowered.extend_from_slice(l);
+        }
+        if moves.width() > 32 {
+            return Improving::Split(raised, lowered);
+        }
+        let packed = raised.iter().zip(&lowered);
+        Improving::Packed(
+            packed
+                .map(|(&r, &l)| if r == u64::MAX { r } else { r | l << 32 })
+                .collect(),
+        )
+    }
+
     #[test]
     fn every_move_gets_the_masks_of_its_improving_sign() {
         for width in [3, 70] {
@@ -301,37 +328,19 @@ mod tests {
                 row(&[(0, -2), (1, 1)]),
             ];
             let moves = MoveSet::from_rows(width, &rows, Coverage::Complete).unwrap();
-            let masks = |signs: [Option<Sign>; 3]| {
-                let full = vec![u64::MAX; moves.words()];
-                let (mut raised, mut lowered) = (Vec::new(), Vec::new());
-                for (index, sign) in signs.into_iter().enumerate() {
-                    let (r, l) = sign.map_or((&full[..], &full[..]), |s| moves.pattern(index, s));
-                    raised.extend_from_slice(r);
-                    lowered.extend_from_slice(l);
-                }
-                (raised, lowered)
-            };
             let mut costs = vec![0; width];
             costs[0] = 1;
             costs[1] = 2;
             costs[width - 1] = -2;
             // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
             let slopes = Slopes::new(&costs, &moves, &free(&costs)).unwrap();
-            let (raised, lowered) = masks([Some(Sign::Minus), None, None]);
-            assert_eq!(
-                slopes.improving(),
-                (&raised[..], &lowered[..]),
-                "width {width}"
-            );
+            let expected = masks(&moves, &[Some(Sign::Minus), None, None]);
+            assert_eq!(slopes.improving(), &expected, "width {width}");
             costs[1] = 1;
             // Rates 3, -1 and -1: move 0 improves in `-`, the others in `+`.
             let slopes = Slopes::new(&costs, &moves, &free(&costs)).unwrap();
-            let (raised, lowered) = masks([Some(Sign::Minus), Some(Sign::Plus), Some(Sign::Plus)]);
-            assert_eq!(
-                slopes.improving(),
-                (&raised[..], &lowered[..]),
-                "width {width}"
-            );
+            let signs = [Some(Sign::Minus), Some(Sign::Plus), Some(Sign::Plus)];
+            assert_eq!(slopes.improving(), &masks(&moves, &signs), "width {width}");
         }
     }
 
@@ -348,9 +357,10 @@ mod tests {
         )
         .unwrap();
         let slopes = Slopes::new(&costs, &moves, &problem).unwrap();
-        let (raised, lowered) = moves.pattern(1, Sign::Plus);
-        assert_eq!(slopes.improving().0, &[u64::MAX, raised[0]]);
-        assert_eq!(slopes.improving().1, &[u64::MAX, lowered[0]]);
+        assert_eq!(
+            slopes.improving(),
+            &masks(&moves, &[None, Some(Sign::Plus)])
+        );
         assert_eq!(slopes.get(0), 3, "the rate itself is kept");
     }
 
