@@ -117,12 +117,15 @@ fn drop_too_wide(moves: &MoveSet, problem: &Problem, signs: &mut [i8]) {
 /// The masks of every move's improving sign (`+` when its sign is `-1`, `-` when it is `1`,
 /// all ones when it is 0).
 fn improving(moves: &MoveSet, signs: &[i8]) -> Improving {
-    // Per entry: `own` when the sign is -1, `other` when it is 1, all ones when it is 0; by
-    // arithmetic shifts, branch-free, so that it vectorises.
+    // Per entry: `own` when the sign is -1, `other` when it is 1, all ones when it is 0 (two
+    // conditional moves).
     let pick = |sign: i8, own: u64, other: u64| {
-        let below = i64::from(sign >> 7) as u64;
-        let above = i64::from(sign.wrapping_neg() >> 7) as u64;
-        (own & below) | (other & above) | !(below | above)
+        let signed = if sign < 0 { own } else { other };
+        if sign == 0 {
+            u64::MAX
+        } else {
+            signed
+        }
     };
     if let Some(packed) = moves.packed_masks() {
         // Swapping the halves of a packed word negates the move.
