@@ -16,7 +16,7 @@ Every timing is the best of REPEATS runs (HiGHS over all days, each kernstep pro
 busy moment of a shared machine does not decide a ratio.
 
 Usage: python3 benches/replan_scenarios.py [DAYS] [REPEATS]
-       (defaults 1000 and 3; needs `pip install highspy`)
+       (defaults 1000 and 5; needs `pip install highspy`)
 """
 
 import json
@@ -141,7 +141,7 @@ def batch(scenario, days_path, cache, threads, build=False):
 
 def main():
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
-    repeats = int(sys.argv[2]) if len(sys.argv) > 2 else 3
+    repeats = int(sys.argv[2]) if len(sys.argv) > 2 else 5
     subprocess.run(["cargo", "build", "--release"], cwd=ROOT, check=True, capture_output=True)
     rng = random.Random(20261202)
     print(f"HiGHS {highspy.Highs().version()} (highspy), one thread, model kept; "

@@ -27,6 +27,9 @@ pub enum AugmentError {
         /// Number of variables per move.
         width: usize,
     },
+    /// A [`crate::Fitting`] cut for one box was given a problem with another.
+    #[error("the moves were cut for another box")]
+    OtherBox,
     /// A move is the zero vector, which can never improve anything.
     #[error("move {index} is the zero vector")]
     ZeroMove {

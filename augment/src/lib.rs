@@ -40,6 +40,7 @@
 
 mod certify;
 mod error;
+mod fitting;
 mod linear;
 mod marks;
 mod moves;
@@ -56,10 +57,11 @@ mod sweep;
 
 pub use certify::{certify, Certificate};
 pub use error::{AugmentError, Result};
+pub use fitting::Fitting;
 pub use moves::{Coverage, MoveSet, Sign};
 pub use objective::{Objective, Term};
 pub use options::Options;
 pub use problem::Problem;
 pub use select::Rule;
 pub use solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
-pub use solve::{solve, solve_with_cancel};
+pub use solve::{solve, solve_fitted, solve_with_cancel};

@@ -70,8 +70,8 @@ pub struct MoveSet {
     /// Column-major copy (`count` entries per variable) when every entry fits in an `i8`,
     /// otherwise empty.
     columns: Vec<i8>,
-    /// Per variable the largest `|g_i|` over all moves (empty when `columns` is).
-    column_extents: Vec<u8>,
+    /// Per variable the largest `|g_i|` over all moves.
+    extents: Vec<u64>,
     /// The support in one word per entry (see [`MoveSet::bound_steps`]), parallel to
     /// `indices`, when every entry fits; otherwise empty.
     steps: Vec<u32>,
@@ -103,7 +103,7 @@ impl MoveSet {
             packed: Vec::new(),
             words: width.div_ceil(64),
             columns: Vec::new(),
-            column_extents: Vec::new(),
+            extents: vec![0; width],
             steps: Vec::new(),
             max_norm: 0,
             dense,
@@ -122,17 +122,6 @@ impl MoveSet {
                 .collect();
         }
         set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
-        if !set.columns.is_empty() {
-            set.column_extents = (0..width)
-                .map(|i| {
-                    set.columns[i * count..(i + 1) * count]
-                        .iter()
-                        .map(|v| v.unsigned_abs())
-                        .max()
-                        .unwrap_or(0)
-                })
-                .collect();
-        }
         set.steps = bound_steps(&set.indices, &set.values).unwrap_or_default();
         Ok(set)
     }
@@ -168,6 +157,7 @@ impl MoveSet {
                     &mut self.negative
                 };
                 masks[at + i / 64] |= 1 << (i % 64);
+                self.extents[i] = self.extents[i].max(v.unsigned_abs());
                 self.indices.push(i);
                 self.values.push(v);
                 norm = norm
@@ -260,9 +250,10 @@ impl MoveSet {
         (!self.columns.is_empty()).then(|| &self.columns[variable * count..(variable + 1) * count])
     }
 
-    /// The largest `|g_i|` over all moves, when the set has a narrow column-major copy.
-    pub(crate) fn column_extent(&self, variable: usize) -> Option<u8> {
-        self.column_extents.get(variable).copied()
+    /// The largest `|g_i|` over all moves: a box at least this wide on variable `i` lets
+    /// every move fit there.
+    pub fn extent(&self, variable: usize) -> u64 {
+        self.extents[variable]
     }
 
     /// The largest l1 norm of a move (0 for an empty set).

@@ -100,13 +100,16 @@ fn signs<T: Rate>(rates: &[T]) -> Vec<i8> {
 /// without one nothing changes (the scan's room test then rejects such moves one by one).
 fn drop_too_wide(moves: &MoveSet, problem: &Problem, signs: &mut [i8]) {
     for (i, (lower, upper)) in problem.lower().iter().zip(problem.upper()).enumerate() {
-        let (Some(l), Some(u), Some(extent)) = (lower, upper, moves.column_extent(i)) else {
+        let (Some(l), Some(u), Some(column)) = (lower, upper, moves.column(i)) else {
             continue;
         };
-        let Some(width) = u8::try_from(u.abs_diff(*l)).ok().filter(|&w| w < extent) else {
+        // A narrow column has entries of at most 128 in size.
+        let Some(width) = u8::try_from(u.abs_diff(*l))
+            .ok()
+            .filter(|&w| u64::from(w) < moves.extent(i))
+        else {
             continue;
         };
-        let column = moves.column(i).expect("a narrow copy has every column");
         for (sign, g) in signs.iter_mut().zip(column) {
             // All ones when the entry fits, else 0.
             *sign &= i8::from(g.unsigned_abs() > width).wrapping_sub(1);

@@ -8,6 +8,7 @@
 use std::time::Instant;
 
 use crate::error::{overflow, AugmentError, Result};
+use crate::fitting::Fitting;
 use crate::marks::Filter;
 use crate::moves::{Coverage, MoveSet};
 use crate::objective::Separable;
@@ -43,6 +44,35 @@ pub fn solve_with_cancel(
     options: &Options,
     cancel: &dyn Fn() -> bool,
 ) -> Result<Solution> {
+    solve_in(problem, (moves, moves, None), x0, options, cancel)
+}
+
+/// Like [`solve_with_cancel`] with the whole set of `fitting` in phase I and only its moves
+/// that fit the box in phase II, which selects exactly the same steps; move indices in the
+/// trace and in a ray refer to the whole set. Fails when `fitting` was cut for another box.
+pub fn solve_fitted(
+    problem: &Problem,
+    fitting: &Fitting,
+    x0: &[i64],
+    options: &Options,
+    cancel: &dyn Fn() -> bool,
+) -> Result<Solution> {
+    if !fitting.fits(problem)? {
+        return Err(AugmentError::OtherBox);
+    }
+    let sets = (fitting.source(), fitting.moves(), Some(fitting.origin()));
+    solve_in(problem, sets, x0, options, cancel)
+}
+
+/// The solve with `moves` in phase I and `optimality` in phase II, whose move `k` is move
+/// `origin[k]` of `moves` (the same move when `origin` is `None`).
+fn solve_in(
+    problem: &Problem,
+    (moves, optimality, origin): (&MoveSet, &MoveSet, Option<&[usize]>),
+    x0: &[i64],
+    options: &Options,
+    cancel: &dyn Fn() -> bool,
+) -> Result<Solution> {
     for (what, found) in [("x0", x0.len()), ("move width", moves.width())] {
         if found != problem.len() {
             return Err(AugmentError::Dimension {
@@ -56,6 +86,8 @@ pub fn solve_with_cancel(
     let mut run = Run {
         problem,
         moves,
+        optimality,
+        origin,
         options,
         cancel,
         x: x0.to_vec(),
@@ -79,7 +111,11 @@ pub fn solve_with_cancel(
 /// The state of one solve.
 struct Run<'a> {
     problem: &'a Problem,
+    /// The moves of phase I.
     moves: &'a MoveSet,
+    /// The moves of phase II, move `k` being move `origin[k]` of `moves` when given.
+    optimality: &'a MoveSet,
+    origin: Option<&'a [usize]>,
     options: &'a Options,
     cancel: &'a dyn Fn() -> bool,
     x: Vec<i64>,
@@ -98,7 +134,7 @@ enum Outcome {
     Stopped(Status),
 }
 
-impl Run<'_> {
+impl<'a> Run<'a> {
     fn execute(&mut self) -> Result<Status> {
         if let Some(variable) = self.problem.empty_range() {
             return Ok(Status::Infeasible(InfeasibleReason::EmptyRange {
@@ -121,7 +157,7 @@ impl Run<'_> {
         self.objective = Some(value);
         let slopes = objective
             .linear_costs()
-            .map(|costs| Slopes::new(costs, self.moves, self.problem))
+            .map(|costs| Slopes::new(costs, self.optimality, self.problem))
             .transpose()?;
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
@@ -139,7 +175,7 @@ impl Run<'_> {
         };
         Ok(match self.descend(Phase::Optimality, value, improve)? {
             Outcome::Stopped(status) => status,
-            Outcome::Stationary(_) => match self.moves.coverage() {
+            Outcome::Stationary(_) => match self.optimality.coverage() {
                 Coverage::Complete | Coverage::BoxValid => Status::Optimal,
                 Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
             },
@@ -171,7 +207,7 @@ impl Run<'_> {
             if self.steps[0] + self.steps[1] >= self.options.step_limit() {
                 return Ok(Outcome::Stopped(Status::StepLimit));
             }
-            self.apply(&found, length)?;
+            self.apply(phase, &found, length)?;
             let after = value - gain;
             self.record(phase, &found, length, value, after);
             value = after;
@@ -203,17 +239,33 @@ impl Run<'_> {
                 x: &self.x,
                 powers_of_two: self.options.uses_powers_of_two(),
             },
-            moves: self.moves,
+            moves: self.optimality,
             bounds: self.problem,
             slopes,
             rule: self.options.selected_rule(),
-            filter: Filter::blocking(self.problem, &self.x, self.moves.words()),
+            filter: Filter::blocking(self.problem, &self.x, self.optimality.words()),
         }
     }
 
-    /// `x += length * sign * g`.
-    fn apply(&mut self, found: &Candidate, length: i64) -> Result<()> {
-        let (indices, values) = self.moves.support(found.index);
+    /// The moves of `phase`.
+    fn set(&self, phase: Phase) -> &'a MoveSet {
+        match phase {
+            Phase::Feasibility => self.moves,
+            Phase::Optimality => self.optimality,
+        }
+    }
+
+    /// Move `index` of the set of `phase` as an index into the whole set.
+    fn whole_index(&self, phase: Phase, index: usize) -> usize {
+        match (phase, self.origin) {
+            (Phase::Optimality, Some(origin)) => origin[index],
+            _ => index,
+        }
+    }
+
+    /// `x += length * sign * g` for the move `found` of the set of `phase`.
+    fn apply(&mut self, phase: Phase, found: &Candidate, length: i64) -> Result<()> {
+        let (indices, values) = self.set(phase).support(found.index);
         let factor = length
             .checked_mul(found.sign.factor())
             .ok_or(overflow("scaling a move by its step length"))?;
@@ -228,10 +280,11 @@ impl Run<'_> {
 
     fn record(&mut self, phase: Phase, found: &Candidate, length: i64, before: i128, after: i128) {
         self.steps[usize::from(phase == Phase::Optimality)] += 1;
+        let move_index = self.whole_index(phase, found.index);
         if let Some(trace) = &mut self.trace {
             trace.push(TraceStep {
                 phase,
-                move_index: found.index,
+                move_index,
                 sign: found.sign,
                 length,
                 before,
@@ -253,15 +306,16 @@ impl Run<'_> {
         }
     }
 
+    /// The ray of phase II along `found`.
     fn ray(&self, found: &Candidate) -> Ray {
         // The scan negated every entry of this move with checked arithmetic, so this cannot
         // overflow.
         let factor = found.sign.factor();
         Ray {
-            move_index: found.index,
+            move_index: self.whole_index(Phase::Optimality, found.index),
             sign: found.sign,
             direction: self
-                .moves
+                .optimality
                 .row(found.index)
                 .iter()
                 .map(|&v| v * factor)

@@ -3,9 +3,11 @@
 
 mod common;
 
+use std::sync::Arc;
+
 use augment::{
-    certify, solve, Certificate, Coverage, InfeasibleReason, MoveSet, Objective, Options, Problem,
-    Rule, Solution, Status, Term,
+    certify, solve, solve_fitted, Certificate, Coverage, Fitting, InfeasibleReason, MoveSet,
+    Objective, Options, Problem, Rule, Solution, Status, Term,
 };
 use common::{brute_force, graver, times};
 use proptest::prelude::*;
@@ -198,6 +200,31 @@ proptest! {
         prop_assert_eq!(found.objective, expected.objective);
         prop_assert_eq!(&found.x[..n], &expected.x[..]);
         prop_assert_eq!(found.trace, expected.trace);
+    }
+
+    /// Phase II over only the moves that fit the box selects exactly what the whole set
+    /// selects, for every rule and objective (trace and ray indices refer to the whole set),
+    /// with some bounds removed so that rays occur too.
+    #[test]
+    fn the_moves_that_fit_the_box_give_the_same_solution(
+        ((inst, objective), free) in case().prop_flat_map(|c| {
+            let n = c.0.x0.len();
+            (Just(c), prop::collection::vec(0u8..6, n))
+        })
+    ) {
+        let n = inst.x0.len();
+        let set = Arc::new(MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap());
+        // 0: lower removed, 1: upper removed, otherwise kept.
+        let lower = (0..n).map(|i| (free[i] != 0).then_some(inst.lower[i])).collect();
+        let upper = (0..n).map(|i| (free[i] != 1).then_some(inst.upper[i])).collect();
+        let problem = Problem::new(objective, lower, upper).unwrap();
+        let fitting = Fitting::new(set.clone(), &problem).unwrap();
+        for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
+            let options = Options::default().rule(rule).trace(true);
+            let whole = solve(&problem, &set, &inst.x0, &options).unwrap();
+            let fitted = solve_fitted(&problem, &fitting, &inst.x0, &options, &|| false).unwrap();
+            prop_assert_eq!(comparable(&whole), comparable(&fitted));
+        }
     }
 
     /// A set truncated to the box (|g_i| <= u_i - l_i) still solves every start inside the box.

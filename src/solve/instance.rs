@@ -6,11 +6,15 @@
 //! with the lattice certificate. A cold start is first moved by kernel vectors towards the
 //! box (see `rounding.rs`), which leaves `A x = b` exact and saves phase I most of its work.
 //! Particular solutions come from a machine-integer copy of the Hermite form when it can
-//! answer ([`QuickSolver`]), and from the exact big-integer solver otherwise.
+//! answer ([`QuickSolver`]), and from the exact big-integer solver otherwise. A box that
+//! recurs gets its own cut of the set for phase II (see `fittings.rs`).
+
+use std::sync::Arc;
 
 use augment::{Coverage, Objective, Options, Problem, Solution};
 use cache::Completeness;
 
+use super::fittings::Fittings;
 use super::rounding::Rounding;
 use super::variant::Numbers;
 use crate::completion::MoveSet;
@@ -29,8 +33,10 @@ pub struct Prepared {
     hermite: HermiteForm,
     quick: Option<QuickSolver>,
     rounding: Rounding,
-    moves: augment::MoveSet,
+    moves: Arc<augment::MoveSet>,
     box_limit: Option<Vec<u64>>,
+    /// Cuts of `moves` to the boxes that recur, for phase II.
+    fittings: Arc<Fittings>,
 }
 
 /// A previous plan to start from.
@@ -81,8 +87,13 @@ impl Prepared {
             rounding: Rounding::new(a, hermite.pivot_rows(), basis),
             quick: QuickSolver::new(&hermite),
             hermite,
-            moves: augment::MoveSet::from_rows(set.width, &set.elements, coverage)?,
+            moves: Arc::new(augment::MoveSet::from_rows(
+                set.width,
+                &set.elements,
+                coverage,
+            )?),
             box_limit: None,
+            fittings: Arc::default(),
         })
     }
 
@@ -132,7 +143,10 @@ impl Prepared {
             numbers.lower.to_vec(),
             numbers.upper.to_vec(),
         )?;
-        let solution = augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?;
+        let solution = match self.fittings.for_box(&self.moves, &problem)? {
+            Some(fitting) => augment::solve_fitted(&problem, &fitting, &start, options, cancel)?,
+            None => augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?,
+        };
         Ok(Verdict::Solved(solution))
     }
 

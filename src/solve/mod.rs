@@ -1,5 +1,6 @@
 //! Re-optimising instances of a model with a test set: variants, start points, verdicts.
 
+mod fittings;
 mod instance;
 mod rounding;
 mod variant;
