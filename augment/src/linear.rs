@@ -5,6 +5,11 @@
 //! sparse moves with the slopes decides the step, without a line search. The result
 //! is exactly what the general scan returns (same rules, same tie-breaking: lowest move index,
 //! a ray before any finite step).
+//!
+//! Under Graver-best most evaluated moves cannot beat the best gain found so far. With packed
+//! masks a scan first bounds a move's room by bit tests: if its improving sign moves a
+//! coordinate whose gap in that direction is at most `k` (for `k` = 1, 2, 4, 8), its room is at
+//! most `k`, and `|c.g| * k` at most the best gain rules it out before its support is read.
 
 use crate::error::{overflow, Result};
 use crate::marks::Filter;
@@ -30,7 +35,13 @@ pub(crate) struct LinearScan<'a> {
     rule: Rule,
     /// Skips moves blocked by a bound at the current point.
     filter: &'a Filter,
+    /// With packed masks, per level `k` of [`TIGHT_LEVELS`] the coordinates whose gap is at
+    /// most `k`: upper gaps in the low half, lower gaps in the high half.
+    tight: Option<[u64; 4]>,
 }
+
+/// The room bounds tried before a move's support is read.
+const TIGHT_LEVELS: [u64; 4] = [1, 2, 4, 8];
 
 /// The gap recorded for a missing bound. A real gap of `u64::MAX` (from `i64::MIN` to
 /// `i64::MAX`) is stored one less, which changes no step: lengths are capped at `i64::MAX`.
@@ -52,7 +63,7 @@ impl<'a> LinearScan<'a> {
                 top.abs_diff(bottom).min(UNBOUNDED - 1)
             })
         };
-        let gaps = x
+        let gaps: Vec<u64> = x
             .iter()
             .enumerate()
             .flat_map(|(i, &v)| {
@@ -62,6 +73,7 @@ impl<'a> LinearScan<'a> {
                 ]
             })
             .collect();
+        let tight = moves.packed_masks().map(|_| tight_masks(&gaps));
         Self {
             moves,
             slopes,
@@ -69,8 +81,39 @@ impl<'a> LinearScan<'a> {
             powers_of_two,
             rule,
             filter,
+            tight,
         }
     }
+
+    /// A bound on the room of move `index` in its improving sign from the tight masks: the
+    /// smallest level `k` at which it moves a coordinate with a gap of at most `k`.
+    #[inline]
+    fn room_bound(&self, index: usize) -> Option<u64> {
+        let (Some(tight), crate::slopes::Improving::Packed(entries)) =
+            (&self.tight, self.slopes.improving())
+        else {
+            return None;
+        };
+        let entry = entries[index];
+        TIGHT_LEVELS
+            .iter()
+            .zip(tight)
+            .find(|(_, &mask)| entry & mask != 0)
+            .map(|(&k, _)| k)
+    }
+}
+
+/// Per level `k` of [`TIGHT_LEVELS`] the packed mask of the coordinates whose upper gap (low
+/// half) or lower gap (high half) is at most `k`; `gaps` as in [`LinearScan`], at most 32
+/// variables.
+fn tight_masks(gaps: &[u64]) -> [u64; 4] {
+    TIGHT_LEVELS.map(|k| {
+        gaps.chunks_exact(2)
+            .enumerate()
+            .fold(0u64, |mask, (i, pair)| {
+                mask | u64::from(pair[0] <= k) << i | u64::from(pair[1] <= k) << (32 + i)
+            })
+    })
 }
 
 impl LinearScan<'_> {
@@ -138,6 +181,11 @@ impl Evaluate for LinearScan<'_> {
         };
         let rate = slope.unsigned_abs();
         let floor = floor.map(i128::unsigned_abs);
+        if let (Some(f), Some(k)) = (floor, self.room_bound(index)) {
+            if rate.saturating_mul(u128::from(k)) <= f {
+                return Ok(None);
+            }
+        }
         let room = match self.moves.bound_steps(index) {
             Some(entries) => {
                 let flip = usize::from(sign == Sign::Minus);

@@ -227,6 +227,36 @@ proptest! {
         }
     }
 
+    /// The packed masks of small sets (with their room bounds before a support is read) and
+    /// the split masks of wide sets select the same steps: the same instance padded to 40
+    /// variables (free, cost 0, in no move) gives the same trace.
+    #[test]
+    fn packed_and_split_masks_select_the_same_steps(
+        (inst, costs) in instance().prop_flat_map(|inst| {
+            let n = inst.x0.len();
+            (Just(inst), prop::collection::vec(-5i64..=5, n))
+        })
+    ) {
+        let n = inst.x0.len();
+        let rows = graver(&inst.a, n, inst.bound);
+        let padded = |r: &[i64]| [r, &[0; 40][n..]].concat();
+        let narrow = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
+        let wide_rows: Vec<Vec<i64>> = rows.iter().map(|r| padded(r)).collect();
+        let wide = MoveSet::from_rows(40, &wide_rows, Coverage::Complete).unwrap();
+        let problem = problem(&inst, Objective::linear(costs.clone()));
+        let wide_problem = Problem::new(
+            Objective::linear(padded(&costs)),
+            problem.lower().iter().copied().chain([None; 40].into_iter().skip(n)).collect(),
+            problem.upper().iter().copied().chain([None; 40].into_iter().skip(n)).collect(),
+        ).unwrap();
+        let options = Options::default().trace(true);
+        let expected = solve(&problem, &narrow, &inst.x0, &options).unwrap();
+        let found = solve(&wide_problem, &wide, &padded(&inst.x0), &options).unwrap();
+        prop_assert_eq!(&found.status, &expected.status);
+        prop_assert_eq!(&found.x[..n], &expected.x[..]);
+        prop_assert_eq!(found.trace, expected.trace);
+    }
+
     /// A set truncated to the box (|g_i| <= u_i - l_i) still solves every start inside the box.
     #[test]
     fn box_truncated_set_is_enough_inside_the_box((inst, objective) in case()) {
