@@ -12,7 +12,7 @@
 //!
 //! Every error names the file, the line and the field; a bad line spoils only its own day.
 
-use std::collections::HashMap;
+use rustc_hash::FxHashMap;
 
 use serde_json::Value;
 
@@ -28,7 +28,7 @@ use crate::solve::{ParsedLine, Variant};
 /// Parses JSON Lines of daily changes; each non-blank line gives its 1-based number and the
 /// day's variant or the error that spoils it.
 pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLine> {
-    let mut seen: HashMap<String, usize> = HashMap::new();
+    let mut seen: FxHashMap<String, usize> = FxHashMap::default();
     let names = Names::of(scenario);
     let mut working = scenario.clone();
     text.lines()
@@ -54,7 +54,7 @@ fn day_line(
     r: &Reader,
     line: &str,
     number: usize,
-    seen: &mut HashMap<String, usize>,
+    seen: &mut FxHashMap<String, usize>,
 ) -> Result<(String, Vec<Change>)> {
     if let Some((day, changed)) = quick_changes(scenario, names, r, line) {
         remember_day(r, seen, day, number)?;
@@ -70,7 +70,7 @@ fn careful_line(
     r: &Reader,
     line: &str,
     number: usize,
-    seen: &mut HashMap<String, usize>,
+    seen: &mut FxHashMap<String, usize>,
 ) -> Result<(String, Vec<Change>)> {
     let value: Value = serde_json::from_str(line).map_err(|e| {
         r.error(
@@ -174,9 +174,10 @@ fn numbers_with(working: &mut Scenario, changes: &[Change], id: &str) -> Variant
     variant
 }
 
-/// Where every name of every table of a scenario sits, for lookups in constant time.
+/// Where every name of every table of a scenario sits, for lookups in constant time (a fast
+/// non-cryptographic hash: the names come from the user's own files).
 struct Names<'s> {
-    tables: Vec<HashMap<&'s str, usize>>,
+    tables: Vec<FxHashMap<&'s str, usize>>,
 }
 
 impl<'s> Names<'s> {
@@ -235,7 +236,7 @@ impl<'s> Names<'s> {
 /// Refuses a day named twice.
 fn remember_day(
     r: &Reader,
-    seen: &mut HashMap<String, usize>,
+    seen: &mut FxHashMap<String, usize>,
     day: &str,
     number: usize,
 ) -> Result<()> {
@@ -305,7 +306,7 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
     }
     let names = Names::of(scenario);
     let mut order: Vec<(String, CsvDay)> = Vec::new();
-    let mut position: HashMap<String, usize> = HashMap::new();
+    let mut position: FxHashMap<String, usize> = FxHashMap::default();
     let mut out_of_day: Vec<ParsedLine> = Vec::new();
     for (i, line) in rows {
         let r = Reader {
@@ -431,7 +432,7 @@ lanes = [
         ];
         for line in quick {
             let (day, changes) = quick_changes(&s, &names, &r, line).expect(line);
-            let careful = careful_line(&s, &names, &r, line, 1, &mut HashMap::new()).unwrap();
+            let careful = careful_line(&s, &names, &r, line, 1, &mut FxHashMap::default()).unwrap();
             assert_eq!(
                 (day.to_string(), sorted(changes)),
                 (careful.0, sorted(careful.1))
