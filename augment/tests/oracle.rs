@@ -113,6 +113,44 @@ fn comparable(s: &Solution) -> Solution {
     }
 }
 
+/// A tiny instance with linear costs.
+fn linear_case() -> impl Strategy<Value = (Instance, Vec<i64>)> {
+    instance().prop_flat_map(|inst| {
+        let n = inst.x0.len();
+        (Just(inst), prop::collection::vec(-5i64..=5, n))
+    })
+}
+
+/// The traced solutions of `inst` with linear `costs` over its Graver basis, and of the same
+/// instance padded to `width` variables (free, cost 0, start 0) with the `extra` moves added.
+fn padded_solutions(
+    inst: &Instance,
+    costs: &[i64],
+    width: usize,
+    extra: &[Vec<i64>],
+) -> (Solution, Solution) {
+    let n = inst.x0.len();
+    let pad = |r: &[i64]| [r, &vec![0; width - n]].concat();
+    let rows = graver(&inst.a, n, inst.bound);
+    let mut padded_rows: Vec<Vec<i64>> = rows.iter().map(|r| pad(r)).collect();
+    padded_rows.extend_from_slice(extra);
+    let narrow = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
+    let padded = MoveSet::from_rows(width, &padded_rows, Coverage::Complete).unwrap();
+    let plain = problem(inst, Objective::linear(costs.to_vec()));
+    let free = std::iter::repeat_n(None, width - n);
+    let padded_problem = Problem::new(
+        Objective::linear(pad(costs)),
+        plain.lower().iter().copied().chain(free.clone()).collect(),
+        plain.upper().iter().copied().chain(free).collect(),
+    )
+    .unwrap();
+    let options = Options::default().trace(true);
+    (
+        solve(&plain, &narrow, &inst.x0, &options).unwrap(),
+        solve(&padded_problem, &padded, &pad(&inst.x0), &options).unwrap(),
+    )
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(96))]
 
@@ -174,32 +212,12 @@ proptest! {
     /// entry of 300 on an extra free variable of cost 0, which can never improve) takes the
     /// general paths for rates and rooms and returns exactly the same solution, trace included.
     #[test]
-    fn wide_entries_take_the_general_path_with_the_same_result(
-        (inst, costs) in instance().prop_flat_map(|inst| {
-            let n = inst.x0.len();
-            (Just(inst), prop::collection::vec(-5i64..=5, n))
-        })
-    ) {
+    fn wide_entries_take_the_general_path_with_the_same_result((inst, costs) in linear_case()) {
         let n = inst.x0.len();
-        let rows = graver(&inst.a, n, inst.bound);
-        let narrow = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
-        let mut wide_rows: Vec<Vec<i64>> = rows.iter().map(|r| [&r[..], &[0]].concat()).collect();
-        wide_rows.push([vec![0; n], vec![300]].concat());
-        let wide = MoveSet::from_rows(n + 1, &wide_rows, Coverage::Complete).unwrap();
-        let options = Options::default().trace(true);
-        let problem = problem(&inst, Objective::linear(costs.clone()));
-        let expected = solve(&problem, &narrow, &inst.x0, &options).unwrap();
-        let wide_problem = Problem::new(
-            Objective::linear([&costs[..], &[0]].concat()),
-            problem.lower().iter().copied().chain([None]).collect(),
-            problem.upper().iter().copied().chain([None]).collect(),
-        ).unwrap();
-        let x0 = [&inst.x0[..], &[0]].concat();
-        let found = solve(&wide_problem, &wide, &x0, &options).unwrap();
-        prop_assert_eq!(&found.status, &expected.status);
-        prop_assert_eq!(found.objective, expected.objective);
-        prop_assert_eq!(&found.x[..n], &expected.x[..]);
-        prop_assert_eq!(found.trace, expected.trace);
+        let (narrow, wide) = padded_solutions(&inst, &costs, n + 1, &[[vec![0; n], vec![300]].concat()]);
+        prop_assert_eq!(&wide.status, &narrow.status);
+        prop_assert_eq!(&wide.x[..n], &narrow.x[..]);
+        prop_assert_eq!(wide.trace, narrow.trace);
     }
 
     /// Phase II over only the moves that fit the box selects exactly what the whole set
@@ -231,30 +249,12 @@ proptest! {
     /// the split masks of wide sets select the same steps: the same instance padded to 40
     /// variables (free, cost 0, in no move) gives the same trace.
     #[test]
-    fn packed_and_split_masks_select_the_same_steps(
-        (inst, costs) in instance().prop_flat_map(|inst| {
-            let n = inst.x0.len();
-            (Just(inst), prop::collection::vec(-5i64..=5, n))
-        })
-    ) {
+    fn packed_and_split_masks_select_the_same_steps((inst, costs) in linear_case()) {
         let n = inst.x0.len();
-        let rows = graver(&inst.a, n, inst.bound);
-        let padded = |r: &[i64]| [r, &[0; 40][n..]].concat();
-        let narrow = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
-        let wide_rows: Vec<Vec<i64>> = rows.iter().map(|r| padded(r)).collect();
-        let wide = MoveSet::from_rows(40, &wide_rows, Coverage::Complete).unwrap();
-        let problem = problem(&inst, Objective::linear(costs.clone()));
-        let wide_problem = Problem::new(
-            Objective::linear(padded(&costs)),
-            problem.lower().iter().copied().chain([None; 40].into_iter().skip(n)).collect(),
-            problem.upper().iter().copied().chain([None; 40].into_iter().skip(n)).collect(),
-        ).unwrap();
-        let options = Options::default().trace(true);
-        let expected = solve(&problem, &narrow, &inst.x0, &options).unwrap();
-        let found = solve(&wide_problem, &wide, &padded(&inst.x0), &options).unwrap();
-        prop_assert_eq!(&found.status, &expected.status);
-        prop_assert_eq!(&found.x[..n], &expected.x[..]);
-        prop_assert_eq!(found.trace, expected.trace);
+        let (packed, split) = padded_solutions(&inst, &costs, 40, &[]);
+        prop_assert_eq!(&split.status, &packed.status);
+        prop_assert_eq!(&split.x[..n], &packed.x[..]);
+        prop_assert_eq!(split.trace, packed.trace);
     }
 
     /// A set truncated to the box (|g_i| <= u_i - l_i) still solves every start inside the box.

@@ -398,18 +398,9 @@ mod tests {
     use super::*;
     use crate::model::ModelKind;
 
-    const LANES: &str = r#"
-kind = "lanes"
-depots = ["a", "b"]
-zones = ["x", "y"]
-supply = { a = 7, b = 5 }
-demand = { x = 4, y = 6 }
-lanes = [
-  { from = "a", to = "x", cost = 3, capacity = 4 },
-  { from = "a", to = "y", cost = 5 },
-  { from = "b", to = "y", cost = 2, capacity = 6 },
-]
-"#;
+    /// The example lane scenario (depots quayside, tannery, windmill; zones north_bank,
+    /// old_docks, riverside, saltmarsh; every lane).
+    const LANES: &str = include_str!("../../examples/scenarios/brackle_lanes.toml");
 
     /// Sorted, since the quick reading keeps input order and the careful one key order.
     fn sorted(mut changes: Vec<Change>) -> Vec<Change> {
@@ -427,8 +418,8 @@ lanes = [
         };
         let quick = [
             r#"{"day": "mon"}"#,
-            r#"{"demand": {"y": 3, "x": 0}, "day": "tue", "supply": {"b": 9}}"#,
-            r#"{"day": "wed", "capacity": {"a->x": null, "b->y": 2}, "cost": {"a->y": -4}}"#,
+            r#"{"demand": {"old_docks": 3, "north_bank": 0}, "day": "tue", "supply": {"tannery": 9}}"#,
+            r#"{"day": "wed", "capacity": {"quayside->north_bank": null}, "cost": {"tannery->riverside": -4}}"#,
         ];
         for line in quick {
             let (day, changes) = quick_changes(&s, &names, &r, line).expect(line);
@@ -439,15 +430,15 @@ lanes = [
             );
         }
         let careful_only = [
-            r#"{"day": "mon", "demand": {"z": 3}}"#,
-            r#"{"day": "mon", "demand": {"x": -3}}"#,
-            r#"{"day": "mon", "supply": {"a": null}}"#,
-            r#"{"day": "mon", "stock": {"a": 1}}"#,
-            r#"{"day": "mon", "colour": {"a": 1}}"#,
-            r#"{"day": "mon", "cost": {"a->y": 9223372036854775807}}"#,
-            r#"{"demand": {"x": 3}}"#,
-            r#"{"day": "mon", "cost": {"a->y": 2}, "cost": {"a->y": 3}}"#,
-            r#"{"day": "mon", "cost": {"b->y": 1, "b->y": 8}}"#,
+            r#"{"day": "mon", "demand": {"harbour": 3}}"#,
+            r#"{"day": "mon", "demand": {"old_docks": -3}}"#,
+            r#"{"day": "mon", "supply": {"windmill": null}}"#,
+            r#"{"day": "mon", "stock": {"windmill": 1}}"#,
+            r#"{"day": "mon", "colour": {"windmill": 1}}"#,
+            r#"{"day": "mon", "cost": {"tannery->riverside": 9223372036854775807}}"#,
+            r#"{"demand": {"old_docks": 3}}"#,
+            r#"{"day": "mon", "cost": {"tannery->riverside": 2}, "cost": {"tannery->riverside": 3}}"#,
+            r#"{"day": "mon", "cost": {"windmill->saltmarsh": 1, "windmill->saltmarsh": 8}}"#,
         ];
         for line in careful_only {
             assert!(quick_changes(&s, &names, &r, line).is_none(), "{line}");
