@@ -3,8 +3,9 @@
 //! The start point comes from the lattice core: an integer solution of `A x = b` (or, for a
 //! warm start, yesterday's plan plus a particular solution of `A z = b - b_prev`); the
 //! augmentation crate then does phase I and phase II. No integer solution at all is reported
-//! with the lattice certificate. A cold start is first moved by kernel vectors towards the
-//! box (see `rounding.rs`), which leaves `A x = b` exact and saves phase I most of its work.
+//! with the lattice certificate. The start is then moved by kernel vectors (see `rounding.rs`):
+//! a cold one towards the box, a warm one towards yesterday's plan clamped into today's box;
+//! this leaves `A x = b` exact and saves phase I most of its work.
 //! Particular solutions come from a machine-integer copy of the Hermite form when it can
 //! answer ([`QuickSolver`]), and from the exact big-integer solver otherwise. A box that
 //! recurs gets its own cut of the set for phase II (see `fittings.rs`).
@@ -134,9 +135,12 @@ impl Prepared {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
-        if warm.is_none() {
-            self.rounding
-                .towards_box(&mut start, numbers.rhs, numbers.lower, numbers.upper)?;
+        let (lower, upper) = (numbers.lower, numbers.upper);
+        match warm {
+            None => self
+                .rounding
+                .towards_box(&mut start, numbers.rhs, lower, upper)?,
+            Some(w) => self.rounding.towards_plan(&mut start, &w.x, lower, upper)?,
         }
         let problem = Problem::new(
             Objective::linear(numbers.cost.to_vec()),

@@ -76,11 +76,38 @@ impl Rounding {
     ) -> Result<()> {
         let r = self.rows.len();
         let b: Vec<f64> = self.rows.iter().map(|&i| rhs[i] as f64).collect();
+        let target: Vec<f64> = (0..x.len())
+            .map(|j| (0..r).map(|c| self.projector[j * r + c] * b[c]).sum())
+            .collect();
+        self.towards(x, &target, lower, upper)
+    }
+
+    /// `x` moved by kernel vectors towards `plan` clamped into the box: the warm start of a
+    /// day from the plan of the day before, near that plan but in today's fibre.
+    pub(crate) fn towards_plan(
+        &self,
+        x: &mut [i64],
+        plan: &[i64],
+        lower: &[Option<i64>],
+        upper: &[Option<i64>],
+    ) -> Result<()> {
+        let target: Vec<f64> = plan.iter().map(|&v| v as f64).collect();
+        self.towards(x, &target, lower, upper)
+    }
+
+    /// `x` moved by kernel vectors (Babai's nearest plane) towards `target` clamped into the
+    /// box shrunk by [`inner_range`].
+    fn towards(
+        &self,
+        x: &mut [i64],
+        target: &[f64],
+        lower: &[Option<i64>],
+        upper: &[Option<i64>],
+    ) -> Result<()> {
         let mut w: Vec<f64> = (0..x.len())
             .map(|j| {
-                let t: f64 = (0..r).map(|c| self.projector[j * r + c] * b[c]).sum();
                 let (lo, hi) = inner_range(lower[j], upper[j]);
-                let t = lo.map_or(t, |l| t.max(l));
+                let t = lo.map_or(target[j], |l| target[j].max(l));
                 let t = hi.map_or(t, |u| t.min(u));
                 x[j] as f64 - t
             })
@@ -164,4 +191,43 @@ fn gram_schmidt(basis: &[Vec<i64>]) -> (Vec<Vec<f64>>, Vec<f64>) {
         orthogonal.push(v);
     }
     (orthogonal, norms)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::lattice::{to_i64_vec, HermiteForm};
+
+    fn rounding(rows: &[Vec<i64>]) -> Rounding {
+        let a = IntMatrix::from_rows(rows).unwrap();
+        let hermite = HermiteForm::new(&a);
+        let basis = hermite
+            .reduced_kernel()
+            .iter()
+            .map(|v| to_i64_vec(v, "kernel basis vector").unwrap())
+            .collect();
+        Rounding::new(&a, hermite.pivot_rows(), basis)
+    }
+
+    #[test]
+    fn a_warm_start_lands_on_the_plan_when_it_is_in_the_fibre_inside_the_box() {
+        // A 2 x 3 transport plan: row sums 6 and 9, column sums 5, 4 and 6.
+        let r = rounding(&[
+            vec![1, 1, 1, 0, 0, 0],
+            vec![0, 0, 0, 1, 1, 1],
+            vec![1, 0, 0, 1, 0, 0],
+            vec![0, 1, 0, 0, 1, 0],
+            vec![0, 0, 1, 0, 0, 1],
+        ]);
+        let plan = [4, 1, 1, 1, 3, 5];
+        let (lower, upper) = (vec![Some(0); 6], vec![None; 6]);
+        let mut x = vec![2, 1, 3, 3, 3, 3];
+        r.towards_plan(&mut x, &plan, &lower, &upper).unwrap();
+        assert_eq!(x, plan);
+        // A cold start goes towards the least-squares point instead: another plan.
+        let mut cold = vec![2, 1, 3, 3, 3, 3];
+        r.towards_box(&mut cold, &[6, 9, 5, 4, 6], &lower, &upper)
+            .unwrap();
+        assert_ne!(cold, plan);
+    }
 }
