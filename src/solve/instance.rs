@@ -210,15 +210,9 @@ impl Prepared {
             None => (rhs.to_vec(), None),
         };
         let quick = self.quick.as_ref().and_then(|q| q.solve(&target));
+        // The caller moves the point towards the box (cold) or yesterday's plan (warm).
         let z = match quick.filter(|z| z.iter().all(|v| v.unsigned_abs() < QUICK_LIMIT)) {
-            // A cold start is rounded towards the box by the caller; a warm start's difference
-            // is size-reduced here, as the exact solver does.
-            Some(mut z) => {
-                if base.is_some() {
-                    self.rounding.nearest(&mut z, &target)?;
-                }
-                z
-            }
+            Some(z) => z,
             None => match self.hermite.solve(&target) {
                 IntegerSolution::Solution(z) => to_i64_vec(&z, "particular solution")?,
                 IntegerSolution::NoSolution(c) => return Ok(Err(c)),

@@ -59,13 +59,6 @@ impl Rounding {
         }
     }
 
-    /// `x` (with `A x = rhs`) moved by kernel vectors towards the least-squares point of
-    /// `rhs`: a size reduction, so that a particular solution has small entries.
-    pub(crate) fn nearest(&self, x: &mut [i64], rhs: &[i64]) -> Result<()> {
-        let free = vec![None; x.len()];
-        self.towards_box(x, rhs, &free, &free)
-    }
-
     /// `x` moved by kernel vectors towards the clamped least-squares point of `rhs`.
     pub(crate) fn towards_box(
         &self,
