@@ -5,8 +5,8 @@
 //! the cut is made once and every later day of that box scans fewer moves. Making a cut costs
 //! about as much as loading the set, so a box gets its cut on its second use (a single solve
 //! never pays for one), boxes where no move is too wide get none, and at most [`LIMIT`] cuts
-//! are kept; beyond that, instances are solved with the whole set, which selects the same
-//! steps.
+//! holding together at most [`BUDGET`] times the moves of the set are made; beyond that,
+//! instances are solved with the whole set, which selects the same steps.
 
 use std::sync::{Arc, Mutex};
 
@@ -16,6 +16,10 @@ use crate::error::Result;
 
 /// Most cuts kept for one prepared set.
 const LIMIT: usize = 8;
+
+/// Most moves in all cuts together, as a multiple of the moves of the set (the memory the cuts
+/// may take beside it).
+const BUDGET: usize = 2;
 
 /// Most boxes remembered as seen once.
 const SEEN_LIMIT: usize = 64;
@@ -50,7 +54,8 @@ impl Fittings {
         if let Some(made) = state.made.iter().find(|f| f.key() == key) {
             return Ok(Some(Arc::clone(made)));
         }
-        if state.made.len() >= LIMIT {
+        let held: usize = state.made.iter().map(|f| f.moves().len()).sum();
+        if state.made.len() >= LIMIT || held >= BUDGET * moves.len() {
             return Ok(None);
         }
         let Some(at) = state.seen.iter().position(|k| *k == key) else {
@@ -98,7 +103,8 @@ mod tests {
 
     #[test]
     fn no_more_than_the_limit_of_cuts_is_made() {
-        let rows: Vec<Vec<i64>> = (1..=20).map(|k| vec![k, -k]).collect();
+        // Many long moves, which every box cuts, so that only the count limits the cuts.
+        let rows: Vec<Vec<i64>> = (1..=20).chain(100..=300).map(|k| vec![k, -k]).collect();
         let moves = Arc::new(MoveSet::from_rows(2, &rows, Coverage::Complete).unwrap());
         let fittings = Fittings::default();
         let mut made = 0;
@@ -108,5 +114,23 @@ mod tests {
             }
         }
         assert_eq!(made, LIMIT);
+    }
+
+    #[test]
+    fn the_cuts_hold_at_most_the_budget_of_moves() {
+        let rows: Vec<Vec<i64>> = (1..=20).map(|k| vec![k, -k]).collect();
+        let moves = Arc::new(MoveSet::from_rows(2, &rows, Coverage::Complete).unwrap());
+        let fittings = Fittings::default();
+        let mut held = 0;
+        for width in (1..20).rev() {
+            for _ in 0..2 {
+                if let Some(cut) = fittings.for_box(&moves, &problem(width)).unwrap() {
+                    held += cut.moves().len();
+                }
+            }
+        }
+        // Cuts of 19, 18 and 17 moves were made; the next would start beyond 40.
+        assert_eq!(held, 19 + 18 + 17);
+        assert!(held < BUDGET * moves.len() + moves.len());
     }
 }
