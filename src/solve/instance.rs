@@ -3,9 +3,10 @@
 //! The start point comes from the lattice core: an integer solution of `A x = b` (or, for a
 //! warm start, yesterday's plan plus a particular solution of `A z = b - b_prev`); the
 //! augmentation crate then does phase I and phase II. No integer solution at all is reported
-//! with the lattice certificate. The start is then moved by kernel vectors (see `rounding.rs`):
-//! a cold one towards the box, a warm one towards yesterday's plan clamped into today's box;
-//! this leaves `A x = b` exact and saves phase I most of its work.
+//! with the lattice certificate. The start is then moved by kernel vectors (see `rounding.rs`)
+//! towards the middle of the box or, for a warm start, towards yesterday's plan clamped into
+//! today's box, whichever lands nearer the box; this leaves `A x = b` exact and saves phase I
+//! most of its work.
 //! Particular solutions come from a machine-integer copy of the Hermite form when it can
 //! answer ([`QuickSolver`]), and from the exact big-integer solver otherwise. A box that
 //! recurs gets its own cut of the set for phase II (see `fittings.rs`).
@@ -131,22 +132,35 @@ impl Prepared {
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
         self.check_box(&numbers)?;
-        let mut start = match self.start_point(numbers.rhs, warm)? {
+        let start = match self.start_point(numbers.rhs, warm)? {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
         let (lower, upper) = (numbers.lower, numbers.upper);
-        match warm {
-            None => self
-                .rounding
-                .towards_box(&mut start, numbers.rhs, lower, upper)?,
-            Some(w) => self.rounding.towards_plan(&mut start, &w.x, lower, upper)?,
-        }
         let problem = Problem::new(
             Objective::linear(numbers.cost.to_vec()),
-            numbers.lower.to_vec(),
-            numbers.upper.to_vec(),
+            lower.to_vec(),
+            upper.to_vec(),
         )?;
+        let mut cold = start;
+        self.rounding
+            .towards_box(&mut cold, numbers.rhs, lower, upper)?;
+        let start = match warm {
+            None => cold,
+            // Yesterday's plan sits on many bounds, and the point of today's numbers nearest
+            // to it often lies just outside some of them; the cold start is kept when it is
+            // nearer the box, so that a warm start never begins farther from it.
+            Some(w) => {
+                let mut near_plan = cold.clone();
+                self.rounding
+                    .towards_plan(&mut near_plan, &w.x, lower, upper)?;
+                if problem.violation(&cold)? < problem.violation(&near_plan)? {
+                    cold
+                } else {
+                    near_plan
+                }
+            }
+        };
         let solution = match self.fittings.for_box(&self.moves, &problem)? {
             Some(fitting) => augment::solve_fitted(&problem, &fitting, &start, options, cancel)?,
             None => augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?,
