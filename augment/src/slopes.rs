@@ -4,14 +4,14 @@
 //! With linear costs a move improves only in the sign where `c.g < 0` (`+` when `c.g < 0`, `-`
 //! when `c.g > 0`, neither when `c.g = 0`), whatever the point. So phase II fixes, once per
 //! solve, the sign masks of every move's improving sign; each scan's first pass then tests
-//! one pair of masks per move (is the improving sign blocked by a bound?) without looking at
-//! the rate or the move again. A move with rate 0 gets full masks, which every bound blocks
+//! one word of masks per move (two arrays of words beyond 32 variables: is the improving sign
+//! blocked by a bound?) without looking at the rate or the move again. A move with rate 0 gets full masks, which every bound blocks
 //! (at a point on no bound the scan looks at it and finds the rate 0).
 //!
 //! Phase II also visits only points inside the box, where a move with `|g_i| > u_i - l_i` on
-//! some variable can never be applied; such moves get full masks too, so no scan evaluates
-//! them (with the narrow column copy this is a few byte comparisons per move and bounded
-//! variable).
+//! some variable can never be applied; such moves get full masks too (with the narrow column
+//! copy this is a few byte comparisons per move and bounded variable; without it the room
+//! test of the scan rejects them one by one).
 //!
 //! `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i16` or `i32` and the moves have
 //! a narrow column-major copy, the rates are column sums `sum_i c_i * column_i` in lanes of that
