@@ -98,7 +98,7 @@ impl Problem {
     }
 
     /// `dist(v, [l_i, u_i])`; cannot overflow in `i128`, and `n` of them cannot either.
-    fn violation_at(&self, i: usize, v: i64) -> i128 {
+    pub(crate) fn violation_at(&self, i: usize, v: i64) -> i128 {
         let v = i128::from(v);
         match (self.lower[i], self.upper[i]) {
             (Some(l), _) if v < i128::from(l) => i128::from(l) - v,

@@ -8,8 +8,9 @@
 //! - no step gains more than `V(x)` itself, so under Graver-best a step reaching violation 0
 //!   ends the scan (later moves could at most tie, and ties keep the lower index).
 //!
-//! The remaining moves get the exact line search. The selection is exactly what evaluating
-//! every move would give.
+//! The remaining moves get the exact line search, once a plain pass has shown that a first
+//! step lowers the violation at all (the line search's own first test). The selection is
+//! exactly what evaluating every move would give.
 
 use crate::error::Result;
 use crate::marks::Filter;
@@ -69,6 +70,11 @@ impl Evaluate for RepairScan<'_> {
                     continue;
                 }
             }
+            // The line search's first test (does one step lower the violation?) in one plain
+            // pass; most candidates fail it when many coordinates lie outside the box.
+            if self.first_step_gain(&dir).is_some_and(|gain| gain <= 0) {
+                continue;
+            }
             let search = LineSearch {
                 f: &self.function,
                 x: self.x,
@@ -97,6 +103,17 @@ impl Evaluate for RepairScan<'_> {
 }
 
 impl RepairScan<'_> {
+    /// `V(x) - V(x + dir)`, or `None` when a coordinate would overflow (the line search then
+    /// reports it).
+    fn first_step_gain(&self, dir: &Direction) -> Option<i128> {
+        let mut gain = 0i128;
+        for (&i, &v) in dir.indices.iter().zip(dir.values) {
+            let moved = self.x[i].checked_add(v.checked_mul(dir.sign)?)?;
+            gain += self.problem.violation_at(i, self.x[i]) - self.problem.violation_at(i, moved);
+        }
+        Some(gain)
+    }
+
     /// The total distance to the box of the coordinates `dir` moves towards it from outside:
     /// an upper bound on the violation any multiple of `dir` removes.
     fn reach(&self, dir: &Direction) -> i128 {
