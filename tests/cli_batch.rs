@@ -132,6 +132,82 @@ fn batch_equals_one_by_one_solves_for_any_thread_count_with_and_without_chain() 
     }
 }
 
+/// The violation of the point a solve started from: the first phase-I step's `before`, or 0
+/// when phase I had nothing to repair.
+fn start_violation(s: &augment::Solution) -> i128 {
+    let trace = s.trace.as_ref().expect("traced");
+    trace
+        .iter()
+        .find(|t| t.phase == augment::Phase::Feasibility)
+        .map_or(0, |t| t.before)
+}
+
+/// The point a solve started from: its result minus every traced step.
+fn start_point(s: &augment::Solution, moves: &augment::MoveSet) -> Vec<i64> {
+    let mut x = s.x.clone();
+    for t in s.trace.as_ref().expect("traced") {
+        let factor = t.length * t.sign.factor();
+        for (xi, g) in x.iter_mut().zip(moves.row(t.move_index)) {
+            *xi -= factor * g;
+        }
+    }
+    x
+}
+
+/// Chained truckload days (demands and supplies drawn by a fixed linear congruential sequence,
+/// some of them infeasible): a warm start begins no farther from the box than a cold start of
+/// the same day, starts from another point than the cold start on some days (yesterday's plan
+/// is used), and both reach the same optimum.
+#[test]
+fn a_warm_start_never_begins_farther_from_the_box_than_a_cold_one() {
+    let scenario = Scenario::load(&scenarios().join("hollin_trucks.toml")).unwrap();
+    let model = scenario.compile().unwrap();
+    let prepared = graver(&model);
+    let mut seed = 20261202u64;
+    let mut draw = |low: u64, high: u64| {
+        seed = seed
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        low + (seed >> 33) % (high - low + 1)
+    };
+    let text: String = (0..60)
+        .map(|k| {
+            let (east, west, kiln) = (draw(0, 12), draw(0, 12), draw(0, 12));
+            let (sawmill, pinegate) = (draw(0, 20), draw(0, 20));
+            format!(
+                "{{\"day\": \"d{k}\", \"demand\": {{\"east_yard\": {east}, \"west_yard\": {west}, \
+                 \"kiln\": {kiln}}}, \"supply\": {{\"sawmill\": {sawmill}, \"pinegate\": {pinegate}}}}}\n"
+            )
+        })
+        .collect();
+    let options = Options::default().trace(true);
+    let (mut warm, mut elsewhere) = (None::<WarmStart>, 0);
+    for (_, parsed) in parse_day_lines(&scenario, &text, "days.jsonl") {
+        let day = parsed.unwrap().apply(&model, "days.jsonl").unwrap();
+        let solve = |from: Option<&WarmStart>| match prepared.solve(&day, &options, from, &|| false)
+        {
+            Ok(Verdict::Solved(s)) => s,
+            other => panic!("unexpected {other:?}"),
+        };
+        let cold = solve(None);
+        if let Some(w) = &warm {
+            let warmed = solve(Some(w));
+            assert!(start_violation(&warmed) <= start_violation(&cold));
+            let moves = prepared.moves();
+            elsewhere += usize::from(start_point(&warmed, moves) != start_point(&cold, moves));
+            assert_eq!(warmed.objective, cold.objective);
+            assert_eq!(warmed.violation, cold.violation);
+        }
+        if cold.violation == 0 {
+            warm = Some(WarmStart {
+                rhs: day.rhs.clone(),
+                x: cold.x.clone(),
+            });
+        }
+    }
+    assert!(elsewhere > 0, "no day started from yesterday's plan");
+}
+
 #[test]
 fn optima_equal_the_recorded_highs_optima() {
     let cache = tempfile::tempdir().unwrap();
