@@ -157,7 +157,7 @@ impl<'a> Run<'a> {
         self.objective = Some(value);
         let slopes = objective
             .linear_costs()
-            .map(|costs| Slopes::new(costs, self.optimality, self.problem))
+            .map(|costs| Slopes::new(costs, self.optimality))
             .transpose()?;
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
