@@ -49,6 +49,15 @@ pub enum Error {
         /// The width the set was truncated to.
         limit: u64,
     },
+    /// The independent re-check of a solve's claim failed: the answer is withheld, never
+    /// reported as certified.
+    #[error("the independent re-check refuted the claim that {claim}: {why}")]
+    Refuted {
+        /// The claim in words.
+        claim: &'static str,
+        /// What refutes it.
+        why: String,
+    },
     /// The test-set cache refused an operation or found a damaged entry.
     #[error(transparent)]
     Cache(#[from] cache::CacheError),

@@ -101,6 +101,31 @@ impl IntMatrix {
             .collect()
     }
 
+    /// The first row `i` where `(A x)_i != b_i`, with the exact value of `(A x)_i`; `None`
+    /// when `A x = b`. Computed in `i128`, which cannot overflow for `|a| <= 2^31` and fewer
+    /// than `2^32` columns, so a wrong point is always caught.
+    pub fn first_unmet_row(&self, x: &[i64], b: &[i64]) -> Option<(usize, i128)> {
+        assert_eq!(
+            x.len(),
+            self.cols,
+            "point length must equal the column count"
+        );
+        assert_eq!(
+            b.len(),
+            self.rows,
+            "right-hand side length must equal the row count"
+        );
+        (0..self.rows).find_map(|i| {
+            let value = self
+                .row(i)
+                .iter()
+                .zip(x)
+                .map(|(&a, &v)| i128::from(a) * i128::from(v))
+                .sum::<i128>();
+            (value != i128::from(b[i])).then_some((i, value))
+        })
+    }
+
     /// The matrix formed by the given columns, in the given order.
     pub fn select_cols(&self, cols: &[usize]) -> Self {
         let mut out = Self::zeros(self.rows, cols.len());

@@ -328,3 +328,69 @@ fn human_certificates_for_parity_and_rays() {
         assert!(text.lines().all(|l| l.chars().count() <= 100), "{text}");
     }
 }
+
+/// Issue 13: a `solve --json` document whose plan was edited by one unit, or a plan of another
+/// model, must be refused as a warm start (exit 2, the file and the field named) instead of
+/// yielding a plan off `A x = b` that is printed as certified.
+#[test]
+fn tampered_warm_starts_are_refused_naming_the_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let cache = dir.path().display().to_string();
+    let lanes = example("lane_plan.toml");
+    let (_, yesterday) = solve_json(&lanes, dir.path(), &[]);
+    let mut edited = yesterday.clone();
+    let first = edited["x"][0].as_i64().unwrap();
+    edited["x"][0] = json!(first + 1);
+    let mut short = yesterday.clone();
+    short["x"].as_array_mut().unwrap().pop();
+    // A plan of the 3 x 3 transport example: 9 variables against the lane plan's 4.
+    let (_, foreign) = solve_json(&example("transport_3x3.json"), dir.path(), &[]);
+    let cases = [
+        (
+            "edited.json",
+            edited,
+            "x: the plan does not meet its right-hand side",
+        ),
+        (
+            "short.json",
+            short,
+            "x: has 3 values, the model has 4 variables",
+        ),
+        (
+            "foreign.json",
+            foreign,
+            "x: has 9 values, the model has 4 variables",
+        ),
+    ];
+    for (name, doc, needle) in cases {
+        let path = dir.path().join(name);
+        std::fs::write(&path, doc.to_string()).unwrap();
+        let path = path.display().to_string();
+        let variant = r#"{"id":"tue","rhs":[8,5,6]}"#;
+        let out = kernstep(&[
+            "solve",
+            &lanes,
+            "--variant",
+            variant,
+            "--warm-start",
+            &path,
+            "--cache-dir",
+            &cache,
+        ]);
+        assert_eq!(out.status.code(), Some(2), "{name}: {}", stdout(&out));
+        let err = stderr(&out);
+        assert!(
+            err.starts_with(&format!("kernstep: {path}: ")),
+            "{name}: {err}"
+        );
+        assert!(err.contains(needle), "{name}: {err}");
+        assert!(stdout(&out).is_empty(), "{name}: nothing certified");
+    }
+    // The untouched document still works as a warm start.
+    let path = dir.path().join("yesterday.json");
+    std::fs::write(&path, yesterday.to_string()).unwrap();
+    let extra = ["--warm-start", path.to_str().unwrap()];
+    let (code, warm) = solve_json(&lanes, dir.path(), &extra);
+    assert_eq!((code, &warm["status"]["tag"]), (0, &json!("optimal")));
+    assert_eq!(warm["objective"], yesterday["objective"]);
+}

@@ -55,7 +55,7 @@ mod solution;
 mod solve;
 mod sweep;
 
-pub use certify::{certify, Certificate};
+pub use certify::{certify, violation_decrease, Certificate, Checker, Decrease};
 pub use error::{AugmentError, Result};
 pub use fitting::Fitting;
 pub use moves::{Coverage, MoveSet, Sign};

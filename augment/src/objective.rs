@@ -119,6 +119,27 @@ impl Objective {
         self.len() == 0
     }
 
+    /// The asymptotic rate `lim f(x + t d) / t` as `t -> inf` (the same for every `x`), or
+    /// `None` when `f` grows faster than linearly along `d`: `d` is a descent ray of an
+    /// unbounded problem only when the rate is negative.
+    pub fn recession_rate(&self, d: &[i64]) -> Result<Option<i128>> {
+        if d.len() != self.len() {
+            return Err(AugmentError::Dimension {
+                what: "direction",
+                expected: self.len(),
+                found: d.len(),
+            });
+        }
+        let mut total = Recession::Finite(0);
+        for (i, &v) in d.iter().enumerate().filter(|(_, &v)| v != 0) {
+            total = total.add(self.recession(i, v)?)?;
+        }
+        Ok(match total {
+            Recession::Finite(rate) => Some(rate),
+            Recession::Infinite => None,
+        })
+    }
+
     /// `f(x)`, exactly.
     pub fn value(&self, x: &[i64]) -> Result<i128> {
         if x.len() != self.len() {

@@ -37,17 +37,7 @@ pub fn status_line(outcome: &Outcome) -> String {
 
 /// Fails when an independent re-check refutes what the solve claims.
 pub fn ensure_holds(recheck: Option<&Recheck>) -> anyhow::Result<()> {
-    match recheck {
-        Some(r) if !r.holds => anyhow::bail!(
-            "internal error: the re-check of the solve's claim ({:?}) failed{}",
-            r.claim,
-            r.counterexample.as_ref().map_or(String::new(), |c| format!(
-                ": move {} in sign {:+} changes the value by {}",
-                c.move_index, c.sign, c.gain
-            ))
-        ),
-        _ => Ok(()),
-    }
+    Ok(recheck.map_or(Ok(()), Recheck::confirm)?)
 }
 
 /// The evidence behind `outcome` in words: what was re-checked and why it proves the claim.

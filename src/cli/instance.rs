@@ -94,7 +94,7 @@ impl InstanceArgs {
         let warm = self
             .warm_start
             .as_deref()
-            .map(read_warm_start)
+            .map(|path| read_warm_start(path, &model))
             .transpose()?;
         let set = graver_for(&model, &self.model, &self.cache, self.build)?;
         let prepared = set.prepare(&model.matrix)?;
@@ -172,7 +172,8 @@ struct PreviousPlan {
     x: Option<Vec<i64>>,
 }
 
-fn read_warm_start(path: &Path) -> anyhow::Result<WarmStart> {
+/// The plan of a previous solve document, checked against `model` (`A x = rhs`).
+fn read_warm_start(path: &Path, model: &Model) -> anyhow::Result<WarmStart> {
     let origin = path.display().to_string();
     let text = std::fs::read_to_string(path)
         .with_context(|| format!("reading the warm start {origin}"))?;
@@ -190,8 +191,10 @@ fn read_warm_start(path: &Path) -> anyhow::Result<WarmStart> {
     let Some(x) = previous.x else {
         anyhow::bail!("{origin}: x: the previous solve has no plan to start from");
     };
-    Ok(WarmStart {
+    let warm = WarmStart {
         rhs: previous.rhs,
         x,
-    })
+    };
+    warm.check(&model.matrix, &origin)?;
+    Ok(warm)
 }

@@ -5,7 +5,7 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 
 use clap::Args;
-use kernstep::solve::Verdict;
+use kernstep::solve::{Numbers, Verdict};
 use kernstep::trace::{recheck, CoverageDoc, Decimal, Outcome, Recheck};
 use serde::Serialize;
 
@@ -87,7 +87,12 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
         &cancelled,
     )?;
     let outcome = Outcome::of(&verdict, &instance.model.variable_names);
-    let checked = recheck(&instance.model, instance.prepared.moves(), &verdict)?;
+    let checked = recheck(
+        &instance.model.matrix,
+        Numbers::of(&instance.model),
+        instance.prepared.checker(),
+        &verdict,
+    )?;
     ensure_holds(checked.as_ref())?;
     let mut out = io::stdout().lock();
     if args.json {

@@ -1,7 +1,9 @@
 //! Re-optimising many days of one model with one prepared test set: in parallel on the current
 //! rayon pool, or chained, each day warm-started from the previous day's plan.
 //!
-//! Results come back in input order whatever the thread count. A day whose line was bad is an
+//! Results come back in input order whatever the thread count. Every day's claim (optimal,
+//! infeasible, unbounded) is re-checked independently ([`crate::trace::recheck`]) before it is
+//! returned; a refuted claim makes the day an error. A day whose line was bad is an
 //! error result and does not stop the others; once `cancel` returns true, days not yet begun
 //! are [`DayOutcome::NotRun`] and a running solve ends as cancelled.
 
@@ -11,7 +13,8 @@ use rayon::prelude::*;
 
 use crate::error::Error;
 use crate::model::Model;
-use crate::solve::{ParsedLine, Prepared, Variant, Verdict, WarmStart};
+use crate::solve::{Numbers, ParsedLine, Prepared, Variant, Verdict, WarmStart};
+use crate::trace::recheck;
 
 /// How to re-optimise the days.
 #[derive(Clone, Copy, Debug, Default)]
@@ -127,13 +130,27 @@ impl Run<'_> {
             Ok(n) => n,
             Err(e) => return (finish(DayOutcome::Failed(e)), None),
         };
-        let solved =
-            self.prepared
-                .solve_numbers(numbers, &self.settings.options, warm, self.cancel);
+        let solved = self
+            .prepared
+            .solve_numbers(numbers, &self.settings.options, warm, self.cancel)
+            .and_then(|verdict| self.confirmed(numbers, verdict));
         let outcome = match solved {
             Ok(verdict) => DayOutcome::Solved(verdict),
             Err(e) => DayOutcome::Failed(e),
         };
         (finish(outcome), Some(numbers.rhs.to_vec()))
+    }
+
+    /// The verdict once the independent re-check confirms its claim; a refuted claim is an
+    /// error, so a day is never reported optimal (or infeasible) without its check.
+    fn confirmed(&self, numbers: Numbers<'_>, verdict: Verdict) -> Result<Verdict, Error> {
+        let check = recheck(
+            &self.model.matrix,
+            numbers,
+            self.prepared.checker(),
+            &verdict,
+        )?;
+        check.map_or(Ok(()), |c| c.confirm())?;
+        Ok(verdict)
     }
 }

@@ -13,7 +13,7 @@
 
 use std::sync::Arc;
 
-use augment::{Coverage, Objective, Options, Problem, Solution};
+use augment::{Coverage, Options, Solution};
 use cache::Completeness;
 
 use super::fittings::Fittings;
@@ -32,10 +32,13 @@ const QUICK_LIMIT: u64 = 1 << 40;
 /// What is computed once per matrix and shared by every instance of it.
 #[derive(Clone, Debug)]
 pub struct Prepared {
+    matrix: IntMatrix,
     hermite: HermiteForm,
     quick: Option<QuickSolver>,
     rounding: Rounding,
     moves: Arc<augment::MoveSet>,
+    /// The re-check's own copy of the moves.
+    checker: Arc<augment::Checker>,
     box_limit: Option<Vec<u64>>,
     /// Cuts of `moves` to the boxes that recur, for phase II.
     fittings: Arc<Fittings>,
@@ -48,6 +51,49 @@ pub struct WarmStart {
     pub rhs: Vec<i64>,
     /// The plan; `A x = rhs`.
     pub x: Vec<i64>,
+}
+
+impl WarmStart {
+    /// Checks that the plan belongs to `matrix` and meets its own right-hand side exactly
+    /// (`A x = rhs`), so that a tampered or foreign plan is refused before it is used; errors
+    /// name `origin` and the field.
+    pub fn check(&self, matrix: &IntMatrix, origin: &str) -> Result<()> {
+        let error = |field: &str, message: String| Error::Input {
+            file: origin.to_string(),
+            field: field.to_string(),
+            message,
+        };
+        if self.x.len() != matrix.cols() {
+            return Err(error(
+                "x",
+                format!(
+                    "has {} values, the model has {} variables (a plan of another model?)",
+                    self.x.len(),
+                    matrix.cols()
+                ),
+            ));
+        }
+        if self.rhs.len() != matrix.rows() {
+            return Err(error(
+                "rhs",
+                format!(
+                    "has {} entries, the model has {} rows (a plan of another model?)",
+                    self.rhs.len(),
+                    matrix.rows()
+                ),
+            ));
+        }
+        match matrix.first_unmet_row(&self.x, &self.rhs) {
+            None => Ok(()),
+            Some((row, value)) => Err(error(
+                "x",
+                format!(
+                    "the plan does not meet its right-hand side: row {row} of A x is {value}, rhs[{row}] is {} (an edited plan, or one of another model?)",
+                    self.rhs[row]
+                ),
+            )),
+        }
+    }
 }
 
 /// How a solve ended.
@@ -85,15 +131,14 @@ impl Prepared {
             .iter()
             .map(|v| to_i64_vec(v, "kernel basis vector"))
             .collect::<Result<Vec<_>>>()?;
+        let moves = augment::MoveSet::from_rows(set.width, &set.elements, coverage)?;
         Ok(Self {
+            matrix: a.clone(),
             rounding: Rounding::new(a, hermite.pivot_rows(), basis),
             quick: QuickSolver::new(&hermite),
             hermite,
-            moves: Arc::new(augment::MoveSet::from_rows(
-                set.width,
-                &set.elements,
-                coverage,
-            )?),
+            checker: Arc::new(augment::Checker::new(&moves)),
+            moves: Arc::new(moves),
             box_limit: None,
             fittings: Arc::default(),
         })
@@ -110,6 +155,11 @@ impl Prepared {
     /// The moves as the solver sees them.
     pub fn moves(&self) -> &augment::MoveSet {
         &self.moves
+    }
+
+    /// The independent re-check's own copy of the moves (see [`crate::trace::recheck`]).
+    pub fn checker(&self) -> &augment::Checker {
+        &self.checker
     }
 
     /// Solves `model` (whose matrix is the prepared one), from `warm` if given.
@@ -137,11 +187,7 @@ impl Prepared {
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
         let (lower, upper) = (numbers.lower, numbers.upper);
-        let problem = Problem::new(
-            Objective::linear(numbers.cost.to_vec()),
-            lower.to_vec(),
-            upper.to_vec(),
-        )?;
+        let problem = numbers.problem()?;
         let mut cold = start;
         self.rounding
             .towards_box(&mut cold, numbers.rhs, lower, upper)?;
@@ -203,16 +249,8 @@ impl Prepared {
         warm: Option<&WarmStart>,
     ) -> Result<std::result::Result<Vec<i64>, Certificate>> {
         let (target, base) = match warm {
-            Some(w) if w.rhs.len() != rhs.len() || w.x.len() != self.moves.width() => {
-                return Err(Error::Dimension(format!(
-                    "warm start has {} right-hand side entries and {} variables, the model {} and {}",
-                    w.rhs.len(),
-                    w.x.len(),
-                    rhs.len(),
-                    self.moves.width()
-                )))
-            }
             Some(w) => {
+                w.check(&self.matrix, "warm start")?;
                 let diff = rhs
                     .iter()
                     .zip(&w.rhs)

@@ -5,6 +5,7 @@
 //! line; an omitted field means "as in the model", `null` inside `lower`/`upper` is an
 //! infinite bound. Blank lines are skipped. Every error names the file, the line and the field.
 
+use augment::{Objective, Problem};
 use serde::Deserialize;
 
 use crate::error::{Error, Result};
@@ -105,6 +106,15 @@ pub struct Numbers<'a> {
 }
 
 impl<'a> Numbers<'a> {
+    /// The augmentation problem of these numbers: the objective and the box.
+    pub fn problem(&self) -> Result<Problem> {
+        Ok(Problem::new(
+            Objective::linear(self.cost.to_vec()),
+            self.lower.to_vec(),
+            self.upper.to_vec(),
+        )?)
+    }
+
     /// The model's own numbers.
     pub fn of(model: &'a Model) -> Self {
         Self {

@@ -13,7 +13,7 @@ use super::outcome::{sign_number, CoverageDoc, Outcome};
 use super::recheck::{recheck, Recheck};
 use crate::error::{Error, Result};
 use crate::model::Model;
-use crate::solve::{Prepared, Verdict, WarmStart};
+use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// The `schema` value of documents of this layout.
 pub const TRACE_SCHEMA: &str = "kernstep.trace/1";
@@ -98,7 +98,12 @@ pub fn record(
     cancel: &dyn Fn() -> bool,
 ) -> Result<TraceDocument> {
     let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
-    let checked = recheck(model, prepared.moves(), &verdict)?;
+    let checked = recheck(
+        &model.matrix,
+        Numbers::of(model),
+        prepared.checker(),
+        &verdict,
+    )?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
         schema: TRACE_SCHEMA.to_string(),

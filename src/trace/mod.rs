@@ -12,5 +12,5 @@ mod sparse;
 pub use decimal::Decimal;
 pub use document::{record, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
-pub use recheck::{recheck, Claim, Recheck, SignedMove};
+pub use recheck::{recheck, Claim, Defect, Recheck, SignedMove};
 pub use sparse::{named_entries, NamedEntry};

@@ -1,23 +1,28 @@
 //! Independent re-checks of a solve's claim, from the final point and the plain move rows.
 //!
-//! Nothing here reuses the solver's line search: each claim is tested on dense vectors.
-//! - Optimal: [`augment::certify`] tries every move in both signs with a unit step (enough
+//! Nothing here reuses the solver's scans: each claim is tested on the instance's own numbers.
+//! Every claim about a point first checks the point itself: `A x = b` exactly, over the
+//! matrix, and (for a plan) the bounds, so a point off the fibre (a tampered warm start, say)
+//! is never certified.
+//! - Optimal: [`augment::Checker::certify`] tries every move in both signs with a unit step (enough
 //!   by convexity).
 //! - No lattice point in the box: no move in either sign lowers the total violation at the
-//!   final point; with a complete Graver basis, a test set for that separable convex function
-//!   (Murota, Saito, Weismantel 2004), the minimum is positive.
+//!   final point ([`augment::Checker::violation_decrease`]); with a complete Graver basis, a test set
+//!   for that separable convex function (Murota, Saito, Weismantel 2004), the minimum is
+//!   positive.
 //! - No integer solution: `y^T A` is integral and `y^T b` is not.
-//! - Unbounded: `A d = 0`, `c.d < 0`, the start of the ray lies in the box and every variable
-//!   that `d` changes is unbounded in that direction.
+//! - Unbounded: `A d = 0`, the cost falls along `d` at a negative asymptotic rate, the start
+//!   of the ray lies in the box and every variable that `d` changes is unbounded in that
+//!   direction.
 
-use augment::{certify, Certificate, Objective, Problem, Sign, Solution, Status};
+use augment::{Certificate, Checker, Problem, Solution, Status};
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
 use super::outcome::sign_number;
 use crate::error::{Error, Result};
-use crate::model::Model;
-use crate::solve::Verdict;
+use crate::matrix::IntMatrix;
+use crate::solve::{Numbers, Verdict};
 
 /// Which claim was re-checked.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -33,6 +38,18 @@ pub enum Claim {
     Ray,
 }
 
+impl Claim {
+    /// The claim in a few words, for messages.
+    pub fn words(self) -> &'static str {
+        match self {
+            Claim::NoImprovingMove => "no move improves the plan",
+            Claim::NoViolationDecrease => "no move lowers the bound violation",
+            Claim::LatticeCertificate => "A x = b has no integer solution",
+            Claim::Ray => "the cost falls without limit along the ray",
+        }
+    }
+}
+
 /// A move applied in one sign.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct SignedMove {
@@ -42,6 +59,26 @@ pub struct SignedMove {
     pub sign: i8,
     /// What the signed move changes: the objective gain or the violation decrease.
     pub gain: Decimal,
+}
+
+/// What is wrong with the point a claim is about.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(tag = "tag", rename_all = "snake_case")]
+pub enum Defect {
+    /// Row `row` of `A x` is `value`, not the right-hand side `rhs`.
+    OffFibre {
+        /// Index of the row.
+        row: usize,
+        /// `(A x)_row`.
+        value: Decimal,
+        /// `b_row`.
+        rhs: i64,
+    },
+    /// The plan lies outside the bounds of this variable.
+    OutsideBox {
+        /// Index of the variable.
+        variable: usize,
+    },
 }
 
 /// The result of re-checking one claim.
@@ -55,132 +92,167 @@ pub struct Recheck {
     pub moves_checked: usize,
     /// A signed move that refutes the claim, if one was found.
     pub counterexample: Option<SignedMove>,
+    /// What is wrong with the point itself, if anything.
+    pub defect: Option<Defect>,
 }
 
-/// Re-checks what `verdict` claims for `model` with the set `moves`; `None` when the verdict
-/// claims nothing checkable (empty range, step limit, cancelled).
+impl Recheck {
+    /// `Ok` when the claim holds, else [`Error::Refuted`] saying what refutes it.
+    pub fn confirm(&self) -> Result<()> {
+        if self.holds {
+            return Ok(());
+        }
+        let why = match (&self.defect, &self.counterexample) {
+            (Some(Defect::OffFibre { row, value, rhs }), _) => {
+                format!("row {row} of A x is {value}, the right-hand side {rhs}")
+            }
+            (Some(Defect::OutsideBox { variable }), _) => {
+                format!("variable {variable} lies outside its bounds")
+            }
+            (None, Some(c)) => format!(
+                "move {} in sign {:+} changes the value by {}",
+                c.move_index, c.sign, c.gain
+            ),
+            (None, None) => "the certificate does not hold".to_string(),
+        };
+        Err(Error::Refuted {
+            claim: self.claim.words(),
+            why,
+        })
+    }
+
+    fn of_point(claim: Claim, moves_checked: usize, defect: Defect) -> Self {
+        Recheck {
+            claim,
+            holds: false,
+            moves_checked,
+            counterexample: None,
+            defect: Some(defect),
+        }
+    }
+}
+
+/// Re-checks what `verdict` claims for the instance `numbers` of `matrix` with the checker's
+/// copy of the set (see [`crate::solve::Prepared::checker`]); `None` when the verdict claims
+/// nothing checkable (empty range, step limit, cancelled).
 pub fn recheck(
-    model: &Model,
-    moves: &augment::MoveSet,
+    matrix: &IntMatrix,
+    numbers: Numbers<'_>,
+    moves: &Checker,
     verdict: &Verdict,
 ) -> Result<Option<Recheck>> {
     let solution = match verdict {
         Verdict::NoIntegerSolution(certificate) => {
             return Ok(Some(Recheck {
                 claim: Claim::LatticeCertificate,
-                holds: certificate.check(&model.matrix, &model.rhs),
+                holds: certificate.check(matrix, numbers.rhs),
                 moves_checked: 0,
                 counterexample: None,
+                defect: None,
             }))
         }
         Verdict::Solved(solution) => solution,
     };
-    let problem = Problem::new(
-        Objective::linear(model.cost.clone()),
-        model.lower.clone(),
-        model.upper.clone(),
-    )?;
-    match &solution.status {
-        Status::Optimal | Status::OptimalForMovesUpTo(_) => {
-            optimality(&problem, moves, &solution.x).map(Some)
-        }
-        Status::Infeasible(augment::InfeasibleReason::EmptyRange { .. }) => Ok(None),
-        Status::Infeasible(_) => violation(&problem, moves, &solution.x).map(Some),
-        Status::Unbounded(ray) => ray_holds(model, solution, &ray.direction).map(|holds| {
-            Some(Recheck {
-                claim: Claim::Ray,
-                holds,
-                moves_checked: 0,
-                counterexample: None,
-            })
-        }),
-        Status::StepLimit | Status::Cancelled => Ok(None),
+    let claim = match &solution.status {
+        Status::Optimal | Status::OptimalForMovesUpTo(_) => Claim::NoImprovingMove,
+        Status::Infeasible(augment::InfeasibleReason::EmptyRange { .. }) => return Ok(None),
+        Status::Infeasible(_) => Claim::NoViolationDecrease,
+        Status::Unbounded(_) => Claim::Ray,
+        Status::StepLimit | Status::Cancelled => return Ok(None),
+    };
+    if solution.x.len() != matrix.cols() {
+        return Err(Error::Dimension(format!(
+            "the solve returned {} values for {} variables",
+            solution.x.len(),
+            matrix.cols()
+        )));
     }
+    if let Some((row, value)) = matrix.first_unmet_row(&solution.x, numbers.rhs) {
+        let defect = Defect::OffFibre {
+            row,
+            value: Decimal(value),
+            rhs: numbers.rhs[row],
+        };
+        return Ok(Some(Recheck::of_point(claim, 0, defect)));
+    }
+    let problem = numbers.problem()?;
+    let checked = match &solution.status {
+        Status::Unbounded(ray) => ray_check(matrix, &problem, solution, &ray.direction)?,
+        _ if claim == Claim::NoImprovingMove => optimality(&problem, moves, &solution.x)?,
+        _ => violation(&problem, moves, &solution.x)?,
+    };
+    Ok(Some(checked))
 }
 
-fn optimality(problem: &Problem, moves: &augment::MoveSet, x: &[i64]) -> Result<Recheck> {
-    let (holds, counterexample) = match certify(problem, moves, x)? {
-        Certificate::NoImprovingMove => (true, None),
-        Certificate::OutsideBox { .. } => (false, None),
+fn optimality(problem: &Problem, moves: &Checker, x: &[i64]) -> Result<Recheck> {
+    let claim = Claim::NoImprovingMove;
+    let counterexample = match moves.certify(problem, x)? {
+        Certificate::NoImprovingMove => None,
+        Certificate::OutsideBox { variable } => {
+            let defect = Defect::OutsideBox { variable };
+            return Ok(Recheck::of_point(claim, 0, defect));
+        }
         Certificate::Improving {
             move_index,
             sign,
             gain,
-        } => (
-            false,
-            Some(SignedMove {
-                move_index,
-                sign: sign_number(sign),
-                gain: Decimal(gain),
-            }),
-        ),
+        } => Some(SignedMove {
+            move_index,
+            sign: sign_number(sign),
+            gain: Decimal(gain),
+        }),
     };
     Ok(Recheck {
-        claim: Claim::NoImprovingMove,
-        holds,
+        claim,
+        holds: counterexample.is_none(),
         moves_checked: moves.len(),
         counterexample,
+        defect: None,
     })
 }
 
-fn violation(problem: &Problem, moves: &augment::MoveSet, x: &[i64]) -> Result<Recheck> {
-    let base = problem.violation(x)?;
-    for move_index in 0..moves.len() {
-        for sign in Sign::BOTH {
-            let y = shifted(x, moves.row(move_index), sign.factor())?;
-            let decrease = base - problem.violation(&y)?;
-            if decrease > 0 {
-                return Ok(Recheck {
-                    claim: Claim::NoViolationDecrease,
-                    holds: false,
-                    moves_checked: moves.len(),
-                    counterexample: Some(SignedMove {
-                        move_index,
-                        sign: sign_number(sign),
-                        gain: Decimal(decrease),
-                    }),
-                });
-            }
-        }
-    }
+fn violation(problem: &Problem, moves: &Checker, x: &[i64]) -> Result<Recheck> {
+    let counterexample = moves.violation_decrease(problem, x)?.map(|d| SignedMove {
+        move_index: d.move_index,
+        sign: sign_number(d.sign),
+        gain: Decimal(d.amount),
+    });
     Ok(Recheck {
         claim: Claim::NoViolationDecrease,
-        holds: base > 0,
+        holds: counterexample.is_none() && problem.violation(x)? > 0,
         moves_checked: moves.len(),
-        counterexample: None,
+        counterexample,
+        defect: None,
     })
 }
 
-fn ray_holds(model: &Model, solution: &Solution, d: &[i64]) -> Result<bool> {
-    let image = model
-        .matrix
-        .mul_vec(d)
-        .ok_or_else(|| Error::Overflow("multiplying the ray by the matrix".into()))?;
-    let slope = model
-        .cost
-        .iter()
-        .zip(d)
-        .try_fold(0i128, |sum, (&c, &v)| {
-            sum.checked_add(i128::from(c) * i128::from(v))
-        })
-        .ok_or_else(|| Error::Overflow("the cost slope of the ray".into()))?;
-    let x = &solution.x;
-    let in_box = (0..x.len()).all(|i| {
-        model.lower[i].is_none_or(|l| x[i] >= l) && model.upper[i].is_none_or(|u| x[i] <= u)
-    });
+fn ray_check(
+    matrix: &IntMatrix,
+    problem: &Problem,
+    solution: &Solution,
+    d: &[i64],
+) -> Result<Recheck> {
+    let claim = Claim::Ray;
+    if let Some(variable) = problem.first_outside(&solution.x) {
+        return Ok(Recheck::of_point(claim, 0, Defect::OutsideBox { variable }));
+    }
+    let zero = vec![0; matrix.rows()];
+    let in_kernel = d.len() == matrix.cols() && matrix.first_unmet_row(d, &zero).is_none();
+    let descends = in_kernel
+        && problem
+            .objective()
+            .recession_rate(d)?
+            .is_some_and(|rate| rate < 0);
     let free = d.iter().enumerate().all(|(i, &v)| {
-        v == 0 || (v > 0 && model.upper[i].is_none()) || (v < 0 && model.lower[i].is_none())
+        v == 0 || (v > 0 && problem.upper()[i].is_none()) || (v < 0 && problem.lower()[i].is_none())
     });
-    Ok(image.iter().all(|&v| v == 0) && slope < 0 && in_box && free)
-}
-
-/// `x + factor * g`, with overflow reported.
-fn shifted(x: &[i64], g: &[i64], factor: i64) -> Result<Vec<i64>> {
-    x.iter()
-        .zip(g)
-        .map(|(&a, &b)| b.checked_mul(factor).and_then(|d| a.checked_add(d)))
-        .collect::<Option<Vec<i64>>>()
-        .ok_or_else(|| Error::Overflow("adding a move to a point".into()))
+    Ok(Recheck {
+        claim,
+        holds: descends && free,
+        moves_checked: 0,
+        counterexample: None,
+        defect: None,
+    })
 }
 
 #[cfg(test)]
@@ -190,7 +262,7 @@ mod tests {
     use augment::{Coverage, InfeasibleReason, Ray};
 
     use super::*;
-    use crate::model::ModelKind;
+    use crate::model::{Model, ModelKind};
 
     /// The lane plan of `examples/lane_plan.toml`; its kernel is spanned by `(1, -1, -1, 1)`.
     fn lanes(upper: &str) -> (Model, augment::MoveSet) {
@@ -220,10 +292,20 @@ mod tests {
     fn optimality_holds_at_the_optimum_and_fails_one_move_short() {
         let (model, moves) = lanes("[5, null, 4, null]");
         // By hand: with x_1 = t the cost is 64 - 4t and t <= 5, so (5, 2, 0, 4) is optimal.
-        let good = recheck(&model, &moves, &claimed(Status::Optimal, vec![5, 2, 0, 4]));
+        let good = recheck(
+            &model.matrix,
+            Numbers::of(&model),
+            &Checker::new(&moves),
+            &claimed(Status::Optimal, vec![5, 2, 0, 4]),
+        );
         let good = good.unwrap().unwrap();
         assert!(good.holds && good.claim == Claim::NoImprovingMove && good.moves_checked == 1);
-        let bad = recheck(&model, &moves, &claimed(Status::Optimal, vec![4, 3, 1, 3]));
+        let bad = recheck(
+            &model.matrix,
+            Numbers::of(&model),
+            &Checker::new(&moves),
+            &claimed(Status::Optimal, vec![4, 3, 1, 3]),
+        );
         let bad = bad.unwrap().unwrap();
         assert!(!bad.holds);
         let expected = SignedMove {
@@ -235,12 +317,75 @@ mod tests {
     }
 
     #[test]
+    fn a_plan_off_the_fibre_is_never_certified() {
+        let (model, moves) = lanes("[5, null, 4, null]");
+        // (5, 2, 0, 3) lies in the box and no move improves it, but row 3 sums to 5, not 6.
+        let verdict = claimed(Status::Optimal, vec![5, 2, 0, 3]);
+        let check = recheck(
+            &model.matrix,
+            Numbers::of(&model),
+            &Checker::new(&moves),
+            &verdict,
+        );
+        let check = check.unwrap().unwrap();
+        assert!(!check.holds);
+        let defect = Defect::OffFibre {
+            row: 2,
+            value: Decimal(5),
+            rhs: 6,
+        };
+        assert_eq!(check.defect, Some(defect));
+        let message = check.confirm().unwrap_err().to_string();
+        assert!(message.contains("row 2 of A x is 5"), "{message}");
+        // The same point claimed as the start of a ray, or as a minimum violation.
+        let ray = Ray {
+            move_index: 0,
+            sign: augment::Sign::Plus,
+            direction: vec![1, -1, -1, 1],
+        };
+        let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
+        for status in [Status::Unbounded(ray), Status::Infeasible(reason)] {
+            let verdict = claimed(status, vec![5, 2, 0, 3]);
+            let check = recheck(
+                &model.matrix,
+                Numbers::of(&model),
+                &Checker::new(&moves),
+                &verdict,
+            );
+            assert!(!check.unwrap().unwrap().holds);
+        }
+    }
+
+    #[test]
+    fn a_plan_outside_the_box_is_never_certified() {
+        let (model, moves) = lanes("[5, null, 4, null]");
+        // (6, 1, -1, 5) meets every row but lies above the upper bound of x_1 (and below x_3's).
+        let verdict = claimed(Status::Optimal, vec![6, 1, -1, 5]);
+        let check = recheck(
+            &model.matrix,
+            Numbers::of(&model),
+            &Checker::new(&moves),
+            &verdict,
+        );
+        let check = check.unwrap().unwrap();
+        assert_eq!(check.defect, Some(Defect::OutsideBox { variable: 0 }));
+        assert!(check.confirm().is_err());
+    }
+
+    #[test]
     fn an_empty_box_claim_fails_where_a_move_lowers_the_violation() {
         let (model, moves) = lanes("[1, 1, 1, 1]");
         let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
         // (5, 2, 0, 4) violates by 4 + 1 + 3 = 8; minus the move, (4, 3, 1, 3) by 3 + 2 + 2 = 7.
         let verdict = claimed(Status::Infeasible(reason), vec![5, 2, 0, 4]);
-        let check = recheck(&model, &moves, &verdict).unwrap().unwrap();
+        let check = recheck(
+            &model.matrix,
+            Numbers::of(&model),
+            &Checker::new(&moves),
+            &verdict,
+        )
+        .unwrap()
+        .unwrap();
         assert_eq!(check.claim, Claim::NoViolationDecrease);
         assert!(!check.holds);
         assert_eq!(check.counterexample.map(|c| c.sign), Some(-1));
@@ -257,7 +402,15 @@ mod tests {
             let (mut model, moves) = lanes(upper);
             model.lower = vec![None; 4];
             let verdict = claimed(Status::Unbounded(ray.clone()), vec![5, 2, 0, 4]);
-            recheck(&model, &moves, &verdict).unwrap().unwrap().holds
+            recheck(
+                &model.matrix,
+                Numbers::of(&model),
+                &Checker::new(&moves),
+                &verdict,
+            )
+            .unwrap()
+            .unwrap()
+            .holds
         };
         // c.d = 4 - 6 - 5 + 3 = -4 < 0.
         assert!(unbounded("[null, null, null, null]"));
