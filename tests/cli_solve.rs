@@ -1,11 +1,15 @@
 //! `kernstep solve` through the binary: optima against the HiGHS values recorded in
 //! `tests/fixtures/solve/` (solver and version named in each fixture), exit codes for every
-//! outcome, variants inline and from JSON Lines files, warm starts, and the cache.
+//! outcome, variants inline and from JSON Lines files, warm starts, and the cache; scenario
+//! days (`--variant DAYS --day DAY`) answered as `batch` answers them.
 
+use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
+mod cli_support;
 mod highs_fixtures;
+use cli_support::{batch_answers, document_answer, expect_both, scenarios};
 use highs_fixtures::{fixture, Case, Fixture};
 use serde_json::{json, Value};
 
@@ -393,4 +397,182 @@ fn tampered_warm_starts_are_refused_naming_the_file() {
     let (code, warm) = solve_json(&lanes, dir.path(), &extra);
     assert_eq!((code, &warm["status"]["tag"]), (0, &json!("optimal")));
     assert_eq!(warm["objective"], yesterday["objective"]);
+}
+
+/// `solve SCENARIO --variant DAYS [--day DAY] --json --build EXTRA` with the cache `cache`;
+/// returns the exit code (0 or 1) and the document.
+fn solve_day(
+    cache: &Path,
+    scenario: &Path,
+    days: &Path,
+    day: Option<&str>,
+    extra: &[&str],
+) -> (i32, Value) {
+    let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
+    let mut args = vec!["solve", s, "--variant", d, "--json", "--build"];
+    if let Some(day) = day {
+        args.extend(["--day", day]);
+    }
+    args.extend_from_slice(extra);
+    let out = cli_support::kernstep(cache, &args);
+    let code = out.status.code().unwrap();
+    assert!(code < 2, "{args:?}: {}", stderr(&out));
+    (code, serde_json::from_str(&stdout(&out)).unwrap())
+}
+
+#[test]
+fn a_scenario_day_solves_as_batch_solves_it() {
+    let cache = tempfile::tempdir().unwrap();
+    // 2026-03-04 and 2026-03-07 of the lane days leave no plan inside the bounds, and
+    // 2026-03-18 of the valley days has no integer solution: infeasible on purpose.
+    let cases = [
+        (
+            "brackle_lanes.toml",
+            "brackle_lanes_days.jsonl",
+            &["2026-03-02", "2026-03-04", "2026-03-09"][..],
+        ),
+        (
+            "brackle_lanes.toml",
+            "brackle_lanes_days.csv",
+            &["2026-03-03", "2026-03-07", "2026-03-08"],
+        ),
+        (
+            "vell_valley.toml",
+            "vell_valley_days.jsonl",
+            &["2026-03-05", "2026-03-18", "2026-03-31"],
+        ),
+        (
+            "hollin_trucks.toml",
+            "hollin_trucks_days.jsonl",
+            &["2026-03-02", "2026-03-06"],
+        ),
+    ];
+    let mut statuses = BTreeSet::new();
+    for (scenario, days, picked) in cases {
+        let (scenario, days) = (scenarios().join(scenario), scenarios().join(days));
+        let want = batch_answers(cache.path(), &scenario, &days, &[]);
+        for &day in picked {
+            let (code, doc) = solve_day(cache.path(), &scenario, &days, Some(day), &[]);
+            let context = format!("{} {day}", days.display());
+            assert_eq!(doc["variant"], day, "{context}");
+            assert_eq!(doc["model"], scenario.to_str().unwrap(), "{context}");
+            let got = document_answer(&doc);
+            assert_eq!(got, want[day], "{context}");
+            assert_eq!(code, i32::from(got.0 != "optimal"), "{context}");
+            statuses.insert(got.0);
+        }
+    }
+    assert_eq!(
+        statuses.into_iter().collect::<Vec<_>>(),
+        ["infeasible", "optimal"]
+    );
+}
+
+#[test]
+fn a_scenario_without_day_takes_the_first_and_without_variant_its_own_numbers() {
+    let dir = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let days = scenarios().join("brackle_lanes_days.csv");
+    let want = batch_answers(dir.path(), &scenario, &days, &[]);
+    let (_, first) = solve_day(dir.path(), &scenario, &days, None, &[]);
+    assert_eq!(first["variant"], "2026-03-02");
+    assert_eq!(document_answer(&first), want["2026-03-02"]);
+    // A day that changes nothing is the scenario as written.
+    let unchanged = dir.path().join("unchanged.jsonl");
+    std::fs::write(&unchanged, "{\"day\": \"as written\"}\n").unwrap();
+    let want = batch_answers(dir.path(), &scenario, &unchanged, &[]);
+    let s = scenario.to_str().unwrap();
+    let args = ["solve", s, "--json", "--build"];
+    let (out, _) = expect_both(dir.path(), &args, 0);
+    let doc: Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(doc["variant"], Value::Null);
+    assert_eq!(document_answer(&doc), want["as written"]);
+}
+
+#[test]
+fn a_warm_started_scenario_day_equals_the_chained_batch() {
+    let dir = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("vell_valley.toml");
+    let days = scenarios().join("vell_valley_days.jsonl");
+    let cold = batch_answers(dir.path(), &scenario, &days, &[]);
+    let chained = batch_answers(dir.path(), &scenario, &days, &["--chain"]);
+    // Started from the day before's plan, this day takes a step fewer than from a cold start.
+    let (yesterday, today) = ("2026-03-11", "2026-03-12");
+    assert_ne!(cold[today], chained[today]);
+    let (_, previous) = solve_day(dir.path(), &scenario, &days, Some(yesterday), &[]);
+    assert_eq!(document_answer(&previous), chained[yesterday]);
+    let previous_file = dir.path().join("yesterday.json");
+    std::fs::write(&previous_file, previous.to_string()).unwrap();
+    let warm = ["--warm-start", previous_file.to_str().unwrap()];
+    let (_, doc) = solve_day(dir.path(), &scenario, &days, Some(today), &warm);
+    assert_eq!(doc["warm_start"], true);
+    assert_eq!(document_answer(&doc), chained[today]);
+}
+
+#[test]
+fn scenario_day_errors_name_the_file_the_line_and_the_day() {
+    let dir = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("brackle_lanes.toml");
+    let s = scenario.to_str().unwrap();
+    let expect_error = |args: &[&str], needles: &[&str]| {
+        let (_, message) = expect_both(dir.path(), args, 2);
+        for needle in needles {
+            assert!(message.contains(needle), "{args:?}: {message}");
+        }
+    };
+    let csv = scenarios().join("brackle_lanes_days.csv");
+    let csv = csv.to_str().unwrap();
+    let unknown = [
+        "solve",
+        s,
+        "--variant",
+        csv,
+        "--day",
+        "2026-04-01",
+        "--build",
+    ];
+    expect_error(
+        &unknown,
+        &[&format!(
+            "{csv}: no day named \"2026-04-01\" (days: 2026-03-02, "
+        )],
+    );
+    let jsonl = dir.path().join("days.jsonl");
+    std::fs::write(
+        &jsonl,
+        "{\"day\": \"d1\", \"demand\": {\"old_docks\": 10}}\n\
+         {\"day\": \"d2\", \"demand\": {\"old_dock\": 10}}\n\
+         {\"day\": \"d3\", \"supply\": {\"windmill\": 40}}\n",
+    )
+    .unwrap();
+    let bad_csv = dir.path().join("days.csv");
+    std::fs::write(
+        &bad_csv,
+        "day,field,name,value\nd1,demand,old_docks,10\nd2,demand,old_docks,x\n",
+    )
+    .unwrap();
+    let (jsonl, bad_csv) = (jsonl.to_str().unwrap(), bad_csv.to_str().unwrap());
+    let bad_line = ["solve", s, "--variant", jsonl, "--day", "d2", "--build"];
+    expect_error(
+        &bad_line,
+        &["days.jsonl: line 2: demand.old_dock: no zone named \"old_dock\""],
+    );
+    let bad_row = ["solve", s, "--variant", bad_csv, "--day", "d2", "--build"];
+    expect_error(
+        &bad_row,
+        &["days.csv: line 3: demand.old_docks: \"x\" is not an integer"],
+    );
+    // The other days of those files still solve.
+    for days in [jsonl, bad_csv] {
+        let (_, doc) = solve_day(dir.path(), &scenario, Path::new(days), Some("d1"), &[]);
+        assert_eq!(doc["status"]["tag"], "optimal", "{days}");
+    }
+    let id_for_scenario = ["solve", s, "--variant", csv, "--variant-id", "2026-03-02"];
+    expect_error(&id_for_scenario, &["is a scenario", "--day"]);
+    let model = example("lane_plan.toml");
+    let variants = dir.path().join("v.jsonl");
+    std::fs::write(&variants, "{\"id\":\"mon\",\"rhs\":[7,5,6]}\n").unwrap();
+    let v = variants.to_str().unwrap();
+    let day_for_model = ["solve", &model, "--variant", v, "--day", "mon", "--build"];
+    expect_error(&day_for_model, &["is a model file", "--variant-id"]);
 }

@@ -1,13 +1,18 @@
 //! `kernstep trace` through the binary, checked from its JSON alone: replaying the steps from
 //! the start point gives the final plan, every recorded value is recomputed from the points,
 //! phase-II points are feasible, and the certificate is re-checked against the move set that
-//! `kernstep build --out` writes. Also the SVG (parsed as XML) and the 100-column limit.
+//! `kernstep build --out` writes. Also the SVG (parsed as XML), the 100-column limit, and
+//! scenario days traced under the scenario's variable names.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
+use kernstep::scenario::Scenario;
 use serde::Deserialize;
 use serde_json::{json, Value};
+
+mod cli_support;
+use cli_support::{batch_answers, document_answer, expect_both, scenarios};
 
 fn kernstep(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_kernstep"))
@@ -387,5 +392,50 @@ fn warm_started_traces_replay_from_the_solver_start() {
         recheck(m, &doc, &set);
         // Optimum recorded by HiGHS 1.16 (fixture file).
         assert_eq!(decimal(&doc["objective"]), i128::from(optimum.unwrap()));
+    }
+}
+
+#[test]
+fn a_scenario_day_is_traced_with_the_scenario_names() {
+    let cache = tempfile::tempdir().unwrap();
+    for (scenario, days, day) in [
+        ("brackle_lanes.toml", "brackle_lanes_days.csv", "2026-03-03"),
+        (
+            "hollin_trucks.toml",
+            "hollin_trucks_days.jsonl",
+            "2026-03-05",
+        ),
+    ] {
+        let (scenario, days) = (scenarios().join(scenario), scenarios().join(days));
+        let want = batch_answers(cache.path(), &scenario, &days, &[]);
+        let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
+        let args = ["trace", s, "--variant", d, "--day", day, "--build"];
+        let (json, _) = expect_both(cache.path(), &[&args[..], &["--json"]].concat(), 0);
+        let doc: Value = serde_json::from_str(&json).unwrap();
+        assert_eq!(document_answer(&doc), want[day], "{d} {day}");
+        let compiled = Scenario::load(&scenario).unwrap().compile().unwrap();
+        assert_eq!(doc["variables"], json!(compiled.variable_names), "{d}");
+        let (shown, _) = expect_both(cache.path(), &args, 0);
+        assert!(
+            shown.starts_with(&format!("trace of {s} / {day}\n")),
+            "{shown}"
+        );
+        let steps = doc["steps"].as_array().unwrap();
+        assert!(!steps.is_empty(), "{d} {day}");
+        for step in steps {
+            // The step's row begins its move with the first nonzero entry, by name.
+            let (name, value) = compiled
+                .variable_names
+                .iter()
+                .zip(numbers(&step["direction"]))
+                .find(|(_, v)| *v != 0)
+                .unwrap();
+            let number = step["step"].to_string();
+            let row = shown
+                .lines()
+                .find(|l| l.split_whitespace().next() == Some(&number))
+                .unwrap_or_else(|| panic!("no row for step {number}:\n{shown}"));
+            assert!(row.contains(&format!("{value:+} {name}")), "{row}");
+        }
     }
 }

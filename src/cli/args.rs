@@ -27,8 +27,8 @@ pub enum Command {
     Build(super::build::BuildArgs),
     /// Look after the stored test sets: list, show, verify, remove, prune, export.
     Cache(super::cache::CacheVerbArgs),
-    /// Re-optimise one instance (the model, or a variant of it) with the cached Graver basis
-    /// and print the plan with its certificate.
+    /// Re-optimise one instance (the model, a variant of it, or a day of a transport scenario)
+    /// with the cached Graver basis and print the plan with its certificate.
     Solve(super::solve::SolveArgs),
     /// Solve one instance and show every augmenting step, the certificate and, with --svg, a
     /// plot of the violation and cost per step.

@@ -17,14 +17,13 @@ use anyhow::Context;
 use augment::Status;
 use clap::{Args, ValueEnum};
 use kernstep::model::Model;
-use kernstep::scenario::{
-    parse_csv, parse_day_lines, replan, DayOutcome, DayResult, PlanInput, ReplanSettings,
-};
-use kernstep::solve::{parse_lines, ParsedLine, Prepared, Verdict};
+use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
+use kernstep::solve::{ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
 use serde::Serialize;
 
 use super::common::{graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet};
+use super::days::read_days;
 use super::table::write_pairs;
 
 /// Arguments of `batch`.
@@ -101,25 +100,6 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
         }
     }
     Ok(tally.exit_code())
-}
-
-/// Reads the days file in the layout its extension and the input call for.
-pub(super) fn read_days(input: &PlanInput, path: &Path) -> anyhow::Result<Vec<ParsedLine>> {
-    let text =
-        std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))?;
-    let origin = path.display().to_string();
-    let csv = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
-    Ok(match (input, csv) {
-        (PlanInput::Scenario(s, _), true) => parse_csv(s, &text, &origin),
-        (PlanInput::Scenario(s, _), false) => parse_day_lines(s, &text, &origin),
-        (PlanInput::Model(_), true) => anyhow::bail!(
-            "{origin}: CSV days name scenario fields; for a model file write JSON Lines variants"
-        ),
-        (PlanInput::Model(_), false) => parse_lines(&text, &origin),
-    })
 }
 
 /// Re-optimises every day with the prepared set on `threads` threads (Ctrl-C stops).

@@ -1,5 +1,5 @@
-//! The instance options shared by `solve` and `trace`: the model, the variant, the warm start
-//! and the solver settings, turned once into a prepared instance.
+//! The instance options shared by `solve` and `trace`: the model (or scenario), the variant
+//! (or day), the warm start and the solver settings, turned once into a prepared instance.
 
 use std::path::{Path, PathBuf};
 use std::sync::atomic::Ordering;
@@ -8,12 +8,14 @@ use anyhow::Context;
 use augment::{Options, Rule};
 use clap::{Args, ValueEnum};
 use kernstep::model::Model;
+use kernstep::scenario::PlanInput;
 use kernstep::solve::{parse_lines, Prepared, Variant, WarmStart};
 use kernstep::trace::TRACE_SCHEMA;
 use kernstep::Error;
 use serde::Deserialize;
 
 use super::common::{graver_for, interrupted, CacheArgs, SolverSet};
+use super::days::pick_day;
 
 /// The `schema` value of `solve --json` documents.
 pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
@@ -21,15 +23,22 @@ pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
 /// Which instance to solve, and how.
 #[derive(Debug, Args)]
 pub struct InstanceArgs {
-    /// The model file (.json or .toml).
+    /// The model file (.json, .toml or .mps), or a transport scenario file (.json or .toml).
     pub model: PathBuf,
-    /// A variant: inline JSON such as `{"id":"mon","rhs":[...]}`, or a JSON Lines file of
-    /// variants (then --variant-id picks one; default the first).
+    /// For a model file, a variant: inline JSON such as `{"id":"mon","rhs":[...]}`, or a JSON
+    /// Lines file of variants (then --variant-id picks one; default the first). For a
+    /// scenario, a days file as `batch` reads it: JSON Lines, or CSV rows `day,field,name,value`
+    /// (.csv); then --day picks one (default the first).
     #[arg(long, value_name = "FILE_OR_JSON")]
     pub variant: Option<String>,
-    /// The id of the variant to take from the --variant file.
+    /// The id of the variant to take from the --variant file (model files; for a scenario use
+    /// --day).
     #[arg(long, value_name = "ID", requires = "variant")]
     pub variant_id: Option<String>,
+    /// The day to take from the --variant days file, by its `day` name (scenarios; for a model
+    /// file use --variant-id).
+    #[arg(long, value_name = "DAY", requires = "variant")]
+    pub day: Option<String>,
     /// Start from a previous plan: a `solve --json` (or `trace --json`) document; its `x` plus
     /// a particular solution of `A z = b - rhs_prev` is the start point.
     #[arg(long, value_name = "FILE")]
@@ -63,11 +72,11 @@ pub enum StrategyArg {
 
 /// A model variant ready to solve.
 pub struct Instance {
-    /// The model with the variant's numbers.
+    /// The model with the variant's numbers (compiled from a scenario and its day).
     pub model: Model,
-    /// The model file as given.
+    /// The model or scenario file as given.
     pub path: String,
-    /// The variant's id, when one was given.
+    /// The variant's id (a scenario's day name), when one was given.
     pub variant: Option<String>,
     /// The previous plan to start from.
     pub warm: Option<WarmStart>,
@@ -82,13 +91,13 @@ pub struct Instance {
 impl InstanceArgs {
     /// Loads the model, applies the variant, reads the warm start and finds the moves.
     pub fn load(&self) -> anyhow::Result<Instance> {
-        let base = Model::load(&self.model)?;
+        let input = PlanInput::load(&self.model)?;
         let path = self.model.display().to_string();
         let (model, variant) = match &self.variant {
-            None => (base, None),
+            None => (input.into_model(), None),
             Some(spec) => {
-                let (variant, origin) = read_variant(spec, self.variant_id.as_deref())?;
-                (variant.apply(&base, &origin)?, Some(variant.id))
+                let (variant, origin) = self.pick_variant(&input, spec)?;
+                (variant.apply(input.model(), &origin)?, Some(variant.id))
             }
         };
         let warm = self
@@ -116,6 +125,32 @@ impl InstanceArgs {
             prepared,
             options,
         })
+    }
+
+    /// The variant `--variant` names: a day of a scenario's days file (picked by `--day`) or a
+    /// variant of a model file (picked by `--variant-id`), with the origin for messages.
+    fn pick_variant(&self, input: &PlanInput, spec: &str) -> anyhow::Result<(Variant, String)> {
+        let model = self.model.display();
+        match input {
+            PlanInput::Scenario(scenario, _) => {
+                if self.variant_id.is_some() {
+                    anyhow::bail!(
+                        "--variant-id picks a variant of a model file; {model} is a scenario, so pick a day of its days file with --day"
+                    );
+                }
+                let path = Path::new(spec);
+                let day = pick_day(scenario, path, self.day.as_deref())?;
+                Ok((day, path.display().to_string()))
+            }
+            PlanInput::Model(_) => {
+                if self.day.is_some() {
+                    anyhow::bail!(
+                        "--day picks a day of a scenario's days file; {model} is a model file, so pick its variant with --variant-id"
+                    );
+                }
+                read_variant(spec, self.variant_id.as_deref())
+            }
+        }
     }
 }
 

@@ -8,6 +8,7 @@ mod batch;
 mod build;
 mod cache;
 mod common;
+mod days;
 mod demo;
 mod explain;
 mod instance;

@@ -275,6 +275,19 @@ fn what(kind: super::ScenarioKind, field: Field) -> &'static str {
     }
 }
 
+/// The day that line `row` of a days file names, read without checking anything else: the
+/// `day` string of a JSON line or, with `csv`, the first cell of a CSV row. An entry of
+/// [`parse_day_lines`] or [`parse_csv`] is numbered by the line its day starts on, so this
+/// names the day of an entry whose reading failed.
+pub fn day_named(row: &str, csv: bool) -> Option<String> {
+    if csv {
+        let day = row.split(',').next()?.trim();
+        return (!day.is_empty()).then(|| day.to_string());
+    }
+    let value: Value = serde_json::from_str(row).ok()?;
+    value.get("day")?.as_str().map(str::to_string)
+}
+
 /// One day gathered from CSV rows: where it first appears and its checked changes.
 struct CsvDay {
     line: usize,
@@ -443,5 +456,22 @@ mod tests {
         for line in careful_only {
             assert!(quick_changes(&s, &names, &r, line).is_none(), "{line}");
         }
+    }
+
+    #[test]
+    fn the_day_of_a_line_is_read_whatever_else_the_line_holds() {
+        let bad_name = r#"{"demand": {"harbor": 3}, "day": "tue"}"#;
+        assert_eq!(day_named(bad_name, false).as_deref(), Some("tue"));
+        assert_eq!(
+            day_named(r#"{"day": "a\"b", "colour": 1}"#, false).as_deref(),
+            Some("a\"b")
+        );
+        assert_eq!(day_named(r#"{"day": 7}"#, false), None);
+        assert_eq!(day_named(r#"{"day": "tue""#, false), None);
+        assert_eq!(
+            day_named(" tue , demand, harbor ,3", true).as_deref(),
+            Some("tue")
+        );
+        assert_eq!(day_named(",demand,harbour,3", true), None);
     }
 }

@@ -34,7 +34,7 @@ use std::path::Path;
 use crate::error::{Error, Result};
 use crate::model::{Model, ModelKind};
 
-pub use days::{parse_csv, parse_day_lines};
+pub use days::{day_named, parse_csv, parse_day_lines};
 pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
 
 /// Which model a scenario compiles into.

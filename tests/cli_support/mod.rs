@@ -1,9 +1,13 @@
 //! Running the `kernstep` binary from the integration tests: paths of the bundled examples,
-//! the command with a private cache directory, and exit-code checks that print both streams.
+//! the command with a private cache directory, exit-code checks that print both streams, and
+//! the answers of scenario days in `batch`'s words.
 #![allow(dead_code)] // each test binary uses its own part of this shared module
 
+use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Output, Stdio};
+
+use serde_json::Value;
 
 /// `examples/` of this repository.
 pub fn examples() -> PathBuf {
@@ -85,4 +89,85 @@ pub fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
     let path = dir.join(format!("transport_{p}x{q}.json"));
     std::fs::write(&path, doc.to_string()).unwrap();
     path
+}
+
+/// A day's answer as `batch` writes it: the status word, the objective of an answered day, the
+/// augmenting steps (none without an integer solution) and the nonzero plan values of an
+/// answered day by name.
+pub type DayAnswer = (String, Option<i128>, Option<u64>, BTreeMap<String, i64>);
+
+/// `batch SCENARIO DAYS --build EXTRA` (exit 0 or 1): every day's answer, by day name.
+pub fn batch_answers(
+    cache: &Path,
+    scenario: &Path,
+    days: &Path,
+    extra: &[&str],
+) -> BTreeMap<String, DayAnswer> {
+    let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
+    let mut args = vec!["batch", s, d, "--build"];
+    args.extend_from_slice(extra);
+    let out = kernstep(cache, &args);
+    assert!(
+        matches!(out.status.code(), Some(0 | 1)),
+        "{args:?}: {}",
+        text(&out.stderr)
+    );
+    text(&out.stdout)
+        .lines()
+        .map(|line| {
+            let r: Value = serde_json::from_str(line).expect("a JSON line");
+            let plan = r["plan"].as_object().map_or_else(BTreeMap::new, |m| {
+                m.iter()
+                    .map(|(k, v)| (k.clone(), v.as_i64().unwrap()))
+                    .collect()
+            });
+            let answer = (
+                r["status"].as_str().unwrap().to_string(),
+                r["objective"].as_i64().map(i128::from),
+                r["steps"].as_u64(),
+                plan,
+            );
+            (r["day"].as_str().unwrap().to_string(), answer)
+        })
+        .collect()
+}
+
+/// The answer of a `solve --json` (`status`) or `trace --json` (`outcome`) document, in the
+/// words `batch` uses for the same outcome.
+pub fn document_answer(doc: &Value) -> DayAnswer {
+    let outcome = if doc["status"].is_null() {
+        &doc["outcome"]
+    } else {
+        &doc["status"]
+    };
+    let word = match outcome["tag"].as_str().unwrap() {
+        "optimal" => "optimal",
+        "optimal_for_moves_up_to" => "optimal_within_norm",
+        "no_integer_solution"
+        | "empty_range"
+        | "no_lattice_point_in_box"
+        | "infeasible_unproven" => "infeasible",
+        "unbounded" => "unbounded",
+        "step_limit" => "step_limit",
+        "cancelled" => "interrupted",
+        other => panic!("unknown status tag {other:?}"),
+    };
+    let steps = match &doc["steps"] {
+        _ if doc["x"].is_null() => None,
+        Value::Array(steps) => Some(steps.len() as u64),
+        counts => Some(counts["feasibility"].as_u64().unwrap() + counts["cost"].as_u64().unwrap()),
+    };
+    if !word.starts_with("optimal") {
+        return (word.to_string(), None, steps, BTreeMap::new());
+    }
+    let objective = doc["objective"].as_str().unwrap().parse().unwrap();
+    let names = doc["variables"].as_array().unwrap();
+    let x = doc["x"].as_array().unwrap();
+    let plan = names
+        .iter()
+        .zip(x)
+        .map(|(n, v)| (n.as_str().unwrap().to_string(), v.as_i64().unwrap()))
+        .filter(|(_, v)| *v != 0)
+        .collect();
+    (word.to_string(), Some(objective), steps, plan)
 }
