@@ -1,7 +1,10 @@
 //! `kernstep demo` through the binary: it runs end to end, its per-day objectives and total
 //! equal the HiGHS 1.16 optima recorded by `scripts/demo_reference.py`
 //! (`tests/fixtures/demo/vell_valley.json`), the second run loads the set from the cache, an
-//! unusable cache falls back to building in memory, and the highlighted day's files exist.
+//! unusable cache falls back to building in memory, and the highlighted day's files exist, its
+//! plot with distinct integer tick labels.
+
+mod cli_support;
 
 use std::path::Path;
 use std::process::{Command, Output};
@@ -58,7 +61,8 @@ fn demo_days_and_total_equal_the_highs_reference() {
     );
     assert_eq!(report["moves"], 795);
     let svg = std::fs::read_to_string(report["trace"]["svg"].as_str().unwrap()).unwrap();
-    assert!(svg.contains("<svg"));
+    // The highlighted day repairs a violation of 1 and then lowers the cost: two panels.
+    assert_eq!(cli_support::check_integer_ticks(&svg), 4, "{svg}");
     let trace: Value = serde_json::from_str(
         &std::fs::read_to_string(report["trace"]["json"].as_str().unwrap()).unwrap(),
     )
