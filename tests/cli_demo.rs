@@ -2,7 +2,7 @@
 //! equal the HiGHS 1.16 optima recorded by `scripts/demo_reference.py`
 //! (`tests/fixtures/demo/vell_valley.json`), the second run loads the set from the cache, an
 //! unusable cache falls back to building in memory, and the highlighted day's files exist, its
-//! plot with distinct integer tick labels.
+//! plot with distinct integer tick labels; the summary carries the caution.
 
 mod cli_support;
 
@@ -120,4 +120,25 @@ fn an_unusable_cache_falls_back_to_building_in_memory() {
     assert!(stderr.contains("warning"), "{stderr}");
     assert!(stdout.contains("day         status"), "{stdout}");
     assert!(stdout.contains("total: 3 days, 3 optimal"), "{stdout}");
+}
+
+#[test]
+fn the_summary_carries_the_caution() {
+    // The wording of README, Caution.
+    let caution = "plans must also respect vehicle limits, working-time rules and local \
+                   regulations, which kernstep does not check";
+    let dir = tempfile::tempdir().unwrap();
+    let cache = dir.path().join("cache");
+    let traces = dir.path().join("traces");
+    let args = ["--days", "1", "--trace-dir", traces.to_str().unwrap()];
+    let out = demo(&cache, &args);
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let lines: Vec<&str> = stdout
+        .lines()
+        .filter(|l| l.starts_with("caution"))
+        .collect();
+    assert_eq!(lines, [format!("caution: {caution}")], "{stdout}");
+    let report = json_report(&demo(&cache, &[&["--json"], &args[..]].concat()));
+    assert_eq!(report["caution"], caution);
 }

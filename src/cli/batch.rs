@@ -24,7 +24,9 @@ use kernstep::solve::{parse_lines, ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
 use serde::Serialize;
 
-use super::common::{graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet};
+use super::common::{
+    graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet, CAUTION,
+};
 use super::table::write_pairs;
 
 /// Arguments of `batch`.
@@ -420,6 +422,7 @@ struct Summary<'a> {
     threads: Option<usize>,
     moves: usize,
     set: String,
+    caution: &'static str,
 }
 
 impl<'a> Summary<'a> {
@@ -433,6 +436,7 @@ impl<'a> Summary<'a> {
                 SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 SetSource::Built => "built for this run".to_string(),
             },
+            caution: CAUTION,
         }
     }
 
@@ -466,6 +470,7 @@ impl<'a> Summary<'a> {
             format!("{} moves, {}", self.moves, self.set),
         ));
         write_pairs(out, &rows)?;
+        writeln!(out, "caution: {}", self.caution)?;
         Ok(())
     }
 }
