@@ -149,7 +149,8 @@ fn padded(low: i128, high: i128) -> Range<i128> {
 
 /// Tick positions for an integer axis showing `low..=high` (`low <= high`): the multiples of
 /// the smallest step of the form 1, 2 or 5 times a power of ten that puts at most `most`
-/// (at least 1) of them in the range, in increasing order. A range of one value gets that value.
+/// (at least 1) of them in the range, in increasing order; `low` alone where that step has no
+/// multiple in the range (a range of one value, or a narrow range and `most` = 1).
 fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
     let most = u128::try_from(most.max(1)).unwrap_or(u128::MAX);
     let mut decade: i128 = 1;
