@@ -9,6 +9,56 @@
 //! algebra, [`analysis`] derives the bounds that limit a completion, [`completion`] builds the
 //! sets; the workspace crates `augment` (the augmentation loop) and `cache` (the on-disk store)
 //! know nothing of this crate. The library never prints.
+//!
+//! # Example
+//!
+//! The lane plan of `examples/lane_plan.toml`: two depots ship to two zones, `x = (Brackwater
+//! to North, Brackwater to East, Fennick to North, Fennick to East)`, Brackwater ships 7,
+//! North needs 5, East needs 6, the lanes cost 4, 6, 5 and 3 per pallet, and the lanes to
+//! North carry at most 5 (from Brackwater) and 4 (from Fennick). The test set is built for the
+//! matrix once, prepared, and the plan solved:
+//!
+//! ```
+//! use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
+//! use kernstep::completion::Control;
+//! use kernstep::model::{Model, ModelKind};
+//! use kernstep::solve::{coverage_of, Prepared, Verdict};
+//! use kernstep::testset::{build, BuildOutcome, BuildSpec};
+//!
+//! let text = r#"
+//!     matrix = [[1, 1, 0, 0], [1, 0, 1, 0], [0, 1, 0, 1]]
+//!     rhs = [7, 5, 6]
+//!     cost = [4, 6, 5, 3]
+//!     lower = [0, 0, 0, 0]
+//!     upper = [5, "inf", 4, "inf"]
+//! "#;
+//! let model = Model::from_str(text, ModelKind::Toml, "lane_plan.toml")?;
+//!
+//! // The test set: the Graver basis of the matrix (its default build request).
+//! let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+//! let spec = BuildSpec::default().resolve(&model, &analysis)?;
+//! let outcome = build(&model.matrix, &analysis, &spec, &Control::new(), None)?;
+//! let BuildOutcome::Built(built) = outcome else {
+//!     unreachable!("a build without limits finishes");
+//! };
+//! // The kernel is spanned by one primitive vector, so the basis is that move and its negation.
+//! assert_eq!(built.set.elements, [[1, -1, -1, 1]]);
+//!
+//! // Prepared once per matrix; then any variant of the numbers is solved with it.
+//! let coverage = coverage_of(&built.metadata.completeness);
+//! let prepared = Prepared::new(&model.matrix, &built.set, coverage)?;
+//! let options = augment::Options::default();
+//! let Verdict::Solved(plan) = prepared.solve(&model, &options, None, &|| false)? else {
+//!     unreachable!("the rows have integer solutions");
+//! };
+//!
+//! // By hand: with x_1 = t the rows give x = (t, 7 - t, 5 - t, t - 1), feasible for
+//! // 1 <= t <= 5, at cost 64 - 4t; the optimum is t = 5: 4*5 + 6*2 + 5*0 + 3*4 = 44.
+//! assert_eq!(plan.status, augment::Status::Optimal);
+//! assert_eq!(plan.x, [5, 2, 0, 4]);
+//! assert_eq!(plan.objective, Some(44));
+//! # Ok::<(), kernstep::Error>(())
+//! ```
 #![deny(missing_docs)]
 
 pub mod analysis;

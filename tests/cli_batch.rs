@@ -1,7 +1,8 @@
 //! `kernstep batch` through the binary: results equal one-by-one `Prepared::solve` runs (cold,
 //! and warm-started from the day before with `--chain`) for 1 and 2 threads; optima equal the
 //! HiGHS 1.16 optima recorded by `scripts/demo_reference.py` in `tests/fixtures/demo/`; a bad
-//! line is reported with its number while the other days solve; exit codes; CSV; model files.
+//! line is reported with its number while the other days solve; exit codes; CSV; model files;
+//! the summary's caution goes wherever the summary goes.
 
 use std::collections::BTreeMap;
 use std::path::Path;
@@ -358,6 +359,48 @@ fn model_files_take_numeric_variants() {
     ];
     let (_, stderr) = expect(dir.path(), &args, 2);
     assert!(stderr.contains("CSV days name scenario fields"), "{stderr}");
+}
+
+/// The caution line of the human summary (README, Caution).
+const CAUTION: &str = "caution: plans must also respect vehicle limits, working-time rules and \
+                       local regulations, which kernstep does not check";
+
+#[test]
+fn the_summary_carries_the_caution_to_stderr_or_stdout() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/lane_plan.toml");
+    let days = dir.path().join("v.jsonl");
+    std::fs::write(&days, "{\"id\": \"base\"}\n").unwrap();
+    let (m, d) = (model.to_str().unwrap(), days.to_str().unwrap());
+    let cautions = |text: &str| text.lines().filter(|l| l.starts_with("caution")).count();
+    // Results on stdout: the summary, and its caution, on stderr.
+    let (stdout, stderr) = expect(dir.path(), &["batch", m, d, "--build"], 0);
+    assert_eq!(cautions(&stdout), 0, "{stdout}");
+    assert_eq!(
+        stderr.lines().filter(|l| *l == CAUTION).count(),
+        1,
+        "{stderr}"
+    );
+    assert_eq!(cautions(&stderr), 1, "{stderr}");
+    // Results in a file: the summary on stdout.
+    let out = dir.path().join("out.jsonl");
+    let o = out.to_str().unwrap();
+    let (stdout, stderr) = expect(dir.path(), &["batch", m, d, "--out", o], 0);
+    assert_eq!(
+        stdout.lines().filter(|l| *l == CAUTION).count(),
+        1,
+        "{stdout}"
+    );
+    assert_eq!(cautions(&stderr), 0, "{stderr}");
+    // JSON summaries carry it as a field, on stdout or stderr alike.
+    let field = |json: &str| {
+        let summary: Value = serde_json::from_str(json).unwrap();
+        summary["caution"].as_str().map(|c| format!("caution: {c}"))
+    };
+    let (stdout, _) = expect(dir.path(), &["batch", m, d, "--out", o, "--json"], 0);
+    assert_eq!(field(&stdout).as_deref(), Some(CAUTION), "{stdout}");
+    let (_, stderr) = expect(dir.path(), &["batch", m, d, "--json"], 0);
+    assert_eq!(field(&stderr).as_deref(), Some(CAUTION), "{stderr}");
 }
 
 #[test]

@@ -1,7 +1,10 @@
 //! `kernstep demo` through the binary: it runs end to end, its per-day objectives and total
 //! equal the HiGHS 1.16 optima recorded by `scripts/demo_reference.py`
 //! (`tests/fixtures/demo/vell_valley.json`), the second run loads the set from the cache, an
-//! unusable cache falls back to building in memory, and the highlighted day's files exist.
+//! unusable cache falls back to building in memory, and the highlighted day's files exist, its
+//! plot with distinct integer tick labels; the summary carries the caution.
+
+mod cli_support;
 
 use std::path::Path;
 use std::process::{Command, Output};
@@ -58,7 +61,8 @@ fn demo_days_and_total_equal_the_highs_reference() {
     );
     assert_eq!(report["moves"], 795);
     let svg = std::fs::read_to_string(report["trace"]["svg"].as_str().unwrap()).unwrap();
-    assert!(svg.contains("<svg"));
+    // The highlighted day repairs a violation of 1 and then lowers the cost: two panels.
+    assert_eq!(cli_support::check_integer_ticks(&svg), 4, "{svg}");
     let trace: Value = serde_json::from_str(
         &std::fs::read_to_string(report["trace"]["json"].as_str().unwrap()).unwrap(),
     )
@@ -116,4 +120,25 @@ fn an_unusable_cache_falls_back_to_building_in_memory() {
     assert!(stderr.contains("warning"), "{stderr}");
     assert!(stdout.contains("day         status"), "{stdout}");
     assert!(stdout.contains("total: 3 days, 3 optimal"), "{stdout}");
+}
+
+#[test]
+fn the_summary_carries_the_caution() {
+    // The wording of README, Caution.
+    let caution = "plans must also respect vehicle limits, working-time rules and local \
+                   regulations, which kernstep does not check";
+    let dir = tempfile::tempdir().unwrap();
+    let cache = dir.path().join("cache");
+    let traces = dir.path().join("traces");
+    let args = ["--days", "1", "--trace-dir", traces.to_str().unwrap()];
+    let out = demo(&cache, &args);
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let lines: Vec<&str> = stdout
+        .lines()
+        .filter(|l| l.starts_with("caution"))
+        .collect();
+    assert_eq!(lines, [format!("caution: {caution}")], "{stdout}");
+    let report = json_report(&demo(&cache, &[&["--json"], &args[..]].concat()));
+    assert_eq!(report["caution"], caution);
 }

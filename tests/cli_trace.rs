@@ -1,8 +1,9 @@
 //! `kernstep trace` through the binary, checked from its JSON alone: replaying the steps from
 //! the start point gives the final plan, every recorded value is recomputed from the points,
 //! phase-II points are feasible, and the certificate is re-checked against the move set that
-//! `kernstep build --out` writes. Also the SVG (parsed as XML), the 100-column limit, and
-//! scenario days traced under the scenario's variable names.
+//! `kernstep build --out` writes. Also the SVG (parsed as XML, with distinct integer tick
+//! labels), the 100-column limit, and scenario days traced under the scenario's variable
+//! names.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -311,6 +312,7 @@ fn svg_is_xml_with_one_point_per_step() {
     let steps = doc["steps"].as_array().unwrap().len();
     assert!(steps > 0);
     assert_eq!(circles, steps);
+    assert!(cli_support::check_integer_ticks(&content) >= 2, "{content}");
     let left: Vec<_> = std::fs::read_dir(dir.path())
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())

@@ -1,13 +1,19 @@
 //! Test sets through the cache: same-kernel matrices share one entry, cached equals fresh,
-//! truncations and signs make other entries.
+//! truncations and signs make other entries, and a checkpoint is resumed only by a build of
+//! the request it was saved for.
+
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Mutex;
 
 use cache::{Completeness, SetKind};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::{Control, Sign};
+use kernstep::completion::{
+    complete_kernel, Checkpoint, Control, Progress, Request, Sign, StopReason,
+};
 use kernstep::model::{Model, ModelKind};
 use kernstep::testset::{
-    default_graver_keys, entry_key, from_data, BoxPolicy, BuildSpec, NormLimit, Obtained,
-    SetLibrary,
+    build, default_graver_keys, entry_key, from_data, BoxPolicy, BuildOutcome, BuildSpec,
+    NormLimit, Obtained, ResolvedSpec, SetLibrary,
 };
 use kernstep::IntMatrix;
 
@@ -153,4 +159,112 @@ fn the_lookup_key_without_analysis_equals_the_resolved_default_key() {
             }
         }
     }
+}
+
+/// Builds `spec` through `lib` and cancels it once it reaches stage `stage`, so that the
+/// checkpoint of the stage before is left in the cache.
+fn stopped_at(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec, stage: usize) {
+    let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+    let cancel = AtomicBool::new(false);
+    let report = |p: &Progress| {
+        if p.stage >= stage {
+            cancel.store(true, Ordering::Relaxed);
+        }
+    };
+    let control = Control::new().cancel_flag(&cancel).progress(&report);
+    let outcome = lib
+        .obtain(&m.matrix, &analysis, spec, &control, false)
+        .unwrap();
+    assert!(
+        matches!(outcome, Obtained::Stopped(StopReason::Cancelled)),
+        "{outcome:?}"
+    );
+}
+
+/// `lib.obtain` of `spec` when nothing is stored: the set and after how many components it
+/// resumed.
+fn built(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec) -> (Vec<Vec<i64>>, Option<usize>) {
+    let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+    match lib
+        .obtain(&m.matrix, &analysis, spec, &Control::new(), false)
+        .unwrap()
+    {
+        Obtained::Built {
+            built,
+            resumed_after,
+            ..
+        } => (built.set.elements, resumed_after),
+        other => panic!("{other:?}"),
+    }
+}
+
+/// The set of `spec` built without any cache or checkpoint.
+fn fresh(m: &Model, spec: &ResolvedSpec) -> Vec<Vec<i64>> {
+    let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+    match build(&m.matrix, &analysis, spec, &Control::new(), None).unwrap() {
+        BuildOutcome::Built(b) => b.set.elements,
+        BuildOutcome::Stopped(r) => panic!("stopped: {r:?}"),
+    }
+}
+
+#[test]
+fn a_checkpoint_resumes_only_a_build_of_its_own_request() {
+    let dir = tempfile::tempdir().unwrap();
+    let lib = SetLibrary::open(Some(dir.path())).unwrap();
+    let m = model(&transport(), 5);
+    let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
+    let resolve = |norm_limit| {
+        let spec = BuildSpec {
+            norm_limit,
+            ..BuildSpec::default()
+        };
+        spec.resolve(&m, &analysis).unwrap()
+    };
+    // `none` and `auto` give the same entry (the proven bound truncates nothing) but run the
+    // completion with different norm limits, so they share one checkpoint file.
+    let (unlimited, auto) = (resolve(NormLimit::Unlimited), resolve(NormLimit::Auto));
+    let key = entry_key(&m.matrix, &auto);
+    assert_eq!(entry_key(&m.matrix, &unlimited), key);
+    assert_ne!(unlimited.truncation, auto.truncation);
+    let checkpoint = lib.store().checkpoint_path(key.digest());
+    let remove_entry = || lib.store().remove(&key.digest().to_hex()).unwrap();
+
+    stopped_at(&lib, &m, &unlimited, 3);
+    let saved = std::fs::read(&checkpoint).expect("a checkpoint of the stopped build");
+    // Another request of the same key starts fresh.
+    let (set, resumed) = built(&lib, &m, &auto);
+    assert_eq!(resumed, None);
+    assert_eq!(set, fresh(&m, &auto));
+    assert!(!checkpoint.exists());
+
+    // The request the checkpoint was saved for resumes from it.
+    remove_entry();
+    std::fs::write(&checkpoint, &saved).unwrap();
+    let (set, resumed) = built(&lib, &m, &unlimited);
+    assert!(resumed.is_some_and(|k| k > 0), "{resumed:?}");
+    assert_eq!(set, fresh(&m, &unlimited));
+
+    // A checkpoint of the older layout (the bare state, no request) is ignored, not an error,
+    // even though it holds a sound state of this very request.
+    let states = Mutex::new(Vec::new());
+    let keep = |c: &Checkpoint| states.lock().unwrap().push(c.clone());
+    let request = Request {
+        signs: unlimited.signs.clone(),
+        truncation: unlimited.truncation.clone(),
+        method: unlimited.method,
+    };
+    complete_kernel(
+        &m.matrix,
+        &request,
+        &Control::new().on_stage_done(&keep),
+        None,
+    )
+    .unwrap();
+    let state = states.into_inner().unwrap().pop().unwrap();
+    let bare = bincode::serde::encode_to_vec(&state, bincode::config::standard()).unwrap();
+    remove_entry();
+    lib.store().save_checkpoint(&key, &bare).unwrap();
+    let (set, resumed) = built(&lib, &m, &unlimited);
+    assert_eq!(resumed, None);
+    assert_eq!(set, fresh(&m, &unlimited));
 }

@@ -22,7 +22,9 @@ use kernstep::solve::{ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
 use serde::Serialize;
 
-use super::common::{graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet};
+use super::common::{
+    graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet, CAUTION,
+};
 use super::days::read_days;
 use super::table::write_pairs;
 
@@ -400,6 +402,7 @@ struct Summary<'a> {
     threads: Option<usize>,
     moves: usize,
     set: String,
+    caution: &'static str,
 }
 
 impl<'a> Summary<'a> {
@@ -413,6 +416,7 @@ impl<'a> Summary<'a> {
                 SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 SetSource::Built => "built for this run".to_string(),
             },
+            caution: CAUTION,
         }
     }
 
@@ -446,6 +450,7 @@ impl<'a> Summary<'a> {
             format!("{} moves, {}", self.moves, self.set),
         ));
         write_pairs(out, &rows)?;
+        writeln!(out, "caution: {}", self.caution)?;
         Ok(())
     }
 }

@@ -22,6 +22,7 @@ use serde::Serialize;
 use super::common::{
     interrupted, model_paths, render_chain, with_threads, write_atomically, CacheArgs,
 };
+use super::setfile::set_document;
 use super::table::write_table;
 
 /// Arguments of `build`.
@@ -345,24 +346,9 @@ fn progress_bar(path: &Path) -> ProgressBar {
     bar
 }
 
-/// The `--out` document.
-#[derive(Serialize)]
-struct SetFile<'a> {
-    format: &'static str,
-    version: u32,
-    key: &'a cache::EntryKey,
-    metadata: &'a cache::SetMetadata,
-    elements: &'a [Vec<i64>],
-}
-
-/// Writes the set as JSON next to `path`, then renames it into place (never half-written).
+/// Writes the set's document (see [`set_document`]) next to `path`, then renames it into
+/// place (never half-written).
 fn write_set_file(path: &Path, built: &BuiltSet) -> anyhow::Result<()> {
-    let doc = SetFile {
-        format: "kernstep move set",
-        version: 1,
-        key: &built.key,
-        metadata: &built.metadata,
-        elements: &built.set.elements,
-    };
-    write_atomically(path, serde_json::to_string(&doc)?.as_bytes())
+    let doc = set_document(&built.key, &built.metadata, &built.set.elements)?;
+    write_atomically(path, doc.as_bytes())
 }

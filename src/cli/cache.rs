@@ -15,6 +15,7 @@ use clap::{Args, Subcommand, ValueEnum};
 use serde::Serialize;
 
 use super::common::CacheArgs;
+use super::setfile::set_document;
 use super::table::{write_pairs, write_table};
 
 /// Hex digits of a digest shown in tables (any unique prefix is accepted back as `KEY`).
@@ -63,7 +64,7 @@ pub enum Action {
         #[arg(long, value_name = "AGE", default_value = "30d", value_parser = parse_age)]
         older_than: Duration,
     },
-    /// Print one stored set (key, metadata, elements).
+    /// Print one stored set as the JSON document `build --out` writes (key, metadata, elements).
     Export {
         /// Key digest or a unique prefix of one.
         key: String,
@@ -76,7 +77,7 @@ pub enum Action {
 /// `cache export --format`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ExportFormat {
-    /// One JSON document, the same shape as `build --out` writes.
+    /// One JSON document, the one `build --out` writes.
     Json,
 }
 
@@ -432,20 +433,6 @@ fn prune(
     Ok(ExitCode::SUCCESS)
 }
 
-/// The export document: the fields of `build --out` (format, version, key, metadata,
-/// elements) plus the digest and on-disk encoding.
-#[derive(Serialize)]
-struct Exported<'a> {
-    format: &'static str,
-    version: u32,
-    digest: Digest,
-    key: &'a EntryKey,
-    metadata: &'a SetMetadata,
-    encoding: ::cache::ElementEncoding,
-    width: usize,
-    elements: &'a [Vec<i64>],
-}
-
 fn export(
     store: &Store,
     key: &str,
@@ -455,18 +442,7 @@ fn export(
     let entry = store.export(key)?;
     match format {
         ExportFormat::Json => {
-            let doc = Exported {
-                format: "kernstep move set",
-                version: 1,
-                digest: entry.digest,
-                key: &entry.key,
-                metadata: &entry.metadata,
-                encoding: entry.encoding,
-                width: entry.width,
-                elements: &entry.elements,
-            };
-            serde_json::to_writer(&mut *out, &doc)?;
-            writeln!(out)?;
+            out.write_all(set_document(&entry.key, &entry.metadata, &entry.elements)?.as_bytes())?;
         }
     }
     Ok(ExitCode::SUCCESS)

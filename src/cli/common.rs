@@ -1,5 +1,5 @@
 //! Pieces shared by the verbs: the cache directory flag, Ctrl-C, thread pools, model lists,
-//! and the Graver set a solve needs.
+//! the Graver set a solve needs, and the caution that goes with every summary of plans.
 
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -16,6 +16,11 @@ use kernstep::solve::{coverage_of, Prepared};
 use kernstep::testset::{
     default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
+
+/// What the plans leave out: one line of the `demo` and `batch` summaries (after `caution: `),
+/// and their `caution` field in JSON.
+pub const CAUTION: &str = "plans must also respect vehicle limits, working-time rules and local \
+                           regulations, which kernstep does not check";
 
 /// The cache directory option of every verb that reads or writes test sets.
 #[derive(Debug, Clone, Args)]

@@ -18,7 +18,7 @@ use kernstep::testset::{build, BuildOutcome, BuildSpec};
 use serde::Serialize;
 
 use super::batch::{answer, solve_days, steps, DayStatus, Tally};
-use super::common::{interrupted, write_atomically, CacheArgs, SetSource, SolverSet};
+use super::common::{interrupted, write_atomically, CacheArgs, SetSource, SolverSet, CAUTION};
 use super::plot::write_step_plot;
 use super::table::write_table;
 
@@ -85,6 +85,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         trace: trace_files
             .as_ref()
             .map(|(json, svg)| TraceFiles { json, svg }),
+        caution: CAUTION,
     };
     if args.json {
         writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
@@ -234,6 +235,7 @@ struct Report<'a> {
     days: Vec<DayRow>,
     tally: &'a Tally,
     trace: Option<TraceFiles<'a>>,
+    caution: &'static str,
 }
 
 impl Report<'_> {
@@ -271,6 +273,7 @@ impl Report<'_> {
             t.total_objective,
             t.solve_seconds * 1000.0
         )?;
+        writeln!(out, "caution: {}", self.caution)?;
         if let Some(files) = &self.trace {
             writeln!(out, "steps of the longest day: {}", files.svg.display())?;
             writeln!(out, "replayable trace: {}", files.json.display())?;

@@ -13,6 +13,7 @@ mod demo;
 mod explain;
 mod instance;
 mod plot;
+mod setfile;
 mod solve;
 mod table;
 mod trace;

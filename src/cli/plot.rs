@@ -1,5 +1,6 @@
 //! SVG plots of a solve's progress: the violation per step in phase I and the cost per step in
-//! phase II, each in its own panel, one marked point per augmenting step.
+//! phase II, each in its own panel, one marked point per augmenting step. Both axes hold
+//! integers, so their ticks are integers chosen here (distinct, at most a handful per axis).
 
 use std::ops::Range;
 use std::path::Path;
@@ -12,12 +13,18 @@ use super::common::write_atomically;
 /// Size of the picture in pixels.
 const SIZE: (u32, u32) = (900, 560);
 
+/// At most this many ticks on the step axis.
+const STEP_TICKS: usize = 10;
+
+/// At most this many ticks on a value axis (a panel is half the picture's height).
+const VALUE_TICKS: usize = 8;
+
 /// One panel's data: the value before the phase's first step, then one point per step.
 struct Series {
     label: &'static str,
     colour: RGBColor,
-    start: (i64, f64),
-    points: Vec<(i64, f64)>,
+    start: (i64, i128),
+    points: Vec<(i64, i128)>,
 }
 
 /// Draws the steps of a trace as an SVG and writes it to `path` atomically (a temporary file
@@ -67,11 +74,11 @@ fn series(steps: &[StepRecord], phase: StepPhase) -> Option<Series> {
     Some(Series {
         label,
         colour,
-        start: (step_number(first), steps[first].before.0 as f64),
+        start: (step_number(first), steps[first].before.0),
         points: steps
             .iter()
             .filter(|s| s.phase == phase)
-            .map(|s| (step_number(s.step), s.after.0 as f64))
+            .map(|s| (step_number(s.step), s.after.0))
             .collect(),
     })
 }
@@ -84,17 +91,26 @@ fn draw_panel<DB: DrawingBackend>(
 where
     DB::ErrorType: 'static,
 {
+    let (low, high) = value_extent(panel);
+    let step_ticks = integer_ticks(0, i128::from(steps), STEP_TICKS)
+        .into_iter()
+        .filter_map(|t| i64::try_from(t).ok())
+        .collect();
     let mut chart = ChartBuilder::on(area)
         .margin(12)
         .x_label_area_size(36)
         .y_label_area_size(80)
-        .build_cartesian_2d(0..steps, value_range(panel))
+        .build_cartesian_2d(
+            (0..steps).with_key_points(step_ticks),
+            padded(low, high).with_key_points(integer_ticks(low, high, VALUE_TICKS)),
+        )
         .map_err(draw_error)?;
     chart
         .configure_mesh()
         .x_desc("step")
         .y_desc(panel.label)
-        .y_label_formatter(&|v| format!("{v:.0}"))
+        .x_label_formatter(&|v| v.to_string())
+        .y_label_formatter(&|v| v.to_string())
         .draw()
         .map_err(draw_error)?;
     let line = std::iter::once(panel.start).chain(panel.points.iter().copied());
@@ -117,18 +133,106 @@ fn step_number(step: usize) -> i64 {
     i64::try_from(step).unwrap_or(i64::MAX)
 }
 
-/// The values' range, widened a little so that no point sits on the frame.
-fn value_range(panel: &Series) -> Range<f64> {
+/// The smallest and the largest value of a panel.
+fn value_extent(panel: &Series) -> (i128, i128) {
     let values = std::iter::once(panel.start.1).chain(panel.points.iter().map(|p| p.1));
-    let (low, high) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
-        (l.min(v), h.max(v))
-    });
-    let pad = ((high - low) * 0.08).max(1.0);
-    (low - pad)..(high + pad)
+    values.fold((i128::MAX, i128::MIN), |(l, h), v| (l.min(v), h.max(v)))
+}
+
+/// `low..high` widened by about 8% of its length on each side (at least 1), so that no point
+/// sits on the frame.
+fn padded(low: i128, high: i128) -> Range<i128> {
+    let pad = (high.abs_diff(low) / 12).max(1);
+    let pad = i128::try_from(pad).unwrap_or(i128::MAX);
+    low.saturating_sub(pad)..high.saturating_add(pad)
+}
+
+/// Tick positions for an integer axis showing `low..=high` (`low <= high`): the multiples of
+/// the smallest step of the form 1, 2 or 5 times a power of ten that puts at most `most`
+/// (at least 1) of them in the range, in increasing order; `low` alone where that step has no
+/// multiple in the range (a range of one value, or a narrow range and `most` = 1).
+fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
+    let most = u128::try_from(most.max(1)).unwrap_or(u128::MAX);
+    let mut decade: i128 = 1;
+    loop {
+        for factor in [1, 2, 5] {
+            let Some(step) = decade.checked_mul(factor) else {
+                return vec![low];
+            };
+            let first = low.div_euclid(step) + i128::from(low.rem_euclid(step) != 0);
+            let last = high.div_euclid(step);
+            if first > last {
+                return vec![low];
+            }
+            if last.abs_diff(first) < most {
+                return (first..=last).map(|k| k * step).collect();
+            }
+        }
+        match decade.checked_mul(10) {
+            Some(next) => decade = next,
+            None => return vec![low],
+        }
+    }
 }
 
 fn draw_error<E: std::error::Error + Send + Sync + 'static>(
     e: DrawingAreaErrorKind<E>,
 ) -> anyhow::Error {
     anyhow::anyhow!("drawing the plot: {e}")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Checks the rules every tick list must keep and returns the list.
+    fn checked(low: i128, high: i128, most: usize) -> Vec<i128> {
+        let ticks = integer_ticks(low, high, most);
+        assert!(!ticks.is_empty(), "{low}..={high}: no ticks");
+        assert!(ticks.len() <= most, "{low}..={high}: {ticks:?}");
+        assert!(ticks.windows(2).all(|w| w[0] < w[1]), "{ticks:?}");
+        assert!(ticks.iter().all(|t| (low..=high).contains(t)), "{ticks:?}");
+        ticks
+    }
+
+    #[test]
+    fn small_ranges_get_every_integer() {
+        assert_eq!(checked(0, 0, 8), vec![0]);
+        assert_eq!(checked(-3, -3, 8), vec![-3]);
+        assert_eq!(checked(0, 1, 8), vec![0, 1]);
+        assert_eq!(checked(-1, 0, 8), vec![-1, 0]);
+        assert_eq!(checked(3, 7, 8), vec![3, 4, 5, 6, 7]);
+        assert_eq!(checked(0, 7, 8), (0..=7).collect::<Vec<_>>());
+    }
+
+    #[test]
+    fn wider_ranges_step_by_one_two_or_five_times_a_power_of_ten() {
+        assert_eq!(checked(0, 8, 8), vec![0, 2, 4, 6, 8]);
+        assert_eq!(checked(0, 10, 10), vec![0, 2, 4, 6, 8, 10]);
+        assert_eq!(checked(-7, 12, 8), vec![-5, 0, 5, 10]);
+        assert_eq!(checked(44, 138, 8), vec![60, 80, 100, 120]);
+        assert_eq!(checked(1, 9, 1), vec![5]);
+        assert_eq!(
+            checked(1_234_567, 9_876_543, 8),
+            (2..=9).map(|k| k * 1_000_000).collect::<Vec<_>>()
+        );
+    }
+
+    #[test]
+    fn huge_ranges_keep_few_ticks() {
+        let ticks = checked(i128::MIN, i128::MAX, 8);
+        assert!(ticks.len() >= 2, "{ticks:?}");
+        assert!(ticks.contains(&0));
+        let ticks = checked(i128::MAX - 3, i128::MAX, 8);
+        assert_eq!(ticks.len(), 4);
+        let ticks = checked(-(10_i128.pow(30)), 10_i128.pow(30), 8);
+        assert_eq!(ticks.len(), 5, "{ticks:?}");
+    }
+
+    #[test]
+    fn padding_widens_both_sides_and_saturates() {
+        assert_eq!(padded(0, 0), -1..1);
+        assert_eq!(padded(0, 120), -10..130);
+        assert_eq!(padded(i128::MIN, i128::MAX), i128::MIN..i128::MAX);
+    }
 }

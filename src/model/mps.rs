@@ -16,8 +16,8 @@
 //!   the objective row (an objective constant) is refused.
 //! - Every column must be integer: declared between integer markers, or bounded `BV`, `LI` or
 //!   `UI`. A continuous column is refused, naming it: kernstep handles pure integer models.
-//! - Bounds follow the IBM ILOG CPLEX "MPS file format" notes: an integer variable without
-//!   bounds lies in `[0, +inf)` (some older readers make marker-declared integers binary
+//! - Bounds follow the common MPS convention, as most MPS readers do: an integer variable
+//!   without bounds lies in `[0, +inf)` (some older readers make marker-declared integers binary
 //!   instead; kernstep does not), `UP`/`LO`/`FX`/`LI`/`UI` set values, `MI`/`PL`/`FR` remove
 //!   sides, `BV` is `[0, 1]`. Values of magnitude `1e20` or more and the words `inf` and
 //!   `infinity` are infinite (the default infinity of the HiGHS reader). Fractional bounds are

@@ -2,10 +2,10 @@
 
 use std::path::Path;
 
-use bincode::config;
 use cache::{BuildGuard, CheckpointState, EntryKey, Store, StoredSet};
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
+use super::saved::{self, RequestRecord};
 use super::spec::ResolvedSpec;
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{Checkpoint, Control, Method, StopReason};
@@ -85,10 +85,11 @@ impl SetLibrary {
             }
         };
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        let resume = self.checkpoint(&key, spec)?;
+        let request = RequestRecord::of(&key, spec);
+        let resume = self.checkpoint(&key, &request, spec)?;
         let save_failed = std::sync::Mutex::new(None);
         let save = |state: &Checkpoint| {
-            if let Err(e) = self.save_checkpoint(&key, state) {
+            if let Err(e) = self.save_checkpoint(&key, &request, state) {
                 save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
             }
         };
@@ -111,25 +112,33 @@ impl SetLibrary {
         }
     }
 
-    /// The saved state of an interrupted build of `key`, if one is usable. A damaged
-    /// checkpoint is ignored (the build starts over) rather than trusted.
-    fn checkpoint(&self, key: &EntryKey, spec: &ResolvedSpec) -> Result<Option<Checkpoint>> {
+    /// The saved state of an interrupted build of `key`, if one was saved for exactly
+    /// `request`. A damaged checkpoint, one of an older layout and one saved for another
+    /// request of the same key are ignored (the build starts over, and its first stage
+    /// overwrites the file) rather than trusted.
+    fn checkpoint(
+        &self,
+        key: &EntryKey,
+        request: &RequestRecord,
+        spec: &ResolvedSpec,
+    ) -> Result<Option<Checkpoint>> {
         if spec.method != Method::ProjectAndLift {
             return Ok(None);
         }
         let CheckpointState::Present(bytes) = self.store.load_checkpoint(key)? else {
             return Ok(None);
         };
-        let decoded =
-            bincode::serde::decode_from_slice::<Checkpoint, _>(&bytes, config::standard());
-        Ok(decoded.ok().map(|(c, _)| c))
+        Ok(saved::decode(&bytes, request))
     }
 
-    fn save_checkpoint(&self, key: &EntryKey, state: &Checkpoint) -> Result<()> {
-        // Encoding plain integers and vectors into memory cannot fail.
-        let bytes = bincode::serde::encode_to_vec(state, config::standard())
-            .expect("a checkpoint of integers and vectors encodes");
-        self.store.save_checkpoint(key, &bytes)?;
+    fn save_checkpoint(
+        &self,
+        key: &EntryKey,
+        request: &RequestRecord,
+        state: &Checkpoint,
+    ) -> Result<()> {
+        self.store
+            .save_checkpoint(key, &saved::encode(request, state))?;
         Ok(())
     }
 }

@@ -1,8 +1,10 @@
 //! Test sets as users handle them: a request resolved against a model, built by the
-//! completion, stored in and reused from the cache.
+//! completion, stored in and reused from the cache, resumed from a checkpoint saved for the
+//! same request.
 
 mod build;
 mod library;
+mod saved;
 mod spec;
 
 pub use build::{

@@ -171,3 +171,47 @@ pub fn document_answer(doc: &Value) -> DayAnswer {
         .collect();
     (word.to_string(), Some(objective), steps, plan)
 }
+
+/// The tick labels of a step plot (`trace --svg`, `demo`), one list per axis in drawing
+/// order: for each panel, its value axis (right-aligned labels) and then its step axis. A
+/// panel starts at its rotated axis title; the picture's title and the `step` axis title are
+/// not ticks.
+pub fn plot_tick_labels(svg: &str) -> Vec<Vec<String>> {
+    let tree = roxmltree::Document::parse(svg).expect("the plot is XML");
+    let mut axes: Vec<Vec<String>> = Vec::new();
+    for node in tree.descendants().filter(|n| n.tag_name().name() == "text") {
+        let label = node.text().unwrap_or("").trim().to_owned();
+        if node.attribute("transform").is_some() {
+            axes.push(Vec::new());
+            axes.push(Vec::new());
+            continue;
+        }
+        let Some(panel) = axes.len().checked_sub(2) else {
+            continue;
+        };
+        match node.attribute("text-anchor") {
+            Some("end") => axes[panel].push(label),
+            Some("middle") if label != "step" => axes[panel + 1].push(label),
+            _ => {}
+        }
+    }
+    axes
+}
+
+/// Requires every axis of a step plot to carry at least one tick label, all of them distinct
+/// integers written without a fraction or a "-0"; returns how many axes there are.
+pub fn check_integer_ticks(svg: &str) -> usize {
+    let axes = plot_tick_labels(svg);
+    for labels in &axes {
+        assert!(!labels.is_empty(), "an axis without ticks: {axes:?}");
+        for label in labels {
+            assert!(label.parse::<i128>().is_ok(), "tick {label:?}: {axes:?}");
+            assert!(!label.starts_with("-0"), "tick {label:?}: {axes:?}");
+        }
+        let mut distinct = labels.clone();
+        distinct.sort();
+        distinct.dedup();
+        assert_eq!(distinct.len(), labels.len(), "duplicate ticks: {axes:?}");
+    }
+    axes.len()
+}

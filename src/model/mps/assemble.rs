@@ -166,7 +166,7 @@ fn scale_row(
 
 /// The slack of row `i` (scaled by `10^scale`), if it is an inequality or has a range.
 ///
-/// Ranges follow the usual MPS meaning (IBM ILOG CPLEX "MPS file format" notes): with range
+/// Ranges follow the usual MPS meaning, as most MPS readers take it: with range
 /// `R`, an `L` row holds `b - |R| <= a.x <= b`, a `G` row `b <= a.x <= b + |R|`, and an `E` row
 /// `b <= a.x <= b + R` for `R > 0`, `b + R <= a.x <= b` for `R < 0`.
 fn slack(raw: &Raw, i: usize, scale: u32, origin: Origin<'_>) -> Result<Option<Slack>> {
