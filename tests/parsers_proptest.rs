@@ -496,6 +496,7 @@ proptest! {
             matrix: IntMatrix::from_rows(&[vec![a, 1]]).unwrap(),
             rhs: vec![b],
             cost: vec![c1, c2],
+            convex: Default::default(),
             lower: vec![Some(box_low), Some(0)],
             upper: vec![Some(upper_x1), Some(limit)],
             variable_names: vec!["x1".into(), "x2".into()],

@@ -1,6 +1,7 @@
 //! Outcomes and their certificates in words, for the human output of `solve` and `trace`.
 
 use kernstep::model::Model;
+use kernstep::solve::Numbers;
 use kernstep::trace::{named_entries, Claim, Outcome, Recheck};
 
 /// The signed nonzero entries of `vector` by name: `+2 brackwater_north, -2 fennick_north`.
@@ -76,7 +77,7 @@ pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Mo
             "certified: the ray {} has A d = 0, changes only variables without a bound in its \
              direction and lowers the cost by {} per unit step",
             terms(direction, &model.variable_names).join(", "),
-            slope(direction, &model.cost)
+            descent(direction, model)
                 .map_or("an unrepresentable amount".into(), |s| (-s).to_string())
         ),
         Outcome::StepLimit | Outcome::Cancelled => {
@@ -143,10 +144,10 @@ pub fn count_moves(n: usize) -> String {
 }
 
 /// `c.d`, or `None` on overflow.
-fn slope(d: &[i64], c: &[i64]) -> Option<i128> {
-    d.iter().zip(c).try_fold(0i128, |sum, (&v, &w)| {
-        sum.checked_add(i128::from(v) * i128::from(w))
-    })
+/// The asymptotic cost rate along the ray `d` (convex costs included).
+fn descent(d: &[i64], model: &Model) -> Option<i128> {
+    let problem = Numbers::of(model).problem().ok()?;
+    problem.objective().recession_rate(d).ok().flatten()
 }
 
 #[cfg(test)]

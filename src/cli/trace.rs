@@ -117,9 +117,7 @@ fn write_point(
             below + above
         })
         .sum();
-    let cost = doc.cost.iter().zip(x).try_fold(0i128, |sum, (&c, &v)| {
-        sum.checked_add(i128::from(c) * i128::from(v))
-    });
+    let cost = doc.cost_at(x);
     let cost = cost.map_or("beyond 128 bits".to_string(), |c| c.to_string());
     let head = format!("{label}: violation {violation}, cost {cost}:");
     let mut units: Vec<String> = head.split(' ').map(str::to_string).collect();

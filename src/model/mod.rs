@@ -5,7 +5,9 @@
 //! (one integer per column; omitted means all zero), `lower` and `upper` (one bound per
 //! column; an omitted array means every variable is unbounded on that side; an entry that is
 //! `null` (JSON only), `"-inf"` in `lower` or `"inf"` in `upper` is unbounded), and optional
-//! `names = { variables = [...], rows = [...] }` (generated as `x1..`, `r1..` when absent).
+//! `names = { variables = [...], rows = [...] }` (generated as `x1..`, `r1..` when absent),
+//! and optional `convex_cost = { <variable name> = { breaks = [...], slopes = [...] } }`:
+//! piecewise-linear convex costs added to the linear cost (see [`Pieces`]).
 //! Matrix entries are limited to `|a| <= 2^31` ([`MATRIX_ENTRY_LIMIT`]) so that the lattice
 //! work starts from moderate numbers; every other value to `|v| <= 2^62` ([`VALUE_LIMIT`]).
 //! Integers must be written as integer literals (`2`, not `2.0`).
@@ -13,6 +15,7 @@
 //! Every error is an [`Error::Input`] that names the file and the exact field, with row and
 //! column (for example `matrix[1][2]: 1.5 is not an integer`).
 
+mod convex;
 pub mod mps;
 mod node;
 mod validate;
@@ -21,6 +24,8 @@ use std::path::Path;
 
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
+
+pub use convex::{ConvexCosts, Pieces, PiecesFault};
 
 /// Largest absolute value accepted for a matrix entry: `2^31`.
 pub const MATRIX_ENTRY_LIMIT: i128 = 1 << 31;
@@ -51,7 +56,8 @@ impl ModelKind {
     }
 }
 
-/// A validated integer model with a linear cost.
+/// A validated integer model with a linear cost plus, optionally, piecewise-linear convex costs
+/// of single variables.
 ///
 /// Invariant: `rhs.len() == matrix.rows()`, the per-variable vectors have `matrix.cols()`
 /// entries, `lower[j] <= upper[j]` where both are finite, names are unique and non-empty.
@@ -63,6 +69,8 @@ pub struct Model {
     pub rhs: Vec<i64>,
     /// The linear cost `c`, one entry per variable.
     pub cost: Vec<i64>,
+    /// Piecewise-linear convex costs added to the linear cost of some variables.
+    pub convex: ConvexCosts,
     /// Lower bounds; `None` is unbounded below.
     pub lower: Vec<Option<i64>>,
     /// Upper bounds; `None` is unbounded above.

@@ -4,12 +4,22 @@
 use std::collections::HashMap;
 
 use super::node::Node;
-use super::{Model, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
+use super::{ConvexCosts, Model, Pieces, PiecesFault, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
 
 /// The top-level keys a model file may hold.
-const MODEL_KEYS: [&str; 6] = ["matrix", "rhs", "cost", "lower", "upper", "names"];
+const MODEL_KEYS: [&str; 7] = [
+    "matrix",
+    "rhs",
+    "cost",
+    "lower",
+    "upper",
+    "names",
+    "convex_cost",
+];
+/// The keys of one variable's convex cost.
+const PIECE_KEYS: [&str; 2] = ["breaks", "slopes"];
 /// The keys of the `names` table.
 const NAME_KEYS: [&str; 2] = ["variables", "rows"];
 
@@ -203,10 +213,49 @@ impl Checker<'_> {
             None => Ok(vec![0; n]),
             Some(Node::Table(_)) => Err(self.error(
                 "cost",
-                "only a linear cost (an array of integers) is accepted; separable convex costs per variable are planned",
+                "is a linear cost (an array of integers); write piecewise-linear convex costs under convex_cost",
             )),
             Some(node) => self.integers(node, "cost", n, "one per matrix column"),
         }
+    }
+
+    /// `convex_cost`: a table from variable names to `{ breaks, slopes }`.
+    fn convex(&self, node: &Node, names: &[String]) -> Result<ConvexCosts> {
+        let Node::Table(entries) = node else {
+            return Err(self.expected(
+                "convex_cost",
+                "a table from variable names to { breaks, slopes }",
+                node,
+            ));
+        };
+        let mut out = Vec::with_capacity(entries.len());
+        for (name, spec) in entries {
+            let field = format!("convex_cost.{name}");
+            let variable = names
+                .iter()
+                .position(|n| n == name)
+                .ok_or_else(|| self.error(&field, format!("no variable named {name:?}")))?;
+            let parts = self.table(spec, &field, &PIECE_KEYS)?;
+            let list = |key: &str| -> Result<Vec<i64>> {
+                let here = format!("{field}.{key}");
+                let node = get(parts, key).ok_or_else(|| self.error(&here, "is missing"))?;
+                let items = self.array(node, &here, "an array of integers")?;
+                items
+                    .iter()
+                    .enumerate()
+                    .map(|(k, v)| self.integer(v, &format!("{here}[{k}]"), VALUE_LIMIT))
+                    .collect()
+            };
+            let pieces = Pieces::new(list("breaks")?, list("slopes")?).map_err(|fault| {
+                let key = match fault {
+                    PiecesFault::Unsorted { .. } => "breaks",
+                    _ => "slopes",
+                };
+                self.error(format!("{field}.{key}"), format!("{name}: {fault}"))
+            })?;
+            out.push((variable, pieces));
+        }
+        Ok(ConvexCosts::new(out))
     }
 
     fn names(&self, node: &Node, field: &str, len: usize, why: &str) -> Result<Vec<String>> {
@@ -271,10 +320,18 @@ pub(crate) fn build(root: &Node, file: &str) -> Result<Model> {
             row_names = c.names(r, "names.rows", m, "one per matrix row")?;
         }
     }
+    let convex = match get(entries, "convex_cost") {
+        Some(node) => c.convex(node, &variable_names)?,
+        None => ConvexCosts::default(),
+    };
+    convex
+        .objective(&cost, Some(&variable_names))
+        .map_err(|e| c.error("convex_cost", e.to_string()))?;
     Ok(Model {
         matrix,
         rhs,
         cost,
+        convex,
         lower,
         upper,
         variable_names,

@@ -30,6 +30,7 @@ pub(crate) fn model(s: &Scenario) -> Result<Model> {
         matrix,
         rhs,
         cost,
+        convex: crate::model::ConvexCosts::default(),
         lower,
         upper,
         variable_names,

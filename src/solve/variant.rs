@@ -5,11 +5,11 @@
 //! line; an omitted field means "as in the model", `null` inside `lower`/`upper` is an
 //! infinite bound. Blank lines are skipped. Every error names the file, the line and the field.
 
-use augment::{Objective, Problem};
+use augment::Problem;
 use serde::Deserialize;
 
 use crate::error::{Error, Result};
-use crate::model::Model;
+use crate::model::{ConvexCosts, Model};
 
 /// The numbers of one variant; `None` keeps the model's.
 #[derive(Clone, Debug, Default, PartialEq, Eq, Deserialize)]
@@ -86,6 +86,7 @@ impl Variant {
         Ok(Numbers {
             rhs,
             cost,
+            convex: &model.convex,
             lower,
             upper,
         })
@@ -99,6 +100,8 @@ pub struct Numbers<'a> {
     pub rhs: &'a [i64],
     /// Linear cost `c`.
     pub cost: &'a [i64],
+    /// Convex costs added to the linear cost (the model's; variants do not change them).
+    pub convex: &'a ConvexCosts,
     /// Lower bounds, `None` for none.
     pub lower: &'a [Option<i64>],
     /// Upper bounds, `None` for none.
@@ -109,7 +112,7 @@ impl<'a> Numbers<'a> {
     /// The augmentation problem of these numbers: the objective and the box.
     pub fn problem(&self) -> Result<Problem> {
         Ok(Problem::new(
-            Objective::linear(self.cost.to_vec()),
+            self.convex.objective(self.cost, None)?,
             self.lower.to_vec(),
             self.upper.to_vec(),
         )?)
@@ -120,6 +123,7 @@ impl<'a> Numbers<'a> {
         Self {
             rhs: &model.rhs,
             cost: &model.cost,
+            convex: &model.convex,
             lower: &model.lower,
             upper: &model.upper,
         }

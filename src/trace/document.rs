@@ -5,6 +5,8 @@
 //! final plan, each step's `before`/`after` is the violation (phase `feasibility`) or the cost
 //! `c.x` (phase `cost`) of the points on either side, and `gain = before - after`.
 
+use std::collections::BTreeMap;
+
 use augment::{Options, Phase, TraceStep};
 use serde::{Deserialize, Serialize};
 
@@ -12,7 +14,7 @@ use super::decimal::Decimal;
 use super::outcome::{sign_number, CoverageDoc, Outcome};
 use super::recheck::{recheck, Recheck};
 use crate::error::{Error, Result};
-use crate::model::Model;
+use crate::model::{ConvexCosts, Model, Pieces};
 use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// The `schema` value of documents of this layout.
@@ -51,6 +53,15 @@ pub struct StepRecord {
     pub gain: Decimal,
 }
 
+/// One variable's convex cost as written in model files: `breaks` and `slopes`.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct PiecesDoc {
+    /// The breaks, increasing.
+    pub breaks: Vec<i64>,
+    /// The slopes, one more than the breaks, nondecreasing.
+    pub slopes: Vec<i64>,
+}
+
 /// Everything needed to replay and re-check one solve.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct TraceDocument {
@@ -62,6 +73,9 @@ pub struct TraceDocument {
     pub rhs: Vec<i64>,
     /// The instance's linear cost.
     pub cost: Vec<i64>,
+    /// Convex costs added to the linear cost, by variable name (omitted when there are none).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub convex_cost: BTreeMap<String, PiecesDoc>,
     /// Lower bounds, `null` for none.
     pub lower: Vec<Option<i64>>,
     /// Upper bounds, `null` for none.
@@ -110,6 +124,17 @@ pub fn record(
         variables: model.variable_names.clone(),
         rhs: model.rhs.clone(),
         cost: model.cost.clone(),
+        convex_cost: model
+            .convex
+            .iter()
+            .map(|(i, p)| {
+                let doc = PiecesDoc {
+                    breaks: p.breaks().to_vec(),
+                    slopes: p.slopes().to_vec(),
+                };
+                (model.variable_names[i].clone(), doc)
+            })
+            .collect(),
         lower: model.lower.clone(),
         upper: model.upper.clone(),
         moves: moves.len(),
@@ -134,6 +159,23 @@ pub fn record(
         document.seconds = solution.elapsed.as_secs_f64();
     }
     Ok(document)
+}
+
+impl TraceDocument {
+    /// The cost `sum_i c_i x_i + p_i(x_i)` at `x` (convex costs included), or `None` when it
+    /// does not fit in `i128` or a convex cost of the document is invalid.
+    pub fn cost_at(&self, x: &[i64]) -> Option<i128> {
+        let entries = self
+            .convex_cost
+            .iter()
+            .map(|(name, doc)| {
+                let variable = self.variables.iter().position(|n| n == name)?;
+                let pieces = Pieces::new(doc.breaks.clone(), doc.slopes.clone()).ok()?;
+                Some((variable, pieces))
+            })
+            .collect::<Option<Vec<_>>>()?;
+        ConvexCosts::new(entries).value(&self.cost, x)
+    }
 }
 
 /// The point the solver started from: the final point minus every step. Taken from the

@@ -10,7 +10,7 @@ mod recheck;
 mod sparse;
 
 pub use decimal::Decimal;
-pub use document::{record, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
+pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
 pub use recheck::{recheck, Claim, Defect, Recheck, SignedMove};
 pub use sparse::{named_entries, NamedEntry};

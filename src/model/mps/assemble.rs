@@ -64,6 +64,7 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
     let mut full_cost = cost;
     full_cost.resize(variable_names.len(), 0);
     let model = Model {
+        convex: crate::model::ConvexCosts::default(),
         matrix,
         rhs: rows.iter().map(|r| r.rhs).collect(),
         cost: full_cost,
