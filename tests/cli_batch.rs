@@ -362,8 +362,8 @@ fn model_files_take_numeric_variants() {
 }
 
 /// The caution line of the human summary (README, Caution).
-const CAUTION: &str = "caution: plans must also respect vehicle limits, working-time rules and \
-                       local regulations, which kernstep does not check";
+const CAUTION: &str =
+    "caution: plans must also meet vehicle limits, working-time rules and local regulations (not checked)";
 
 #[test]
 fn the_summary_carries_the_caution_to_stderr_or_stdout() {

@@ -125,8 +125,7 @@ fn an_unusable_cache_falls_back_to_building_in_memory() {
 #[test]
 fn the_summary_carries_the_caution() {
     // The wording of README, Caution.
-    let caution = "plans must also respect vehicle limits, working-time rules and local \
-                   regulations, which kernstep does not check";
+    let caution = "plans must also meet vehicle limits, working-time rules and local regulations (not checked)";
     let dir = tempfile::tempdir().unwrap();
     let cache = dir.path().join("cache");
     let traces = dir.path().join("traces");

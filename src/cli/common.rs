@@ -19,8 +19,8 @@ use kernstep::testset::{
 
 /// What the plans leave out: one line of the `demo` and `batch` summaries (after `caution: `),
 /// and their `caution` field in JSON.
-pub const CAUTION: &str = "plans must also respect vehicle limits, working-time rules and local \
-                           regulations, which kernstep does not check";
+pub const CAUTION: &str =
+    "plans must also meet vehicle limits, working-time rules and local regulations (not checked)";
 
 /// The cache directory option of every verb that reads or writes test sets.
 #[derive(Debug, Clone, Args)]
