@@ -167,10 +167,10 @@ proptest! {
         })
     ) {
         let mut b = a.clone();
-        for i in 0..b.rows() {
-            for j in 0..b.cols() {
-                let flip = row_flips[i] != col_flips[j];
-                b.set(i, j, if flip { -a.get(i, j) } else { a.get(i, j) });
+        for (i, &flip_row) in row_flips.iter().enumerate() {
+            for (j, &flip_col) in col_flips.iter().enumerate() {
+                let v = a.get(i, j);
+                b.set(i, j, if flip_row != flip_col { -v } else { v });
             }
         }
         let net = Network::detect(&b).unwrap();
