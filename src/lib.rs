@@ -67,6 +67,7 @@ pub mod error;
 pub mod lattice;
 pub mod matrix;
 pub mod model;
+pub mod network;
 pub mod scenario;
 pub mod solve;
 pub mod testset;

@@ -1,0 +1,161 @@
+//! Shortest paths over the residual network (Dijkstra 1959 with a binary heap), with the
+//! potential update of the primal-dual methods (Ahuja, Magnanti, Orlin, "Network Flows",
+//! 1993, §9.7 and §9.11).
+//!
+//! A residual move of reduced cost `r` has length `max(r, 0)`. Moves of negative reduced cost
+//! are the out-of-kilter ones; clamping them to 0 keeps every length nonnegative. A search
+//! from `source` stops when `target` is settled, when the nearest unsettled node is at least
+//! `limit` away, or when nothing more can be reached. With `D` the distance at which it
+//! stopped, every settled node `v` gets `pi_v += D - d(v)` (the rest, all at distance `>= D`,
+//! keep theirs): the truncated distances `min(d(v), D)` obey the triangle inequality on every
+//! residual move, so a move of nonnegative reduced cost keeps it nonnegative, and the moves on
+//! the shortest path end with reduced cost `<= 0`.
+
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
+use super::outcome::CycleArc;
+use super::residual::Residual;
+use crate::error::Result;
+
+/// How a search ended.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) enum Reach {
+    /// The target was settled at this distance (below the limit).
+    Found(i128),
+    /// Every node nearer than the limit was settled; the target is not among them.
+    Limit,
+    /// The target cannot be reached; the settled nodes are all that can.
+    Exhausted,
+}
+
+/// Reusable search buffers, sized for one network.
+pub(super) struct Search {
+    distance: Vec<i128>,
+    /// The residual move into each reached node.
+    via: Vec<CycleArc>,
+    /// Per node, the search that last reached it; distances of older searches are stale.
+    reached: Vec<u32>,
+    /// Per node, the search that settled it.
+    settled_in: Vec<u32>,
+    epoch: u32,
+    settled: Vec<usize>,
+    heap: BinaryHeap<Reverse<(i128, usize)>>,
+}
+
+impl Search {
+    /// Buffers for `nodes` nodes.
+    pub fn new(nodes: usize) -> Self {
+        Self {
+            distance: vec![0; nodes],
+            via: vec![
+                CycleArc {
+                    arc: 0,
+                    forward: true
+                };
+                nodes
+            ],
+            reached: vec![0; nodes],
+            settled_in: vec![0; nodes],
+            epoch: 0,
+            settled: Vec::with_capacity(nodes),
+            heap: BinaryHeap::with_capacity(nodes),
+        }
+    }
+
+    /// Runs one search from `source` towards `target`, never using arc `excluded`.
+    pub fn run(
+        &mut self,
+        state: &Residual<'_>,
+        source: usize,
+        target: usize,
+        excluded: usize,
+        limit: Option<i128>,
+    ) -> Reach {
+        self.epoch = self.epoch.wrapping_add(1);
+        if self.epoch == 0 {
+            self.reached.fill(0);
+            self.settled_in.fill(0);
+            self.epoch = 1;
+        }
+        let epoch = self.epoch;
+        self.settled.clear();
+        self.heap.clear();
+        self.distance[source] = 0;
+        self.reached[source] = epoch;
+        self.heap.push(Reverse((0, source)));
+        let incidence = state.net.incidence();
+        while let Some(Reverse((d, v))) = self.heap.pop() {
+            if self.settled_in[v] == epoch || d > self.distance[v] {
+                continue;
+            }
+            if limit.is_some_and(|l| d >= l) {
+                return Reach::Limit;
+            }
+            self.settled_in[v] = epoch;
+            self.settled.push(v);
+            if v == target {
+                return Reach::Found(d);
+            }
+            for &(j, w, v_is_tail) in incidence.of(v) {
+                if j == excluded || self.settled_in[w] == epoch {
+                    continue;
+                }
+                let open = if v_is_tail {
+                    state.can_raise(j)
+                } else {
+                    state.can_lower(j)
+                };
+                if !open {
+                    continue;
+                }
+                let reduced = state.reduced(j);
+                let length = if v_is_tail { reduced } else { -reduced }.max(0);
+                let candidate = d + length;
+                if self.reached[w] != epoch || candidate < self.distance[w] {
+                    self.reached[w] = epoch;
+                    self.distance[w] = candidate;
+                    self.via[w] = CycleArc {
+                        arc: j,
+                        forward: v_is_tail,
+                    };
+                    self.heap.push(Reverse((candidate, w)));
+                }
+            }
+        }
+        Reach::Exhausted
+    }
+
+    /// The nodes the last search settled.
+    pub fn settled(&self) -> &[usize] {
+        &self.settled
+    }
+
+    /// Moves the potentials of the settled nodes after a search that stopped at distance
+    /// `stop` (see the module doc).
+    pub fn update_potentials(&self, state: &mut Residual<'_>, stop: i128) -> Result<()> {
+        for &v in &self.settled {
+            let shift = stop - self.distance[v];
+            if shift != 0 {
+                state.raise_potential(v, shift)?;
+            }
+        }
+        Ok(())
+    }
+
+    /// The residual moves of the path the last search found from its source to `target`, in
+    /// path order.
+    pub fn path_to(&self, state: &Residual<'_>, source: usize, target: usize) -> Vec<CycleArc> {
+        let arcs = state.net.arcs();
+        let mut path = Vec::new();
+        let mut v = target;
+        while v != source {
+            let step = self.via[v];
+            path.push(step);
+            let arc = arcs[step.arc];
+            v = if step.forward { arc.tail } else { arc.head };
+        }
+        path.reverse();
+        path
+    }
+}

@@ -1,0 +1,77 @@
+//! Start flows: every arc at a chosen value, then the imbalances routed along the spanning
+//! forest so that every node balances (`A x = b` holds exactly, the bounds may not).
+//!
+//! A cold start puts each arc at the bound its cost prefers (lower for a nonnegative cost,
+//! upper for a negative one, 0 or the nearest finite bound when that bound is infinite). A
+//! warm start keeps the given flow; when only a few supplies changed, only the forest paths
+//! from those nodes towards their tree's root change, so phase I has a few violations to
+//! repair. A tree whose nodes' supplies do not add up to zero (a set of rows that no arc
+//! joins to the rest) has no solution of `A x = b` at all.
+
+use super::graph::Network;
+use super::outcome::Cut;
+use crate::error::{Error, Result};
+
+/// The cold start value of an arc with cost `c` and bounds `l <= u`: the bound the cost
+/// prefers, or the value nearest 0 when that bound is infinite or the cost is 0.
+pub(super) fn preferred(c: i64, l: Option<i64>, u: Option<i64>) -> i64 {
+    let below_upper = u.map_or(0, |u| u.min(0));
+    let nearest_zero = l.map_or(below_upper, |l| below_upper.max(l));
+    match c.signum() {
+        1 => l.unwrap_or(nearest_zero),
+        -1 => u.unwrap_or(nearest_zero),
+        _ => nearest_zero,
+    }
+}
+
+/// Makes `flow` balance every node for `supply` by changing forest arcs only; returns the
+/// rows of a tree that cannot balance, as a [`Cut`], when there is one.
+pub(super) fn route(net: &Network, supply: &[i128], flow: &mut [i64]) -> Result<Option<Cut>> {
+    let mut excess = supply.to_vec();
+    for (j, arc) in net.arcs().iter().enumerate() {
+        if arc.is_loop() {
+            continue;
+        }
+        let x = i128::from(flow[j]);
+        excess[arc.tail] -= x;
+        excess[arc.head] += x;
+    }
+    let forest = net.forest();
+    let arcs = net.arcs();
+    for (position, &v) in forest.order.iter().enumerate().rev() {
+        let Some(j) = forest.parent_arc[v] else {
+            if excess[v] != 0 && v != net.root() {
+                return Ok(Some(tree_cut(net, position)));
+            }
+            continue;
+        };
+        let arc = arcs[j];
+        let (x, parent) = if arc.tail == v {
+            (i128::from(flow[j]) + excess[v], arc.head)
+        } else {
+            (i128::from(flow[j]) - excess[v], arc.tail)
+        };
+        flow[j] = i64::try_from(x)
+            .map_err(|_| Error::Overflow(format!("network start: flow on arc {j}")))?;
+        excess[parent] += excess[v];
+        excess[v] = 0;
+    }
+    debug_assert!(excess.iter().all(|&e| e == 0));
+    Ok(None)
+}
+
+/// The rows of the tree that starts at `forest.order[position]`.
+fn tree_cut(net: &Network, position: usize) -> Cut {
+    let forest = net.forest();
+    let mut weights = vec![0; net.rows()];
+    let tree = std::iter::once(forest.order[position]).chain(
+        forest.order[position + 1..]
+            .iter()
+            .copied()
+            .take_while(|&v| forest.parent_arc[v].is_some()),
+    );
+    for v in tree {
+        weights[v] = net.row_signs()[v];
+    }
+    Cut { weights }
+}
