@@ -96,6 +96,15 @@ fn outcome(result: &kernstep::Result<Verdict>) -> (String, Option<i128>, [u64; 2
             (status, objective, steps)
         }
         Ok(Verdict::NoIntegerSolution(_)) => ("infeasible".to_string(), None, [0, 0]),
+        Ok(v @ Verdict::Flow(_)) => {
+            let (f, c) = v.steps();
+            let status = if v.optimum().is_some() {
+                "optimal"
+            } else {
+                "not optimal"
+            };
+            (status.to_string(), v.optimum().map(|(o, _)| o), [f, c])
+        }
         Err(e) => (format!("error: {e}"), None, [0, 0]),
     }
 }

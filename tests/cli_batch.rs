@@ -12,6 +12,7 @@ use augment::{Options, Status};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::Control;
 use kernstep::model::Model;
+use kernstep::network::{FlowOutcome, Network};
 use kernstep::scenario::{parse_day_lines, Scenario};
 use kernstep::solve::{coverage_of, Prepared, Verdict, WarmStart};
 use kernstep::testset::{build, BuildOutcome, BuildSpec};
@@ -47,7 +48,11 @@ fn summary_of_record(r: &Value) -> Summary {
     )
 }
 
-fn graver(model: &Model) -> Prepared {
+/// The set the binary uses: the network itself for a network matrix, else the Graver basis.
+fn prepared_for(model: &Model) -> Prepared {
+    if let Ok(network) = Network::detect(&model.matrix) {
+        return Prepared::network(&model.matrix, network);
+    }
     let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
     let spec = BuildSpec::default().resolve(model, &analysis).unwrap();
     let BuildOutcome::Built(built) =
@@ -64,7 +69,7 @@ fn graver(model: &Model) -> Prepared {
 fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary> {
     let scenario = Scenario::load(&scenarios().join(scenario_file)).unwrap();
     let model = scenario.compile().unwrap();
-    let prepared = graver(&model);
+    let prepared = prepared_for(&model);
     let text = std::fs::read_to_string(scenarios().join(days_file)).unwrap();
     let mut warm: Option<WarmStart> = None;
     let mut out = Vec::new();
@@ -73,30 +78,47 @@ fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary>
         let verdict = prepared
             .solve(&day, &Options::default(), warm.as_ref(), &|| false)
             .unwrap();
-        out.push(match verdict {
-            Verdict::Solved(s) => {
-                if chain && s.violation == 0 {
-                    warm = Some(WarmStart {
-                        rhs: day.rhs.clone(),
-                        x: s.x.clone(),
-                    });
-                }
-                let word = match s.status {
-                    Status::Optimal => "optimal",
-                    Status::Infeasible(_) => "infeasible",
-                    ref other => panic!("unexpected status {other:?}"),
-                };
-                let plan = if word == "optimal" {
-                    let named = model.variable_names.iter().cloned().zip(s.x.clone());
-                    named.filter(|(_, v)| *v != 0).collect()
-                } else {
-                    BTreeMap::new()
-                };
-                let objective = (word == "optimal").then(|| s.objective.unwrap() as i64);
-                (word.to_string(), objective, Some(s.steps()), plan)
+        let (f, c) = verdict.steps();
+        let summary = match (&verdict, verdict.optimum()) {
+            (_, Some((objective, x))) => {
+                let named = model.variable_names.iter().cloned().zip(x.to_vec());
+                let plan = named.filter(|(_, v)| *v != 0).collect();
+                (
+                    "optimal".to_string(),
+                    Some(objective as i64),
+                    Some(f + c),
+                    plan,
+                )
             }
-            Verdict::NoIntegerSolution(_) => ("infeasible".into(), None, None, BTreeMap::new()),
-        });
+            (Verdict::NoIntegerSolution(_), None) => {
+                ("infeasible".into(), None, None, BTreeMap::new())
+            }
+            (Verdict::Solved(s), None) if matches!(s.status, Status::Infeasible(_)) => {
+                ("infeasible".into(), None, Some(f + c), BTreeMap::new())
+            }
+            // A cut proves it before any integer point is reached: no step count.
+            (Verdict::Flow(flow), None)
+                if matches!(flow.solution.outcome, FlowOutcome::Infeasible(_)) =>
+            {
+                ("infeasible".into(), None, None, BTreeMap::new())
+            }
+            (other, None) => panic!("unexpected verdict {other:?}"),
+        };
+        if let (true, Some((_, x))) = (chain, verdict.optimum()) {
+            let potentials = match &verdict {
+                Verdict::Flow(flow) => match &flow.solution.outcome {
+                    FlowOutcome::Optimal { potentials, .. } => Some(potentials.clone()),
+                    _ => None,
+                },
+                _ => None,
+            };
+            warm = Some(WarmStart {
+                rhs: day.rhs.clone(),
+                x: x.to_vec(),
+                potentials,
+            });
+        }
+        out.push(summary);
     }
     out
 }
@@ -163,7 +185,7 @@ fn start_point(s: &augment::Solution, moves: &augment::MoveSet) -> Vec<i64> {
 fn a_warm_start_never_begins_farther_from_the_box_than_a_cold_one() {
     let scenario = Scenario::load(&scenarios().join("hollin_trucks.toml")).unwrap();
     let model = scenario.compile().unwrap();
-    let prepared = graver(&model);
+    let prepared = prepared_for(&model);
     let mut seed = 20261202u64;
     let mut draw = |low: u64, high: u64| {
         seed = seed
@@ -194,7 +216,7 @@ fn a_warm_start_never_begins_farther_from_the_box_than_a_cold_one() {
         if let Some(w) = &warm {
             let warmed = solve(Some(w));
             assert!(start_violation(&warmed) <= start_violation(&cold));
-            let moves = prepared.moves();
+            let moves = prepared.moves().unwrap();
             elsewhere += usize::from(start_point(&warmed, moves) != start_point(&cold, moves));
             assert_eq!(warmed.objective, cold.objective);
             assert_eq!(warmed.violation, cold.violation);
@@ -203,6 +225,7 @@ fn a_warm_start_never_begins_farther_from_the_box_than_a_cold_one() {
             warm = Some(WarmStart {
                 rhs: day.rhs.clone(),
                 x: cold.x.clone(),
+                potentials: None,
             });
         }
     }
@@ -408,7 +431,9 @@ fn without_a_cached_set_batch_says_what_to_build_and_that_build_serves_it() {
     let cache = tempfile::tempdir().unwrap();
     let scenario = scenarios().join("brackle_lanes.toml");
     let days = scenarios().join("brackle_lanes_days.jsonl");
-    let args = ["batch", scenario.to_str().unwrap(), days.to_str().unwrap()];
+    // The lane plan is a network matrix; `--engine moves` asks for its enumerated set.
+    let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
+    let args = ["batch", s, d, "--engine", "moves"];
     let (_, stderr) = expect(cache.path(), &args, 2);
     let command = format!(
         "kernstep build {} --cache-dir {}",
@@ -432,7 +457,8 @@ fn a_box_truncated_set_refuses_days_whose_box_is_wider() {
     expect(cache.path(), &["build", s, "--box", "auto"], 0);
     // Day 2026-03-09 lifts the capacity of tannery->north_bank: its range is then unbounded,
     // wider than the box the set was built for, so no answer may claim optimality.
-    let (stdout, stderr) = expect(cache.path(), &["batch", s, days.to_str().unwrap()], 2);
+    let d = days.to_str().unwrap();
+    let (stdout, stderr) = expect(cache.path(), &["batch", s, d, "--engine", "moves"], 2);
     let got = records(&stdout);
     assert_eq!(got.len(), 8);
     for r in &got {

@@ -59,9 +59,11 @@ fn write_model(dir: &Path, f: &Fixture, case: &Case) -> PathBuf {
     path
 }
 
-/// The status tag and exit code kernstep must give for a fixture's expectation.
-fn expected_tag(case: &Case) -> (&'static str, i32) {
+/// The status tag and exit code kernstep must give for a fixture's expectation; the network
+/// solver proves every kind of infeasibility by a cut.
+fn expected_tag(case: &Case, network: bool) -> (&'static str, i32) {
     match (case.expect.status.as_str(), case.kind.as_str()) {
+        ("infeasible", _) if network => ("infeasible_cut", 1),
         ("optimal", _) => ("optimal", 0),
         ("unbounded", _) => ("unbounded", 1),
         ("infeasible", "parity" | "balance") => ("no_integer_solution", 1),
@@ -70,37 +72,55 @@ fn expected_tag(case: &Case) -> (&'static str, i32) {
     }
 }
 
-fn check_fixture(name: &str) {
+/// Every variant of the fixture `name` with both engines; `network`: whether its matrix is a
+/// network matrix (after scaling rows by -1 each column has at most one +1 and one -1).
+fn check_fixture(name: &str, network_matrix: bool) {
     let f = fixture(name);
     let dir = tempfile::tempdir().unwrap();
     let cache = dir.path().join("cache");
-    for case in &f.variants {
+    // Both engines: the enumerated Graver basis, and `auto`, which solves a network matrix
+    // along its cycles.
+    for (case, engine) in f.variants.iter().flat_map(|c| [(c, "moves"), (c, "auto")]) {
         let model = write_model(dir.path(), &f, case);
-        let (code, doc) = solve_json(model.to_str().unwrap(), &cache, &[]);
-        let (tag, want_code) = expected_tag(case);
-        assert_eq!(doc["status"]["tag"], tag, "{}: {doc}", case.id);
-        assert_eq!(code, want_code, "{}", case.id);
+        let (code, doc) = solve_json(model.to_str().unwrap(), &cache, &["--engine", engine]);
+        let network = doc["set"]["source"] == "network";
+        assert_eq!(
+            network,
+            engine == "auto" && network_matrix,
+            "{}: {doc}",
+            case.id
+        );
+        let (tag, want_code) = expected_tag(case, network);
+        assert_eq!(doc["status"]["tag"], tag, "{} ({engine}): {doc}", case.id);
+        assert_eq!(code, want_code, "{} ({engine})", case.id);
         if let Some(objective) = case.expect.objective {
             // Optimum recorded by HiGHS 1.16 (fixture file).
-            assert_eq!(doc["objective"], objective.to_string(), "{}", case.id);
-            assert_eq!(doc["recheck"]["holds"], true, "{}", case.id);
+            assert_eq!(
+                doc["objective"],
+                objective.to_string(),
+                "{} ({engine})",
+                case.id
+            );
+        }
+        if doc["recheck"] != Value::Null {
+            assert_eq!(doc["recheck"]["holds"], true, "{} ({engine})", case.id);
         }
     }
 }
 
 #[test]
 fn lanes_3x3_match_highs() {
-    check_fixture("lanes_3x3.json");
+    check_fixture("lanes_3x3.json", true);
 }
 
 #[test]
 fn dense_3x6_with_parity_and_rays_match_highs() {
-    check_fixture("dense_3x6_b.json");
+    check_fixture("dense_3x6_b.json", false);
 }
 
 #[test]
 fn truckloads_match_highs() {
-    check_fixture("truckloads_2x3_c2.json");
+    check_fixture("truckloads_2x3_c2.json", false);
 }
 
 #[test]
@@ -108,14 +128,38 @@ fn lane_plan_optimum_and_certificate_in_words() {
     let dir = tempfile::tempdir().unwrap();
     let cache = dir.path().display().to_string();
     let model = example("lane_plan.toml");
-    let out = kernstep(&["solve", &model, "--build", "--cache-dir", &cache]);
-    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
-    let text = stdout(&out);
-    // By hand: with brackwater_north = t the plan costs 64 - 4t, t <= 5 (capacity): 44.
-    assert!(text.contains("objective  44"), "{text}");
-    assert!(text.contains("brackwater_north      5"), "{text}");
+    let solve = |engine: &str| {
+        let args = [
+            "solve",
+            &model,
+            "--build",
+            "--cache-dir",
+            &cache,
+            "--engine",
+            engine,
+        ];
+        let out = kernstep(&args);
+        assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+        let text = stdout(&out);
+        // By hand: with brackwater_north = t the plan costs 64 - 4t, t <= 5 (capacity): 44.
+        assert!(text.contains("objective  44"), "{text}");
+        assert!(text.contains("brackwater_north      5"), "{text}");
+        text
+    };
+    let text = solve("moves");
     assert!(
         text.contains("certified: the only move does not improve in either sign"),
+        "{text}"
+    );
+    // The lane plan is a network matrix: by default it is solved along its cycles, and the
+    // certificate is the LP dual (row potentials).
+    let text = solve("auto");
+    assert!(
+        text.contains("certified: row potentials give every variable"),
+        "{text}"
+    );
+    assert!(
+        text.contains("no enumeration: the matrix is a network"),
         "{text}"
     );
 }
@@ -128,14 +172,22 @@ fn a_norm_truncated_set_is_used_when_no_complete_one_is_stored_and_says_so() {
     // K_{3,3}: 9 four-cycles (norm 4) and 6 six-cycles; the Graver basis is its 15 circuits.
     let build = ["build", &model, "--norm-limit", "4", "--cache-dir", &cache];
     assert_eq!(kernstep(&build).status.code(), Some(0));
-    let out = kernstep(&["solve", &model, "--json", "--cache-dir", &cache]);
+    // K_{3,3} is a network matrix; `--engine moves` asks for the stored sets.
+    let moves = ["--engine", "moves"];
+    let out = kernstep(
+        &[
+            &["solve", &model, "--json", "--cache-dir", &cache][..],
+            &moves,
+        ]
+        .concat(),
+    );
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let partial: Value = serde_json::from_str(&stdout(&out)).unwrap();
     assert_eq!(partial["status"]["tag"], "optimal_for_moves_up_to");
     assert_eq!(partial["status"]["norm"], 4);
     assert_eq!(partial["set"]["moves"], 9);
     // Once the complete set is stored it is preferred, and the answer is certified.
-    let (_, full) = solve_json(&model, dir.path(), &[]);
+    let (_, full) = solve_json(&model, dir.path(), &moves);
     assert_eq!(full["status"]["tag"], "optimal");
     assert_eq!(full["set"]["moves"], 15);
 }
@@ -145,16 +197,25 @@ fn cache_miss_needs_build_then_the_cache_is_used() {
     let dir = tempfile::tempdir().unwrap();
     let cache = dir.path().display().to_string();
     let model = example("transport_3x3.json");
-    let miss = kernstep(&["solve", &model, "--cache-dir", &cache]);
+    // K_{3,3} is a network matrix; `--engine moves` asks for its stored Graver basis.
+    let miss = kernstep(&["solve", &model, "--cache-dir", &cache, "--engine", "moves"]);
     assert_eq!(miss.status.code(), Some(2));
     let message = stderr(&miss);
     assert!(
         message.starts_with("kernstep: no test set") && message.contains("kernstep build"),
         "{message}"
     );
-    let (_, built) = solve_json(&model, dir.path(), &[]);
+    let (_, built) = solve_json(&model, dir.path(), &["--engine", "moves"]);
     assert_eq!(built["set"]["source"], "built");
-    let out = kernstep(&["solve", &model, "--json", "--cache-dir", &cache]);
+    let out = kernstep(&[
+        "solve",
+        &model,
+        "--json",
+        "--cache-dir",
+        &cache,
+        "--engine",
+        "moves",
+    ]);
     assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
     let cached: Value = serde_json::from_str(&stdout(&out)).unwrap();
     assert_eq!(cached["set"]["source"], "cache");
@@ -276,7 +337,8 @@ fn bad_variant_json_names_the_field() {
 fn step_limit_exits_one_and_is_not_certified() {
     let dir = tempfile::tempdir().unwrap();
     let model = example("transport_3x3.json");
-    let (code, doc) = solve_json(&model, dir.path(), &["--max-steps", "1"]);
+    let extra = ["--max-steps", "1", "--engine", "moves"];
+    let (code, doc) = solve_json(&model, dir.path(), &extra);
     assert_eq!(code, 1);
     assert_eq!(doc["status"]["tag"], "step_limit");
     assert_eq!(doc["recheck"], Value::Null);

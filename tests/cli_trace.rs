@@ -44,6 +44,11 @@ impl Instance {
         std::fs::write(path, model.to_string()).unwrap();
     }
 
+    /// The row names a model file without names gets (README, Model files): `r1`, `r2`, ...
+    fn row_names(&self) -> Vec<String> {
+        (1..=self.rhs.len()).map(|i| format!("r{i}")).collect()
+    }
+
     fn image(&self, x: &[i64]) -> Vec<i128> {
         self.matrix
             .iter()
@@ -130,7 +135,12 @@ fn in_box(m: &Instance, x: &[i64]) -> bool {
 /// Replays the steps from the start point, recomputing every recorded value.
 fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
     let Some(start) = doc["start"].as_array().map(|_| numbers(&doc["start"])) else {
-        assert_eq!(doc["outcome"]["tag"], "no_integer_solution");
+        // No integer point at all, or (network) a cut proves the box empty before any step.
+        let tag = doc["outcome"]["tag"].as_str().unwrap();
+        assert!(
+            ["no_integer_solution", "infeasible_cut"].contains(&tag),
+            "{tag}"
+        );
         return;
     };
     let rhs: Vec<i128> = m.rhs.iter().map(|&b| i128::from(b)).collect();
@@ -141,12 +151,15 @@ fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
         assert_eq!(step["step"], i + 1);
         let d = numbers(&step["direction"]);
         let sign = step["sign"].as_i64().unwrap();
-        let stored = &set[step["move_index"].as_u64().unwrap() as usize];
-        assert_eq!(
-            d,
-            add(&vec![0; d.len()], stored, sign),
-            "direction = sign * move"
-        );
+        match step["move_index"].as_u64() {
+            Some(k) => assert_eq!(
+                d,
+                add(&vec![0; d.len()], &set[k as usize], sign),
+                "direction = sign * move"
+            ),
+            // A network's step is one of its cycles: a 0/±1 vector (a circuit of A).
+            None => assert!(d.iter().all(|v| v.abs() <= 1) && doc["moves"].is_null()),
+        }
         assert!(m.image(&d).iter().all(|&v| v == 0), "A d = 0");
         let length = step["length"].as_i64().unwrap();
         assert!(length >= 1);
@@ -194,7 +207,57 @@ fn recheck(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
                 .filter(|y| in_box(m, y) && m.cost_of(y) < m.cost_of(&x))
                 .count();
             assert_eq!(improving, 0, "a move improves the final plan");
-            assert_eq!(doc["recheck"]["moves_checked"], set.len());
+            if doc["moves"].is_null() {
+                assert_eq!(doc["recheck"]["claim"], "dual_potentials");
+            } else {
+                assert_eq!(doc["recheck"]["moves_checked"], set.len());
+            }
+        }
+        "infeasible_cut" => {
+            // w^T A x = w^T b for the cut's rows, but on the box w^T A x ranges over an
+            // interval without w^T b (Farkas-type argument, checked from the JSON alone).
+            let rows = m.row_names();
+            let mut w = vec![0i128; m.rhs.len()];
+            let cut = &doc["outcome"];
+            for (name, weight) in cut["rows"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .zip(cut["weights"].as_array().unwrap())
+            {
+                let r = rows
+                    .iter()
+                    .position(|n| n == name.as_str().unwrap())
+                    .unwrap();
+                w[r] = i128::from(weight.as_i64().unwrap());
+            }
+            let target: i128 = w.iter().zip(&m.rhs).map(|(a, &b)| a * i128::from(b)).sum();
+            let (mut low, mut high) = (Some(0i128), Some(0i128));
+            for j in 0..m.cost.len() {
+                let coef: i128 = (0..w.len())
+                    .map(|r| w[r] * i128::from(m.matrix[r][j]))
+                    .sum();
+                let (lo, hi) = (m.lower[j].map(i128::from), m.upper[j].map(i128::from));
+                let (a, b) = if coef >= 0 { (lo, hi) } else { (hi, lo) };
+                low = low
+                    .zip(if coef == 0 {
+                        Some(0)
+                    } else {
+                        a.map(|v| coef * v)
+                    })
+                    .map(|(s, t)| s + t);
+                high = high
+                    .zip(if coef == 0 {
+                        Some(0)
+                    } else {
+                        b.map(|v| coef * v)
+                    })
+                    .map(|(s, t)| s + t);
+            }
+            assert!(
+                low.is_some_and(|l| target < l) || high.is_some_and(|h| target > h),
+                "the cut does not separate: {target} within [{low:?}, {high:?}]"
+            );
         }
         "no_lattice_point_in_box" => {
             let x = numbers(&doc["x"]);
@@ -262,9 +325,10 @@ fn check_fixture(name: &str) {
     instances[0].0.write(&model);
     let set = move_set(&model, dir.path());
     let mut steps_seen = [0usize; 2];
-    for (m, optimum) in &instances {
+    // Both engines: the enumerated set, and `auto` (a network matrix along its cycles).
+    for ((m, optimum), engine) in instances.iter().flat_map(|i| [(i, "moves"), (i, "auto")]) {
         m.write(&model);
-        let (code, doc) = trace_json(&model, dir.path(), &[]);
+        let (code, doc) = trace_json(&model, dir.path(), &["--engine", engine]);
         assert_eq!(code == 0, doc["outcome"]["tag"] == "optimal");
         replay(m, &doc, &set);
         recheck(m, &doc, &set);
@@ -364,10 +428,16 @@ fn trace_exit_codes_follow_the_outcome() {
     assert_eq!(trace_json(&model, dir.path(), &[]).0, 0);
     instance.upper = vec![Some(1), Some(1), Some(1), Some(1)];
     instance.write(&model);
-    let (code, doc) = trace_json(&model, dir.path(), &[]);
+    let (code, doc) = trace_json(&model, dir.path(), &["--engine", "moves"]);
     assert_eq!(
         (code, doc["outcome"]["tag"].as_str()),
         (1, Some("no_lattice_point_in_box"))
+    );
+    // The lane plan is a network matrix: along its cycles the proof is a cut.
+    let (code, doc) = trace_json(&model, dir.path(), &[]);
+    assert_eq!(
+        (code, doc["outcome"]["tag"].as_str()),
+        (1, Some("infeasible_cut"))
     );
 }
 

@@ -533,7 +533,15 @@ fn work_without_the_cache(target: &Target, base: &Path, bad: &Path, tally: &mut 
         path_str(&out_file),
     ];
     let written = kernstep(bad, &args);
-    let solve = ["solve", path_str(&target.model), "--build", "--json"];
+    // The transport matrix is a network; `--engine moves` makes the solve use the cache.
+    let solve = [
+        "solve",
+        path_str(&target.model),
+        "--build",
+        "--json",
+        "--engine",
+        "moves",
+    ];
     let cached: serde_json::Value =
         serde_json::from_slice(&kernstep(base, &solve).stdout).unwrap_or_default();
     let fallback = kernstep(bad, &solve);

@@ -47,6 +47,7 @@ fn optimum(import: &MpsImport) -> Option<f64> {
             Status::Infeasible(_) => None,
             other => panic!("unexpected status {other:?}"),
         },
+        Verdict::Flow(_) => panic!("a set of moves was prepared, not a network"),
     }
 }
 

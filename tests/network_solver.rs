@@ -211,6 +211,7 @@ fn graver_answer(v: &Verdict) -> (&'static str, Option<i128>) {
             Status::Unbounded(_) => ("unbounded", None),
             other => panic!("the test-set solver stopped: {other:?}"),
         },
+        Verdict::Flow(_) => panic!("a set of moves was prepared, not a network"),
     }
 }
 

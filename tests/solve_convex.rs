@@ -175,6 +175,7 @@ proptest! {
                 None
             }
             Verdict::NoIntegerSolution(_) => None,
+            Verdict::Flow(_) => panic!("a set of moves was prepared, not a network"),
         };
         prop_assert_eq!(found, case.brute_force().map(i128::from));
     }

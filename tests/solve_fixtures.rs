@@ -45,7 +45,7 @@ fn check(m: &Model, prepared: &Prepared, case: &Case, verdict: &Verdict) -> Opti
             )
             .unwrap();
             assert_eq!(
-                certify(&problem, prepared.moves(), &s.x).unwrap(),
+                certify(&problem, prepared.moves().unwrap(), &s.x).unwrap(),
                 Certificate::NoImprovingMove,
                 "{id}: certificate"
             );
@@ -86,6 +86,7 @@ fn essentials(v: &Verdict) -> String {
             s.status, s.x, s.objective, s.feasibility_steps, s.optimality_steps
         ),
         Verdict::NoIntegerSolution(c) => format!("{c:?}"),
+        Verdict::Flow(f) => format!("{:?}", f.solution),
     }
 }
 
@@ -130,6 +131,7 @@ fn all_fixture_variants_match_the_reference_solver() {
                 previous = Some(WarmStart {
                     rhs: m.rhs.clone(),
                     x,
+                    potentials: None,
                 });
             }
             checked += 1;

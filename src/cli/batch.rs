@@ -17,13 +17,14 @@ use anyhow::Context;
 use augment::Status;
 use clap::{Args, ValueEnum};
 use kernstep::model::Model;
+use kernstep::network::{FlowOutcome, Infeasibility};
 use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
 use serde::Serialize;
 
 use super::common::{
-    graver_for, interrupted, with_threads, CacheArgs, SetSource, SolverSet, CAUTION,
+    graver_for, interrupted, with_threads, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
 };
 use super::days::read_days;
 use super::table::write_pairs;
@@ -45,6 +46,9 @@ pub struct BatchArgs {
     /// Build the test set when the cache has none, instead of stopping.
     #[arg(long)]
     pub build: bool,
+    /// Which test set serves the days.
+    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
+    pub engine: EngineArg,
     /// Write the results to FILE instead of stdout (the summary then goes to stdout).
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
@@ -74,7 +78,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();
-    let set = graver_for(model, &args.input, &args.cache, args.build)?;
+    let set = graver_for(model, &args.input, &args.cache, args.build, args.engine)?;
     let started = Instant::now();
     let prepared = set.prepare(&model.matrix)?;
     let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
@@ -163,6 +167,13 @@ impl DayStatus {
                 Status::Cancelled => DayStatus::Interrupted,
             },
             DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => DayStatus::Infeasible,
+            DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
+                FlowOutcome::Optimal { .. } => DayStatus::Optimal,
+                FlowOutcome::Infeasible(_) => DayStatus::Infeasible,
+                FlowOutcome::Unbounded { .. } => DayStatus::Unbounded,
+                FlowOutcome::StepLimit { .. } => DayStatus::StepLimit,
+                FlowOutcome::Cancelled { .. } => DayStatus::Interrupted,
+            },
             DayOutcome::Failed(_) => DayStatus::Error,
             DayOutcome::NotRun => DayStatus::Interrupted,
         }
@@ -185,11 +196,7 @@ impl DayStatus {
 /// The optimal (or best found) plan's cost and the plan, when the day has an answer.
 pub(super) fn answer(result: &DayResult) -> Option<(i128, &[i64])> {
     match &result.outcome {
-        DayOutcome::Solved(Verdict::Solved(s))
-            if matches!(s.status, Status::Optimal | Status::OptimalForMovesUpTo(_)) =>
-        {
-            s.objective.map(|o| (o, s.x.as_slice()))
-        }
+        DayOutcome::Solved(verdict) => verdict.optimum(),
         _ => None,
     }
 }
@@ -198,6 +205,8 @@ pub(super) fn answer(result: &DayResult) -> Option<(i128, &[i64])> {
 pub(super) fn steps(result: &DayResult) -> Option<u64> {
     match &result.outcome {
         DayOutcome::Solved(Verdict::Solved(s)) => Some(s.steps()),
+        // As for a test-set solve without an integer point: no point, no step count.
+        DayOutcome::Solved(v @ Verdict::Flow(f)) => v.point().map(|_| f.solution.steps()),
         _ => None,
     }
 }
@@ -216,6 +225,21 @@ fn detail(result: &DayResult) -> Option<String> {
         DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => {
             Some("the day's numbers admit no integer solution of the rows".into())
         }
+        DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
+            FlowOutcome::Optimal { .. } => None,
+            FlowOutcome::Infeasible(Infeasibility::EmptyRange { arc }) => Some(format!(
+                "variable {arc} has its lower bound above its upper bound"
+            )),
+            FlowOutcome::Infeasible(Infeasibility::Cut(cut)) => Some(format!(
+                "no plan meets the bounds: {} rows (a cut) ask for more than their lanes can carry",
+                cut.rows().len()
+            )),
+            FlowOutcome::Unbounded { .. } => {
+                Some("the cost falls without limit along a cycle".into())
+            }
+            FlowOutcome::StepLimit { .. } => Some("stopped at the step limit".into()),
+            FlowOutcome::Cancelled { .. } => Some("interrupted during the solve".into()),
+        },
         DayOutcome::Failed(e) => Some(e.to_string()),
         DayOutcome::NotRun => Some("not solved: interrupted before this day".into()),
     }
@@ -415,6 +439,7 @@ impl<'a> Summary<'a> {
             set: match &set.source {
                 SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 SetSource::Built => "built for this run".to_string(),
+                SetSource::Network => "implicit: the cycles of the network".to_string(),
             },
             caution: CAUTION,
         }

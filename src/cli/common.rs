@@ -8,10 +8,11 @@ use std::sync::OnceLock;
 use anyhow::Context;
 use augment::Coverage;
 use cache::EntryKey;
-use clap::Args;
+use clap::{Args, ValueEnum};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, MoveSet};
 use kernstep::model::Model;
+use kernstep::network::Network;
 use kernstep::solve::{coverage_of, Prepared};
 use kernstep::testset::{
     default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
@@ -130,6 +131,18 @@ fn is_model_file(p: &Path) -> bool {
         .is_some_and(|e| e.eq_ignore_ascii_case("json") || e.eq_ignore_ascii_case("toml"))
 }
 
+/// `--engine`: which test set serves the solves.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum EngineArg {
+    /// A network matrix with linear costs is solved along its cycles (no set to build);
+    /// any other model with its Graver basis from the cache.
+    Auto,
+    /// Always the enumerated Graver basis from the cache, also for network matrices.
+    Moves,
+    /// The cycles of the network; an error when the matrix is no network matrix.
+    Cycles,
+}
+
 /// Where the moves of a solve came from.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum SetSource {
@@ -137,6 +150,8 @@ pub enum SetSource {
     Cached(String),
     /// Built for this run (and stored, when the cache was usable).
     Built,
+    /// None needed: the matrix is a network, whose cycles are its Graver basis.
+    Network,
 }
 
 /// The Graver basis a solve of `model` uses, with its coverage.
@@ -150,13 +165,32 @@ pub struct SolverSet {
     pub source: SetSource,
     /// The box the set was truncated to, if any (it serves only instances inside it).
     pub box_limit: Option<Vec<u64>>,
+    /// The network, when the matrix is one: then `set` is empty and the network solver runs.
+    pub network: Option<Network>,
 }
 
 impl SolverSet {
     /// The set prepared for solving instances of `matrix`, refusing instances wider than its
     /// box.
     pub fn prepare(&self, matrix: &kernstep::IntMatrix) -> kernstep::Result<Prepared> {
+        if let Some(network) = &self.network {
+            return Ok(Prepared::network(matrix, network.clone()));
+        }
         Ok(Prepared::new(matrix, &self.set, self.coverage)?.with_box_limit(self.box_limit.clone()))
+    }
+
+    /// The implicit set of a network matrix: its cycles, with nothing to enumerate or store.
+    fn network(model: &Model, network: Network) -> Self {
+        SolverSet {
+            set: MoveSet {
+                width: model.variables(),
+                elements: Vec::new(),
+            },
+            coverage: Coverage::Complete,
+            source: SetSource::Network,
+            box_limit: None,
+            network: Some(network),
+        }
     }
 }
 
@@ -167,7 +201,30 @@ pub fn graver_for(
     input: &Path,
     cache: &CacheArgs,
     build_on_miss: bool,
+    engine: EngineArg,
 ) -> anyhow::Result<SolverSet> {
+    // A network matrix needs no stored set: its cycles are its Graver basis. Convex costs
+    // are left to the enumerated set, which serves them.
+    match engine {
+        EngineArg::Auto if model.convex.is_empty() => {
+            if let Ok(network) = Network::detect(&model.matrix) {
+                return Ok(SolverSet::network(model, network));
+            }
+        }
+        EngineArg::Cycles => {
+            if !model.convex.is_empty() {
+                anyhow::bail!("--engine cycles: the model has convex costs, which the network solver does not take; use --engine moves");
+            }
+            let network = Network::detect(&model.matrix).map_err(|why| {
+                anyhow::anyhow!(
+                    "--engine cycles: {} is not a network matrix: {why}",
+                    input.display()
+                )
+            })?;
+            return Ok(SolverSet::network(model, network));
+        }
+        EngineArg::Auto | EngineArg::Moves => {}
+    }
     // The analysis (subdeterminants) is only needed to build; lookups use keys without it.
     let resolve = || -> anyhow::Result<(MatrixAnalysis, ResolvedSpec)> {
         let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
@@ -227,6 +284,7 @@ pub fn graver_for(
             set: built.set,
             source: SetSource::Built,
             box_limit: None,
+            network: None,
         }),
         Obtained::Stopped(reason) => anyhow::bail!("building the test set stopped: {reason:?}"),
     }
@@ -239,6 +297,7 @@ fn cached(stored: &cache::StoredSet) -> SolverSet {
         coverage: coverage_of(&stored.metadata.completeness),
         source: SetSource::Cached(stored.digest.to_hex()),
         box_limit: stored.key.truncation.bounds.clone(),
+        network: None,
     }
 }
 
@@ -254,6 +313,7 @@ fn build_uncached(
             set: built.set,
             source: SetSource::Built,
             box_limit: None,
+            network: None,
         }),
         kernstep::testset::BuildOutcome::Stopped(reason) => {
             anyhow::bail!("building the test set stopped: {reason:?}")

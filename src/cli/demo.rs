@@ -105,7 +105,13 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
 /// The Graver basis from the cache or built (and stored); built in memory when the cache
 /// cannot be used at all.
 fn obtain_set(model: &Model, cache: &CacheArgs) -> anyhow::Result<SolverSet> {
-    match super::common::graver_for(model, Path::new(SCENARIO_PATH), cache, true) {
+    match super::common::graver_for(
+        model,
+        Path::new(SCENARIO_PATH),
+        cache,
+        true,
+        super::common::EngineArg::Auto,
+    ) {
         Ok(set) => Ok(set),
         Err(e) => {
             eprintln!(
@@ -127,6 +133,7 @@ fn in_memory(model: &Model) -> anyhow::Result<SolverSet> {
             set: built.set,
             source: SetSource::Built,
             box_limit: None,
+            network: None,
         }),
         BuildOutcome::Stopped(reason) => {
             anyhow::bail!("building the test set stopped: {reason:?}")
@@ -141,6 +148,7 @@ fn source_word(source: &SetSource) -> String {
             &digest[..12.min(digest.len())]
         ),
         SetSource::Built => "built".to_string(),
+        SetSource::Network => "the network's cycles".to_string(),
     }
 }
 

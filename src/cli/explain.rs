@@ -27,6 +27,10 @@ pub fn status_line(outcome: &Outcome) -> String {
         Outcome::NoLatticePointInBox { .. } => {
             "infeasible: no integer plan meets the bounds".to_string()
         }
+        Outcome::InfeasibleCut { rows, .. } => format!(
+            "infeasible: no plan meets the bounds ({} rows ask for more than their lanes carry)",
+            rows.len()
+        ),
         Outcome::InfeasibleUnproven { .. } => {
             "no feasible plan found (not a proof: the move set is incomplete)".to_string()
         }
@@ -46,6 +50,20 @@ pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Mo
     let checked = recheck.map_or(0, |r| r.moves_checked);
     let re = |claim: Claim| recheck.is_some_and(|r| r.claim == claim && r.holds);
     match outcome {
+        Outcome::Optimal if re(Claim::DualPotentials) => "certified: row potentials give \
+             every variable a reduced cost of the sign its bounds allow, so no plan in the box \
+             is cheaper (LP duality; the cycles of the network are its test set)"
+            .to_string(),
+        Outcome::InfeasibleCut { rows, weights } if re(Claim::Cut) => format!(
+            "certified: the rows {} summed with weights ({}) ask for a total the bounds of \
+             their lanes cannot give",
+            rows.join(", "),
+            weights
+                .iter()
+                .map(|w| format!("{w:+}"))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
         Outcome::Optimal if re(Claim::NoImprovingMove) => format!(
             "certified: {} in either sign, and the set is a test set",
             none_improves(checked)

@@ -14,7 +14,7 @@ use kernstep::trace::TRACE_SCHEMA;
 use kernstep::Error;
 use serde::Deserialize;
 
-use super::common::{graver_for, interrupted, CacheArgs, SolverSet};
+use super::common::{graver_for, interrupted, CacheArgs, EngineArg, SolverSet};
 use super::days::pick_day;
 
 /// The `schema` value of `solve --json` documents.
@@ -55,6 +55,9 @@ pub struct InstanceArgs {
     /// Build the Graver basis (and store it in the cache) when the cache has none.
     #[arg(long)]
     pub build: bool,
+    /// Which test set serves the solve.
+    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
+    pub engine: EngineArg,
     #[command(flatten)]
     pub cache: CacheArgs,
 }
@@ -105,7 +108,7 @@ impl InstanceArgs {
             .as_deref()
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
-        let set = graver_for(&model, &self.model, &self.cache, self.build)?;
+        let set = graver_for(&model, &self.model, &self.cache, self.build, self.engine)?;
         let prepared = set.prepare(&model.matrix)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,
@@ -229,6 +232,7 @@ fn read_warm_start(path: &Path, model: &Model) -> anyhow::Result<WarmStart> {
     let warm = WarmStart {
         rhs: previous.rhs,
         x,
+        potentials: None,
     };
     warm.check(&model.matrix, &origin)?;
     Ok(warm)

@@ -68,6 +68,7 @@ impl<'a> SetDoc<'a> {
         let (source, digest) = match &set.source {
             SetSource::Cached(d) => ("cache", Some(d.as_str())),
             SetSource::Built => ("built", None),
+            SetSource::Network => ("network", None),
         };
         SetDoc {
             source,
@@ -86,7 +87,11 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
         instance.warm.as_ref(),
         &cancelled,
     )?;
-    let outcome = Outcome::of(&verdict, &instance.model.variable_names);
+    let outcome = Outcome::of(
+        &verdict,
+        &instance.model.variable_names,
+        &instance.model.row_names,
+    );
     let checked = recheck(
         &instance.model.matrix,
         Numbers::of(&instance.model),
@@ -96,7 +101,7 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
     ensure_holds(checked.as_ref())?;
     let mut out = io::stdout().lock();
     if args.json {
-        let doc = document(&instance, &verdict, &outcome, checked.as_ref());
+        let doc = document(&instance, &verdict, &outcome, checked.as_ref())?;
         writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
     } else {
         write_summary(&mut out, &instance, &verdict, &outcome, checked.as_ref())?;
@@ -114,36 +119,57 @@ pub fn exit_code(outcome: &Outcome) -> ExitCode {
     }
 }
 
+/// The point a solve reached with its cost (once inside the box) and violation.
+struct Reached<'a> {
+    x: &'a [i64],
+    objective: Option<i128>,
+    violation: i128,
+}
+
+/// What `verdict` reached, evaluated on the instance's own numbers.
+fn reached<'a>(instance: &Instance, verdict: &'a Verdict) -> anyhow::Result<Option<Reached<'a>>> {
+    let Some(x) = verdict.point() else {
+        return Ok(None);
+    };
+    let problem = Numbers::of(&instance.model).problem()?;
+    let violation = problem.violation(x)?;
+    let objective = match verdict {
+        Verdict::Solved(s) => s.objective,
+        _ if violation == 0 => Some(problem.objective().value(x)?),
+        _ => None,
+    };
+    Ok(Some(Reached {
+        x,
+        objective,
+        violation,
+    }))
+}
+
 fn document<'a>(
     instance: &'a Instance,
     verdict: &'a Verdict,
     outcome: &'a Outcome,
     checked: Option<&'a Recheck>,
-) -> SolveDoc<'a> {
-    let solution = match verdict {
-        Verdict::Solved(s) => Some(s),
-        Verdict::NoIntegerSolution(_) => None,
-    };
-    SolveDoc {
+) -> anyhow::Result<SolveDoc<'a>> {
+    let point = reached(instance, verdict)?;
+    let (feasibility, cost) = verdict.steps();
+    Ok(SolveDoc {
         schema: SOLVE_SCHEMA,
         model: &instance.path,
         variant: instance.variant.as_deref(),
         warm_start: instance.warm.is_some(),
         status: outcome,
-        objective: solution.and_then(|s| s.objective).map(Decimal),
-        violation: solution.map(|s| Decimal(s.violation)),
-        x: solution.map(|s| s.x.as_slice()),
+        objective: point.as_ref().and_then(|p| p.objective).map(Decimal),
+        violation: point.as_ref().map(|p| Decimal(p.violation)),
+        x: point.as_ref().map(|p| p.x),
         rhs: &instance.model.rhs,
         variables: &instance.model.variable_names,
-        steps: StepCounts {
-            feasibility: solution.map_or(0, |s| s.feasibility_steps),
-            cost: solution.map_or(0, |s| s.optimality_steps),
-        },
-        seconds: solution.map_or(0.0, |s| s.elapsed.as_secs_f64()),
+        steps: StepCounts { feasibility, cost },
+        seconds: verdict.elapsed().as_secs_f64(),
         coverage: instance.set.coverage.into(),
         set: SetDoc::of(&instance.set),
         recheck: checked,
-    }
+    })
 }
 
 /// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`.
@@ -156,6 +182,7 @@ pub fn set_text(set: &SolverSet) -> String {
     let source = match &set.source {
         SetSource::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
         SetSource::Built => "built for this run".to_string(),
+        SetSource::Network => "no enumeration: the matrix is a network".to_string(),
     };
     format!(
         "{}, {coverage}, {source}",
@@ -169,7 +196,7 @@ fn write_summary(
     verdict: &Verdict,
     outcome: &Outcome,
     checked: Option<&Recheck>,
-) -> io::Result<()> {
+) -> anyhow::Result<()> {
     let mut rows = vec![("model".to_string(), instance.path.clone())];
     if let Some(id) = &instance.variant {
         rows.push(("variant".to_string(), id.clone()));
@@ -181,32 +208,31 @@ fn write_summary(
     };
     rows.push(("start".to_string(), start.to_string()));
     rows.push(("status".to_string(), status_line(outcome)));
-    if let Verdict::Solved(s) = verdict {
-        if let Some(objective) = s.objective {
+    let point = reached(instance, verdict)?;
+    if let Some(p) = &point {
+        if let Some(objective) = p.objective {
             rows.push(("objective".to_string(), objective.to_string()));
         } else {
-            rows.push(("violation".to_string(), s.violation.to_string()));
+            rows.push(("violation".to_string(), p.violation.to_string()));
         }
+        let (feasibility, cost) = verdict.steps();
         rows.push((
             "steps".to_string(),
-            format!(
-                "{} in phase I (feasibility), {} in phase II (cost)",
-                s.feasibility_steps, s.optimality_steps
-            ),
+            format!("{feasibility} in phase I (feasibility), {cost} in phase II (cost)"),
         ));
         rows.push((
             "time".to_string(),
-            format!("{:.3} ms", s.elapsed.as_secs_f64() * 1e3),
+            format!("{:.3} ms", verdict.elapsed().as_secs_f64() * 1e3),
         ));
     }
     rows.push(("moves".to_string(), set_text(&instance.set)));
     write_pairs(out, &rows)?;
-    if let Verdict::Solved(s) = verdict {
+    if let Some(p) = &point {
         writeln!(out)?;
         if let Some(heading) = point_heading(outcome) {
             writeln!(out, "{heading}")?;
         }
-        write_plan(out, &s.x, &instance.model.variable_names)?;
+        write_plan(out, p.x, &instance.model.variable_names)?;
     }
     writeln!(out)?;
     for line in wrap(

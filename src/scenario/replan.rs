@@ -13,6 +13,7 @@ use rayon::prelude::*;
 
 use crate::error::Error;
 use crate::model::Model;
+use crate::network::FlowOutcome;
 use crate::solve::{Numbers, ParsedLine, Prepared, Variant, Verdict, WarmStart};
 use crate::trace::recheck;
 
@@ -54,6 +55,23 @@ impl DayResult {
     pub fn feasible_plan(&self) -> Option<&[i64]> {
         match &self.outcome {
             DayOutcome::Solved(Verdict::Solved(s)) if s.violation == 0 => Some(&s.x),
+            DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
+                FlowOutcome::Optimal { flow, .. } | FlowOutcome::Unbounded { flow, .. } => {
+                    Some(flow)
+                }
+                _ => None,
+            },
+            _ => None,
+        }
+    }
+
+    /// The row potentials that proved the day's plan optimal (network solves only).
+    pub fn potentials(&self) -> Option<&[i64]> {
+        match &self.outcome {
+            DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
+                FlowOutcome::Optimal { potentials, .. } => Some(potentials),
+                _ => None,
+            },
             _ => None,
         }
     }
@@ -82,7 +100,11 @@ pub fn replan(
         for (line, parsed) in days {
             let (result, day_rhs) = run.day(line, parsed, warm.as_ref());
             if let (Some(x), Some(rhs)) = (result.feasible_plan(), day_rhs) {
-                warm = Some(WarmStart { rhs, x: x.to_vec() });
+                warm = Some(WarmStart {
+                    rhs,
+                    x: x.to_vec(),
+                    potentials: result.potentials().map(<[i64]>::to_vec),
+                });
             }
             out.push(result);
         }

@@ -13,7 +13,9 @@
 
 use std::sync::Arc;
 
-use augment::{Coverage, Options, Solution};
+use std::time::Duration;
+
+use augment::{Coverage, Options, Solution, Status};
 use cache::Completeness;
 
 use super::fittings::Fittings;
@@ -23,15 +25,16 @@ use crate::completion::MoveSet;
 use crate::error::{Error, Result};
 use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution, QuickSolver};
 use crate::matrix::IntMatrix;
-use crate::model::Model;
+use crate::network::{FlowOutcome, FlowSolution};
 
 /// Largest entry of a quick particular solution that the floating-point rounding handles
 /// precisely; larger ones are recomputed (and size-reduced) by the exact solver.
 const QUICK_LIMIT: u64 = 1 << 40;
 
-/// What is computed once per matrix and shared by every instance of it.
+/// What a test set of moves needs per matrix: the Hermite form and roundings for start
+/// points, the moves, the re-check's copy of them and the cuts for recurring boxes.
 #[derive(Clone, Debug)]
-pub struct Prepared {
+pub(super) struct MoveEngine {
     matrix: IntMatrix,
     hermite: HermiteForm,
     quick: Option<QuickSolver>,
@@ -51,6 +54,9 @@ pub struct WarmStart {
     pub rhs: Vec<i64>,
     /// The plan; `A x = rhs`.
     pub x: Vec<i64>,
+    /// Row potentials that proved the plan optimal (network solves), which let the network
+    /// solver start from yesterday's prices as well; `None` otherwise.
+    pub potentials: Option<Vec<i64>>,
 }
 
 impl WarmStart {
@@ -104,6 +110,74 @@ pub enum Verdict {
     /// `A x = b` has no integer solution at all; the certificate `y` has `y^T A` integral and
     /// `y^T b` not.
     NoIntegerSolution(Certificate),
+    /// The network solver ran (a network matrix, whose cycles are its test set); its outcome
+    /// carries its own certificate (row potentials, a cut or a ray).
+    Flow(FlowAnswer),
+}
+
+/// A network solve and its wall-clock time.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct FlowAnswer {
+    /// What the network solver returned.
+    pub solution: FlowSolution,
+    /// Wall-clock time of the solve.
+    pub elapsed: Duration,
+}
+
+impl Verdict {
+    /// The final point, when the solve reached one: the plan of an optimal or unbounded
+    /// outcome, the point where phase I or a limit stopped; `None` without an integer point
+    /// (no integer solution, an empty range, an infeasible network).
+    pub fn point(&self) -> Option<&[i64]> {
+        match self {
+            Verdict::Solved(s) => Some(&s.x),
+            Verdict::NoIntegerSolution(_) => None,
+            Verdict::Flow(f) => match &f.solution.outcome {
+                FlowOutcome::Optimal { flow, .. }
+                | FlowOutcome::Unbounded { flow, .. }
+                | FlowOutcome::StepLimit { flow }
+                | FlowOutcome::Cancelled { flow } => Some(flow),
+                FlowOutcome::Infeasible(_) => None,
+            },
+        }
+    }
+
+    /// The optimal plan and its cost, when the solve proved one optimal (possibly only among
+    /// the moves of a norm-truncated set).
+    pub fn optimum(&self) -> Option<(i128, &[i64])> {
+        match self {
+            Verdict::Solved(s)
+                if matches!(s.status, Status::Optimal | Status::OptimalForMovesUpTo(_)) =>
+            {
+                s.objective.map(|o| (o, s.x.as_slice()))
+            }
+            Verdict::Flow(f) => match &f.solution.outcome {
+                FlowOutcome::Optimal {
+                    flow, objective, ..
+                } => Some((*objective, flow.as_slice())),
+                _ => None,
+            },
+            _ => None,
+        }
+    }
+
+    /// Augmenting steps in phase I (feasibility) and phase II (cost).
+    pub fn steps(&self) -> (u64, u64) {
+        match self {
+            Verdict::Solved(s) => (s.feasibility_steps, s.optimality_steps),
+            Verdict::NoIntegerSolution(_) => (0, 0),
+            Verdict::Flow(f) => (f.solution.feasibility_steps, f.solution.optimality_steps),
+        }
+    }
+
+    /// Wall-clock time of the augmentation.
+    pub fn elapsed(&self) -> Duration {
+        match self {
+            Verdict::Solved(s) => s.elapsed,
+            Verdict::NoIntegerSolution(_) => Duration::ZERO,
+            Verdict::Flow(f) => f.elapsed,
+        }
+    }
 }
 
 /// The augmentation coverage a stored set gives.
@@ -115,9 +189,9 @@ pub fn coverage_of(completeness: &Completeness) -> Coverage {
     }
 }
 
-impl Prepared {
+impl MoveEngine {
     /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
-    pub fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
+    pub(super) fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
         if set.width != a.cols() {
             return Err(Error::Dimension(format!(
                 "test set has width {}, the matrix {} columns",
@@ -147,34 +221,22 @@ impl Prepared {
     /// Records that the set was truncated to the box `widths` (`|g_i| <= widths[i]`): it is a
     /// test set only for instances whose ranges `u_i - l_i` fit inside, and any other instance
     /// is refused with [`Error::BeyondSetBox`] instead of being given an unfounded "optimal".
-    pub fn with_box_limit(mut self, widths: Option<Vec<u64>>) -> Self {
+    pub(super) fn set_box_limit(&mut self, widths: Option<Vec<u64>>) {
         self.box_limit = widths;
-        self
     }
 
     /// The moves as the solver sees them.
-    pub fn moves(&self) -> &augment::MoveSet {
+    pub(super) fn moves(&self) -> &augment::MoveSet {
         &self.moves
     }
 
     /// The independent re-check's own copy of the moves (see [`crate::trace::recheck`]).
-    pub fn checker(&self) -> &augment::Checker {
+    pub(super) fn checker(&self) -> &augment::Checker {
         &self.checker
     }
 
-    /// Solves `model` (whose matrix is the prepared one), from `warm` if given.
-    pub fn solve(
-        &self,
-        model: &Model,
-        options: &Options,
-        warm: Option<&WarmStart>,
-        cancel: &dyn Fn() -> bool,
-    ) -> Result<Verdict> {
-        self.solve_numbers(Numbers::of(model), options, warm, cancel)
-    }
-
     /// Solves the instance with these numbers of the prepared matrix, from `warm` if given.
-    pub fn solve_numbers(
+    pub(super) fn solve_numbers(
         &self,
         numbers: Numbers<'_>,
         options: &Options,

@@ -2,8 +2,11 @@
 
 mod fittings;
 mod instance;
+mod network;
+mod prepared;
 mod rounding;
 mod variant;
 
-pub use instance::{coverage_of, Prepared, Verdict, WarmStart};
+pub use instance::{coverage_of, FlowAnswer, Verdict, WarmStart};
+pub use prepared::Prepared;
 pub use variant::{parse_lines, Numbers, ParsedLine, Variant};

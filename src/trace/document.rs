@@ -15,6 +15,7 @@ use super::outcome::{sign_number, CoverageDoc, Outcome};
 use super::recheck::{recheck, Recheck};
 use crate::error::{Error, Result};
 use crate::model::{ConvexCosts, Model, Pieces};
+use crate::network::Step;
 use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// The `schema` value of documents of this layout.
@@ -37,8 +38,8 @@ pub struct StepRecord {
     pub step: usize,
     /// The phase the step belongs to.
     pub phase: StepPhase,
-    /// Index of the move in the set.
-    pub move_index: usize,
+    /// Index of the move in the set; `null` for a cycle of a network, whose set is implicit.
+    pub move_index: Option<usize>,
     /// `1` or `-1`: the sign in which the move was applied.
     pub sign: i8,
     /// How many times the signed move was added.
@@ -80,8 +81,9 @@ pub struct TraceDocument {
     pub lower: Vec<Option<i64>>,
     /// Upper bounds, `null` for none.
     pub upper: Vec<Option<i64>>,
-    /// Number of moves in the set (each tried in both signs).
-    pub moves: usize,
+    /// Number of moves in the set (each tried in both signs); `null` for a network, whose
+    /// set (its cycles) is implicit.
+    pub moves: Option<usize>,
     /// What the set guarantees.
     pub coverage: CoverageDoc,
     /// The solver's integer start point, with `A x = b` (recovered exactly from the final point
@@ -137,26 +139,37 @@ pub fn record(
             .collect(),
         lower: model.lower.clone(),
         upper: model.upper.clone(),
-        moves: moves.len(),
-        coverage: moves.coverage().into(),
+        moves: moves.map(augment::MoveSet::len),
+        coverage: moves.map_or(CoverageDoc::Complete, |m| m.coverage().into()),
         start: None,
         steps: Vec::new(),
         x: None,
         objective: None,
         violation: None,
-        outcome: Outcome::of(&verdict, &model.variable_names),
+        outcome: Outcome::of(&verdict, &model.variable_names, &model.row_names),
         recheck: checked,
         seconds: 0.0,
     };
-    if let Verdict::Solved(solution) = &verdict {
-        // The options above ask for a trace, so the solution carries one.
-        let trace = solution.trace.as_deref().unwrap_or_default();
-        document.steps = step_records(trace, moves);
-        document.start = Some(start_of(&solution.x, &document.steps)?);
-        document.x = Some(solution.x.clone());
-        document.objective = solution.objective.map(Decimal);
-        document.violation = Some(Decimal(solution.violation));
-        document.seconds = solution.elapsed.as_secs_f64();
+    // The options above ask for a trace, so the solution carries one.
+    match (&verdict, moves) {
+        (Verdict::Solved(solution), Some(moves)) => {
+            let trace = solution.trace.as_deref().unwrap_or_default();
+            document.steps = step_records(trace, moves);
+            document.objective = solution.objective.map(Decimal);
+        }
+        (Verdict::Flow(f), _) => {
+            let trace = f.solution.trace.as_deref().unwrap_or_default();
+            document.steps = cycle_records(trace, model.variables())?;
+            document.objective = verdict.optimum().map(|(cost, _)| Decimal(cost));
+        }
+        _ => {}
+    }
+    if let Some(x) = verdict.point() {
+        let problem = Numbers::of(model).problem()?;
+        document.start = Some(start_of(x, &document.steps)?);
+        document.x = Some(x.to_vec());
+        document.violation = Some(Decimal(problem.violation(x)?));
+        document.seconds = verdict.elapsed().as_secs_f64();
     }
     Ok(document)
 }
@@ -203,7 +216,7 @@ fn step_records(trace: &[TraceStep], moves: &augment::MoveSet) -> Vec<StepRecord
                 Phase::Feasibility => StepPhase::Feasibility,
                 Phase::Optimality => StepPhase::Cost,
             },
-            move_index: s.move_index,
+            move_index: Some(s.move_index),
             sign: sign_number(s.sign),
             length: s.length,
             // A move set admits only moves whose l1 norm fits in i64, so no entry is
@@ -216,6 +229,32 @@ fn step_records(trace: &[TraceStep], moves: &augment::MoveSet) -> Vec<StepRecord
             before: Decimal(s.before),
             after: Decimal(s.after),
             gain: Decimal(s.gain),
+        })
+        .collect()
+}
+
+/// The steps of a network solve: each a cycle of `width` columns pushed `amount` times.
+fn cycle_records(trace: &[Step], width: usize) -> Result<Vec<StepRecord>> {
+    trace
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let length = i64::try_from(s.amount)
+                .map_err(|_| Error::Overflow("the amount of a cycle step".into()))?;
+            Ok(StepRecord {
+                step: i + 1,
+                phase: match s.phase {
+                    Phase::Feasibility => StepPhase::Feasibility,
+                    Phase::Optimality => StepPhase::Cost,
+                },
+                move_index: None,
+                sign: 1,
+                length,
+                direction: s.cycle.vector(width),
+                before: Decimal(s.before),
+                after: Decimal(s.after),
+                gain: Decimal(s.before - s.after),
+            })
         })
         .collect()
 }

@@ -8,6 +8,7 @@ use augment::{Coverage, InfeasibleReason, Sign, Status};
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
+use crate::network::{FlowOutcome, Infeasibility};
 use crate::solve::Verdict;
 
 /// The outcome of one solve.
@@ -38,6 +39,14 @@ pub enum Outcome {
         /// The minimum of `sum_i dist(x_i, [l_i, u_i])`.
         min_violation: Decimal,
     },
+    /// No flow of the network meets the rows within the bounds: the rows of the cut, summed
+    /// with their weights, ask for a balance the bounds of the arcs cannot give.
+    InfeasibleCut {
+        /// The names of the cut's rows.
+        rows: Vec<String>,
+        /// Each row's weight (`1` or `-1`), in the order of `rows`.
+        weights: Vec<i64>,
+    },
     /// Phase I found no feasible point, but the set is incomplete, so this proves nothing.
     InfeasibleUnproven {
         /// The violation where no move helped any more.
@@ -45,8 +54,9 @@ pub enum Outcome {
     },
     /// The cost falls without limit along `direction`, from the returned plan.
     Unbounded {
-        /// Index of the move in the set.
-        move_index: usize,
+        /// Index of the move in the set; `null` for a cycle of a network, whose set is
+        /// implicit.
+        move_index: Option<usize>,
         /// `1` or `-1`: the sign in which the move is applied.
         sign: i8,
         /// The signed move.
@@ -59,14 +69,15 @@ pub enum Outcome {
 }
 
 impl Outcome {
-    /// The outcome of `verdict`; `names` names the variables.
-    pub fn of(verdict: &Verdict, names: &[String]) -> Outcome {
+    /// The outcome of `verdict`; `names` names the variables and `rows` the rows.
+    pub fn of(verdict: &Verdict, names: &[String], rows: &[String]) -> Outcome {
         let solution = match verdict {
             Verdict::NoIntegerSolution(c) => {
                 return Outcome::NoIntegerSolution {
                     multipliers: c.y.iter().map(ToString::to_string).collect(),
                 }
             }
+            Verdict::Flow(f) => return Outcome::of_flow(&f.solution.outcome, names, rows),
             Verdict::Solved(solution) => solution,
         };
         match &solution.status {
@@ -86,12 +97,35 @@ impl Outcome {
                 }
             }
             Status::Unbounded(ray) => Outcome::Unbounded {
-                move_index: ray.move_index,
+                move_index: Some(ray.move_index),
                 sign: sign_number(ray.sign),
                 direction: ray.direction.clone(),
             },
             Status::StepLimit => Outcome::StepLimit,
             Status::Cancelled => Outcome::Cancelled,
+        }
+    }
+
+    fn of_flow(outcome: &FlowOutcome, names: &[String], rows: &[String]) -> Outcome {
+        match outcome {
+            FlowOutcome::Optimal { .. } => Outcome::Optimal,
+            FlowOutcome::Infeasible(Infeasibility::EmptyRange { arc }) => Outcome::EmptyRange {
+                variable: names[*arc].clone(),
+            },
+            FlowOutcome::Infeasible(Infeasibility::Cut(cut)) => {
+                let members = cut.rows();
+                Outcome::InfeasibleCut {
+                    rows: members.iter().map(|&r| rows[r].clone()).collect(),
+                    weights: members.iter().map(|&r| cut.weights[r]).collect(),
+                }
+            }
+            FlowOutcome::Unbounded { cycle, .. } => Outcome::Unbounded {
+                move_index: None,
+                sign: 1,
+                direction: cycle.vector(names.len()),
+            },
+            FlowOutcome::StepLimit { .. } => Outcome::StepLimit,
+            FlowOutcome::Cancelled { .. } => Outcome::Cancelled,
         }
     }
 

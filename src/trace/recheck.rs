@@ -22,6 +22,7 @@ use super::decimal::Decimal;
 use super::outcome::sign_number;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
+use crate::network::{certificate, FlowNumbers, FlowOutcome, Infeasibility};
 use crate::solve::{Numbers, Verdict};
 
 /// Which claim was re-checked.
@@ -36,6 +37,13 @@ pub enum Claim {
     LatticeCertificate,
     /// The reported ray is a feasible direction of unbounded improvement.
     Ray,
+    /// Row potentials `y` give every variable a reduced cost `c_j - (y^T A)_j` of the sign
+    /// its bounds allow at the plan, so no point of the box is cheaper (LP duality; network
+    /// solves).
+    DualPotentials,
+    /// The weighted sum of a cut's rows asks for a value the bounds cannot give (network
+    /// solves).
+    Cut,
 }
 
 impl Claim {
@@ -46,6 +54,8 @@ impl Claim {
             Claim::NoViolationDecrease => "no move lowers the bound violation",
             Claim::LatticeCertificate => "A x = b has no integer solution",
             Claim::Ray => "the cost falls without limit along the ray",
+            Claim::DualPotentials => "the row potentials prove the plan optimal",
+            Claim::Cut => "the cut's rows cannot be balanced within the bounds",
         }
     }
 }
@@ -79,6 +89,11 @@ pub enum Defect {
         /// Index of the variable.
         variable: usize,
     },
+    /// A network certificate (potentials, cut or cycle) fails its check, for this reason.
+    Certificate {
+        /// What the check found.
+        why: String,
+    },
 }
 
 /// The result of re-checking one claim.
@@ -109,6 +124,7 @@ impl Recheck {
             (Some(Defect::OutsideBox { variable }), _) => {
                 format!("variable {variable} lies outside its bounds")
             }
+            (Some(Defect::Certificate { why }), _) => why.clone(),
             (None, Some(c)) => format!(
                 "move {} in sign {:+} changes the value by {}",
                 c.move_index, c.sign, c.gain
@@ -133,15 +149,17 @@ impl Recheck {
 }
 
 /// Re-checks what `verdict` claims for the instance `numbers` of `matrix` with the checker's
-/// copy of the set (see [`crate::solve::Prepared::checker`]); `None` when the verdict claims
-/// nothing checkable (empty range, step limit, cancelled).
+/// copy of the set (see [`crate::solve::Prepared::checker`]; network verdicts carry their
+/// own certificates and need none); `None` when the verdict claims nothing checkable (empty
+/// range, step limit, cancelled).
 pub fn recheck(
     matrix: &IntMatrix,
     numbers: Numbers<'_>,
-    moves: &Checker,
+    moves: Option<&Checker>,
     verdict: &Verdict,
 ) -> Result<Option<Recheck>> {
     let solution = match verdict {
+        Verdict::Flow(f) => return flow_recheck(matrix, numbers, &f.solution.outcome),
         Verdict::NoIntegerSolution(certificate) => {
             return Ok(Some(Recheck {
                 claim: Claim::LatticeCertificate,
@@ -176,12 +194,50 @@ pub fn recheck(
         return Ok(Some(Recheck::of_point(claim, 0, defect)));
     }
     let problem = numbers.problem()?;
+    let moves = moves.ok_or_else(|| {
+        Error::Dimension("the re-check of a test-set solve needs the set's moves".into())
+    })?;
     let checked = match &solution.status {
         Status::Unbounded(ray) => ray_check(matrix, &problem, solution, &ray.direction)?,
         _ if claim == Claim::NoImprovingMove => optimality(&problem, moves, &solution.x)?,
         _ => violation(&problem, moves, &solution.x)?,
     };
     Ok(Some(checked))
+}
+
+/// The claim of a network solve, checked by [`certificate::check`] from the matrix and the
+/// numbers alone (LP duality for potentials and cuts, `A d = 0` and the bounds for a ray).
+fn flow_recheck(
+    matrix: &IntMatrix,
+    numbers: Numbers<'_>,
+    outcome: &FlowOutcome,
+) -> Result<Option<Recheck>> {
+    let claim = match outcome {
+        FlowOutcome::Optimal { .. } => Claim::DualPotentials,
+        FlowOutcome::Infeasible(Infeasibility::Cut(_)) => Claim::Cut,
+        FlowOutcome::Unbounded { .. } => Claim::Ray,
+        FlowOutcome::Infeasible(Infeasibility::EmptyRange { .. })
+        | FlowOutcome::StepLimit { .. }
+        | FlowOutcome::Cancelled { .. } => return Ok(None),
+    };
+    let flow_numbers = FlowNumbers {
+        rhs: numbers.rhs,
+        cost: numbers.cost,
+        lower: numbers.lower,
+        upper: numbers.upper,
+    };
+    let defect = match certificate::check(matrix, flow_numbers, outcome) {
+        Ok(()) => None,
+        Err(Error::Refuted { why, .. }) => Some(Defect::Certificate { why }),
+        Err(other) => return Err(other),
+    };
+    Ok(Some(Recheck {
+        claim,
+        holds: defect.is_none(),
+        moves_checked: 0,
+        counterexample: None,
+        defect,
+    }))
 }
 
 fn optimality(problem: &Problem, moves: &Checker, x: &[i64]) -> Result<Recheck> {
@@ -295,7 +351,7 @@ mod tests {
         let good = recheck(
             &model.matrix,
             Numbers::of(&model),
-            &Checker::new(&moves),
+            Some(&Checker::new(&moves)),
             &claimed(Status::Optimal, vec![5, 2, 0, 4]),
         );
         let good = good.unwrap().unwrap();
@@ -303,7 +359,7 @@ mod tests {
         let bad = recheck(
             &model.matrix,
             Numbers::of(&model),
-            &Checker::new(&moves),
+            Some(&Checker::new(&moves)),
             &claimed(Status::Optimal, vec![4, 3, 1, 3]),
         );
         let bad = bad.unwrap().unwrap();
@@ -324,7 +380,7 @@ mod tests {
         let check = recheck(
             &model.matrix,
             Numbers::of(&model),
-            &Checker::new(&moves),
+            Some(&Checker::new(&moves)),
             &verdict,
         );
         let check = check.unwrap().unwrap();
@@ -349,7 +405,7 @@ mod tests {
             let check = recheck(
                 &model.matrix,
                 Numbers::of(&model),
-                &Checker::new(&moves),
+                Some(&Checker::new(&moves)),
                 &verdict,
             );
             assert!(!check.unwrap().unwrap().holds);
@@ -364,7 +420,7 @@ mod tests {
         let check = recheck(
             &model.matrix,
             Numbers::of(&model),
-            &Checker::new(&moves),
+            Some(&Checker::new(&moves)),
             &verdict,
         );
         let check = check.unwrap().unwrap();
@@ -381,7 +437,7 @@ mod tests {
         let check = recheck(
             &model.matrix,
             Numbers::of(&model),
-            &Checker::new(&moves),
+            Some(&Checker::new(&moves)),
             &verdict,
         )
         .unwrap()
@@ -405,7 +461,7 @@ mod tests {
             recheck(
                 &model.matrix,
                 Numbers::of(&model),
-                &Checker::new(&moves),
+                Some(&Checker::new(&moves)),
                 &verdict,
             )
             .unwrap()

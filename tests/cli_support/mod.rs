@@ -146,6 +146,7 @@ pub fn document_answer(doc: &Value) -> DayAnswer {
         "no_integer_solution"
         | "empty_range"
         | "no_lattice_point_in_box"
+        | "infeasible_cut"
         | "infeasible_unproven" => "infeasible",
         "unbounded" => "unbounded",
         "step_limit" => "step_limit",

@@ -1,0 +1,107 @@
+//! The per-matrix state every instance of a model shares, whichever solver serves it: a test
+//! set of moves (the Graver basis, complete or truncated) with its lattice data, or, for a
+//! network matrix, the network itself, whose cycles are its Graver basis.
+
+use std::sync::Arc;
+
+use augment::{Coverage, Options};
+
+use super::instance::{MoveEngine, Verdict, WarmStart};
+use super::network::NetworkEngine;
+use super::variant::Numbers;
+use crate::completion::MoveSet;
+use crate::error::Result;
+use crate::matrix::IntMatrix;
+use crate::model::Model;
+use crate::network::Network;
+
+/// What is computed once per matrix and shared by every instance of it.
+#[derive(Clone, Debug)]
+pub struct Prepared {
+    engine: Engine,
+}
+
+#[derive(Clone, Debug)]
+enum Engine {
+    Moves(Box<MoveEngine>),
+    Network(Arc<NetworkEngine>),
+}
+
+impl Prepared {
+    /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
+    pub fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
+        let engine = MoveEngine::new(a, set, coverage)?;
+        Ok(Self {
+            engine: Engine::Moves(Box::new(engine)),
+        })
+    }
+
+    /// Prepares the network matrix `a`, detected as `network`: its test set is implicit (the
+    /// cycles of the network), and every solve runs the network solver.
+    pub fn network(a: &IntMatrix, network: Network) -> Self {
+        Self {
+            engine: Engine::Network(Arc::new(NetworkEngine::new(a, network))),
+        }
+    }
+
+    /// Records that the set was truncated to the box `widths` (`|g_i| <= widths[i]`): it is a
+    /// test set only for instances whose ranges `u_i - l_i` fit inside, and any other instance
+    /// is refused with [`crate::Error::BeyondSetBox`] instead of being given an unfounded
+    /// "optimal". A network's implicit set is complete, so there it changes nothing.
+    pub fn with_box_limit(mut self, widths: Option<Vec<u64>>) -> Self {
+        if let Engine::Moves(engine) = &mut self.engine {
+            engine.set_box_limit(widths);
+        }
+        self
+    }
+
+    /// The moves as the solver sees them; `None` for a network, whose set is implicit.
+    pub fn moves(&self) -> Option<&augment::MoveSet> {
+        match &self.engine {
+            Engine::Moves(engine) => Some(engine.moves()),
+            Engine::Network(_) => None,
+        }
+    }
+
+    /// The independent re-check's own copy of the moves (see [`crate::trace::recheck`]);
+    /// `None` for a network, whose verdicts carry their own certificates.
+    pub fn checker(&self) -> Option<&augment::Checker> {
+        match &self.engine {
+            Engine::Moves(engine) => Some(engine.checker()),
+            Engine::Network(_) => None,
+        }
+    }
+
+    /// The network, when the matrix is one and is solved as one.
+    pub fn network_of(&self) -> Option<&Network> {
+        match &self.engine {
+            Engine::Moves(_) => None,
+            Engine::Network(engine) => Some(engine.network()),
+        }
+    }
+
+    /// Solves `model` (whose matrix is the prepared one), from `warm` if given.
+    pub fn solve(
+        &self,
+        model: &Model,
+        options: &Options,
+        warm: Option<&WarmStart>,
+        cancel: &dyn Fn() -> bool,
+    ) -> Result<Verdict> {
+        self.solve_numbers(Numbers::of(model), options, warm, cancel)
+    }
+
+    /// Solves the instance with these numbers of the prepared matrix, from `warm` if given.
+    pub fn solve_numbers(
+        &self,
+        numbers: Numbers<'_>,
+        options: &Options,
+        warm: Option<&WarmStart>,
+        cancel: &dyn Fn() -> bool,
+    ) -> Result<Verdict> {
+        match &self.engine {
+            Engine::Moves(engine) => engine.solve_numbers(numbers, options, warm, cancel),
+            Engine::Network(engine) => engine.solve_numbers(numbers, options, warm, cancel),
+        }
+    }
+}
