@@ -192,14 +192,19 @@ fn numbers_do_not_change_the_structure() {
 #[test]
 fn the_example_scenarios_load_with_their_kinds() {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/scenarios");
-    for (file, kind, vars) in [
-        ("vell_valley.toml", ScenarioKind::ProductLines, 27),
-        ("brackle_lanes.toml", ScenarioKind::Lanes, 15),
-        ("hollin_trucks.toml", ScenarioKind::Truckloads, 20),
+    // The last number counts the surcharged lanes, each a convex cost of the model.
+    for (file, kind, vars, surcharged) in [
+        ("vell_valley.toml", ScenarioKind::ProductLines, 27, 0),
+        ("brackle_lanes.toml", ScenarioKind::Lanes, 15, 0),
+        ("hollin_trucks.toml", ScenarioKind::Truckloads, 20, 0),
+        ("wendle_ferries.toml", ScenarioKind::Lanes, 12, 4),
+        ("corran_quarries.toml", ScenarioKind::Truckloads, 14, 2),
     ] {
         let s = Scenario::load(&dir.join(file)).unwrap();
         assert_eq!(s.kind, kind, "{file}");
-        assert_eq!(s.compile().unwrap().variables(), vars, "{file}");
+        let model = s.compile().unwrap();
+        assert_eq!(model.variables(), vars, "{file}");
+        assert_eq!(model.convex.iter().count(), surcharged, "{file}");
         assert!(matches!(
             PlanInput::load(&dir.join(file)).unwrap(),
             PlanInput::Scenario(..)
