@@ -81,6 +81,14 @@ def solve(matrix, rhs, cost, lower, upper):
     raise RuntimeError(f"HiGHS ended with {raw}")
 
 
+def plan(matrix, rhs, cost, lower, upper):
+    """An optimal integer plan of min cost.x, A x = rhs, lower <= x <= upper (rounded)."""
+    h, status = _run(matrix, rhs, cost, lower, upper, True)
+    if status != highspy.HighsModelStatus.kOptimal:
+        raise RuntimeError(f"HiGHS ended with {h.modelStatusToString(status)}")
+    return [int(round(v)) + 0 for v in h.getSolution().col_value]
+
+
 def lp_feasible(matrix, rhs, lower, upper):
     """True when the LP relaxation (rational x in the box) is feasible."""
     _, status = _run(matrix, rhs, [0] * len(matrix[0]), lower, upper, False)

@@ -9,6 +9,7 @@ use std::process::{Command, Output};
 
 mod cli_support;
 mod highs_fixtures;
+use cli_support::convex::ConvexObjective;
 use cli_support::{batch_answers, document_answer, expect_both, scenarios};
 use highs_fixtures::{fixture, Case, Fixture};
 use serde_json::{json, Value};
@@ -121,6 +122,89 @@ fn dense_3x6_with_parity_and_rays_match_highs() {
 #[test]
 fn truckloads_match_highs() {
     check_fixture("truckloads_2x3_c2.json", false);
+}
+
+/// `examples/depot_stores.toml` (convex costs on two lanes and both stores) under every
+/// variant of `tests/fixtures/convex/depot_stores.json`: status and optimum as HiGHS found
+/// them for the linearised model, the plan's cost recomputed here by the closed form, and an
+/// unbounded answer's ray checked to lower the cost for ever.
+#[test]
+fn convex_costs_match_highs() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let text = std::fs::read_to_string(root.join("tests/fixtures/convex/depot_stores.json"));
+    let fixture: Value = serde_json::from_str(&text.unwrap()).unwrap();
+    assert_eq!(fixture["reference"]["solver"], "HiGHS");
+    let path = root.join(fixture["model"].as_str().unwrap());
+    let model = path.to_str().unwrap();
+    let objective = ConvexObjective::read(&path);
+    let dir = tempfile::tempdir().unwrap();
+    let mut seen = BTreeSet::new();
+    for case in fixture["variants"].as_array().unwrap() {
+        let id = case["id"].as_str().unwrap();
+        let mut variant = case.clone();
+        let fields = variant.as_object_mut().unwrap();
+        fields.retain(|k, _| ["id", "rhs", "cost", "lower", "upper"].contains(&k.as_str()));
+        let (code, doc) = solve_json(model, dir.path(), &["--variant", &variant.to_string()]);
+        let tag = doc["status"]["tag"].as_str().unwrap();
+        let cost = match case["cost"].as_array() {
+            Some(_) => objective.with_cost(&integers(&case["cost"])),
+            None => objective.with_cost(&objective.cost),
+        };
+        let want = case["expect"]["status"].as_str().unwrap();
+        match want {
+            "optimal" => {
+                // Optimum of the linearised model by HiGHS 1.16 (scripts/convex_reference.py).
+                let optimum = case["expect"]["objective"].as_i64().unwrap();
+                assert_eq!((tag, code), ("optimal", 0), "{id}: {doc}");
+                assert_eq!(doc["objective"], optimum.to_string(), "{id}");
+                assert_eq!(
+                    cost.value(&integers(&doc["x"])),
+                    i128::from(optimum),
+                    "{id}"
+                );
+                assert_eq!(doc["recheck"]["holds"], true, "{id}");
+            }
+            // HiGHS 1.16: no plan in the box (scripts/convex_reference.py).
+            "infeasible" => {
+                assert_eq!(code, 1, "{id}");
+                assert!(
+                    [
+                        "no_lattice_point_in_box",
+                        "no_integer_solution",
+                        "empty_range"
+                    ]
+                    .contains(&tag),
+                    "{id}: {doc}"
+                );
+            }
+            // HiGHS 1.16: unbounded (scripts/convex_reference.py); the ray is checked here.
+            "unbounded" => {
+                assert_eq!((tag, code), ("unbounded", 1), "{id}: {doc}");
+                let (x, d) = (integers(&doc["x"]), integers(&doc["status"]["direction"]));
+                // Far beyond every break the cost falls by the same amount per unit step.
+                let at =
+                    |t: i64| -> Vec<i64> { x.iter().zip(&d).map(|(a, b)| a + t * b).collect() };
+                let fall = cost.value(&at(1000)) - cost.value(&at(1001));
+                assert!(fall > 0, "{id}: the ray does not lower the cost");
+                assert_eq!(cost.value(&at(2000)) - cost.value(&at(2001)), fall, "{id}");
+            }
+            other => panic!("{id}: unexpected expectation {other}"),
+        }
+        seen.insert(want);
+    }
+    assert_eq!(
+        seen.len(),
+        3,
+        "optimal, infeasible and unbounded variants: {seen:?}"
+    );
+}
+
+fn integers(v: &Value) -> Vec<i64> {
+    v.as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e.as_i64().unwrap())
+        .collect()
 }
 
 #[test]

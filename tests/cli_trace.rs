@@ -13,6 +13,7 @@ use serde::Deserialize;
 use serde_json::{json, Value};
 
 mod cli_support;
+use cli_support::convex::ConvexObjective;
 use cli_support::{batch_answers, document_answer, expect_both, scenarios};
 
 fn kernstep(args: &[&str]) -> Output {
@@ -132,8 +133,9 @@ fn in_box(m: &Instance, x: &[i64]) -> bool {
     m.violation(x) == 0
 }
 
-/// Replays the steps from the start point, recomputing every recorded value.
-fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
+/// Replays the steps from the start point, recomputing every recorded value; `cost` is the
+/// instance's objective (its linear cost, or that plus convex costs).
+fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>], cost: &dyn Fn(&[i64]) -> i128) {
     let Some(start) = doc["start"].as_array().map(|_| numbers(&doc["start"])) else {
         // No integer point at all, or (network) a cut proves the box empty before any step.
         let tag = doc["outcome"]["tag"].as_str().unwrap();
@@ -164,15 +166,15 @@ fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
         let length = step["length"].as_i64().unwrap();
         assert!(length >= 1);
         let next = add(&x, &d, length);
-        let value: fn(&Instance, &[i64]) -> i128 = match step["phase"].as_str().unwrap() {
+        let values = match step["phase"].as_str().unwrap() {
             "feasibility" => {
                 assert!(!in_phase_two, "phase I after phase II");
-                Instance::violation
+                (m.violation(&x), m.violation(&next))
             }
             "cost" => {
                 in_phase_two = true;
                 assert!(in_box(m, &x) && in_box(m, &next), "phase II leaves the box");
-                Instance::cost_of
+                (cost(&x), cost(&next))
             }
             other => panic!("phase {other}"),
         };
@@ -181,13 +183,13 @@ fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>]) {
             decimal(&step["after"]),
             decimal(&step["gain"]),
         );
-        assert_eq!((before, after), (value(m, &x), value(m, &next)));
+        assert_eq!((before, after), values, "step {}", i + 1);
         assert!(gain > 0 && gain == before - after);
         x = next;
     }
     assert_eq!(x, numbers(&doc["x"]), "start + steps = final point");
     if !doc["objective"].is_null() {
-        assert_eq!(decimal(&doc["objective"]), m.cost_of(&x));
+        assert_eq!(decimal(&doc["objective"]), cost(&x));
     }
 }
 
@@ -330,7 +332,7 @@ fn check_fixture(name: &str) {
         m.write(&model);
         let (code, doc) = trace_json(&model, dir.path(), &["--engine", engine]);
         assert_eq!(code == 0, doc["outcome"]["tag"] == "optimal");
-        replay(m, &doc, &set);
+        replay(m, &doc, &set, &|x| m.cost_of(x));
         recheck(m, &doc, &set);
         if let Some(optimum) = optimum {
             // Optimum recorded by HiGHS 1.16 (fixture file).
@@ -351,6 +353,67 @@ fn lanes_3x3_traces_replay_and_recheck() {
 #[test]
 fn dense_3x6_traces_replay_and_recheck() {
     check_fixture("dense_3x6_b.json");
+}
+
+/// `examples/depot_stores.toml` (convex costs on two lanes and both stores) traced under every
+/// variant of its HiGHS fixture: the document records the file's convex costs, its steps
+/// replay from the start to the final plan, and every phase-II `before`/`after` and the
+/// objective equal `c.x + sum_i p_i(x_i)` computed here by the closed form
+/// (`cli_support::convex`), not by kernstep.
+#[test]
+fn convex_traces_replay_with_the_convex_costs() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let path = root.join("examples/depot_stores.toml");
+    let file: toml::Table = std::fs::read_to_string(&path).unwrap().parse().unwrap();
+    let matrix: Vec<Vec<i64>> = file["matrix"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|row| {
+            let row = row.as_array().unwrap();
+            row.iter().map(|v| v.as_integer().unwrap()).collect()
+        })
+        .collect();
+    let objective = ConvexObjective::read(&path);
+    let fixture = std::fs::read_to_string(root.join("tests/fixtures/convex/depot_stores.json"));
+    let fixture: Value = serde_json::from_str(&fixture.unwrap()).unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let set = move_set(&path, dir.path());
+    let mut steps_seen = [0usize; 2];
+    for case in fixture["variants"].as_array().unwrap() {
+        let mut variant = case.clone();
+        let fields = variant.as_object_mut().unwrap();
+        fields.retain(|k, _| ["id", "rhs", "cost", "lower", "upper"].contains(&k.as_str()));
+        let (_, doc) = trace_json(&path, dir.path(), &["--variant", &variant.to_string()]);
+        let id = case["id"].as_str().unwrap();
+        let bounds = |key: &str| -> Vec<Option<i64>> {
+            let list = doc[key].as_array().unwrap();
+            list.iter().map(Value::as_i64).collect()
+        };
+        let m = Instance {
+            matrix: matrix.clone(),
+            rhs: numbers(&doc["rhs"]),
+            cost: numbers(&doc["cost"]),
+            lower: bounds("lower"),
+            upper: bounds("upper"),
+        };
+        let want_cost = case.get("cost").map_or(objective.cost.clone(), numbers);
+        assert_eq!(m.cost, want_cost, "{id}: the document's linear cost");
+        for (variable, breaks, slopes) in &objective.pieces {
+            let recorded = &doc["convex_cost"][doc["variables"][*variable].as_str().unwrap()];
+            assert_eq!(
+                (numbers(&recorded["breaks"]), numbers(&recorded["slopes"])),
+                (breaks.clone(), slopes.clone()),
+                "{id}"
+            );
+        }
+        let cost = objective.with_cost(&m.cost);
+        replay(&m, &doc, &set, &|x| cost.value(x));
+        for step in doc["steps"].as_array().unwrap() {
+            steps_seen[usize::from(step["phase"] == "cost")] += 1;
+        }
+    }
+    assert!(steps_seen[0] > 0 && steps_seen[1] > 0, "{steps_seen:?}");
 }
 
 fn tables_model(dir: &Path) -> PathBuf {
@@ -460,7 +523,7 @@ fn warm_started_traces_replay_from_the_solver_start() {
     {
         m.write(&model);
         let (_, doc) = trace_json(&model, dir.path(), &warm);
-        replay(m, &doc, &set);
+        replay(m, &doc, &set, &|x| m.cost_of(x));
         recheck(m, &doc, &set);
         // Optimum recorded by HiGHS 1.16 (fixture file).
         assert_eq!(decimal(&doc["objective"]), i128::from(optimum.unwrap()));

@@ -130,7 +130,13 @@ fn toml_rejections_name_the_field_too() {
         "m.toml: matrix[0][1]: expected an integer, found a string"
     );
     let err = toml("matrix = [[1]]\nrhs = [0]\ncost = { kind = \"convex\" }\n").unwrap_err();
-    assert!(err.starts_with("m.toml: cost: only a linear cost"), "{err}");
+    assert!(
+        err.starts_with(
+            "m.toml: cost: is a linear cost (an array of integers); write \
+                         piecewise-linear convex costs under convex_cost"
+        ),
+        "{err}"
+    );
     let err = toml("matrix = [[1]]\nrhs = [0]\nupper = [\"-inf\"]\n").unwrap_err();
     assert!(
         err.starts_with("m.toml: upper[0]: \"-inf\" is not an upper bound"),

@@ -2,7 +2,7 @@
 //! row and bound checked by hand against the layout in `src/scenario/compile.rs` and the
 //! README), structure independent of the numbers, and errors that name file and field.
 
-use kernstep::model::{Model, ModelKind};
+use kernstep::model::{Model, ModelKind, Pieces};
 use kernstep::scenario::{PlanInput, Scenario, ScenarioKind};
 
 fn compile(text: &str) -> Model {
@@ -152,6 +152,30 @@ fn truckloads_worked_example() {
     assert_eq!(m.row_names[3], "a->x/load");
 }
 
+/// Worked by hand from the README ("Transport scenarios", lane `surcharge`): steps above 3 at
+/// 4 and above 5 at 2 give breaks [3, 5] and slopes [0, 4, 4 + 2 = 6] on the lane's units
+/// column (a->y is column 1 of the lanes model and column 3 = 3 * 1 of the truckloads model);
+/// the matrix and the linear costs stay as without the key.
+#[test]
+fn surcharges_become_the_convex_cost_of_the_lane_units() {
+    let steps = "surcharge = [{ above = 3, per_unit = 4 }, { above = 5, per_unit = 2 }]";
+    let want = Pieces::new(vec![3, 5], vec![0, 4, 6]).unwrap();
+    for (text, lane, column) in [
+        (LANES, "{ from = \"a\", to = \"y\", cost = 5", 1),
+        (TRUCKLOADS, "{ from = \"a\", to = \"y\", cost = 1", 3),
+    ] {
+        let surcharged = text.replace(lane, &format!("{lane}, {steps}"));
+        assert_ne!(surcharged, text);
+        let (plain, m) = (compile(text), compile(&surcharged));
+        assert_eq!(m.convex.iter().count(), 1);
+        assert_eq!(m.convex.get(column), Some(&want), "column {column}");
+        assert_eq!((&m.matrix, &m.cost), (&plain.matrix, &plain.cost));
+        assert!(plain.convex.is_empty());
+    }
+    // By hand: 6 units pay 4 * (5 - 3) + 6 * (6 - 5) = 14 above the lane cost, 3 units none.
+    assert_eq!((want.value(6), want.value(3)), (14, 0));
+}
+
 /// Other numbers, same depots, zones and lanes: the same matrix and names (one test set).
 #[test]
 fn numbers_do_not_change_the_structure() {
@@ -168,14 +192,19 @@ fn numbers_do_not_change_the_structure() {
 #[test]
 fn the_example_scenarios_load_with_their_kinds() {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/scenarios");
-    for (file, kind, vars) in [
-        ("vell_valley.toml", ScenarioKind::ProductLines, 27),
-        ("brackle_lanes.toml", ScenarioKind::Lanes, 15),
-        ("hollin_trucks.toml", ScenarioKind::Truckloads, 20),
+    // The last number counts the surcharged lanes, each a convex cost of the model.
+    for (file, kind, vars, surcharged) in [
+        ("vell_valley.toml", ScenarioKind::ProductLines, 27, 0),
+        ("brackle_lanes.toml", ScenarioKind::Lanes, 15, 0),
+        ("hollin_trucks.toml", ScenarioKind::Truckloads, 20, 0),
+        ("wendle_ferries.toml", ScenarioKind::Lanes, 12, 4),
+        ("corran_quarries.toml", ScenarioKind::Truckloads, 14, 2),
     ] {
         let s = Scenario::load(&dir.join(file)).unwrap();
         assert_eq!(s.kind, kind, "{file}");
-        assert_eq!(s.compile().unwrap().variables(), vars, "{file}");
+        let model = s.compile().unwrap();
+        assert_eq!(model.variables(), vars, "{file}");
+        assert_eq!(model.convex.iter().count(), surcharged, "{file}");
         assert!(matches!(
             PlanInput::load(&dir.join(file)).unwrap(),
             PlanInput::Scenario(..)
@@ -244,6 +273,13 @@ fn errors_name_the_file_and_field() {
             PRODUCT_LINES.replace("volume = 1, ", ""),
             "test.toml: lanes[1].volume: missing",
         ),
+        (
+            PRODUCT_LINES.replace(
+                "volume = 3,",
+                "surcharge = [{ above = 1, per_unit = 2 }], volume = 3,",
+            ),
+            "test.toml: lanes[2].surcharge: product_lines scenarios take no surcharge",
+        ),
     ];
     for (text, expected) in cases {
         let message = error(&text);
@@ -252,4 +288,68 @@ fn errors_name_the_file_and_field() {
             "{message}\nexpected {expected}"
         );
     }
+}
+
+/// LANES with `steps` as the surcharge of its third lane (b->y, cost 2).
+fn surcharged(steps: &str) -> String {
+    let lane = "to = \"y\", cost = 2, capacity = 6";
+    LANES.replace(lane, &format!("{lane}, surcharge = {steps}"))
+}
+
+#[test]
+fn surcharge_errors_name_the_step_and_key() {
+    let cases = [
+        (
+            "[{ above = 30, per_unit = 4 }, { above = 20, per_unit = 1 }]",
+            "test.toml: lanes[2].surcharge[1].above: 20 is not above the step before it (30)",
+        ),
+        (
+            "[{ above = 30, per_unit = 4 }, { above = 30, per_unit = 1 }]",
+            "test.toml: lanes[2].surcharge[1].above: 30 is not above the step before it (30)",
+        ),
+        (
+            "[{ above = -1, per_unit = 4 }]",
+            "test.toml: lanes[2].surcharge[0].above: -1 is negative",
+        ),
+        (
+            "[{ above = 3, per_unit = 4 }, { above = 5, per_unit = -1 }]",
+            "test.toml: lanes[2].surcharge[1].per_unit: -1 is negative",
+        ),
+        (
+            "[{ above = 3 }]",
+            "test.toml: lanes[2].surcharge[0].per_unit: missing",
+        ),
+        (
+            "[{ above = 3, per_unit = 1, rate = 2 }]",
+            "test.toml: lanes[2].surcharge[0].rate: unknown key",
+        ),
+        (
+            "[{ above = 3.5, per_unit = 1 }]",
+            "test.toml: lanes[2].surcharge[0].above: 3.5 is not an integer",
+        ),
+        (
+            "{ above = 3, per_unit = 1 }",
+            "test.toml: lanes[2].surcharge: expected a list of { above, per_unit } steps",
+        ),
+        // 2^62 + 2^62 = 2^63 is one more than the largest 64-bit integer.
+        (
+            "[{ above = 1, per_unit = 4611686018427387904 }, \
+              { above = 2, per_unit = 4611686018427387904 }]",
+            "test.toml: lanes[2].surcharge[1].per_unit: the surcharges up to this step add up",
+        ),
+        // Slope 2^62 plus the lane cost 2 fits, but the cost at 2^62 + 1 units does not.
+        (
+            "[{ above = 4611686018427387903, per_unit = 4611686018427387904 }]",
+            "test.toml: lanes[2].surcharge: with the lane cost 2, the surcharged cost does not fit",
+        ),
+    ];
+    for (steps, expected) in cases {
+        let message = error(&surcharged(steps));
+        assert!(
+            message.starts_with(expected),
+            "{message}\nexpected {expected}"
+        );
+    }
+    // An empty list is no surcharge at all.
+    assert_eq!(compile(&surcharged("[]")), compile(LANES));
 }

@@ -147,3 +147,47 @@ fn example_csv_and_json_lines_agree() {
     };
     assert_eq!(variants(jsonl), variants(csv));
 }
+
+/// Days change only the fields of the kind; a lane's surcharge stays as in the scenario file
+/// (README, "Daily variants"): asking to change it is refused with that reason, and a day that
+/// changes the surcharged lane's cost keeps the surcharge on top of the new cost.
+#[test]
+fn days_keep_the_scenario_surcharges() {
+    let text = LANES.replace(
+        "cost = 5 }",
+        "cost = 5, surcharge = [{ above = 2, per_unit = 3 }] }",
+    );
+    let scenario = Scenario::from_str(&text, ModelKind::Toml, "s.toml").unwrap();
+    let model = scenario.compile().unwrap();
+    let json = parse_day_lines(
+        &scenario,
+        "{\"day\": \"mon\", \"surcharge\": {\"a->y\": 1}}\n{\"day\": \"tue\", \"cost\": {\"a->y\": 8}}\n",
+        "d.jsonl",
+    );
+    let csv = parse_csv(
+        &scenario,
+        "day,field,name,value\nmon,surcharge,a->y,1\n",
+        "d.csv",
+    );
+    for (message, prefix) in [
+        (
+            err(&json, 0),
+            "d.jsonl: line 1: surcharge: surcharges stay as in the scenario file",
+        ),
+        (
+            err(&csv, 0),
+            "d.csv: line 2: field: surcharges stay as in the scenario file",
+        ),
+    ] {
+        assert!(message.starts_with(prefix), "{message}\nexpected {prefix}");
+        assert!(
+            message.ends_with("supply, demand, cost, capacity, keep_cost"),
+            "{message}"
+        );
+    }
+    let tue = ok(&json, 1).numbers(&model, "d.jsonl").unwrap();
+    assert_eq!(tue.cost[1], 8);
+    let problem = tue.problem().unwrap();
+    // Column a->y (1) at 4 units: 8 * 4 + 3 * (4 - 2) = 38 by hand; every other column is 0.
+    assert_eq!(problem.objective().value(&[0, 4, 0, 0, 0]).unwrap(), 38);
+}

@@ -7,11 +7,14 @@
 //!   `z * P + p`;
 //! - truckloads: columns `3l` units, `3l + 1` spare, `3l + 2` trucks, then kept `0..D`; rows
 //!   supply `0..D`, demand `0..Z`, load `0..L`.
+//!
+//! A lane's surcharge becomes the convex cost of its units column (`l` for lanes, `3l` for
+//! truckloads).
 
 use super::{Field, Scenario, ScenarioKind};
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
-use crate::model::Model;
+use crate::model::{ConvexCosts, Model};
 
 /// The model of `s` with its own numbers.
 pub(crate) fn model(s: &Scenario) -> Result<Model> {
@@ -30,12 +33,27 @@ pub(crate) fn model(s: &Scenario) -> Result<Model> {
         matrix,
         rhs,
         cost,
-        convex: crate::model::ConvexCosts::default(),
+        convex: surcharges(s),
         lower,
         upper,
         variable_names,
         row_names,
     })
+}
+
+/// The lanes' surcharges as convex costs of their units columns.
+fn surcharges(s: &Scenario) -> ConvexCosts {
+    let units = |l: usize| match s.kind {
+        ScenarioKind::Truckloads => 3 * l,
+        // Product lines have no surcharges (the invariant of `Scenario`).
+        ScenarioKind::Lanes | ScenarioKind::ProductLines => l,
+    };
+    let entries = s.surcharges.iter().enumerate();
+    ConvexCosts::new(
+        entries
+            .filter_map(|(l, pieces)| pieces.clone().map(|p| (units(l), p)))
+            .collect(),
+    )
 }
 
 /// Rhs, cost, lower and upper bounds of `s`.

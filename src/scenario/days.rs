@@ -4,7 +4,7 @@
 //! "cost": {"north->harbour": 7}}`; besides `day` (required, unique) the keys are the fields of
 //! the scenario's kind ([`super::ScenarioKind::fields`]), each a table from names to new
 //! values (`null` only for a capacity: no limit). Anything omitted stays as in the scenario
-//! file (not as on the day before).
+//! file (not as on the day before), and so do the lanes' surcharges, which days cannot change.
 //!
 //! CSV: a header `day,field,name,value`, then one change per row; rows of one day may be
 //! anywhere and are gathered in the order days first appear; an empty value or `none` lifts a
@@ -81,13 +81,15 @@ fn careful_line(
     let mut allowed = vec!["day"];
     allowed.extend(scenario.kind.fields().iter().map(|f| f.key()));
     let map = r.object(&value, "", &allowed).map_err(|e| {
-        let unknown_field = value
+        let unknown_key = value
             .as_object()
-            .and_then(|m| m.keys().find(|k| !allowed.contains(&k.as_str())))
-            .and_then(|k| Field::from_key(k));
-        match unknown_field {
-            Some(field) => r.error(field.key(), not_applicable(scenario.kind, field)),
-            None => e,
+            .and_then(|m| m.keys().find(|k| !allowed.contains(&k.as_str())));
+        match unknown_key.map(|k| (k, Field::from_key(k))) {
+            Some((_, Some(field))) => r.error(field.key(), not_applicable(scenario.kind, field)),
+            Some((key, None)) if key == SURCHARGE => {
+                r.error(SURCHARGE, fixed_surcharges(scenario.kind))
+            }
+            _ => e,
         }
     })?;
     let day = map
@@ -252,6 +254,18 @@ fn remember_day(
     }
 }
 
+/// The lane key of the scenario file that days cannot change.
+const SURCHARGE: &str = "surcharge";
+
+/// Why a day cannot change surcharges.
+fn fixed_surcharges(kind: super::ScenarioKind) -> String {
+    let fields: Vec<&str> = kind.fields().iter().map(|f| f.key()).collect();
+    format!(
+        "surcharges stay as in the scenario file; days change only {}",
+        fields.join(", ")
+    )
+}
+
 fn not_applicable(kind: super::ScenarioKind, field: Field) -> String {
     let fields: Vec<&str> = kind.fields().iter().map(|f| f.key()).collect();
     format!(
@@ -385,6 +399,9 @@ fn csv_change(
     value: &str,
 ) -> Result<Change> {
     let f = Field::from_key(field).ok_or_else(|| {
+        if field == SURCHARGE {
+            return r.error("field", fixed_surcharges(s.kind));
+        }
         let fields: Vec<&str> = s.kind.fields().iter().map(|f| f.key()).collect();
         r.error(
             "field",

@@ -3,10 +3,10 @@
 
 use serde_json::{Map, Value};
 
-use super::reader::{join, Reader};
+use super::reader::{join, kind as value_kind, Reader};
 use super::{Field, Lane, Scenario, ScenarioKind, Table};
 use crate::error::Result;
-use crate::model::MATRIX_ENTRY_LIMIT;
+use crate::model::{Pieces, MATRIX_ENTRY_LIMIT};
 
 /// Top-level keys of each kind.
 fn top_keys(kind: ScenarioKind) -> &'static [&'static str] {
@@ -41,11 +41,14 @@ fn top_keys(kind: ScenarioKind) -> &'static [&'static str] {
 /// Keys of one `lanes` entry for each kind.
 fn lane_keys(kind: ScenarioKind) -> &'static [&'static str] {
     match kind {
-        ScenarioKind::Lanes => &["from", "to", "cost", "capacity"],
+        ScenarioKind::Lanes => &["from", "to", "cost", "capacity", "surcharge"],
         ScenarioKind::ProductLines => &["from", "to", "cost", "volume"],
-        ScenarioKind::Truckloads => &["from", "to", "cost", "truck_cost", "capacity"],
+        ScenarioKind::Truckloads => &["from", "to", "cost", "truck_cost", "capacity", "surcharge"],
     }
 }
+
+/// Keys of one step of a lane's `surcharge`.
+const STEP_KEYS: [&str; 2] = ["above", "per_unit"];
 
 /// The lists of names a scenario declares, shared while its numbers are read.
 struct Names {
@@ -93,12 +96,86 @@ pub(crate) fn scenario(tree: &Value, origin: &str) -> Result<Scenario> {
         lanes,
         truck_capacity,
         tables: Vec::new(),
+        surcharges: Vec::new(),
     };
     for &field in kind.fields() {
         let table = read_table(&r, field, top, &entries, &scenario)?;
         scenario.tables.push(table);
     }
+    let costs = scenario.table(Field::Cost).map(|t| t.values.as_slice());
+    scenario.surcharges = entries
+        .iter()
+        .enumerate()
+        .map(|(i, entry)| match entry.get("surcharge") {
+            Some(steps) => {
+                let cost = costs.and_then(|c| c[i]).unwrap_or(0);
+                surcharge(&r, steps, &format!("lanes[{i}].surcharge"), cost)
+            }
+            None => Ok(None),
+        })
+        .collect::<Result<_>>()?;
     Ok(scenario)
+}
+
+/// One lane's `surcharge` steps as the convex cost of its units; `cost` is the lane's cost per
+/// unit, which the surcharged cost must fit in 64 bits with. An empty list is no surcharge.
+fn surcharge(r: &Reader, value: &Value, at: &str, cost: i64) -> Result<Option<Pieces>> {
+    let steps = value.as_array().ok_or_else(|| {
+        r.error(
+            at,
+            format!(
+                "expected a list of {{ above, per_unit }} steps, found {}",
+                value_kind(value)
+            ),
+        )
+    })?;
+    if steps.is_empty() {
+        return Ok(None);
+    }
+    let mut breaks: Vec<i64> = Vec::with_capacity(steps.len());
+    let mut slopes = vec![0i64];
+    for (k, step) in steps.iter().enumerate() {
+        let here = format!("{at}[{k}]");
+        let map = r.object(step, &here, &STEP_KEYS)?;
+        let number = |key: &str| -> Result<(i64, String)> {
+            let field = join(&here, key);
+            let value = map.get(key).ok_or_else(|| r.error(&field, "missing"))?;
+            Ok((r.int(value, &field)?, field))
+        };
+        let (above, above_at) = number("above")?;
+        if above < 0 {
+            return Err(r.error(&above_at, format!("{above} is negative")));
+        }
+        if let Some(&before) = breaks.last().filter(|&&b| above <= b) {
+            return Err(r.error(
+                &above_at,
+                format!("{above} is not above the step before it ({before})"),
+            ));
+        }
+        let (per_unit, per_unit_at) = number("per_unit")?;
+        if per_unit < 0 {
+            return Err(r.error(
+                &per_unit_at,
+                format!("{per_unit} is negative; a surcharge adds cost, so the cost stays convex"),
+            ));
+        }
+        let slope = slopes[k].checked_add(per_unit).ok_or_else(|| {
+            r.error(
+                &per_unit_at,
+                "the surcharges up to this step add up to more than 64 bits hold",
+            )
+        })?;
+        breaks.push(above);
+        slopes.push(slope);
+    }
+    let pieces = Pieces::new(breaks, slopes).map_err(|fault| r.error(at, fault.to_string()))?;
+    pieces.term(cost).map_err(|_| {
+        r.error(
+            at,
+            format!("with the lane cost {cost}, the surcharged cost does not fit in 64 bits"),
+        )
+    })?;
+    Ok(Some(pieces))
 }
 
 fn scenario_kind(r: &Reader, tree: &Value) -> Result<ScenarioKind> {
@@ -137,7 +214,17 @@ fn lane_entries<'v>(
     items
         .iter()
         .enumerate()
-        .map(|(i, item)| r.object(item, &format!("lanes[{i}]"), lane_keys(kind)))
+        .map(|(i, item)| {
+            let at = format!("lanes[{i}]");
+            if kind == ScenarioKind::ProductLines && item.get("surcharge").is_some() {
+                return Err(r.error(
+                    &join(&at, "surcharge"),
+                    "product_lines scenarios take no surcharge (a product_lines lane carries its \
+                     booked volume); surcharges apply to lanes and truckloads scenarios",
+                ));
+            }
+            r.object(item, &at, lane_keys(kind))
+        })
         .collect()
 }
 

@@ -17,10 +17,18 @@
 //!   (`north->harbour/trucks`, at most the lane's `capacity` trucks); rows as for lanes plus
 //!   `north->harbour/load`: units + spare - C trucks = 0, with the truck capacity `C`.
 //!
+//! A lane of a lanes or truckloads scenario may carry a `surcharge`: a list of steps
+//! `{ above = N, per_unit = S }` (`N >= 0` strictly increasing, `S >= 0`), each unit on the
+//! lane beyond `N` costing `S` more on top of the lane's `cost`. It compiles into the convex
+//! cost ([`Pieces`]) of the lane's units variable, with breaks the steps' `above` and slopes
+//! `0, S_1, S_1 + S_2, ...`; nondecreasing slopes make it convex by construction. Product lines
+//! refuse the key.
+//!
 //! Invariant: the matrix depends only on the kind, the depots, zones, products, lanes and the
 //! truck capacity, never on the day's numbers, so one test set serves every day of a scenario.
 //! The numbers (supply, demand, stock, volume, costs, capacities) are [`Table`]s, one per
-//! [`Field`], which daily changes overwrite by name.
+//! [`Field`], which daily changes overwrite by name. Daily changes touch only those fields:
+//! surcharges stay as in the scenario file.
 
 mod compile;
 mod day_record;
@@ -32,7 +40,7 @@ mod replan;
 use std::path::Path;
 
 use crate::error::{Error, Result};
-use crate::model::{Model, ModelKind};
+use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
 pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
@@ -169,7 +177,8 @@ pub struct Lane {
 ///
 /// Invariant: names are unique within depots, zones and products; lanes are unique pairs;
 /// `tables` holds exactly one table per field of `kind`, named as documented on [`Field`];
-/// `truck_capacity` is `Some(C)` with `1 <= C <= 2^31` exactly for truckloads.
+/// `truck_capacity` is `Some(C)` with `1 <= C <= 2^31` exactly for truckloads;
+/// `surcharges` has one entry per lane, all `None` for product lines.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Scenario {
     /// Which model it compiles into.
@@ -188,6 +197,9 @@ pub struct Scenario {
     pub truck_capacity: Option<i64>,
     /// The numbers, one table per field of the kind.
     pub tables: Vec<Table>,
+    /// Per lane, the convex cost its `surcharge` adds to its units (breaks the steps' `above`,
+    /// slopes the running sums of their `per_unit` after a leading 0); `None` without one.
+    pub surcharges: Vec<Option<Pieces>>,
 }
 
 impl Scenario {

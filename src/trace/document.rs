@@ -3,7 +3,8 @@
 //!
 //! Replaying needs nothing else: `start + sum(length * direction)` over the steps is the
 //! final plan, each step's `before`/`after` is the violation (phase `feasibility`) or the cost
-//! `c.x` (phase `cost`) of the points on either side, and `gain = before - after`.
+//! `c.x + sum_i p_i(x_i)` (phase `cost`; `c.x` without convex costs) of the points on either
+//! side, and `gain = before - after`.
 
 use std::collections::BTreeMap;
 

@@ -1,7 +1,10 @@
 //! Running the `kernstep` binary from the integration tests: paths of the bundled examples,
 //! the command with a private cache directory, exit-code checks that print both streams, and
-//! the answers of scenario days in `batch`'s words.
+//! the answers of scenario days in `batch`'s words; `convex` evaluates a model file's convex
+//! objective independently.
 #![allow(dead_code)] // each test binary uses its own part of this shared module
+
+pub mod convex;
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
