@@ -72,7 +72,31 @@ fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary>
     let model = scenario.compile().unwrap();
     let prepared = prepared_for(&model);
     let text = std::fs::read_to_string(scenarios().join(days_file)).unwrap();
-    let mut warm: Option<WarmStart> = None;
+    // Unchained days on a network all start from the optimum of the scenario's own numbers
+    // (README, batch); the others start cold.
+    let base = match prepared.network_of() {
+        Some(_) if !chain => {
+            let verdict = prepared
+                .solve(&model, &Options::default(), None, &|| false)
+                .unwrap();
+            let Verdict::Flow(flow) = &verdict else {
+                panic!("a network gives a flow verdict")
+            };
+            let FlowOutcome::Optimal {
+                flow, potentials, ..
+            } = &flow.solution.outcome
+            else {
+                panic!("the scenario's own numbers have an optimum")
+            };
+            Some(WarmStart {
+                rhs: model.rhs.clone(),
+                x: flow.clone(),
+                potentials: Some(potentials.clone()),
+            })
+        }
+        _ => None,
+    };
+    let mut warm: Option<WarmStart> = base.clone();
     let mut out = Vec::new();
     for (_, parsed) in parse_day_lines(&scenario, &text, days_file) {
         let day = parsed.unwrap().apply(&model, days_file).unwrap();
