@@ -85,6 +85,7 @@ impl Search {
         self.reached[source] = epoch;
         self.heap.push(Reverse((0, source)));
         let incidence = state.net.incidence();
+        let (flow, cost, potential) = (&state.flow, state.cost, &state.potential);
         while let Some(Reverse((d, v))) = self.heap.pop() {
             if self.settled_in[v] == epoch || d > self.distance[v] {
                 continue;
@@ -97,20 +98,28 @@ impl Search {
             if v == target {
                 return Reach::Found(d);
             }
+            let from = i128::from(potential[v]);
             for &(j, w, v_is_tail) in incidence.of(v) {
                 if j == excluded || self.settled_in[w] == epoch {
                     continue;
                 }
-                let open = if v_is_tail {
-                    state.can_raise(j)
+                // Raising arc (v, w) costs c_j - pi_v + pi_w, lowering arc (w, v) costs
+                // -(c_j - pi_w + pi_v): the same with the cost's sign flipped.
+                let (open, c) = if v_is_tail {
+                    (
+                        state.upper[j].is_none_or(|u| flow[j] < u),
+                        i128::from(cost[j]),
+                    )
                 } else {
-                    state.can_lower(j)
+                    (
+                        state.lower[j].is_none_or(|l| flow[j] > l),
+                        -i128::from(cost[j]),
+                    )
                 };
                 if !open {
                     continue;
                 }
-                let reduced = state.reduced(j);
-                let length = if v_is_tail { reduced } else { -reduced }.max(0);
+                let length = (c + i128::from(potential[w]) - from).max(0);
                 let candidate = d + length;
                 if self.reached[w] != epoch || candidate < self.distance[w] {
                     self.reached[w] = epoch;
