@@ -16,13 +16,13 @@ use std::collections::BinaryHeap;
 
 use super::outcome::CycleArc;
 use super::residual::Residual;
-use crate::error::Result;
+use crate::error::{Error, Result};
 
 /// How a search ended.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) enum Reach {
     /// The target was settled at this distance (below the limit).
-    Found(i128),
+    Found(i64),
     /// Every node nearer than the limit was settled; the target is not among them.
     Limit,
     /// The target cannot be reached; the settled nodes are all that can.
@@ -31,7 +31,7 @@ pub(super) enum Reach {
 
 /// Reusable search buffers, sized for one network.
 pub(super) struct Search {
-    distance: Vec<i128>,
+    distance: Vec<i64>,
     /// The residual move into each reached node.
     via: Vec<CycleArc>,
     /// Per node, the search that last reached it; distances of older searches are stale.
@@ -40,7 +40,7 @@ pub(super) struct Search {
     settled_in: Vec<u32>,
     epoch: u32,
     settled: Vec<usize>,
-    heap: BinaryHeap<Reverse<(i128, usize)>>,
+    heap: BinaryHeap<Reverse<(i64, usize)>>,
 }
 
 impl Search {
@@ -63,7 +63,8 @@ impl Search {
         }
     }
 
-    /// Runs one search from `source` towards `target`, never using arc `excluded`.
+    /// Runs one search from `source` towards `target`, never using arc `excluded`; a distance
+    /// beyond `i64` is an overflow error.
     pub fn run(
         &mut self,
         state: &Residual<'_>,
@@ -71,7 +72,9 @@ impl Search {
         target: usize,
         excluded: usize,
         limit: Option<i128>,
-    ) -> Reach {
+    ) -> Result<Reach> {
+        // A limit beyond `i64` cannot be reached without an overflow error first.
+        let limit = limit.and_then(|l| i64::try_from(l).ok());
         self.epoch = self.epoch.wrapping_add(1);
         if self.epoch == 0 {
             self.reached.fill(0);
@@ -91,12 +94,12 @@ impl Search {
                 continue;
             }
             if limit.is_some_and(|l| d >= l) {
-                return Reach::Limit;
+                return Ok(Reach::Limit);
             }
             self.settled_in[v] = epoch;
             self.settled.push(v);
             if v == target {
-                return Reach::Found(d);
+                return Ok(Reach::Found(d));
             }
             let from = i128::from(potential[v]);
             for &(j, w, v_is_tail) in incidence.of(v) {
@@ -120,7 +123,10 @@ impl Search {
                     continue;
                 }
                 let length = (c + i128::from(potential[w]) - from).max(0);
-                let candidate = d + length;
+                let candidate = i64::try_from(length)
+                    .ok()
+                    .and_then(|length| d.checked_add(length))
+                    .ok_or_else(|| Error::Overflow("network search: path length".into()))?;
                 if self.reached[w] != epoch || candidate < self.distance[w] {
                     self.reached[w] = epoch;
                     self.distance[w] = candidate;
@@ -132,7 +138,7 @@ impl Search {
                 }
             }
         }
-        Reach::Exhausted
+        Ok(Reach::Exhausted)
     }
 
     /// The nodes the last search settled.
@@ -144,7 +150,7 @@ impl Search {
     /// `stop` (see the module doc).
     pub fn update_potentials(&self, state: &mut Residual<'_>, stop: i128) -> Result<()> {
         for &v in &self.settled {
-            let shift = stop - self.distance[v];
+            let shift = stop - i128::from(self.distance[v]);
             if shift != 0 {
                 state.raise_potential(v, shift)?;
             }

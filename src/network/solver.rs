@@ -182,10 +182,11 @@ impl Run<'_, '_> {
                 }
                 let (a, b) = self.ends(j, forward);
                 self.searches += 1;
-                let Reach::Found(distance) = self.search.run(&self.state, b, a, j, None) else {
+                let Reach::Found(distance) = self.search.run(&self.state, b, a, j, None)? else {
                     return Ok(Some(Halt::Infeasible(self.reached_cut())));
                 };
-                self.search.update_potentials(&mut self.state, distance)?;
+                self.search
+                    .update_potentials(&mut self.state, i128::from(distance))?;
                 let cycle = self.cycle(j, forward, a, b);
                 let cap = self.state.violation_of(j);
                 let amount = self.bottleneck(&cycle).map_or(cap, |room| room.min(cap));
@@ -224,7 +225,7 @@ impl Run<'_, '_> {
                 let (a, b) = self.ends(j, forward);
                 let limit = reduced.abs();
                 self.searches += 1;
-                let distance = match self.search.run(&self.state, b, a, j, Some(limit)) {
+                let distance = match self.search.run(&self.state, b, a, j, Some(limit))? {
                     Reach::Found(distance) => distance,
                     Reach::Limit | Reach::Exhausted => {
                         self.search.update_potentials(&mut self.state, limit)?;
@@ -234,7 +235,8 @@ impl Run<'_, '_> {
                 if let Some(halt) = self.may_step() {
                     return Ok(Some(halt));
                 }
-                self.search.update_potentials(&mut self.state, distance)?;
+                self.search
+                    .update_potentials(&mut self.state, i128::from(distance))?;
                 let cycle = self.cycle(j, forward, a, b);
                 let Some(amount) = self.bottleneck(&cycle) else {
                     return Ok(Some(Halt::Unbounded(cycle)));
