@@ -27,7 +27,7 @@ use super::input::{FlowNumbers, FlowOptions, Warm};
 use super::outcome::{Cut, Cycle, CycleArc, FlowOutcome, FlowSolution, Infeasibility, Step};
 use super::residual::Residual;
 use super::search::{Reach, Search};
-use super::start::{preferred, route};
+use super::start::{forest_potentials, preferred, route};
 use super::unbounded::unbounded_cycle;
 use crate::error::{Error, Result};
 
@@ -80,19 +80,24 @@ impl Network {
             )));
         }
         let supply = self.supplies(numbers.rhs);
+        let potential = match warm.and_then(|w| w.potentials) {
+            Some(y) => self.node_potentials(y)?,
+            None => forest_potentials(self, numbers.cost).unwrap_or_else(|| vec![0; self.nodes()]),
+        };
         let mut flow = match warm {
             Some(w) => w.flow.to_vec(),
             None => (0..lower.len())
-                .map(|j| preferred(numbers.cost[j], lower[j], upper[j]))
+                .map(|j| {
+                    let arc = self.arcs()[j];
+                    let reduced = i128::from(numbers.cost[j]) - i128::from(potential[arc.tail])
+                        + i128::from(potential[arc.head]);
+                    preferred(reduced.signum() as i64, lower[j], upper[j])
+                })
                 .collect(),
         };
         if let Some(cut) = route(self, &supply, &mut flow)? {
             return Ok(finished(FlowOutcome::Infeasible(Infeasibility::Cut(cut))));
         }
-        let potential = match warm.and_then(|w| w.potentials) {
-            Some(y) => self.node_potentials(y)?,
-            None => vec![0; self.nodes()],
-        };
         let mut run = Run {
             state: Residual {
                 net: self,

@@ -1,8 +1,11 @@
 //! Start flows: every arc at a chosen value, then the imbalances routed along the spanning
 //! forest so that every node balances (`A x = b` holds exactly, the bounds may not).
 //!
-//! A cold start puts each arc at the bound its cost prefers (lower for a nonnegative cost,
-//! upper for a negative one, 0 or the nearest finite bound when that bound is infinite). A
+//! A cold start first sets potentials that give every forest arc reduced cost 0, then puts
+//! each arc at the bound its reduced cost prefers (lower for a positive one, upper for a
+//! negative one, the value nearest 0 when that bound is infinite or the reduced cost is 0):
+//! every arc off the forest starts in kilter, and a forest arc is out of kilter only where the
+//! routing pushes it past a bound, as in a tree solution of the network simplex method. A
 //! warm start keeps the given flow; when only a few supplies changed, only the forest paths
 //! from those nodes towards their tree's root change, so phase I has a few violations to
 //! repair. A tree whose nodes' supplies do not add up to zero (a set of rows that no arc
@@ -22,6 +25,27 @@ pub(super) fn preferred(c: i64, l: Option<i64>, u: Option<i64>) -> i64 {
         -1 => u.unwrap_or(nearest_zero),
         _ => nearest_zero,
     }
+}
+
+/// Potentials that give every forest arc reduced cost 0 (each tree's root at 0), or `None`
+/// when they would leave `i64`.
+pub(super) fn forest_potentials(net: &Network, cost: &[i64]) -> Option<Vec<i64>> {
+    let forest = net.forest();
+    let arcs = net.arcs();
+    let mut potential = vec![0i64; net.nodes()];
+    for &v in &forest.order {
+        let Some(j) = forest.parent_arc[v] else {
+            continue;
+        };
+        let arc = arcs[j];
+        // c_j - pi_tail + pi_head = 0.
+        potential[v] = if arc.head == v {
+            potential[arc.tail].checked_sub(cost[j])?
+        } else {
+            potential[arc.head].checked_add(cost[j])?
+        };
+    }
+    Some(potential)
 }
 
 /// Makes `flow` balance every node for `supply` by changing forest arcs only; returns the
