@@ -484,3 +484,54 @@ fn forged_cuts_are_rejected() {
     // Claiming an empty range where the range is fine.
     assert!(certificate::check_infeasible(&a, n, &Infeasibility::EmptyRange { arc: 0 }).is_err());
 }
+
+// ---- traces --------------------------------------------------------------------------------
+
+/// Every recorded step of a cold and a chained solve pushes a circuit of `A` (a kernel
+/// vector with entries in {-1, 0, 1}) by a positive amount and lowers its measure; in phase
+/// II the objective falls by exactly the amount times the cycle's cost, and the last step
+/// ends at the reported optimum.
+#[test]
+fn traced_steps_are_circuits_that_lower_the_violation_or_the_cost() {
+    let (fixture, a, net) = lanes_fixture();
+    let options = FlowOptions::default().trace(true);
+    let mut yesterday: Option<(Vec<i64>, Vec<i64>)> = None;
+    let mut phases = [0usize; 2];
+    for day in fixture.days.iter().take(8) {
+        let n = fixture.numbers(day);
+        let previous = yesterday.take();
+        let warm = previous.as_ref().map(|(flow, potentials)| Warm {
+            flow,
+            potentials: Some(potentials),
+        });
+        for start in [None, warm] {
+            let s = net.solve(n, start, &options, &|| false).unwrap();
+            let trace = s.trace.as_ref().unwrap();
+            assert_eq!(trace.len() as u64, s.steps(), "{}", day.id);
+            for step in trace {
+                let g = step.cycle.vector(a.cols());
+                assert!(g.iter().all(|v| v.abs() <= 1) && g.iter().any(|&v| v != 0));
+                assert!(a.mul_vec(&g).unwrap().iter().all(|&v| v == 0), "{step:?}");
+                assert!(step.amount >= 1 && step.after < step.before, "{step:?}");
+                if step.phase == augment::Phase::Optimality {
+                    let rate: i128 = g.iter().zip(n.cost).map(|(&v, &c)| i128::from(v * c)).sum();
+                    assert_eq!(step.after - step.before, rate * i128::from(step.amount));
+                }
+                phases[usize::from(step.phase == augment::Phase::Optimality)] += 1;
+            }
+            if let (FlowOutcome::Optimal { objective, .. }, Some(last)) = (&s.outcome, trace.last())
+            {
+                if last.phase == augment::Phase::Optimality {
+                    assert_eq!(last.after, *objective, "{}", day.id);
+                }
+            }
+            if let FlowOutcome::Optimal {
+                flow, potentials, ..
+            } = &s.outcome
+            {
+                yesterday = Some((flow.clone(), potentials.clone()));
+            }
+        }
+    }
+    assert!(phases[0] > 0 && phases[1] > 0, "{phases:?}");
+}
