@@ -417,7 +417,7 @@ fn a_few_changed_demands_cost_a_few_augmentations_from_yesterday() {
     );
     assert_eq!(flow_answer(&warm.outcome), flow_answer(&cold.outcome));
     assert!(
-        warm.steps() <= 3 && warm.steps() * 10 < cold.steps(),
+        warm.steps() <= 3 && warm.steps() * 4 < cold.steps(),
         "warm {} vs cold {} augmentations",
         warm.steps(),
         cold.steps()

@@ -1,7 +1,10 @@
 //! Start flows: every arc at a chosen value, then the imbalances routed along the spanning
 //! forest so that every node balances (`A x = b` holds exactly, the bounds may not).
 //!
-//! A cold start first sets potentials that give every forest arc reduced cost 0, then puts
+//! A cold start routes along a forest of cheap arcs (`Network::cheap_forest`, built for the
+//! day's costs), a warm start along the network's fixed breadth-first forest, which costs
+//! nothing to build. A cold start first sets potentials that give every forest arc reduced
+//! cost 0, then puts
 //! each arc at the bound its reduced cost prefers (lower for a positive one, upper for a
 //! negative one, the value nearest 0 when that bound is infinite or the reduced cost is 0):
 //! every arc off the forest starts in kilter, and a forest arc is out of kilter only where the
@@ -11,7 +14,7 @@
 //! repair. A tree whose nodes' supplies do not add up to zero (a set of rows that no arc
 //! joins to the rest) has no solution of `A x = b` at all.
 
-use super::graph::Network;
+use super::graph::{Forest, Network};
 use super::outcome::Cut;
 use crate::error::{Error, Result};
 
@@ -29,8 +32,7 @@ pub(super) fn preferred(c: i64, l: Option<i64>, u: Option<i64>) -> i64 {
 
 /// Potentials that give every forest arc reduced cost 0 (each tree's root at 0), or `None`
 /// when they would leave `i64`.
-pub(super) fn forest_potentials(net: &Network, cost: &[i64]) -> Option<Vec<i64>> {
-    let forest = net.forest();
+pub(super) fn forest_potentials(net: &Network, forest: &Forest, cost: &[i64]) -> Option<Vec<i64>> {
     let arcs = net.arcs();
     let mut potential = vec![0i64; net.nodes()];
     for &v in &forest.order {
@@ -50,7 +52,12 @@ pub(super) fn forest_potentials(net: &Network, cost: &[i64]) -> Option<Vec<i64>>
 
 /// Makes `flow` balance every node for `supply` by changing forest arcs only; returns the
 /// rows of a tree that cannot balance, as a [`Cut`], when there is one.
-pub(super) fn route(net: &Network, supply: &[i128], flow: &mut [i64]) -> Result<Option<Cut>> {
+pub(super) fn route(
+    net: &Network,
+    forest: &Forest,
+    supply: &[i128],
+    flow: &mut [i64],
+) -> Result<Option<Cut>> {
     let mut excess = supply.to_vec();
     for (j, arc) in net.arcs().iter().enumerate() {
         if arc.is_loop() {
@@ -60,12 +67,11 @@ pub(super) fn route(net: &Network, supply: &[i128], flow: &mut [i64]) -> Result<
         excess[arc.tail] -= x;
         excess[arc.head] += x;
     }
-    let forest = net.forest();
     let arcs = net.arcs();
     for (position, &v) in forest.order.iter().enumerate().rev() {
         let Some(j) = forest.parent_arc[v] else {
             if excess[v] != 0 && v != net.root() {
-                return Ok(Some(tree_cut(net, position)));
+                return Ok(Some(tree_cut(net, forest, position)));
             }
             continue;
         };
@@ -85,8 +91,7 @@ pub(super) fn route(net: &Network, supply: &[i128], flow: &mut [i64]) -> Result<
 }
 
 /// The rows of the tree that starts at `forest.order[position]`.
-fn tree_cut(net: &Network, position: usize) -> Cut {
-    let forest = net.forest();
+fn tree_cut(net: &Network, forest: &Forest, position: usize) -> Cut {
     let mut weights = vec![0; net.rows()];
     let tree = std::iter::once(forest.order[position]).chain(
         forest.order[position + 1..]
