@@ -27,7 +27,7 @@ use super::input::{FlowNumbers, FlowOptions, Warm};
 use super::outcome::{Cut, Cycle, CycleArc, FlowOutcome, FlowSolution, Infeasibility, Step};
 use super::residual::Residual;
 use super::search::{Reach, Search};
-use super::start::{forest_potentials, preferred, route};
+use super::start::{start, Start};
 use super::unbounded::unbounded_cycle;
 use crate::error::{Error, Result};
 
@@ -79,34 +79,12 @@ impl Network {
                 Infeasibility::EmptyRange { arc },
             )));
         }
-        let supply = self.supplies(numbers.rhs);
-        let cheap;
-        let forest = match warm {
-            Some(_) => self.forest(),
-            None => {
-                cheap = self.cheap_forest(numbers.cost);
-                &cheap
+        let (flow, potential) = match start(self, &numbers, warm)? {
+            Start::Balanced { flow, potential } => (flow, potential),
+            Start::Unbalanced(cut) => {
+                return Ok(finished(FlowOutcome::Infeasible(Infeasibility::Cut(cut))));
             }
         };
-        let potential = match warm.and_then(|w| w.potentials) {
-            Some(y) => self.node_potentials(y)?,
-            None => forest_potentials(self, forest, numbers.cost)
-                .unwrap_or_else(|| vec![0; self.nodes()]),
-        };
-        let mut flow = match warm {
-            Some(w) => w.flow.to_vec(),
-            None => (0..lower.len())
-                .map(|j| {
-                    let arc = self.arcs()[j];
-                    let reduced = i128::from(numbers.cost[j]) - i128::from(potential[arc.tail])
-                        + i128::from(potential[arc.head]);
-                    preferred(reduced.signum() as i64, lower[j], upper[j])
-                })
-                .collect(),
-        };
-        if let Some(cut) = route(self, forest, &supply, &mut flow)? {
-            return Ok(finished(FlowOutcome::Infeasible(Infeasibility::Cut(cut))));
-        }
         let mut run = Run {
             state: Residual {
                 net: self,
@@ -154,27 +132,6 @@ impl Network {
                 "network solve: {what} has {len} entries, the network needs {want}"
             ))),
         }
-    }
-
-    /// Node supplies `row_signs[i] * b_i`, the root's the negative sum.
-    fn supplies(&self, rhs: &[i64]) -> Vec<i128> {
-        let mut supply: Vec<i128> = rhs
-            .iter()
-            .zip(self.row_signs())
-            .map(|(&b, &s)| i128::from(b) * i128::from(s))
-            .collect();
-        supply.push(-supply.iter().sum::<i128>());
-        supply
-    }
-
-    /// Node potentials from row potentials (the root at 0).
-    fn node_potentials(&self, rows: &[i64]) -> Result<Vec<i64>> {
-        rows.iter()
-            .zip(self.row_signs())
-            .map(|(&y, &s)| y.checked_mul(s))
-            .chain(std::iter::once(Some(0)))
-            .collect::<Option<Vec<i64>>>()
-            .ok_or_else(|| Error::Overflow("network solve: warm potentials".into()))
     }
 }
 
