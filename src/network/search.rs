@@ -1,6 +1,8 @@
 //! Shortest paths over the residual network (Dijkstra 1959 with a binary heap), with the
 //! potential update of the primal-dual methods (Ahuja, Magnanti, Orlin, "Network Flows",
-//! 1993, §9.7 and §9.11).
+//! 1993, §9.7 and §9.11). Near an optimum most residual moves have reduced cost 0, so a node
+//! reached at the distance being settled goes on a plain stack instead of the heap: every
+//! node at that distance is a minimum, and they may be settled in any order.
 //!
 //! A residual move of reduced cost `r` has length `max(r, 0)`. Moves of negative reduced cost
 //! are the out-of-kilter ones; clamping them to 0 keeps every length nonnegative. A search
@@ -41,6 +43,9 @@ pub(super) struct Search {
     epoch: u32,
     settled: Vec<usize>,
     heap: BinaryHeap<Reverse<(i64, usize)>>,
+    /// Nodes reached at the distance being settled (by moves of length 0), which need no
+    /// heap: they are settled next, in any order.
+    level: Vec<usize>,
 }
 
 impl Search {
@@ -60,6 +65,7 @@ impl Search {
             epoch: 0,
             settled: Vec::with_capacity(nodes),
             heap: BinaryHeap::with_capacity(nodes),
+            level: Vec::with_capacity(nodes),
         }
     }
 
@@ -84,12 +90,18 @@ impl Search {
         let epoch = self.epoch;
         self.settled.clear();
         self.heap.clear();
+        self.level.clear();
         self.distance[source] = 0;
         self.reached[source] = epoch;
         self.heap.push(Reverse((0, source)));
         let incidence = state.net.incidence();
         let (flow, cost, potential) = (&state.flow, state.cost, &state.potential);
-        while let Some(Reverse((d, v))) = self.heap.pop() {
+        while let Some((d, v)) = self
+            .level
+            .pop()
+            .map(|v| (self.distance[v], v))
+            .or_else(|| self.heap.pop().map(|Reverse(entry)| entry))
+        {
             if self.settled_in[v] == epoch || d > self.distance[v] {
                 continue;
             }
@@ -134,7 +146,11 @@ impl Search {
                         arc: j,
                         forward: v_is_tail,
                     };
-                    self.heap.push(Reverse((candidate, w)));
+                    if candidate == d {
+                        self.level.push(w);
+                    } else {
+                        self.heap.push(Reverse((candidate, w)));
+                    }
                 }
             }
         }
