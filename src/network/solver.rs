@@ -54,8 +54,8 @@ struct Run<'a, 'c> {
 impl Network {
     /// Solves `min c.x, A x = b, l <= x <= u` over this network for `numbers`, from `warm`
     /// (typically yesterday's optimum) or from a cold start. `cancel` is consulted before
-    /// every augmentation. Outcomes are data; `Err` means inputs of the wrong length, a
-    /// warm-start potential vector of the wrong length, or an integer overflow.
+    /// every augmentation. Outcomes are data; `Err` means an input (numbers or warm start) of
+    /// the wrong length, or an integer overflow.
     pub fn solve(
         &self,
         numbers: FlowNumbers<'_>,

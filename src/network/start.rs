@@ -1,18 +1,20 @@
-//! Start flows: every arc at a chosen value, then the imbalances routed along the spanning
+//! Start flows: every arc at a chosen value, then the imbalances routed along a spanning
 //! forest so that every node balances (`A x = b` holds exactly, the bounds may not).
 //!
-//! A cold start routes along a forest of cheap arcs (`Network::cheap_forest`, built for the
-//! day's costs), a warm start along the network's fixed breadth-first forest, which costs
-//! nothing to build. A cold start first sets potentials that give every forest arc reduced
-//! cost 0, then puts
-//! each arc at the bound its reduced cost prefers (lower for a positive one, upper for a
-//! negative one, the value nearest 0 when that bound is infinite or the reduced cost is 0):
-//! every arc off the forest starts in kilter, and a forest arc is out of kilter only where the
-//! routing pushes it past a bound, as in a tree solution of the network simplex method. A
-//! warm start keeps the given flow; when only a few supplies changed, only the forest paths
-//! from those nodes towards their tree's root change, so phase I has a few violations to
-//! repair. A tree whose nodes' supplies do not add up to zero (a set of rows that no arc
-//! joins to the rest) has no solution of `A x = b` at all.
+//! A cold start builds a forest of cheap arcs for the day's costs (`Network::cheap_forest`),
+//! sets potentials that give every forest arc reduced cost 0, and puts every arc at the bound
+//! its reduced cost prefers (lower for a positive one, upper for a negative one, the value
+//! nearest 0 when that bound is infinite or the reduced cost is 0). Every arc off the forest
+//! then starts in kilter, and a forest arc is out of kilter only where the routing pushes it
+//! past a bound, as in a tree solution of the network simplex method.
+//!
+//! A warm start keeps the given flow and routes along the network's fixed breadth-first
+//! forest, which costs nothing to build; when only a few supplies changed, only the forest
+//! paths from those nodes towards their tree's root change, so phase I has a few violations
+//! to repair.
+//!
+//! A tree whose nodes' supplies do not add up to zero (a set of rows that no arc joins to the
+//! rest) has no solution of `A x = b` at all.
 
 use super::graph::{Forest, Network};
 use super::input::{FlowNumbers, Warm};
