@@ -352,8 +352,8 @@ impl Fixture {
     }
 }
 
-/// Every day of the fixture, cold and chained from the day before, has the status and the
-/// optimum that HiGHS 1.16.0 (through highspy, `scripts/network_reference.py`) recorded, and
+/// Every day of the fixture, cold and chained from the day before (with and without its
+/// potentials), has the status and the optimum that HiGHS 1.16.0 (through highspy, `scripts/network_reference.py`) recorded, and
 /// every answer passes the independent check.
 #[test]
 fn lane_days_match_the_highs_reference() {
@@ -380,6 +380,19 @@ fn lane_days_match_the_highs_reference() {
             day.id
         );
         certificate::check(&a, n, &chained.outcome).unwrap();
+        // Yesterday's flow alone, without its potentials, is a valid start too.
+        let flow_only = yesterday.as_ref().map(|(flow, _)| Warm {
+            flow,
+            potentials: None,
+        });
+        let from_flow = solve(&net, n, flow_only);
+        assert_eq!(
+            flow_answer(&from_flow.outcome),
+            want,
+            "{} from the flow",
+            day.id
+        );
+        certificate::check(&a, n, &from_flow.outcome).unwrap();
         match chained.outcome {
             FlowOutcome::Optimal {
                 flow, potentials, ..
