@@ -6,7 +6,7 @@
 //! the demands of 3 zones and the costs of 3 lanes of the day before), and solves every day
 //! cold and chained (each day warm-started from the day before's optimum). It prints days per
 //! second for both, the mean augmentations and searches per day, and how many days the two
-//! runs agree on (they must agree on all).
+//! runs agree on (they must agree on all). Sizes given as arguments (`-- 20x100`) run alone.
 
 use std::time::Instant;
 
@@ -123,8 +123,15 @@ fn objective(s: &FlowSolution) -> Option<i128> {
 
 fn main() {
     let options = FlowOptions::default();
+    let chosen: Vec<String> = std::env::args()
+        .skip(1)
+        .filter(|a| !a.starts_with("--"))
+        .collect();
     println!("depots x zones  arcs  nodes  cold days/s  chained days/s  steps/day cold  chained  searches/day cold  chained  agree  optimal");
     for (depots, zones) in [(10, 50), (20, 100), (50, 500)] {
+        if !chosen.is_empty() && !chosen.contains(&format!("{depots}x{zones}")) {
+            continue;
+        }
         let mut draw = Draw(0x6b65_726e + depots as u64);
         let plan = plan(depots, zones, &mut draw);
         let days = days(&plan, zones, &mut draw);

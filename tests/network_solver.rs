@@ -353,8 +353,8 @@ impl Fixture {
     }
 }
 
-/// Every day of the fixture, cold and chained from the day before, has the status and the
-/// optimum that HiGHS 1.16.0 (through highspy, `scripts/network_reference.py`) recorded, and
+/// Every day of the fixture, cold and chained from the day before (with and without its
+/// potentials), has the status and the optimum that HiGHS 1.16.0 (through highspy, `scripts/network_reference.py`) recorded, and
 /// every answer passes the independent check.
 #[test]
 fn lane_days_match_the_highs_reference() {
@@ -381,6 +381,19 @@ fn lane_days_match_the_highs_reference() {
             day.id
         );
         certificate::check(&a, n, &chained.outcome).unwrap();
+        // Yesterday's flow alone, without its potentials, is a valid start too.
+        let flow_only = yesterday.as_ref().map(|(flow, _)| Warm {
+            flow,
+            potentials: None,
+        });
+        let from_flow = solve(&net, n, flow_only);
+        assert_eq!(
+            flow_answer(&from_flow.outcome),
+            want,
+            "{} from the flow",
+            day.id
+        );
+        certificate::check(&a, n, &from_flow.outcome).unwrap();
         match chained.outcome {
             FlowOutcome::Optimal {
                 flow, potentials, ..
@@ -418,7 +431,7 @@ fn a_few_changed_demands_cost_a_few_augmentations_from_yesterday() {
     );
     assert_eq!(flow_answer(&warm.outcome), flow_answer(&cold.outcome));
     assert!(
-        warm.steps() <= 3 && warm.steps() * 10 < cold.steps(),
+        warm.steps() <= 3 && warm.steps() * 4 < cold.steps(),
         "warm {} vs cold {} augmentations",
         warm.steps(),
         cold.steps()
@@ -484,4 +497,55 @@ fn forged_cuts_are_rejected() {
     assert!(certificate::check_infeasible(&a, n, &Infeasibility::Cut(everything)).is_err());
     // Claiming an empty range where the range is fine.
     assert!(certificate::check_infeasible(&a, n, &Infeasibility::EmptyRange { arc: 0 }).is_err());
+}
+
+// ---- traces --------------------------------------------------------------------------------
+
+/// Every recorded step of a cold and a chained solve pushes a circuit of `A` (a kernel
+/// vector with entries in {-1, 0, 1}) by a positive amount and lowers its measure; in phase
+/// II the objective falls by exactly the amount times the cycle's cost, and the last step
+/// ends at the reported optimum.
+#[test]
+fn traced_steps_are_circuits_that_lower_the_violation_or_the_cost() {
+    let (fixture, a, net) = lanes_fixture();
+    let options = FlowOptions::default().trace(true);
+    let mut yesterday: Option<(Vec<i64>, Vec<i64>)> = None;
+    let mut phases = [0usize; 2];
+    for day in fixture.days.iter().take(8) {
+        let n = fixture.numbers(day);
+        let previous = yesterday.take();
+        let warm = previous.as_ref().map(|(flow, potentials)| Warm {
+            flow,
+            potentials: Some(potentials),
+        });
+        for start in [None, warm] {
+            let s = net.solve(n, start, &options, &|| false).unwrap();
+            let trace = s.trace.as_ref().unwrap();
+            assert_eq!(trace.len() as u64, s.steps(), "{}", day.id);
+            for step in trace {
+                let g = step.cycle.vector(a.cols());
+                assert!(g.iter().all(|v| v.abs() <= 1) && g.iter().any(|&v| v != 0));
+                assert!(a.mul_vec(&g).unwrap().iter().all(|&v| v == 0), "{step:?}");
+                assert!(step.amount >= 1 && step.after < step.before, "{step:?}");
+                if step.phase == augment::Phase::Optimality {
+                    let rate: i128 = g.iter().zip(n.cost).map(|(&v, &c)| i128::from(v * c)).sum();
+                    assert_eq!(step.after - step.before, rate * i128::from(step.amount));
+                }
+                phases[usize::from(step.phase == augment::Phase::Optimality)] += 1;
+            }
+            if let (FlowOutcome::Optimal { objective, .. }, Some(last)) = (&s.outcome, trace.last())
+            {
+                if last.phase == augment::Phase::Optimality {
+                    assert_eq!(last.after, *objective, "{}", day.id);
+                }
+            }
+            if let FlowOutcome::Optimal {
+                flow, potentials, ..
+            } = &s.outcome
+            {
+                yesterday = Some((flow.clone(), potentials.clone()));
+            }
+        }
+    }
+    assert!(phases[0] > 0 && phases[1] > 0, "{phases:?}");
 }

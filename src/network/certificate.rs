@@ -281,3 +281,102 @@ fn bounds_text(l: Option<i64>, u: Option<i64>) -> String {
 fn refuted(claim: &'static str, why: String) -> Error {
     Error::Refuted { claim, why }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::network::CycleArc;
+
+    /// Two depots (supplies 3, 2), three shops (demands 1, 2, 2), `x_ij` row-major.
+    fn transport() -> IntMatrix {
+        IntMatrix::from_rows(&[
+            vec![1, 1, 1, 0, 0, 0],
+            vec![0, 0, 0, 1, 1, 1],
+            vec![1, 0, 0, 1, 0, 0],
+            vec![0, 1, 0, 0, 1, 0],
+            vec![0, 0, 1, 0, 0, 1],
+        ])
+        .unwrap()
+    }
+
+    const COST: [i64; 6] = [4, 1, 3, 2, 5, 1];
+
+    fn numbers<'a>(lower: &'a [Option<i64>], upper: &'a [Option<i64>]) -> FlowNumbers<'a> {
+        FlowNumbers {
+            rhs: &[3, 2, 1, 2, 2],
+            cost: &COST,
+            lower,
+            upper,
+        }
+    }
+
+    /// Worked by hand: with `y = (0, -2, 4, 1, 3)` the reduced costs are `(0, 0, 0, 0, 6, 0)`;
+    /// only `x_11` has a nonzero one, and it sits at its lower bound 0.
+    #[test]
+    fn hand_worked_potentials_prove_the_plan_of_cost_8() {
+        let a = transport();
+        let n = numbers(&[Some(0); 6], &[None; 6]);
+        let flow = [0, 2, 1, 1, 0, 1];
+        check_optimal(&a, n, &flow, &[0, -2, 4, 1, 3]).unwrap();
+        // Shop 1's potential up by 7: x_01 (inside its bounds) gets reduced cost -7.
+        let err = check_optimal(&a, n, &flow, &[0, -2, 4, 8, 3]).unwrap_err();
+        assert!(
+            err.to_string().contains("column 1 has reduced cost -7"),
+            "{err}"
+        );
+        // A plan off A x = b is refused whatever the potentials.
+        let err = check_optimal(&a, n, &[0, 2, 1, 1, 0, 0], &[0, -2, 4, 1, 3]).unwrap_err();
+        assert!(
+            err.to_string().contains("row 1 of A x is 1, b is 2"),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn a_cut_must_exceed_its_capacity() {
+        let a = transport();
+        // Shop 0 (row 2, sign -1 in network terms) needs 1 and can receive at most 0.
+        let upper = [Some(0), None, None, Some(0), None, None];
+        let n = numbers(&[Some(0); 6], &upper);
+        let shop = Cut {
+            weights: vec![0, 0, -1, 0, 0],
+        };
+        check_infeasible(&a, n, &Infeasibility::Cut(shop.clone())).unwrap();
+        let open = numbers(&[Some(0); 6], &[None; 6]);
+        assert!(check_infeasible(&a, open, &Infeasibility::Cut(shop)).is_err());
+    }
+
+    #[test]
+    fn a_ray_must_be_a_kernel_vector_of_negative_cost_without_limits() {
+        let a = transport();
+        let lower = [Some(0), None, Some(0), None, Some(0), Some(0)];
+        let n = numbers(&lower, &[None; 6]);
+        let flow = [0, 2, 1, 1, 0, 1];
+        let arc = |arc, forward| CycleArc { arc, forward };
+        // x_01 down, x_11 up, x_10 down, x_00 up: cost -1 + 5 - 2 + 4 = 6, not negative.
+        let cycle = Cycle {
+            arcs: vec![arc(1, false), arc(4, true), arc(3, false), arc(0, true)],
+        };
+        let err = check_unbounded(&a, n, &flow, &cycle).unwrap_err();
+        assert!(err.to_string().contains("c.g is 6"), "{err}");
+        let mut cheap = COST;
+        cheap[4] = -9;
+        let n = FlowNumbers { cost: &cheap, ..n };
+        check_unbounded(&a, n, &flow, &cycle).unwrap();
+        let broken = Cycle {
+            arcs: cycle.arcs[..3].to_vec(),
+        };
+        assert!(check_unbounded(&a, n, &flow, &broken).is_err());
+        let limited = [Some(0), Some(0), Some(0), None, Some(0), Some(0)];
+        let n = FlowNumbers {
+            lower: &limited,
+            ..n
+        };
+        let err = check_unbounded(&a, n, &flow, &cycle).unwrap_err();
+        assert!(
+            err.to_string()
+                .contains("moves column 1 towards its bound 0"),
+            "{err}"
+        );
+    }
+}

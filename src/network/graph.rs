@@ -10,6 +10,9 @@
 //! `supply_i = row_signs[i] * b_i` for rows and `supply_root = -sum_i supply_i`, which is row
 //! `i` of `A x = b` multiplied by its sign.
 
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
 /// One arc of the network, by node index (the root is [`Network::root`]).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Arc {
@@ -100,6 +103,37 @@ impl Network {
 
     pub(super) fn forest(&self) -> &Forest {
         &self.forest
+    }
+
+    /// A spanning forest of cheap arcs for a cold start: Prim's algorithm (Prim 1957) with
+    /// weights `|c_j|`, from the root first and then from each row not yet reached. Flow
+    /// routed along cheap arcs starts nearer the optimum than along arbitrary ones.
+    pub(super) fn cheap_forest(&self, cost: &[i64]) -> Forest {
+        let nodes = self.nodes();
+        let mut parent_arc = vec![None; nodes];
+        let mut seen = vec![false; nodes];
+        let mut order = Vec::with_capacity(nodes);
+        let mut heap = BinaryHeap::new();
+        for start in std::iter::once(self.rows).chain(0..self.rows) {
+            if seen[start] {
+                continue;
+            }
+            heap.push(Reverse((0u64, start, None)));
+            while let Some(Reverse((_, v, arc))) = heap.pop() {
+                if seen[v] {
+                    continue;
+                }
+                seen[v] = true;
+                parent_arc[v] = arc;
+                order.push(v);
+                for &(j, w, _) in self.incidence.of(v) {
+                    if !seen[w] {
+                        heap.push(Reverse((cost[j].unsigned_abs(), w, Some(j))));
+                    }
+                }
+            }
+        }
+        Forest { order, parent_arc }
     }
 }
 

@@ -22,7 +22,7 @@ pub struct Warm<'a> {
     /// A flow, one value per arc; it need not meet today's `A x = b` or bounds.
     pub flow: &'a [i64],
     /// Row potentials as [`FlowOutcome::Optimal`](super::FlowOutcome::Optimal) returns them;
-    /// `None` starts from zero potentials.
+    /// `None` starts from potentials that price every arc of a spanning forest at 0.
     pub potentials: Option<&'a [i64]>,
 }
 

@@ -31,9 +31,12 @@
 //!   arcs on those forest paths (and arcs whose cost changed) out of kilter, so a day that
 //!   changes a few demands costs a few searches. A spanning-tree simplex would first need a
 //!   basis rebuilt around the changed flow.
-//! - Cold starts behave like successive shortest paths (AMO §9.7): every supply is routed
-//!   along a cheapest path under the current potentials, which on transport networks takes
-//!   about one search per node, each a few hundred arc looks on 120 nodes and 400 arcs.
+//! - Cold starts begin from a tree solution as the network simplex method does: flow routed
+//!   along a spanning forest of cheap arcs (Prim's algorithm on `|c_j|`), potentials that
+//!   price the forest at 0, every other arc at the bound its reduced cost prefers. Then only
+//!   forest arcs pushed past a bound are out of kilter, and each repair routes flow along a
+//!   cheapest path under the current potentials as successive shortest paths do (AMO §9.7):
+//!   on 20 depots x 100 zones about 46 searches a day, each a few hundred arc looks.
 //! - Every augmentation is a cycle (a Graver element of `A`) with an integer amount, so a
 //!   trace is the same kind of object as the test-set solver's.
 //! - All arithmetic is exact: flows and potentials in `i64`, reduced costs and distances in

@@ -4,8 +4,8 @@
 //! An arc `j = (u, v)` can be raised while `x_j < u_j` and lowered while `x_j > l_j`; an arc
 //! outside its bounds can only be moved towards them, so no residual move ever makes the
 //! bound violation worse. Its reduced cost is `c_j - pi_u + pi_v`; raising it costs that,
-//! lowering it the negative. Reduced costs and distances are `i128`: three `i64` terms, and
-//! path sums of fewer than `2^60` of them, cannot overflow it.
+//! lowering it the negative. Reduced costs are `i128` (three `i64` terms cannot overflow it);
+//! the searches keep path lengths in checked `i64`.
 
 use super::graph::Network;
 use crate::error::{Error, Result};

@@ -1,6 +1,8 @@
 //! Shortest paths over the residual network (Dijkstra 1959 with a binary heap), with the
 //! potential update of the primal-dual methods (Ahuja, Magnanti, Orlin, "Network Flows",
-//! 1993, §9.7 and §9.11).
+//! 1993, §9.7 and §9.11). Near an optimum most residual moves have reduced cost 0, so a node
+//! reached at the distance being settled goes on a plain stack instead of the heap: every
+//! node at that distance is a minimum, and they may be settled in any order.
 //!
 //! A residual move of reduced cost `r` has length `max(r, 0)`. Moves of negative reduced cost
 //! are the out-of-kilter ones; clamping them to 0 keeps every length nonnegative. A search
@@ -16,13 +18,13 @@ use std::collections::BinaryHeap;
 
 use super::outcome::CycleArc;
 use super::residual::Residual;
-use crate::error::Result;
+use crate::error::{Error, Result};
 
 /// How a search ended.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) enum Reach {
     /// The target was settled at this distance (below the limit).
-    Found(i128),
+    Found(i64),
     /// Every node nearer than the limit was settled; the target is not among them.
     Limit,
     /// The target cannot be reached; the settled nodes are all that can.
@@ -31,7 +33,7 @@ pub(super) enum Reach {
 
 /// Reusable search buffers, sized for one network.
 pub(super) struct Search {
-    distance: Vec<i128>,
+    distance: Vec<i64>,
     /// The residual move into each reached node.
     via: Vec<CycleArc>,
     /// Per node, the search that last reached it; distances of older searches are stale.
@@ -40,7 +42,10 @@ pub(super) struct Search {
     settled_in: Vec<u32>,
     epoch: u32,
     settled: Vec<usize>,
-    heap: BinaryHeap<Reverse<(i128, usize)>>,
+    heap: BinaryHeap<Reverse<(i64, usize)>>,
+    /// Nodes reached at the distance being settled (by moves of length 0), which need no
+    /// heap: they are settled next, in any order.
+    level: Vec<usize>,
 }
 
 impl Search {
@@ -60,10 +65,12 @@ impl Search {
             epoch: 0,
             settled: Vec::with_capacity(nodes),
             heap: BinaryHeap::with_capacity(nodes),
+            level: Vec::with_capacity(nodes),
         }
     }
 
-    /// Runs one search from `source` towards `target`, never using arc `excluded`.
+    /// Runs one search from `source` towards `target`, never using arc `excluded`; a distance
+    /// beyond `i64` is an overflow error.
     pub fn run(
         &mut self,
         state: &Residual<'_>,
@@ -71,7 +78,9 @@ impl Search {
         target: usize,
         excluded: usize,
         limit: Option<i128>,
-    ) -> Reach {
+    ) -> Result<Reach> {
+        // A limit beyond `i64` cannot be reached without an overflow error first.
+        let limit = limit.and_then(|l| i64::try_from(l).ok());
         self.epoch = self.epoch.wrapping_add(1);
         if self.epoch == 0 {
             self.reached.fill(0);
@@ -81,37 +90,55 @@ impl Search {
         let epoch = self.epoch;
         self.settled.clear();
         self.heap.clear();
+        self.level.clear();
         self.distance[source] = 0;
         self.reached[source] = epoch;
         self.heap.push(Reverse((0, source)));
         let incidence = state.net.incidence();
-        while let Some(Reverse((d, v))) = self.heap.pop() {
+        let (flow, cost, potential) = (&state.flow, state.cost, &state.potential);
+        while let Some((d, v)) = self
+            .level
+            .pop()
+            .map(|v| (self.distance[v], v))
+            .or_else(|| self.heap.pop().map(|Reverse(entry)| entry))
+        {
             if self.settled_in[v] == epoch || d > self.distance[v] {
                 continue;
             }
             if limit.is_some_and(|l| d >= l) {
-                return Reach::Limit;
+                return Ok(Reach::Limit);
             }
             self.settled_in[v] = epoch;
             self.settled.push(v);
             if v == target {
-                return Reach::Found(d);
+                return Ok(Reach::Found(d));
             }
+            let from = i128::from(potential[v]);
             for &(j, w, v_is_tail) in incidence.of(v) {
                 if j == excluded || self.settled_in[w] == epoch {
                     continue;
                 }
-                let open = if v_is_tail {
-                    state.can_raise(j)
+                // Raising arc (v, w) costs c_j - pi_v + pi_w, lowering arc (w, v) costs
+                // -(c_j - pi_w + pi_v): the same with the cost's sign flipped.
+                let (open, c) = if v_is_tail {
+                    (
+                        state.upper[j].is_none_or(|u| flow[j] < u),
+                        i128::from(cost[j]),
+                    )
                 } else {
-                    state.can_lower(j)
+                    (
+                        state.lower[j].is_none_or(|l| flow[j] > l),
+                        -i128::from(cost[j]),
+                    )
                 };
                 if !open {
                     continue;
                 }
-                let reduced = state.reduced(j);
-                let length = if v_is_tail { reduced } else { -reduced }.max(0);
-                let candidate = d + length;
+                let length = (c + i128::from(potential[w]) - from).max(0);
+                let candidate = i64::try_from(length)
+                    .ok()
+                    .and_then(|length| d.checked_add(length))
+                    .ok_or_else(|| Error::Overflow("network search: path length".into()))?;
                 if self.reached[w] != epoch || candidate < self.distance[w] {
                     self.reached[w] = epoch;
                     self.distance[w] = candidate;
@@ -119,11 +146,15 @@ impl Search {
                         arc: j,
                         forward: v_is_tail,
                     };
-                    self.heap.push(Reverse((candidate, w)));
+                    if candidate == d {
+                        self.level.push(w);
+                    } else {
+                        self.heap.push(Reverse((candidate, w)));
+                    }
                 }
             }
         }
-        Reach::Exhausted
+        Ok(Reach::Exhausted)
     }
 
     /// The nodes the last search settled.
@@ -135,7 +166,7 @@ impl Search {
     /// `stop` (see the module doc).
     pub fn update_potentials(&self, state: &mut Residual<'_>, stop: i128) -> Result<()> {
         for &v in &self.settled {
-            let shift = stop - self.distance[v];
+            let shift = stop - i128::from(self.distance[v]);
             if shift != 0 {
                 state.raise_potential(v, shift)?;
             }

@@ -18,16 +18,23 @@ pub(super) fn unbounded_cycle(
     lower: &[Option<i64>],
     upper: &[Option<i64>],
 ) -> Option<Cycle> {
-    let mut moves: Vec<Move> = Vec::new();
-    for (j, arc) in net.arcs().iter().enumerate() {
+    let open = |j: usize| {
         let c = i128::from(cost[j]);
-        for (open, forward, rate) in [
+        [
             (upper[j].is_none(), true, c),
             (lower[j].is_none(), false, -c),
-        ] {
-            if !open {
-                continue;
-            }
+        ]
+        .into_iter()
+        .filter(|&(open, _, _)| open)
+        .map(|(_, forward, rate)| (forward, rate))
+    };
+    // Most days no move without limit has negative cost: one pass, nothing built.
+    if (0..cost.len()).all(|j| open(j).all(|(_, rate)| rate >= 0)) {
+        return None;
+    }
+    let mut moves: Vec<Move> = Vec::new();
+    for (j, arc) in net.arcs().iter().enumerate() {
+        for (forward, rate) in open(j) {
             if arc.is_loop() {
                 if rate < 0 {
                     return Some(Cycle {
@@ -43,9 +50,6 @@ pub(super) fn unbounded_cycle(
             };
             moves.push((from, to, j, forward, rate));
         }
-    }
-    if moves.iter().all(|m| m.4 >= 0) {
-        return None;
     }
     negative_cycle(net.nodes(), &moves)
 }
