@@ -18,6 +18,8 @@ fn exported_moves(cache: &Path, scenario: &Path) -> Vec<Vec<i64>> {
     let out = cache.join("set.json");
     let args = [
         "build",
+        "--engine",
+        "moves",
         scenario.to_str().unwrap(),
         "--out",
         out.to_str().unwrap(),

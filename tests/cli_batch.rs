@@ -475,7 +475,11 @@ fn without_a_cached_set_batch_says_what_to_build_and_that_build_serves_it() {
     );
     assert!(stderr.contains(&command), "{stderr}");
     // The overnight step on the scenario file itself, then the day's batch finds the set.
-    let (stdout, _) = expect(cache.path(), &["build", scenario.to_str().unwrap()], 0);
+    let (stdout, _) = expect(
+        cache.path(),
+        &["build", "--engine", "moves", scenario.to_str().unwrap()],
+        0,
+    );
     assert!(stdout.contains("built"), "{stdout}");
     let (_, stderr) = expect(cache.path(), &args, 1);
     assert!(stderr.contains("cached"), "{stderr}");

@@ -41,7 +41,11 @@ fn path_str(p: &Path) -> &str {
 fn a_directory_of_models_gives_one_summary_row_each() {
     let cache_dir = tempfile::tempdir().unwrap();
     let ex = examples();
-    let table = expect(cache_dir.path(), &["build", path_str(&ex)], 0);
+    let table = expect(
+        cache_dir.path(),
+        &["build", "--engine", "moves", path_str(&ex)],
+        0,
+    );
     let lines: Vec<&str> = table.lines().collect();
     assert!(lines[0].starts_with("model") && lines[0].contains("status"));
     let models = ["json", "toml"]
@@ -52,7 +56,11 @@ fn a_directory_of_models_gives_one_summary_row_each() {
     assert!(lines[1..].iter().all(|l| l.ends_with("built")), "{table}");
     assert_eq!(entries(cache_dir.path()).len(), models);
 
-    let again = json(cache_dir.path(), &["build", path_str(&ex), "--json"], 0);
+    let again = json(
+        cache_dir.path(),
+        &["build", "--engine", "moves", path_str(&ex), "--json"],
+        0,
+    );
     let rows = again.as_array().unwrap();
     assert_eq!(rows.len(), models);
     for row in rows {
@@ -80,7 +88,13 @@ fn a_bad_model_among_good_ones_exits_2_and_the_others_are_stored() {
     let cache_dir = tempfile::tempdir().unwrap();
     let out = kernstep(
         cache_dir.path(),
-        &["build", path_str(models.path()), "--json"],
+        &[
+            "build",
+            "--engine",
+            "moves",
+            path_str(models.path()),
+            "--json",
+        ],
     );
     assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
     let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
@@ -103,7 +117,7 @@ fn a_missing_model_fails_with_the_os_error_said_once() {
     let missing = cache_dir.path().join("absent.json");
     let rows = json(
         cache_dir.path(),
-        &["build", path_str(&missing), "--json"],
+        &["build", "--engine", "moves", path_str(&missing), "--json"],
         2,
     );
     let status = rows[0]["status"].as_str().unwrap();
@@ -118,10 +132,21 @@ fn a_missing_model_fails_with_the_os_error_said_once() {
 fn rebuild_replaces_a_valid_entry_with_an_equal_one() {
     let cache_dir = tempfile::tempdir().unwrap();
     let model = examples().join("transport_3x3.json");
-    let first = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+    let first = json(
+        cache_dir.path(),
+        &["build", "--engine", "moves", path_str(&model), "--json"],
+        0,
+    );
     let again = json(
         cache_dir.path(),
-        &["build", path_str(&model), "--rebuild", "--json"],
+        &[
+            "build",
+            "--engine",
+            "moves",
+            path_str(&model),
+            "--rebuild",
+            "--json",
+        ],
         0,
     );
     assert_eq!(first[0]["status"], "built");
@@ -141,7 +166,7 @@ fn limits_stop_a_build_with_exit_1_and_leave_no_entry() {
         &["--time-limit", "0.000001"][..],
     ] {
         let cache_dir = tempfile::tempdir().unwrap();
-        let mut args = vec!["build", path_str(&model), "--json"];
+        let mut args = vec!["build", "--engine", "moves", path_str(&model), "--json"];
         args.extend_from_slice(limit);
         let rows = json(cache_dir.path(), &args, 1);
         let status = rows[0]["status"].as_str().unwrap();
@@ -149,7 +174,11 @@ fn limits_stop_a_build_with_exit_1_and_leave_no_entry() {
         assert!(rows[0]["elements"].is_null());
         assert!(entries(cache_dir.path()).is_empty(), "{limit:?}");
         // A stopped build may leave a checkpoint the next run resumes from.
-        let rows = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+        let rows = json(
+            cache_dir.path(),
+            &["build", "--engine", "moves", path_str(&model), "--json"],
+            0,
+        );
         let status = rows[0]["status"].as_str().unwrap();
         assert!(status.starts_with("built"), "{limit:?}: {status}");
         assert_eq!(rows[0]["elements"], 15);
@@ -164,7 +193,15 @@ fn out_writes_the_set_the_cache_holds() {
     let model = examples().join("twisted_cubic.json");
     let written = json(
         cache_dir.path(),
-        &["build", path_str(&model), "--out", path_str(&out), "--json"],
+        &[
+            "build",
+            "--engine",
+            "moves",
+            path_str(&model),
+            "--out",
+            path_str(&out),
+            "--json",
+        ],
         0,
     );
     assert!(written[0]["status"]
@@ -175,7 +212,11 @@ fn out_writes_the_set_the_cache_holds() {
         entries(cache_dir.path()).is_empty(),
         "--out bypasses the cache"
     );
-    let stored = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
+    let stored = json(
+        cache_dir.path(),
+        &["build", "--engine", "moves", path_str(&model), "--json"],
+        0,
+    );
     assert_eq!(written[0]["key"], stored[0]["key"]);
 
     let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
@@ -190,7 +231,14 @@ fn out_writes_the_set_the_cache_holds() {
 
     let two = kernstep(
         cache_dir.path(),
-        &["build", path_str(&examples()), "--out", path_str(&out)],
+        &[
+            "build",
+            "--engine",
+            "moves",
+            path_str(&examples()),
+            "--out",
+            path_str(&out),
+        ],
     );
     assert_eq!(two.status.code(), Some(2));
     assert!(text(&two.stderr).contains("exactly one model"));
@@ -201,7 +249,15 @@ fn two_builders_of_one_model_store_one_entry() {
     let models = tempfile::tempdir().unwrap();
     let model = transport_model(models.path(), 4, 6);
     let cache_dir = tempfile::tempdir().unwrap();
-    let args = ["build", path_str(&model), "--norm-limit", "none", "--json"];
+    let args = [
+        "build",
+        "--engine",
+        "moves",
+        path_str(&model),
+        "--norm-limit",
+        "none",
+        "--json",
+    ];
     let mut statuses: Vec<String> = run_concurrently(cache_dir.path(), &args, 2)
         .into_iter()
         .map(|out| {
@@ -282,7 +338,15 @@ fn resumed_build(
 fn a_killed_build_resumes_from_its_checkpoint_and_gives_the_same_set() {
     let models = tempfile::tempdir().unwrap();
     let model = transport_model(models.path(), 5, 5);
-    let args = ["build", path_str(&model), "--norm-limit", "none", "--json"];
+    let args = [
+        "build",
+        "--engine",
+        "moves",
+        path_str(&model),
+        "--norm-limit",
+        "none",
+        "--json",
+    ];
     // Shortest of two runs each, so that a burst of load on a shared machine does not decide.
     let fresh = fastest_fresh_build(&args, 2);
 

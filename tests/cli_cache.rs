@@ -16,7 +16,10 @@ fn json(cache: &Path, args: &[&str]) -> Value {
 fn filled() -> (tempfile::TempDir, Vec<String>) {
     let dir = tempfile::tempdir().unwrap();
     let ex = examples();
-    let summary = json(dir.path(), &["build", ex.to_str().unwrap(), "--json"]);
+    let summary = json(
+        dir.path(),
+        &["build", "--engine", "moves", ex.to_str().unwrap(), "--json"],
+    );
     let mut keys: Vec<String> = summary
         .as_array()
         .unwrap()
@@ -84,7 +87,10 @@ fn an_empty_cache_lists_only_the_header() {
 fn show_prints_key_metadata_counts_encoding_and_size() {
     let (dir, _) = filled();
     let ex = examples().join("transport_3x3.json");
-    let built = json(dir.path(), &["build", ex.to_str().unwrap(), "--json"]);
+    let built = json(
+        dir.path(),
+        &["build", "--engine", "moves", ex.to_str().unwrap(), "--json"],
+    );
     let key = built[0]["key"].as_str().unwrap().to_string();
     assert_eq!(built[0]["status"], "present");
     let shown = expect(dir.path(), &["cache", "show", &key[..8]], 0);
@@ -165,6 +171,8 @@ fn export_equals_the_build_out_file_of_the_same_model() {
         let out = out_dir.path().join("set.json");
         let args = [
             "build",
+            "--engine",
+            "moves",
             path.to_str().unwrap(),
             "--out",
             out.to_str().unwrap(),

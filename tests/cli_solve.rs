@@ -632,7 +632,10 @@ fn a_scenario_without_day_takes_the_first_and_without_variant_its_own_numbers() 
     let (out, _) = expect_both(dir.path(), &args, 0);
     let doc: Value = serde_json::from_str(&out).unwrap();
     assert_eq!(doc["variant"], Value::Null);
-    assert_eq!(document_answer(&doc), want["as written"]);
+    // Same status, optimum and plan; the step count differs on a network, where batch starts
+    // every day from the optimum of the scenario's own numbers (here: the day itself).
+    let (got, want) = (document_answer(&doc), &want["as written"]);
+    assert_eq!((&got.0, got.1, &got.3), (&want.0, want.1, &want.3));
 }
 
 #[test]

@@ -100,6 +100,8 @@ fn move_set(model: &Path, dir: &Path) -> Vec<Vec<i64>> {
     let out_file = dir.join("set.json");
     let out = kernstep(&[
         "build",
+        "--engine",
+        "moves",
         model.to_str().unwrap(),
         "--out",
         out_file.to_str().unwrap(),

@@ -117,7 +117,16 @@ impl Target {
 
     /// `kernstep build` of this model; returns exit code and the status of its row.
     fn build_status(&self, cache: &Path) -> (Option<i32>, String) {
-        let out = kernstep(cache, &["build", path_str(&self.model), "--json"]);
+        let out = kernstep(
+            cache,
+            &[
+                "build",
+                "--engine",
+                "moves",
+                path_str(&self.model),
+                "--json",
+            ],
+        );
         let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_default();
         let status = rows[0]["status"].as_str().unwrap_or("").to_string();
         (out.status.code(), status)
@@ -355,7 +364,13 @@ fn concurrent_threads(target: &Arc<Target>, tally: &mut Tally) {
 
 fn concurrent_processes(target: &Target, tally: &mut Tally) {
     let dir = tempfile::tempdir().unwrap();
-    let args = ["build", path_str(&target.model), "--json"];
+    let args = [
+        "build",
+        "--engine",
+        "moves",
+        path_str(&target.model),
+        "--json",
+    ];
     let mut statuses: Vec<String> = run_concurrently(dir.path(), &args, 3)
         .into_iter()
         .map(|out| {
@@ -528,6 +543,8 @@ fn work_without_the_cache(target: &Target, base: &Path, bad: &Path, tally: &mut 
     let out_file = base.join("set.json");
     let args = [
         "build",
+        "--engine",
+        "moves",
         path_str(&target.model),
         "--out",
         path_str(&out_file),

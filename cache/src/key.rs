@@ -6,7 +6,7 @@
 //! ```text
 //! "kernstep.entry-key.1\0"
 //! u64 byte length of row_space, then its UTF-8 bytes
-//! u8  kind            0 = Graver, 1 = Hilbert
+//! u8  kind            0 = Graver, 1 = Hilbert, 2 = Cycles
 //! u64 n, then n bytes  0 = Free, 1 = NonNegative, 2 = NonPositive
 //! --- the "family" (row space, kind, signs) ends here; XXH3-64 of these bytes is the family
 //!     digest used to find covering entries quickly ---
@@ -32,6 +32,9 @@ pub enum SetKind {
     Graver,
     /// Conformally minimal nonzero kernel vectors inside a sign pattern.
     Hilbert,
+    /// The Graver basis of a network matrix, kept implicit: its elements are the signed cycles
+    /// of the network, which the caller finds from the matrix, so the entry stores none.
+    Cycles,
 }
 
 /// Sign restriction on one variable.
@@ -136,6 +139,7 @@ impl EntryKey {
         bytes.push(match self.kind {
             SetKind::Graver => 0,
             SetKind::Hilbert => 1,
+            SetKind::Cycles => 2,
         });
         push_len(&mut bytes, self.signs.len());
         bytes.extend(self.signs.iter().map(|s| match s {

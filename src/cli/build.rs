@@ -13,14 +13,16 @@ use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Control, Method, Progress, Sign};
 use kernstep::model::Model;
+use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
-    build, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, NormLimit, Obtained,
+    build, cycles_entry, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, NormLimit,
+    Obtained,
 };
 use serde::Serialize;
 
 use super::common::{
-    interrupted, model_paths, render_chain, with_threads, write_atomically, CacheArgs,
+    interrupted, model_paths, render_chain, with_threads, write_atomically, CacheArgs, EngineArg,
 };
 use super::setfile::set_document;
 use super::table::write_table;
@@ -66,6 +68,11 @@ pub struct BuildArgs {
     /// Rebuild even when a valid entry exists, replacing it.
     #[arg(long)]
     pub rebuild: bool,
+    /// `auto`: a network matrix (with linear costs) asked for its Graver basis gets an
+    /// implicit entry (its cycles; nothing enumerated); `moves`: always enumerate; `cycles`:
+    /// the implicit entry, an error when the matrix is no network.
+    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
+    pub engine: EngineArg,
     #[command(flatten)]
     pub cache: CacheArgs,
     /// Print the summary as JSON.
@@ -240,8 +247,75 @@ fn build_one(args: &BuildArgs, path: &Path) -> Row {
     row
 }
 
+/// The network of `model` when its set is to be the implicit one (see `--engine`).
+fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Network>> {
+    let default_request = args.kind == KindArg::Graver
+        && args.signs.is_none()
+        && matches!(args.norm_limit, NormLimit::Auto | NormLimit::Unlimited)
+        && args.bounds == BoxArg::None
+        && args.method == MethodArg::Lift;
+    match args.engine {
+        EngineArg::Moves => Ok(None),
+        EngineArg::Auto if !default_request || !model.convex.is_empty() => Ok(None),
+        EngineArg::Auto => Ok(Network::detect(&model.matrix).ok()),
+        EngineArg::Cycles if !default_request => anyhow::bail!(
+            "--engine cycles stores the whole Graver basis of a network; it takes no --kind, --signs, --norm-limit N, --box or --method"
+        ),
+        EngineArg::Cycles if !model.convex.is_empty() => anyhow::bail!(
+            "--engine cycles: the model has convex costs, which the network solver does not take"
+        ),
+        EngineArg::Cycles => Network::detect(&model.matrix)
+            .map(Some)
+            .map_err(|why| anyhow::anyhow!("--engine cycles: not a network matrix: {why}")),
+    }
+}
+
+/// Stores (or writes) the implicit entry of a network matrix.
+fn build_cycles(
+    args: &BuildArgs,
+    model: &Model,
+    network: &Network,
+    row: &mut Row,
+) -> anyhow::Result<String> {
+    row.kind = Some(SetKind::Cycles);
+    row.elements = Some(0);
+    if let Some(out) = &args.out {
+        let built = cycles_entry(&model.matrix, network);
+        row.key = Some(built.key.digest().to_hex());
+        write_set_file(out, &built)?;
+        return Ok(format!(
+            "written to {} (implicit: the network's cycles)",
+            out.display()
+        ));
+    }
+    let library = args.cache.open()?;
+    Ok(
+        match library.obtain_cycles(&model.matrix, network, args.rebuild)? {
+            Obtained::Reused(stored) => {
+                row.key = Some(stored.digest.to_hex());
+                "present".to_string()
+            }
+            Obtained::Built {
+                built, replaced, ..
+            } => {
+                row.key = Some(built.key.digest().to_hex());
+                let mut status =
+                    "built (implicit: the network's cycles, nothing enumerated)".to_string();
+                if let Some(damage) = replaced {
+                    status.push_str(&format!(" (replaced a damaged entry: {damage})"));
+                }
+                status
+            }
+            Obtained::Stopped(reason) => format!("stopped: {reason:?}"),
+        },
+    )
+}
+
 fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<String> {
     let model = PlanInput::load(path)?.into_model();
+    if let Some(network) = implicit_network(args, &model)? {
+        return build_cycles(args, &model, &network, row);
+    }
     let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
     let spec = args.spec(&model)?.resolve(&model, &analysis)?;
     row.kind = Some(spec.kind);

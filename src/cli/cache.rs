@@ -183,6 +183,7 @@ fn kind_name(kind: SetKind) -> &'static str {
     match kind {
         SetKind::Graver => "graver",
         SetKind::Hilbert => "hilbert",
+        SetKind::Cycles => "cycles",
     }
 }
 

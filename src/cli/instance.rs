@@ -73,6 +73,13 @@ pub enum StrategyArg {
     Steepest,
 }
 
+impl Instance {
+    /// The start the solve takes: `--warm-start`, else the base optimum, else none (cold).
+    pub fn start(&self) -> Option<&WarmStart> {
+        self.warm.as_ref().or(self.base.as_ref())
+    }
+}
+
 /// A model variant ready to solve.
 pub struct Instance {
     /// The model with the variant's numbers (compiled from a scenario and its day).
@@ -81,8 +88,11 @@ pub struct Instance {
     pub path: String,
     /// The variant's id (a scenario's day name), when one was given.
     pub variant: Option<String>,
-    /// The previous plan to start from.
+    /// The previous plan to start from (`--warm-start`).
     pub warm: Option<WarmStart>,
+    /// Without `--warm-start`, for a variant of a network model: the optimum of the model's
+    /// own numbers, where the solve starts (as `batch` does).
+    pub base: Option<WarmStart>,
     /// The moves and where they came from.
     pub set: SolverSet,
     /// The Hermite form and move set of the matrix.
@@ -97,7 +107,7 @@ impl InstanceArgs {
         let input = PlanInput::load(&self.model)?;
         let path = self.model.display().to_string();
         let (model, variant) = match &self.variant {
-            None => (input.into_model(), None),
+            None => (input.model().clone(), None),
             Some(spec) => {
                 let (variant, origin) = self.pick_variant(&input, spec)?;
                 (variant.apply(input.model(), &origin)?, Some(variant.id))
@@ -119,11 +129,18 @@ impl InstanceArgs {
             .rule(rule)
             .powers_of_two(self.powers_of_two)
             .max_steps(self.max_steps);
+        // A variant on a network starts, as in `batch`, from the optimum of the model's own
+        // numbers.
+        let base = match (&warm, &variant) {
+            (None, Some(_)) => prepared.base_start(input.model(), &options, &cancelled),
+            _ => None,
+        };
         Ok(Instance {
             model,
             path,
             variant,
             warm,
+            base,
             set,
             prepared,
             options,

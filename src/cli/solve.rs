@@ -84,7 +84,7 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
     let verdict = instance.prepared.solve(
         &instance.model,
         &instance.options,
-        instance.warm.as_ref(),
+        instance.start(),
         &cancelled,
     )?;
     let outcome = Outcome::of(
@@ -203,6 +203,8 @@ fn write_summary(
     }
     let start = if instance.warm.is_some() {
         "warm (previous plan + particular solution of the change)"
+    } else if instance.base.is_some() {
+        "from the optimum of the model's own numbers (network)"
     } else {
         "cold (integer solution of A x = b)"
     };

@@ -41,7 +41,7 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
         &instance.prepared,
         &instance.model,
         &instance.options,
-        instance.warm.as_ref(),
+        instance.start(),
         &cancelled,
     )?;
     ensure_holds(doc.recheck.as_ref())?;

@@ -112,7 +112,7 @@ pub fn replan(
         }
         out
     } else {
-        let base = run.base_start();
+        let base = prepared.base_start(model, &settings.options, cancel);
         days.into_par_iter()
             .map(|(line, parsed)| run.day(line, parsed, base.as_ref()).0)
             .collect()
@@ -129,32 +129,6 @@ struct Run<'a> {
 }
 
 impl Run<'_> {
-    /// For a network, the optimum of the model's own numbers with its potentials: every day
-    /// changes only some of those numbers, so each independent day starts from it (the
-    /// network solver's fast path) instead of from scratch. `None` for a set of moves, whose
-    /// cold starts are already rounded into the box, or when the model's own numbers have no
-    /// optimum.
-    fn base_start(&self) -> Option<WarmStart> {
-        self.prepared.network_of()?;
-        let verdict = self
-            .prepared
-            .solve(self.model, &self.settings.options, None, self.cancel)
-            .ok()?;
-        let (_, x) = verdict.optimum()?;
-        let potentials = match &verdict {
-            Verdict::Flow(f) => match &f.solution.outcome {
-                FlowOutcome::Optimal { potentials, .. } => Some(potentials.clone()),
-                _ => None,
-            },
-            _ => None,
-        };
-        Some(WarmStart {
-            rhs: self.model.rhs.clone(),
-            x: x.to_vec(),
-            potentials,
-        })
-    }
-
     /// Solves one day; also returns the day's right-hand side for a warm start of the next.
     fn day(
         &self,

@@ -13,7 +13,7 @@ use crate::completion::MoveSet;
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 use crate::model::Model;
-use crate::network::Network;
+use crate::network::{FlowOutcome, Network};
 
 /// What is computed once per matrix and shared by every instance of it.
 #[derive(Clone, Debug)]
@@ -78,6 +78,34 @@ impl Prepared {
             Engine::Moves(_) => None,
             Engine::Network(engine) => Some(engine.network()),
         }
+    }
+
+    /// For a network, the optimum of `model`'s own numbers with its potentials, from which
+    /// every variant of `model` (a day that changes a few of its numbers) starts: the network
+    /// solver's fast path. `None` for a set of moves, whose cold starts are already rounded
+    /// into the box, or when the model's own numbers have no optimum.
+    pub fn base_start(
+        &self,
+        model: &Model,
+        options: &Options,
+        cancel: &dyn Fn() -> bool,
+    ) -> Option<WarmStart> {
+        self.network_of()?;
+        let verdict = self.solve(model, options, None, cancel).ok()?;
+        let Verdict::Flow(answer) = &verdict else {
+            return None;
+        };
+        let FlowOutcome::Optimal {
+            flow, potentials, ..
+        } = &answer.solution.outcome
+        else {
+            return None;
+        };
+        Some(WarmStart {
+            rhs: model.rhs.clone(),
+            x: flow.clone(),
+            potentials: Some(potentials.clone()),
+        })
     }
 
     /// Solves `model` (whose matrix is the prepared one), from `warm` if given.

@@ -5,12 +5,14 @@ use std::path::Path;
 use cache::{BuildGuard, CheckpointState, EntryKey, Store, StoredSet};
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
+use super::network::cycles_entry;
 use super::saved::{self, RequestRecord};
 use super::spec::ResolvedSpec;
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{Checkpoint, Control, Method, StopReason};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
+use crate::network::Network;
 
 /// What [`SetLibrary::obtain`] produced.
 #[derive(Debug)]
@@ -110,6 +112,37 @@ impl SetLibrary {
                 })
             }
         }
+    }
+
+    /// Returns the entry of the network matrix `a` (its implicit set of cycles, see
+    /// [`super::cycles_entry`]), storing it when missing; with `rebuild` it is replaced.
+    pub fn obtain_cycles(
+        &self,
+        a: &IntMatrix,
+        network: &Network,
+        rebuild: bool,
+    ) -> Result<Obtained> {
+        let built = cycles_entry(a, network);
+        if !rebuild {
+            if let Some(found) = self.find(&built.key)? {
+                return Ok(Obtained::Reused(Box::new(found)));
+            }
+        }
+        let lock = if rebuild {
+            self.store.lock_for_rebuild(&built.key)?
+        } else {
+            match self.store.lock_for_build(&built.key)? {
+                BuildGuard::Ready(set) => return Ok(Obtained::Reused(Box::new(set))),
+                BuildGuard::Build(lock) => lock,
+            }
+        };
+        let replaced = lock.damaged_entry().map(ToString::to_string);
+        lock.commit(&to_data(&built.set)?, &built.metadata)?;
+        Ok(Obtained::Built {
+            built: Box::new(built),
+            replaced,
+            resumed_after: None,
+        })
     }
 
     /// The saved state of an interrupted build of `key`, if one was saved for exactly

@@ -4,6 +4,7 @@
 
 mod build;
 mod library;
+mod network;
 mod saved;
 mod spec;
 
@@ -11,4 +12,5 @@ pub use build::{
     build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
 pub use library::{Obtained, SetLibrary};
+pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};

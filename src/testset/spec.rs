@@ -93,6 +93,14 @@ impl BuildSpec {
             (Some(s), _) => s.clone(),
             (None, SetKind::Graver) => vec![Sign::Free; n],
             (None, SetKind::Hilbert) => vec![Sign::NonNegative; n],
+            (None, SetKind::Cycles) => {
+                return Err(Error::Input {
+                    file: "<arguments>".into(),
+                    field: "kind".into(),
+                    message: "the cycles of a network are not completed; see testset::cycles_entry"
+                        .into(),
+                })
+            }
         };
         let proven = analysis.norm_limit();
         let bounds = match self.bounds {
