@@ -217,3 +217,25 @@ fn usage_errors_exit_2() {
     ]);
     assert_eq!(out.status.code(), Some(2));
 }
+
+/// Issue 14: the lanes kind compiles to a network matrix (README, Transport scenarios: supply
+/// rows +1 per depot, demand rows +1 per zone, so the zone rows take the sign -1), the
+/// truckloads kind does not (column 0, the units of the first lane, also sits in its load row).
+#[test]
+fn network_matrices_are_reported() {
+    let lanes = json_report("examples/scenarios/brackle_lanes.toml");
+    assert_eq!(lanes["network"]["network"], true, "{lanes}");
+    // brackle_lanes: 3 depots, 4 zones.
+    let detail = lanes["network"]["detail"].as_str().unwrap();
+    assert!(detail.starts_with("rows +1: 3, -1: 4"), "{detail}");
+    let trucks = json_report("examples/scenarios/hollin_trucks.toml");
+    assert_eq!(trucks["network"]["network"], false);
+    let detail = trucks["network"]["detail"].as_str().unwrap();
+    assert!(detail.starts_with("column 0 has 3 nonzeros"), "{detail}");
+    let out = kernstep(&["analyze", "examples/twisted_cubic.json"]);
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("network matrix             no: column 2 has an entry 2"),
+        "{text}"
+    );
+}

@@ -389,3 +389,42 @@ fn a_killed_build_resumes_from_its_checkpoint_and_gives_the_same_set() {
     );
     assert_eq!(file["key"], serde_json::to_value(&entry.key).unwrap());
 }
+
+/// Issue 14: a network matrix asked for its Graver basis gets an implicit entry (kind
+/// `cycles`, no elements, Δ = 1 exact), found again as `present`; `--engine moves` still
+/// enumerates; `--engine cycles` refuses a matrix that is no network.
+#[test]
+fn a_network_gets_an_implicit_entry_of_its_own_kind() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let lanes = examples().join("scenarios/brackle_lanes.toml");
+    let rows = json(cache_dir.path(), &["build", path_str(&lanes), "--json"], 0);
+    assert_eq!(rows[0]["kind"], "Cycles", "{rows}");
+    assert_eq!(rows[0]["elements"], 0);
+    let again = json(cache_dir.path(), &["build", path_str(&lanes), "--json"], 0);
+    assert_eq!(again[0]["status"], "present");
+    let list = expect(cache_dir.path(), &["cache", "list"], 0);
+    assert!(list.lines().any(|l| l.contains(" cycles ")), "{list}");
+    let key = rows[0]["key"].as_str().unwrap();
+    let show = expect(cache_dir.path(), &["cache", "show", &key[..12]], 0);
+    assert!(show.contains("Δ                  1"), "{show}");
+    assert!(show.contains("network cycles (implicit)"), "{show}");
+    // The enumerated set of the same matrix is another entry, with its elements.
+    let moves = json(
+        cache_dir.path(),
+        &["build", "--engine", "moves", path_str(&lanes), "--json"],
+        0,
+    );
+    assert_eq!(moves[0]["kind"], "Graver");
+    assert!(moves[0]["elements"].as_u64().unwrap() > 0);
+    let trucks = examples().join("scenarios/hollin_trucks.toml");
+    let refused = json(
+        cache_dir.path(),
+        &["build", "--engine", "cycles", path_str(&trucks), "--json"],
+        2,
+    );
+    let status = refused[0]["status"].as_str().unwrap();
+    assert!(
+        status.contains("not a network matrix: column 0 has 3 nonzeros"),
+        "{status}"
+    );
+}

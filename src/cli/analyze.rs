@@ -5,6 +5,7 @@ use std::process::ExitCode;
 
 use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
 use kernstep::model::Model;
+use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use serde::Serialize;
 
@@ -16,7 +17,38 @@ use super::table::write_pairs;
 struct Report<'a> {
     model: String,
     norm_limit: u64,
+    network: NetworkReport,
     analysis: &'a MatrixAnalysis,
+}
+
+/// Whether the matrix is a network matrix, and if not, what stands in the way.
+#[derive(Serialize)]
+struct NetworkReport {
+    /// Some scaling of rows by -1 leaves every column with at most one +1 and one -1.
+    network: bool,
+    /// With `network`: rows scaled by +1 and by -1; else the first obstacle, in words.
+    detail: String,
+}
+
+impl NetworkReport {
+    fn of(model: &Model) -> Self {
+        match Network::detect(&model.matrix) {
+            Ok(network) => {
+                let plus = network.row_signs().iter().filter(|&&s| s > 0).count();
+                NetworkReport {
+                    network: true,
+                    detail: format!(
+                        "rows +1: {plus}, -1: {}; the Graver basis is its cycles (nothing to enumerate)",
+                        network.row_signs().len() - plus
+                    ),
+                }
+            }
+            Err(why) => NetworkReport {
+                network: false,
+                detail: why.to_string(),
+            },
+        }
+    }
 }
 
 /// Loads the model, analyses its matrix and prints the figures.
@@ -24,17 +56,24 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
     let model = PlanInput::load(&args.model)?.into_model();
     let options = AnalysisOptions::new().subdet_limit(args.subdet_limit);
     let analysis = MatrixAnalysis::of(&model.matrix, &options);
+    let network = NetworkReport::of(&model);
     let mut out = io::stdout().lock();
     if args.json {
         let report = Report {
             model: args.model.display().to_string(),
             norm_limit: analysis.norm_limit(),
+            network,
             analysis: &analysis,
         };
         let text = serde_json::to_string_pretty(&report)?;
         writeln!(out, "{text}")?;
     } else {
-        let rows = table_rows(&args.model.display().to_string(), &model, &analysis);
+        let mut rows = table_rows(&args.model.display().to_string(), &model, &analysis);
+        let verdict = if network.network { "yes" } else { "no" };
+        rows.push((
+            "network matrix".to_string(),
+            format!("{verdict}: {}", network.detail),
+        ));
         write_pairs(&mut out, &rows)?;
     }
     out.flush()?;
