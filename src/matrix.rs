@@ -1,18 +1,49 @@
 //! Dense integer matrices as given by the user.
 //!
 //! Invariant: `data.len() == rows * cols`, row-major, every entry fits `i64`. The type is the
-//! common currency between model files, the lattice core and the completion.
+//! common currency between model files, the lattice core and the completion. Products that the
+//! re-checks of every solve need (`A x`, `w^T A`) read a column-wise copy of the nonzeros, made
+//! on first use and dropped by [`IntMatrix::set`]; equality, hashing and serialisation see
+//! only the dense entries.
+
+use std::hash::{Hash, Hasher};
+use std::sync::OnceLock;
 
 use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
 
 /// A dense row-major integer matrix.
-#[derive(Clone, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct IntMatrix {
     rows: usize,
     cols: usize,
     data: Vec<i64>,
+    #[serde(skip)]
+    columns: OnceLock<Columns>,
+}
+
+/// The nonzeros column by column: column `j` holds `(rows[k], values[k])` for
+/// `k in starts[j]..starts[j + 1]`.
+#[derive(Clone, Debug, Default)]
+struct Columns {
+    starts: Vec<usize>,
+    rows: Vec<usize>,
+    values: Vec<i64>,
+}
+
+impl PartialEq for IntMatrix {
+    fn eq(&self, other: &Self) -> bool {
+        (self.rows, self.cols, &self.data) == (other.rows, other.cols, &other.data)
+    }
+}
+
+impl Eq for IntMatrix {}
+
+impl Hash for IntMatrix {
+    fn hash<H: Hasher>(&self, state: &mut H) {
+        (self.rows, self.cols, &self.data).hash(state);
+    }
 }
 
 impl IntMatrix {
@@ -29,6 +60,7 @@ impl IntMatrix {
             rows: rows.len(),
             cols,
             data: rows.concat(),
+            columns: OnceLock::new(),
         })
     }
 
@@ -38,6 +70,7 @@ impl IntMatrix {
             rows,
             cols,
             data: vec![0; rows * cols],
+            columns: OnceLock::new(),
         }
     }
 
@@ -59,6 +92,7 @@ impl IntMatrix {
     /// Sets entry `(i, j)`.
     pub fn set(&mut self, i: usize, j: usize, value: i64) {
         self.data[i * self.cols + j] = value;
+        self.columns = OnceLock::new();
     }
 
     /// Row `i` as a slice.
@@ -115,14 +149,59 @@ impl IntMatrix {
             self.rows,
             "right-hand side length must equal the row count"
         );
-        (0..self.rows).find_map(|i| {
-            let value = self
-                .row(i)
+        let columns = self.columns();
+        let mut image = vec![0i128; self.rows];
+        for (j, &v) in x.iter().enumerate().filter(|(_, &v)| v != 0) {
+            let range = columns.starts[j]..columns.starts[j + 1];
+            for (&i, &a) in columns.rows[range.clone()]
                 .iter()
-                .zip(x)
-                .map(|(&a, &v)| i128::from(a) * i128::from(v))
-                .sum::<i128>();
-            (value != i128::from(b[i])).then_some((i, value))
+                .zip(&columns.values[range])
+            {
+                image[i] += i128::from(a) * i128::from(v);
+            }
+        }
+        image
+            .iter()
+            .zip(b)
+            .position(|(&value, &bi)| value != i128::from(bi))
+            .map(|i| (i, image[i]))
+    }
+
+    /// `w^T A`, one value per column, exactly: each term is below `2^94` in absolute value
+    /// for `|a| <= 2^31`, so fewer than `2^32` rows cannot overflow `i128`.
+    pub fn weighted_columns(&self, w: &[i64]) -> Vec<i128> {
+        assert_eq!(w.len(), self.rows, "weight length must equal the row count");
+        let columns = self.columns();
+        (0..self.cols)
+            .map(|j| {
+                let range = columns.starts[j]..columns.starts[j + 1];
+                columns.rows[range.clone()]
+                    .iter()
+                    .zip(&columns.values[range])
+                    .map(|(&i, &a)| i128::from(w[i]) * i128::from(a))
+                    .sum()
+            })
+            .collect()
+    }
+
+    /// The column-wise copy of the nonzeros, made on first use.
+    fn columns(&self) -> &Columns {
+        self.columns.get_or_init(|| {
+            let mut columns = Columns {
+                starts: vec![0],
+                ..Columns::default()
+            };
+            for j in 0..self.cols {
+                for i in 0..self.rows {
+                    let a = self.get(i, j);
+                    if a != 0 {
+                        columns.rows.push(i);
+                        columns.values.push(a);
+                    }
+                }
+                columns.starts.push(columns.rows.len());
+            }
+            columns
         })
     }
 
@@ -144,6 +223,7 @@ impl IntMatrix {
             rows: rows.len(),
             cols: self.cols,
             data,
+            columns: OnceLock::new(),
         }
     }
 }
@@ -155,6 +235,22 @@ mod tests {
     #[test]
     fn ragged_rows_are_rejected() {
         assert!(IntMatrix::from_rows(&[vec![1, 2], vec![3]]).is_err());
+    }
+
+    #[test]
+    fn column_products_equal_the_dense_ones_and_follow_set() {
+        let mut a = IntMatrix::from_rows(&[vec![1, 0, -2], vec![0, 3, 1]]).unwrap();
+        // By hand: A (2, 1, 1) = (0, 4); (1, -1) A = (1, -3, -3).
+        assert_eq!(a.first_unmet_row(&[2, 1, 1], &[0, 4]), None);
+        assert_eq!(a.first_unmet_row(&[2, 1, 1], &[0, 5]), Some((1, 4)));
+        assert_eq!(a.weighted_columns(&[1, -1]), vec![1, -3, -3]);
+        a.set(0, 1, 5);
+        assert_eq!(a.first_unmet_row(&[2, 1, 1], &[5, 4]), None);
+        assert_eq!(a.weighted_columns(&[1, -1]), vec![1, 2, -3]);
+        assert_eq!(
+            a,
+            IntMatrix::from_rows(&[vec![1, 5, -2], vec![0, 3, 1]]).unwrap()
+        );
     }
 
     #[test]

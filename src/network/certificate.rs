@@ -248,20 +248,14 @@ fn feasible(a: &IntMatrix, numbers: FlowNumbers<'_>, x: &[i64], claim: &'static 
 
 /// `(w^T A)_j` for every column, exactly.
 fn weighted_columns(a: &IntMatrix, w: &[i64]) -> Result<Vec<i128>> {
-    let mut out = vec![0i128; a.cols()];
-    for (i, &wi) in w.iter().enumerate() {
-        if wi == 0 {
-            continue;
-        }
-        for (j, &aij) in a.row(i).iter().enumerate() {
-            if aij != 0 {
-                out[j] = out[j]
-                    .checked_add(i128::from(wi) * i128::from(aij))
-                    .ok_or_else(|| Error::Overflow("certificate: y^T A".into()))?;
-            }
-        }
+    if w.len() != a.rows() {
+        return Err(Error::Dimension(format!(
+            "certificate: {} weights for {} rows",
+            w.len(),
+            a.rows()
+        )));
     }
-    Ok(out)
+    Ok(a.weighted_columns(w))
 }
 
 fn dot(u: &[i64], v: &[i64], what: &str) -> Result<i128> {
