@@ -7,7 +7,9 @@ one digest per run of every day's status, objective, step count and plan (times 
 A change to the solver's hot path must leave every digest as it was: run the script on the
 old and the new build and compare the lines.
 
-Usage: python3 benches/selections.py [DAYS]   (default 1000; builds the release binary)
+Usage: python3 benches/selections.py [DAYS] [ENGINE]
+       (default 1000 days and `auto`; ENGINE `moves` solves the lane network with its
+       enumerated Graver basis, as before the network engine; builds the release binary)
 """
 
 import hashlib
@@ -26,6 +28,7 @@ from scenario_days import SCENARIOS, draw_day  # noqa: E402
 
 def main():
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
+    engine = sys.argv[2] if len(sys.argv) > 2 else "auto"
     subprocess.run(["cargo", "build", "--release"], cwd=ROOT, check=True, capture_output=True)
     binary = os.path.join(ROOT, "target", "release", "kernstep")
     rng = random.Random(20261202)
@@ -41,7 +44,7 @@ def main():
             for threads in (1, 2):
                 out = os.path.join(tmp, "plans.jsonl")
                 run = subprocess.run([binary, "batch", path, days_path, "--threads", str(threads),
-                                      "--cache-dir", os.path.join(tmp, "cache"), "--build",
+                                      "--cache-dir", os.path.join(tmp, "cache"), "--build", "--engine", engine,
                                       "--out", out], capture_output=True, text=True)
                 if run.returncode not in (0, 1):
                     raise SystemExit(f"kernstep batch failed: {run.stderr}")

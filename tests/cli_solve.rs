@@ -243,7 +243,7 @@ fn lane_plan_optimum_and_certificate_in_words() {
         "{text}"
     );
     assert!(
-        text.contains("no enumeration: the matrix is a network"),
+        text.contains("the cycles of the network (its Graver basis, implicit"),
         "{text}"
     );
 }

@@ -439,7 +439,7 @@ impl<'a> Summary<'a> {
             set: match &set.source {
                 SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 SetSource::Built => "built for this run".to_string(),
-                SetSource::Network => "implicit: the cycles of the network".to_string(),
+                SetSource::Network => "network".to_string(),
             },
             caution: CAUTION,
         }
@@ -472,7 +472,10 @@ impl<'a> Summary<'a> {
         rows.push(("wall time".into(), format!("{:.3} s", self.wall_seconds)));
         rows.push((
             "test set".into(),
-            format!("{} moves, {}", self.moves, self.set),
+            match self.set.as_str() {
+                "network" => "the cycles of the network (implicit: nothing enumerated)".into(),
+                _ => format!("{} moves, {}", self.moves, self.set),
+            },
         ));
         write_pairs(out, &rows)?;
         writeln!(out, "caution: {}", self.caution)?;

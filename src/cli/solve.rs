@@ -172,17 +172,21 @@ fn document<'a>(
     })
 }
 
-/// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`.
+/// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`, or the implicit set of a
+/// network.
 pub fn set_text(set: &SolverSet) -> String {
+    let source = match &set.source {
+        SetSource::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
+        SetSource::Built => "built for this run".to_string(),
+        SetSource::Network => {
+            return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
+                .to_string()
+        }
+    };
     let coverage = match CoverageDoc::from(set.coverage) {
         CoverageDoc::Complete => "complete Graver basis".to_string(),
         CoverageDoc::BoxValid => "Graver basis truncated to the build's box".to_string(),
         CoverageDoc::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
-    };
-    let source = match &set.source {
-        SetSource::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
-        SetSource::Built => "built for this run".to_string(),
-        SetSource::Network => "no enumeration: the matrix is a network".to_string(),
     };
     format!(
         "{}, {coverage}, {source}",
