@@ -279,19 +279,8 @@ fn refuted(claim: &'static str, why: String) -> Error {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::network::examples::transport;
     use crate::network::CycleArc;
-
-    /// Two depots (supplies 3, 2), three shops (demands 1, 2, 2), `x_ij` row-major.
-    fn transport() -> IntMatrix {
-        IntMatrix::from_rows(&[
-            vec![1, 1, 1, 0, 0, 0],
-            vec![0, 0, 0, 1, 1, 1],
-            vec![1, 0, 0, 1, 0, 0],
-            vec![0, 1, 0, 0, 1, 0],
-            vec![0, 0, 1, 0, 0, 1],
-        ])
-        .unwrap()
-    }
 
     const COST: [i64; 6] = [4, 1, 3, 2, 5, 1];
 

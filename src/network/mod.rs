@@ -57,3 +57,22 @@ pub use detect::NotNetwork;
 pub use graph::{Arc, Network};
 pub use input::{FlowNumbers, FlowOptions, Warm};
 pub use outcome::{Cut, Cycle, CycleArc, FlowOutcome, FlowSolution, Infeasibility, Step};
+
+/// Small networks shared by the unit tests of this module.
+#[cfg(test)]
+pub(crate) mod examples {
+    use crate::matrix::IntMatrix;
+
+    /// Two depots (supplies 3 and 2) and three shops (demands 1, 2, 2), `x_ij` row-major: the
+    /// example of the `augment` crate's documentation, optimum 8.
+    pub(crate) fn transport() -> IntMatrix {
+        IntMatrix::from_rows(&[
+            vec![1, 1, 1, 0, 0, 0],
+            vec![0, 0, 0, 1, 1, 1],
+            vec![1, 0, 0, 1, 0, 0],
+            vec![0, 1, 0, 0, 1, 0],
+            vec![0, 0, 1, 0, 0, 1],
+        ])
+        .unwrap()
+    }
+}

@@ -369,19 +369,7 @@ mod tests {
     use super::*;
     use crate::matrix::IntMatrix;
     use crate::network::certificate;
-
-    /// Two depots (supplies 3 and 2) and three shops (demands 1, 2, 2), `x_ij` row-major: the
-    /// example of the `augment` crate's documentation, optimum 8.
-    fn transport() -> IntMatrix {
-        IntMatrix::from_rows(&[
-            vec![1, 1, 1, 0, 0, 0],
-            vec![0, 0, 0, 1, 1, 1],
-            vec![1, 0, 0, 1, 0, 0],
-            vec![0, 1, 0, 0, 1, 0],
-            vec![0, 0, 1, 0, 0, 1],
-        ])
-        .unwrap()
-    }
+    use crate::network::examples::transport;
 
     fn solve(a: &IntMatrix, numbers: FlowNumbers<'_>, warm: Option<Warm<'_>>) -> FlowSolution {
         let net = Network::detect(a).unwrap();
