@@ -1,4 +1,6 @@
-//! Solving one instance `(b, c, l, u)` of a model with a given test set.
+//! Solving one instance `(b, c, l, u)` of a model with a given set of moves, and the types
+//! every solve shares: warm starts and verdicts (a network's verdict included, see
+//! `network.rs`).
 //!
 //! The start point comes from the lattice core: an integer solution of `A x = b` (or, for a
 //! warm start, yesterday's plan plus a particular solution of `A z = b - b_prev`); the
@@ -12,7 +14,6 @@
 //! recurs gets its own cut of the set for phase II (see `fittings.rs`).
 
 use std::sync::Arc;
-
 use std::time::Duration;
 
 use augment::{Coverage, Options, Solution, Status};
