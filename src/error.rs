@@ -49,6 +49,9 @@ pub enum Error {
         /// The width the set was truncated to.
         limit: u64,
     },
+    /// The chosen solver cannot serve this instance (the network solver and convex costs).
+    #[error("{0}")]
+    Unsupported(String),
     /// The independent re-check of a solve's claim failed: the answer is withheld, never
     /// reported as certified.
     #[error("the independent re-check refuted the claim that {claim}: {why}")]

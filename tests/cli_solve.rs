@@ -725,3 +725,51 @@ fn scenario_day_errors_name_the_file_the_line_and_the_day() {
     let day_for_model = ["solve", &model, "--variant", v, "--day", "mon", "--build"];
     expect_error(&day_for_model, &["is a model file", "--variant-id"]);
 }
+
+/// Issue 14: an MPS file of network shape qualifies too (its `G` rows get slack columns with
+/// one nonzero, arcs to the root). Two depots ship exactly 7 and 8, two zones need at least 5
+/// and 6, lanes cost 4, 6 (depot 1) and 5, 3 (depot 2), the first lane carries at most 5. By
+/// hand: depot 2 sends its 8 to zone 2 (3 each), depot 1 sends 5 to zone 1 and the other 2 to
+/// zone 2: 20 + 12 + 24 = 56. Both engines give it.
+#[test]
+fn an_mps_network_is_solved_along_its_cycles() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("lanes.mps");
+    let text = "NAME          lanes
+ROWS
+ N  cost
+ E  d1
+ E  d2
+ G  z1
+ G  z2
+COLUMNS
+    MARK      'MARKER'                 'INTORG'
+    x11       cost       4   d1   1
+    x11       z1         1
+    x12       cost       6   d1   1
+    x12       z2         1
+    x21       cost       5   d2   1
+    x21       z1         1
+    x22       cost       3   d2   1
+    x22       z2         1
+    MARK      'MARKER'                 'INTEND'
+RHS
+    RHS       d1         7   d2   8
+    RHS       z1         5   z2   6
+BOUNDS
+ UP BND       x11        5
+ENDATA
+";
+    std::fs::write(&path, text).unwrap();
+    let model = path.to_str().unwrap();
+    let (code, doc) = solve_json(model, dir.path(), &[]);
+    assert_eq!(
+        (code, &doc["set"]["source"]),
+        (0, &json!("network")),
+        "{doc}"
+    );
+    assert_eq!(doc["objective"], "56");
+    assert_eq!(doc["recheck"]["claim"], "dual_potentials");
+    let (_, moves) = solve_json(model, dir.path(), &["--engine", "moves"]);
+    assert_eq!(moves["objective"], "56");
+}

@@ -210,3 +210,19 @@ fn non_convex_costs_are_refused_with_the_variable_named() {
     let err = read(json!({"dock": {"breaks": [1], "slopes": [1]}}));
     assert!(err.contains("1 slopes for 1 breaks"), "{err}");
 }
+
+/// The network solver takes linear costs only: handed a model with a convex cost it refuses
+/// instead of answering for the linear part alone (the CLI then uses the enumerated set).
+#[test]
+fn the_network_solver_refuses_convex_costs() {
+    let text = json!({"matrix": [[1, 1, 0], [0, 1, 1]], "rhs": [3, 2], "lower": [0, 0, 0],
+                      "convex_cost": {"x2": {"breaks": [1], "slopes": [0, 4]}}});
+    let model = Model::from_str(&text.to_string(), ModelKind::Json, "lanes.json").unwrap();
+    let network = kernstep::network::Network::detect(&model.matrix).unwrap();
+    let prepared = Prepared::network(&model.matrix, network);
+    let solved = prepared.solve(&model, &Options::default(), None, &|| false);
+    assert!(
+        matches!(solved, Err(kernstep::Error::Unsupported(_))),
+        "{solved:?}"
+    );
+}

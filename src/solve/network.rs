@@ -41,7 +41,7 @@ impl NetworkEngine {
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
         if !numbers.convex.is_empty() {
-            return Err(Error::Dimension(
+            return Err(Error::Unsupported(
                 "the network solver takes linear costs only; a model with convex costs is solved with its enumerated Graver basis".into(),
             ));
         }
