@@ -195,7 +195,8 @@ impl SolverSet {
 }
 
 /// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
-/// builds it when `build_on_miss`, else says which `build` to run.
+/// builds it when `build_on_miss`, else says which `build` to run. For a network matrix
+/// (as `engine` decides) it is the implicit set of the network's cycles, with no cache.
 pub fn graver_for(
     model: &Model,
     input: &Path,
