@@ -130,17 +130,10 @@ fn one_by_one(scenario_file: &str, days_file: &str, chain: bool) -> Vec<Summary>
             (other, None) => panic!("unexpected verdict {other:?}"),
         };
         if let (true, Some((_, x))) = (chain, verdict.optimum()) {
-            let potentials = match &verdict {
-                Verdict::Flow(flow) => match &flow.solution.outcome {
-                    FlowOutcome::Optimal { potentials, .. } => Some(potentials.clone()),
-                    _ => None,
-                },
-                _ => None,
-            };
             warm = Some(WarmStart {
                 rhs: day.rhs.clone(),
                 x: x.to_vec(),
-                potentials,
+                potentials: verdict.potentials().map(<[i64]>::to_vec),
             });
         }
         out.push(summary);

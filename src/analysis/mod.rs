@@ -28,6 +28,7 @@ use num_bigint::BigInt;
 use serde::Serialize;
 
 pub use bounds::NormBounds;
+pub(crate) use columns::ColumnClasses;
 pub use delta::Delta;
 pub use extremal::{published_column_number, PublishedColumnNumber, RankCondition};
 pub use modularity::Decision;
@@ -35,7 +36,7 @@ pub use options::AnalysisOptions;
 
 use crate::lattice;
 use crate::matrix::IntMatrix;
-use columns::{transpose, ColumnClasses};
+use columns::transpose;
 
 /// Everything the analysis finds out about a matrix.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize)]

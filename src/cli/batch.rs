@@ -204,9 +204,11 @@ pub(super) fn answer(result: &DayResult) -> Option<(i128, &[i64])> {
 /// Augmenting steps over both phases.
 pub(super) fn steps(result: &DayResult) -> Option<u64> {
     match &result.outcome {
-        DayOutcome::Solved(Verdict::Solved(s)) => Some(s.steps()),
-        // As for a test-set solve without an integer point: no point, no step count.
-        DayOutcome::Solved(v @ Verdict::Flow(f)) => v.point().map(|_| f.solution.steps()),
+        // No integer point reached (no integer solution, a network's cut): no step count.
+        DayOutcome::Solved(v) => v.point().map(|_| {
+            let (feasibility, cost) = v.steps();
+            feasibility + cost
+        }),
         _ => None,
     }
 }

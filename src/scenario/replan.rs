@@ -70,10 +70,7 @@ impl DayResult {
     /// The row potentials that proved the day's plan optimal (network solves only).
     pub fn potentials(&self) -> Option<&[i64]> {
         match &self.outcome {
-            DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
-                FlowOutcome::Optimal { potentials, .. } => Some(potentials),
-                _ => None,
-            },
+            DayOutcome::Solved(verdict) => verdict.potentials(),
             _ => None,
         }
     }

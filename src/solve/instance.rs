@@ -162,6 +162,17 @@ impl Verdict {
         }
     }
 
+    /// The row potentials that prove a network solve's plan optimal; `None` otherwise.
+    pub fn potentials(&self) -> Option<&[i64]> {
+        match self {
+            Verdict::Flow(f) => match &f.solution.outcome {
+                FlowOutcome::Optimal { potentials, .. } => Some(potentials),
+                _ => None,
+            },
+            _ => None,
+        }
+    }
+
     /// Augmenting steps in phase I (feasibility) and phase II (cost).
     pub fn steps(&self) -> (u64, u64) {
         match self {

@@ -10,7 +10,7 @@ use super::instance::{FlowAnswer, Verdict, WarmStart};
 use super::variant::Numbers;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
-use crate::network::{FlowNumbers, FlowOptions, Network, Warm};
+use crate::network::{FlowOptions, Network, Warm};
 
 /// A network matrix with its detected network.
 #[derive(Clone, Debug)]
@@ -49,12 +49,6 @@ impl NetworkEngine {
             w.check(&self.matrix, "warm start")?;
         }
         let started = Instant::now();
-        let flow_numbers = FlowNumbers {
-            rhs: numbers.rhs,
-            cost: numbers.cost,
-            lower: numbers.lower,
-            upper: numbers.upper,
-        };
         let warm = warm.map(|w| Warm {
             flow: &w.x,
             potentials: w.potentials.as_deref(),
@@ -64,7 +58,7 @@ impl NetworkEngine {
             .trace(options.records_trace());
         let solution = self
             .network
-            .solve(flow_numbers, warm, &flow_options, cancel)?;
+            .solve(numbers.linear_flow(), warm, &flow_options, cancel)?;
         Ok(Verdict::Flow(FlowAnswer {
             solution,
             elapsed: started.elapsed(),

@@ -13,7 +13,7 @@ use crate::completion::MoveSet;
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 use crate::model::Model;
-use crate::network::{FlowOutcome, Network};
+use crate::network::Network;
 
 /// What is computed once per matrix and shared by every instance of it.
 #[derive(Clone, Debug)]
@@ -92,19 +92,11 @@ impl Prepared {
     ) -> Option<WarmStart> {
         self.network_of()?;
         let verdict = self.solve(model, options, None, cancel).ok()?;
-        let Verdict::Flow(answer) = &verdict else {
-            return None;
-        };
-        let FlowOutcome::Optimal {
-            flow, potentials, ..
-        } = &answer.solution.outcome
-        else {
-            return None;
-        };
+        let (_, flow) = verdict.optimum()?;
         Some(WarmStart {
             rhs: model.rhs.clone(),
-            x: flow.clone(),
-            potentials: Some(potentials.clone()),
+            x: flow.to_vec(),
+            potentials: verdict.potentials().map(<[i64]>::to_vec),
         })
     }
 

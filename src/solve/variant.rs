@@ -10,6 +10,7 @@ use serde::Deserialize;
 
 use crate::error::{Error, Result};
 use crate::model::{ConvexCosts, Model};
+use crate::network::FlowNumbers;
 
 /// The numbers of one variant; `None` keeps the model's.
 #[derive(Clone, Debug, Default, PartialEq, Eq, Deserialize)]
@@ -116,6 +117,17 @@ impl<'a> Numbers<'a> {
             self.lower.to_vec(),
             self.upper.to_vec(),
         )?)
+    }
+
+    /// The linear part of these numbers as the network solver and its certificates take
+    /// them (convex costs are not carried over).
+    pub fn linear_flow(&self) -> FlowNumbers<'a> {
+        FlowNumbers {
+            rhs: self.rhs,
+            cost: self.cost,
+            lower: self.lower,
+            upper: self.upper,
+        }
     }
 
     /// The model's own numbers.

@@ -13,6 +13,7 @@ use std::time::Instant;
 use cache::{Completeness, EntryKey, SetKind, SetMetadata, Truncation};
 
 use super::build::BuiltSet;
+use crate::analysis::ColumnClasses;
 use crate::completion::MoveSet;
 use crate::lattice::RowSpaceKey;
 use crate::matrix::IntMatrix;
@@ -40,7 +41,7 @@ pub fn cycles_entry(a: &IntMatrix, network: &Network) -> BuiltSet {
         rank: rank(network) as u64,
         delta: "1".to_string(),
         delta_exact: true,
-        column_number: column_number(a) as u64,
+        column_number: ColumnClasses::of(a).up_to_sign.len() as u64,
         norm_bound: None,
         method: CYCLES_METHOD.to_string(),
         completeness: Completeness::Complete,
@@ -81,19 +82,6 @@ fn rank(network: &Network) -> usize {
         .filter(|&g| g != root)
         .collect();
     network.rows() - groups.len()
-}
-
-/// Distinct nonzero columns up to sign.
-fn column_number(a: &IntMatrix) -> usize {
-    let columns: HashSet<Vec<i64>> = (0..a.cols())
-        .map(|j| (0..a.rows()).map(|i| a.get(i, j)).collect::<Vec<i64>>())
-        .filter(|c| c.iter().any(|&v| v != 0))
-        .map(|c| {
-            let first = c.iter().copied().find(|&v| v != 0).unwrap_or(1);
-            c.into_iter().map(|v| v * first.signum()).collect()
-        })
-        .collect();
-    columns.len()
 }
 
 #[cfg(test)]

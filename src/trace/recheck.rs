@@ -22,7 +22,7 @@ use super::decimal::Decimal;
 use super::outcome::sign_number;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
-use crate::network::{certificate, FlowNumbers, FlowOutcome, Infeasibility};
+use crate::network::{certificate, FlowOutcome, Infeasibility};
 use crate::solve::{Numbers, Verdict};
 
 /// Which claim was re-checked.
@@ -220,13 +220,7 @@ fn flow_recheck(
         | FlowOutcome::StepLimit { .. }
         | FlowOutcome::Cancelled { .. } => return Ok(None),
     };
-    let flow_numbers = FlowNumbers {
-        rhs: numbers.rhs,
-        cost: numbers.cost,
-        lower: numbers.lower,
-        upper: numbers.upper,
-    };
-    let defect = match certificate::check(matrix, flow_numbers, outcome) {
+    let defect = match certificate::check(matrix, numbers.linear_flow(), outcome) {
         Ok(()) => None,
         Err(Error::Refuted { why, .. }) => Some(Defect::Certificate { why }),
         Err(other) => return Err(other),
