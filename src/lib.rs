@@ -62,6 +62,7 @@
 #![deny(missing_docs)]
 
 pub mod analysis;
+pub mod bound;
 pub mod completion;
 pub mod error;
 pub mod lattice;

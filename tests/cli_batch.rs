@@ -353,8 +353,9 @@ fn csv_days_and_csv_results() {
     let (stdout, stderr) = expect(cache.path(), &args, 1);
     let lines: Vec<&str> = stdout.lines().collect();
     assert_eq!(lines.len(), 9);
-    assert!(lines[0]
-        .starts_with("day,line,status,objective,steps,seconds,detail,quayside->north_bank,"));
+    assert!(lines[0].starts_with(
+        "day,line,status,objective,bound,gap,steps,seconds,detail,quayside->north_bank,"
+    ));
     let cells = lines[0].split(',').count();
     assert!(lines
         .iter()

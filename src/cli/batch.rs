@@ -160,6 +160,7 @@ impl DayStatus {
         match &result.outcome {
             DayOutcome::Solved(Verdict::Solved(s)) => match s.status {
                 Status::Optimal => DayStatus::Optimal,
+                Status::OptimalForMovesUpTo(_) if result.proven_optimal() => DayStatus::Optimal,
                 Status::OptimalForMovesUpTo(_) => DayStatus::OptimalWithinNorm,
                 Status::Infeasible(_) => DayStatus::Infeasible,
                 Status::Unbounded(_) => DayStatus::Unbounded,
@@ -201,6 +202,13 @@ pub(super) fn answer(result: &DayResult) -> Option<(i128, &[i64])> {
     }
 }
 
+/// The day's dual bound and gap as decimal strings, when it has one.
+fn bound_and_gap(result: &DayResult) -> Option<(String, String)> {
+    let (cost, _) = answer(result)?;
+    let bound = result.bound.as_ref()?;
+    Some((bound.ceiling().to_string(), bound.gap(cost).to_string()))
+}
+
 /// Augmenting steps over both phases.
 pub(super) fn steps(result: &DayResult) -> Option<u64> {
     match &result.outcome {
@@ -218,7 +226,13 @@ fn detail(result: &DayResult) -> Option<String> {
     match &result.outcome {
         DayOutcome::Solved(Verdict::Solved(s)) => match &s.status {
             Status::Optimal => None,
-            Status::OptimalForMovesUpTo(n) => Some(format!("no improving move of norm <= {n}")),
+            Status::OptimalForMovesUpTo(_) if result.proven_optimal() => None,
+            Status::OptimalForMovesUpTo(n) => Some(match bound_and_gap(result) {
+                Some((_, gap)) => format!(
+                    "no improving move of norm <= {n}; the dual bound leaves a gap of {gap}"
+                ),
+                None => format!("no improving move of norm <= {n}; no finite dual bound"),
+            }),
             Status::Infeasible(reason) => Some(reason.to_string()),
             Status::Unbounded(_) => Some("the cost falls without limit along a move".into()),
             Status::StepLimit => Some("stopped at the step limit".into()),
@@ -273,6 +287,10 @@ struct Record<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     detail: Option<String>,
     objective: Option<i128>,
+    /// The proven lower bound `ceil(L(y))` of a truncated set's plan.
+    bound: Option<String>,
+    /// `objective - bound`.
+    gap: Option<String>,
     steps: Option<u64>,
     seconds: f64,
     plan: Option<Plan<'a>>,
@@ -288,12 +306,15 @@ fn write_results(
         Format::Jsonl => {
             for r in results {
                 let answer = answer(r);
+                let (bound, gap) = bound_and_gap(r).unzip();
                 let record = Record {
                     day: r.id.as_deref(),
                     line: r.line,
                     status: DayStatus::of(r).word(),
                     detail: detail(r),
                     objective: answer.map(|(o, _)| o),
+                    bound,
+                    gap,
                     steps: steps(r),
                     seconds: r.elapsed.as_secs_f64(),
                     plan: answer.map(|(_, x)| Plan { names, x }),
@@ -313,6 +334,8 @@ fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> i
         "line",
         "status",
         "objective",
+        "bound",
+        "gap",
         "steps",
         "seconds",
         "detail",
@@ -323,11 +346,14 @@ fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> i
     writeln!(out, "{}", csv_row(&header))?;
     for r in results {
         let answer = answer(r);
+        let (bound, gap) = bound_and_gap(r).unzip();
         let mut row = vec![
             r.id.clone().unwrap_or_default(),
             r.line.to_string(),
             DayStatus::of(r).word().to_string(),
             answer.map(|(o, _)| o.to_string()).unwrap_or_default(),
+            bound.unwrap_or_default(),
+            gap.unwrap_or_default(),
             steps(r).map(|s| s.to_string()).unwrap_or_default(),
             format!("{:.6}", r.elapsed.as_secs_f64()),
             detail(r).unwrap_or_default(),
@@ -363,8 +389,13 @@ pub(super) struct Tally {
     pub days: usize,
     /// Proven optimal.
     pub optimal: usize,
+    /// Of the optimal days, those proven by a dual bound (a truncated set's plan).
+    pub optimal_by_bound: usize,
     /// Optimal among the moves of a truncated set.
     pub optimal_within_norm: usize,
+    /// The largest gap left by a dual bound, over the days optimal within the norm that have
+    /// one.
+    pub largest_gap: Option<String>,
     /// No plan.
     pub infeasible: usize,
     /// Cost without limit.
@@ -388,6 +419,7 @@ impl Tally {
             days: results.len(),
             ..Tally::default()
         };
+        let mut widest = None;
         for r in results {
             let slot = match DayStatus::of(r) {
                 DayStatus::Optimal => &mut t.optimal,
@@ -399,11 +431,18 @@ impl Tally {
                 DayStatus::Error => &mut t.errors,
             };
             *slot += 1;
+            if r.bound.is_some() && DayStatus::of(r) == DayStatus::Optimal {
+                t.optimal_by_bound += 1;
+            }
+            if let Some(gap) = answer(r).zip(r.bound.as_ref()).map(|((o, _), b)| b.gap(o)) {
+                widest = widest.max(Some(gap));
+            }
             t.total_objective = t
                 .total_objective
                 .saturating_add(answer(r).map_or(0, |(o, _)| o));
             t.solve_seconds += r.elapsed.as_secs_f64();
         }
+        t.largest_gap = widest.map(|g| g.to_string());
         t
     }
 
@@ -456,6 +495,7 @@ impl<'a> Summary<'a> {
         let mut rows = vec![("days".to_string(), t.days.to_string())];
         let counts = [
             ("optimal", t.optimal),
+            ("  of which by dual bound", t.optimal_by_bound),
             ("optimal within norm", t.optimal_within_norm),
             ("infeasible", t.infeasible),
             ("unbounded", t.unbounded),
@@ -469,6 +509,9 @@ impl<'a> Summary<'a> {
                 .filter(|(label, n)| *n > 0 || *label == "optimal")
                 .map(|(label, n)| (label.to_string(), n.to_string())),
         );
+        if let Some(gap) = &t.largest_gap {
+            rows.push(("largest bound gap".into(), gap.clone()));
+        }
         rows.push(("total objective".into(), t.total_objective.to_string()));
         rows.push(("solve time".into(), format!("{:.3} s", t.solve_seconds)));
         rows.push(("wall time".into(), format!("{:.3} s", self.wall_seconds)));

@@ -64,6 +64,10 @@ pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Mo
                 .collect::<Vec<_>>()
                 .join(", ")
         ),
+        Outcome::Optimal if re(Claim::BoundMet) => "certified: the dual bound, re-evaluated \
+             exactly from its row multipliers, rounds up to the plan's cost, so no plan is \
+             cheaper (Lagrangian duality; the set itself is truncated)"
+            .to_string(),
         Outcome::Optimal if re(Claim::NoImprovingMove) => format!(
             "certified: {} in either sign, and the set is a test set",
             none_improves(checked)

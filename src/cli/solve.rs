@@ -6,7 +6,7 @@ use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::solve::{Numbers, Verdict};
-use kernstep::trace::{recheck, CoverageDoc, Decimal, Outcome, Recheck};
+use kernstep::trace::{recheck_with_bound, BoundDoc, CoverageDoc, Decimal, Outcome, Recheck};
 use serde::Serialize;
 
 use super::common::{SetSource, SolverSet};
@@ -37,6 +37,7 @@ struct SolveDoc<'a> {
     variant: Option<&'a str>,
     warm_start: bool,
     status: &'a Outcome,
+    bound: Option<&'a BoundDoc>,
     objective: Option<Decimal>,
     violation: Option<Decimal>,
     x: Option<&'a [i64]>,
@@ -87,27 +88,48 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
         instance.start(),
         &cancelled,
     )?;
-    let outcome = Outcome::of(
+    let numbers = Numbers::of(&instance.model);
+    let bound = instance.prepared.bound(numbers, &verdict, None)?;
+    let outcome = Outcome::of_bounded(
         &verdict,
+        bound.as_ref(),
         &instance.model.variable_names,
         &instance.model.row_names,
     );
-    let checked = recheck(
+    let checked = recheck_with_bound(
         &instance.model.matrix,
-        Numbers::of(&instance.model),
+        numbers,
         instance.prepared.checker(),
         &verdict,
+        bound.as_ref(),
     )?;
     ensure_holds(checked.as_ref())?;
+    let report = Report {
+        verdict: &verdict,
+        outcome: &outcome,
+        checked: checked.as_ref(),
+        bound: verdict
+            .optimum()
+            .zip(bound.as_ref())
+            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+    };
     let mut out = io::stdout().lock();
     if args.json {
-        let doc = document(&instance, &verdict, &outcome, checked.as_ref())?;
+        let doc = document(&instance, &report)?;
         writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
     } else {
-        write_summary(&mut out, &instance, &verdict, &outcome, checked.as_ref())?;
+        write_summary(&mut out, &instance, &report)?;
     }
     out.flush()?;
     Ok(exit_code(&outcome))
+}
+
+/// What a solve found, with its re-check and the dual bound of a truncated set's plan.
+struct Report<'a> {
+    verdict: &'a Verdict,
+    outcome: &'a Outcome,
+    checked: Option<&'a Recheck>,
+    bound: Option<BoundDoc>,
 }
 
 /// 0 for an optimal plan (also among truncated moves), 1 for every other outcome.
@@ -145,12 +167,8 @@ fn reached<'a>(instance: &Instance, verdict: &'a Verdict) -> anyhow::Result<Opti
     }))
 }
 
-fn document<'a>(
-    instance: &'a Instance,
-    verdict: &'a Verdict,
-    outcome: &'a Outcome,
-    checked: Option<&'a Recheck>,
-) -> anyhow::Result<SolveDoc<'a>> {
+fn document<'a>(instance: &'a Instance, report: &'a Report<'a>) -> anyhow::Result<SolveDoc<'a>> {
+    let verdict = report.verdict;
     let point = reached(instance, verdict)?;
     let (feasibility, cost) = verdict.steps();
     Ok(SolveDoc {
@@ -158,7 +176,8 @@ fn document<'a>(
         model: &instance.path,
         variant: instance.variant.as_deref(),
         warm_start: instance.warm.is_some(),
-        status: outcome,
+        status: report.outcome,
+        bound: report.bound.as_ref(),
         objective: point.as_ref().and_then(|p| p.objective).map(Decimal),
         violation: point.as_ref().map(|p| Decimal(p.violation)),
         x: point.as_ref().map(|p| p.x),
@@ -168,7 +187,7 @@ fn document<'a>(
         seconds: verdict.elapsed().as_secs_f64(),
         coverage: instance.set.coverage.into(),
         set: SetDoc::of(&instance.set),
-        recheck: checked,
+        recheck: report.checked,
     })
 }
 
@@ -197,10 +216,9 @@ pub fn set_text(set: &SolverSet) -> String {
 fn write_summary(
     out: &mut impl Write,
     instance: &Instance,
-    verdict: &Verdict,
-    outcome: &Outcome,
-    checked: Option<&Recheck>,
+    report: &Report<'_>,
 ) -> anyhow::Result<()> {
+    let (verdict, outcome) = (report.verdict, report.outcome);
     let mut rows = vec![("model".to_string(), instance.path.clone())];
     if let Some(id) = &instance.variant {
         rows.push(("variant".to_string(), id.clone()));
@@ -218,6 +236,9 @@ fn write_summary(
     if let Some(p) = &point {
         if let Some(objective) = p.objective {
             rows.push(("objective".to_string(), objective.to_string()));
+            if let Some(bound) = &report.bound {
+                rows.push(("dual bound".to_string(), bound_text(bound)));
+            }
         } else {
             rows.push(("violation".to_string(), p.violation.to_string()));
         }
@@ -242,13 +263,26 @@ fn write_summary(
     }
     writeln!(out)?;
     for line in wrap(
-        &certificate_line(outcome, checked, &instance.model),
+        &certificate_line(outcome, report.checked, &instance.model),
         WIDTH,
         2,
     ) {
         writeln!(out, "{line}")?;
     }
     Ok(())
+}
+
+/// `2780, meets the cost` or `2750, gap 30 (1.08%)`, with where the bound came from.
+pub fn bound_text(bound: &BoundDoc) -> String {
+    let reach = if bound.gap == "0" {
+        "meets the cost: no plan is cheaper".to_string()
+    } else {
+        format!("gap {} ({:.2}%)", bound.gap, bound.relative_gap * 100.0)
+    };
+    format!(
+        "{}, {reach} (LP relaxation's dual, evaluated exactly)",
+        bound.value
+    )
 }
 
 /// What the listed point is, when it is not an optimal plan.

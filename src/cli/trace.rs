@@ -12,7 +12,7 @@ use kernstep::trace::{record, StepPhase, StepRecord, TraceDocument};
 use super::explain::{certificate_line, ensure_holds, status_line, terms, wrap, wrap_units};
 use super::instance::{cancelled, Instance, InstanceArgs};
 use super::plot::write_step_plot;
-use super::solve::{exit_code, set_text};
+use super::solve::{bound_text, exit_code, set_text};
 
 /// Output width of the human trace.
 const WIDTH: usize = 100;
@@ -89,6 +89,9 @@ fn write_trace(out: &mut impl Write, instance: &Instance, doc: &TraceDocument) -
     writeln!(out, "status: {}", status_line(&doc.outcome))?;
     let time = format!("{:.3} ms", doc.seconds * 1e3);
     writeln!(out, "steps: {} in {time}", doc.steps.len())?;
+    if let Some(bound) = &doc.bound {
+        writeln!(out, "dual bound: {}", bound_text(bound))?;
+    }
     let words = certificate_line(&doc.outcome, doc.recheck.as_ref(), &instance.model);
     write_wrapped(out, &words, 2)
 }

@@ -3,9 +3,13 @@
 //! the parallel days all start from the optimum of the model's own numbers (each day is a few
 //! changes to them), computed once.
 //!
+//! A plan from a truncated set gets a dual bound ([`crate::bound`]), tried first with the
+//! multipliers of the model's own numbers (or, chained, of the day before), which serve most
+//! days without an LP solve.
+//!
 //! Results come back in input order whatever the thread count. Every day's claim (optimal,
-//! infeasible, unbounded) is re-checked independently ([`crate::trace::recheck`]) before it is
-//! returned; a refuted claim makes the day an error. A day whose line was bad is an
+//! infeasible, unbounded, a bound) is re-checked independently ([`crate::trace::recheck`])
+//! before it is returned; a refuted claim makes the day an error. A day whose line was bad is an
 //! error result and does not stop the others; once `cancel` returns true, days not yet begun
 //! are [`DayOutcome::NotRun`] and a running solve ends as cancelled.
 
@@ -13,11 +17,12 @@ use std::time::{Duration, Instant};
 
 use rayon::prelude::*;
 
+use crate::bound::{DualBound, Multipliers};
 use crate::error::Error;
 use crate::model::Model;
 use crate::network::FlowOutcome;
 use crate::solve::{Numbers, ParsedLine, Prepared, Variant, Verdict, WarmStart};
-use crate::trace::recheck;
+use crate::trace::recheck_with_bound;
 
 /// How to re-optimise the days.
 #[derive(Clone, Copy, Debug, Default)]
@@ -37,6 +42,9 @@ pub struct DayResult {
     pub id: Option<String>,
     /// What happened.
     pub outcome: DayOutcome,
+    /// The proven lower bound of a plan from a truncated set, re-checked (see
+    /// [`crate::bound`]); `None` for a complete set, a network, or a day without such a plan.
+    pub bound: Option<DualBound>,
     /// Wall-clock time spent on the day.
     pub elapsed: Duration,
 }
@@ -67,6 +75,29 @@ impl DayResult {
         }
     }
 
+    /// True when the day's plan is proven optimal: by the set (complete, or a network), or by
+    /// a dual bound that meets its cost.
+    pub fn proven_optimal(&self) -> bool {
+        let DayOutcome::Solved(verdict) = &self.outcome else {
+            return false;
+        };
+        match verdict {
+            Verdict::Solved(s) => match s.status {
+                augment::Status::Optimal => true,
+                augment::Status::OptimalForMovesUpTo(_) => {
+                    let cost = s.objective;
+                    self.bound
+                        .as_ref()
+                        .zip(cost)
+                        .is_some_and(|(b, cost)| b.meets(cost))
+                }
+                _ => false,
+            },
+            Verdict::Flow(_) => verdict.optimum().is_some(),
+            Verdict::NoIntegerSolution(_) => false,
+        }
+    }
+
     /// The row potentials that proved the day's plan optimal (network solves only).
     pub fn potentials(&self) -> Option<&[i64]> {
         match &self.outcome {
@@ -93,11 +124,17 @@ pub fn replan(
         origin,
         cancel,
     };
+    // The prices of the model's own numbers serve most days' bounds without an LP solve.
+    let base_prices = prepared.base_multipliers(model);
     if settings.chain {
         let mut warm: Option<WarmStart> = None;
+        let mut prices = base_prices;
         let mut out = Vec::with_capacity(days.len());
         for (line, parsed) in days {
-            let (result, day_rhs) = run.day(line, parsed, warm.as_ref());
+            let (result, day_rhs) = run.day(line, parsed, warm.as_ref(), prices.as_ref());
+            if let Some(bound) = &result.bound {
+                prices = Some(bound.multipliers.clone());
+            }
             if let (Some(x), Some(rhs)) = (result.feasible_plan(), day_rhs) {
                 warm = Some(WarmStart {
                     rhs,
@@ -111,7 +148,7 @@ pub fn replan(
     } else {
         let base = prepared.base_start(model, &settings.options, cancel);
         days.into_par_iter()
-            .map(|(line, parsed)| run.day(line, parsed, base.as_ref()).0)
+            .map(|(line, parsed)| run.day(line, parsed, base.as_ref(), base_prices.as_ref()).0)
             .collect()
     }
 }
@@ -126,53 +163,64 @@ struct Run<'a> {
 }
 
 impl Run<'_> {
-    /// Solves one day; also returns the day's right-hand side for a warm start of the next.
+    /// Solves one day, bounding a truncated set's plan from `prices` first; also returns the
+    /// day's right-hand side for a warm start of the next.
     fn day(
         &self,
         line: usize,
         parsed: Result<Variant, Error>,
         warm: Option<&WarmStart>,
+        prices: Option<&Multipliers>,
     ) -> (DayResult, Option<Vec<i64>>) {
         let started = Instant::now();
         let id = parsed.as_ref().ok().map(|v| v.id.clone());
-        let finish = |outcome| DayResult {
+        let finish = |outcome, bound| DayResult {
             line,
             id: id.clone(),
             outcome,
+            bound,
             elapsed: started.elapsed(),
         };
         if (self.cancel)() {
-            return (finish(DayOutcome::NotRun), None);
+            return (finish(DayOutcome::NotRun, None), None);
         }
         let variant = match parsed {
             Ok(v) => v,
-            Err(e) => return (finish(DayOutcome::Failed(e)), None),
+            Err(e) => return (finish(DayOutcome::Failed(e), None), None),
         };
         let numbers = match variant.numbers(self.model, self.origin) {
             Ok(n) => n,
-            Err(e) => return (finish(DayOutcome::Failed(e)), None),
+            Err(e) => return (finish(DayOutcome::Failed(e), None), None),
         };
         let solved = self
             .prepared
             .solve_numbers(numbers, &self.settings.options, warm, self.cancel)
-            .and_then(|verdict| self.confirmed(numbers, verdict));
-        let outcome = match solved {
-            Ok(verdict) => DayOutcome::Solved(verdict),
-            Err(e) => DayOutcome::Failed(e),
+            .and_then(|verdict| self.confirmed(numbers, verdict, prices));
+        let result = match solved {
+            Ok((verdict, bound)) => finish(DayOutcome::Solved(verdict), bound),
+            Err(e) => finish(DayOutcome::Failed(e), None),
         };
-        (finish(outcome), Some(numbers.rhs.to_vec()))
+        (result, Some(numbers.rhs.to_vec()))
     }
 
-    /// The verdict once the independent re-check confirms its claim; a refuted claim is an
-    /// error, so a day is never reported optimal (or infeasible) without its check.
-    fn confirmed(&self, numbers: Numbers<'_>, verdict: Verdict) -> Result<Verdict, Error> {
-        let check = recheck(
+    /// The verdict with its dual bound (for a truncated set's plan) once the independent
+    /// re-check confirms the claim; a refuted claim is an error, so a day is never reported
+    /// optimal (or infeasible) without its check.
+    fn confirmed(
+        &self,
+        numbers: Numbers<'_>,
+        verdict: Verdict,
+        prices: Option<&Multipliers>,
+    ) -> Result<(Verdict, Option<DualBound>), Error> {
+        let bound = self.prepared.bound(numbers, &verdict, prices)?;
+        let check = recheck_with_bound(
             &self.model.matrix,
             numbers,
             self.prepared.checker(),
             &verdict,
+            bound.as_ref(),
         )?;
         check.map_or(Ok(()), |c| c.confirm())?;
-        Ok(verdict)
+        Ok((verdict, bound))
     }
 }

@@ -237,6 +237,11 @@ impl MoveEngine {
         self.box_limit = widths;
     }
 
+    /// The matrix the engine was prepared for.
+    pub(super) fn matrix(&self) -> &IntMatrix {
+        &self.matrix
+    }
+
     /// The moves as the solver sees them.
     pub(super) fn moves(&self) -> &augment::MoveSet {
         &self.moves

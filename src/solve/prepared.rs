@@ -4,11 +4,12 @@
 
 use std::sync::Arc;
 
-use augment::{Coverage, Options};
+use augment::{Coverage, Options, Status};
 
 use super::instance::{MoveEngine, Verdict, WarmStart};
 use super::network::NetworkEngine;
 use super::variant::Numbers;
+use crate::bound::{prove, DualBound, Multipliers};
 use crate::completion::MoveSet;
 use crate::error::Result;
 use crate::matrix::IntMatrix;
@@ -98,6 +99,47 @@ impl Prepared {
             x: flow.to_vec(),
             potentials: verdict.potentials().map(<[i64]>::to_vec),
         })
+    }
+
+    /// A proven lower bound for the plan of `verdict`, when the set is norm-truncated and the
+    /// solve ended at a plan no move of the set improves (a complete set, or a network, needs
+    /// none): `hint` (the multipliers of a related instance) is tried first, then the LP
+    /// relaxation of `numbers` (see [`crate::bound::prove`]). `None` when no finite bound
+    /// was found.
+    pub fn bound(
+        &self,
+        numbers: Numbers<'_>,
+        verdict: &Verdict,
+        hint: Option<&Multipliers>,
+    ) -> Result<Option<DualBound>> {
+        let Engine::Moves(engine) = &self.engine else {
+            return Ok(None);
+        };
+        match verdict {
+            Verdict::Solved(s) if matches!(s.status, Status::OptimalForMovesUpTo(_)) => {
+                let Some(objective) = s.objective else {
+                    return Ok(None);
+                };
+                prove(&numbers.bound_instance(engine.matrix()), objective, hint)
+            }
+            _ => Ok(None),
+        }
+    }
+
+    /// The multipliers of the best dual bound of `model`'s own numbers, the hint for the
+    /// bounds of its variants (days that change a few of its numbers keep most of its
+    /// prices); `None` for a complete set or a network, which need no bound, or when there is
+    /// no finite bound.
+    pub fn base_multipliers(&self, model: &Model) -> Option<Multipliers> {
+        let Engine::Moves(engine) = &self.engine else {
+            return None;
+        };
+        if !matches!(engine.moves().coverage(), Coverage::NormTruncated(_)) {
+            return None;
+        }
+        let instance = Numbers::of(model).bound_instance(&model.matrix);
+        let best = prove(&instance, i128::MAX, None).ok()??;
+        Some(best.multipliers)
     }
 
     /// Solves `model` (whose matrix is the prepared one), from `warm` if given.

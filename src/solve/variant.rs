@@ -8,7 +8,9 @@
 use augment::Problem;
 use serde::Deserialize;
 
+use crate::bound::BoundInstance;
 use crate::error::{Error, Result};
+use crate::matrix::IntMatrix;
 use crate::model::{ConvexCosts, Model};
 use crate::network::FlowNumbers;
 
@@ -128,6 +130,20 @@ impl<'a> Numbers<'a> {
             lower: self.lower,
             upper: self.upper,
         }
+    }
+
+    /// These numbers of `matrix` as the dual bound sees them (see [`crate::bound`]).
+    pub fn bound_instance<'m>(&self, matrix: &'m IntMatrix) -> BoundInstance<'m>
+    where
+        'a: 'm,
+    {
+        BoundInstance::new(
+            matrix,
+            self.rhs,
+            (self.cost, self.convex),
+            self.lower,
+            self.upper,
+        )
     }
 
     /// The model's own numbers.

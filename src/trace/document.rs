@@ -11,9 +11,10 @@ use std::collections::BTreeMap;
 use augment::{Options, Phase, TraceStep};
 use serde::{Deserialize, Serialize};
 
+use super::bound::BoundDoc;
 use super::decimal::Decimal;
 use super::outcome::{sign_number, CoverageDoc, Outcome};
-use super::recheck::{recheck, Recheck};
+use super::recheck::{recheck_with_bound, Recheck};
 use crate::error::{Error, Result};
 use crate::model::{ConvexCosts, Model, Pieces};
 use crate::network::Step;
@@ -100,6 +101,9 @@ pub struct TraceDocument {
     pub violation: Option<Decimal>,
     /// How the solve ended.
     pub outcome: Outcome,
+    /// The dual bound of a truncated set's plan (`null` for a complete set or a network).
+    #[serde(default)]
+    pub bound: Option<BoundDoc>,
     /// The independent re-check of the outcome's claim, when it makes one.
     pub recheck: Option<Recheck>,
     /// Wall-clock seconds of the augmentation.
@@ -115,11 +119,13 @@ pub fn record(
     cancel: &dyn Fn() -> bool,
 ) -> Result<TraceDocument> {
     let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
-    let checked = recheck(
+    let bound = prepared.bound(Numbers::of(model), &verdict, None)?;
+    let checked = recheck_with_bound(
         &model.matrix,
         Numbers::of(model),
         prepared.checker(),
         &verdict,
+        bound.as_ref(),
     )?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
@@ -147,7 +153,16 @@ pub fn record(
         x: None,
         objective: None,
         violation: None,
-        outcome: Outcome::of(&verdict, &model.variable_names, &model.row_names),
+        outcome: Outcome::of_bounded(
+            &verdict,
+            bound.as_ref(),
+            &model.variable_names,
+            &model.row_names,
+        ),
+        bound: verdict
+            .optimum()
+            .zip(bound.as_ref())
+            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
         recheck: checked,
         seconds: 0.0,
     };

@@ -3,14 +3,16 @@
 //!
 //! Everything here is data; the binary renders it as words, tables, JSON or plots.
 
+mod bound;
 mod decimal;
 mod document;
 mod outcome;
 mod recheck;
 mod sparse;
 
+pub use bound::BoundDoc;
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
-pub use recheck::{recheck, Claim, Defect, Recheck, SignedMove};
+pub use recheck::{recheck, recheck_with_bound, Claim, Defect, Recheck, SignedMove};
 pub use sparse::{named_entries, NamedEntry};

@@ -8,6 +8,7 @@ use augment::{Coverage, InfeasibleReason, Sign, Status};
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
+use crate::bound::DualBound;
 use crate::network::{FlowOutcome, Infeasibility};
 use crate::solve::Verdict;
 
@@ -103,6 +104,23 @@ impl Outcome {
             },
             Status::StepLimit => Outcome::StepLimit,
             Status::Cancelled => Outcome::Cancelled,
+        }
+    }
+
+    /// The outcome of `verdict` once `bound` is known: a plan optimal among the moves of a
+    /// truncated set is optimal outright when the bound meets its cost.
+    pub fn of_bounded(
+        verdict: &Verdict,
+        bound: Option<&DualBound>,
+        names: &[String],
+        rows: &[String],
+    ) -> Outcome {
+        let outcome = Outcome::of(verdict, names, rows);
+        match (&outcome, bound, verdict.optimum()) {
+            (Outcome::OptimalForMovesUpTo { .. }, Some(b), Some((cost, _))) if b.meets(cost) => {
+                Outcome::Optimal
+            }
+            _ => outcome,
         }
     }
 

@@ -20,6 +20,10 @@ use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
 use super::outcome::sign_number;
+use num_bigint::BigInt;
+use num_traits::Zero;
+
+use crate::bound::DualBound;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
 use crate::network::{certificate, FlowOutcome, Infeasibility};
@@ -44,6 +48,12 @@ pub enum Claim {
     /// The weighted sum of a cut's rows asks for a value the bounds cannot give (network
     /// solves).
     Cut,
+    /// The dual bound `L(y)`, re-evaluated exactly from its multipliers, rounds up to the
+    /// plan's cost: no plan is cheaper, whatever set found this one.
+    BoundMet,
+    /// The dual bound, re-evaluated exactly from its multipliers, is at most the plan's cost
+    /// (a valid bound with a gap).
+    BoundBelowCost,
 }
 
 impl Claim {
@@ -56,6 +66,8 @@ impl Claim {
             Claim::Ray => "the cost falls without limit along the ray",
             Claim::DualPotentials => "the row potentials prove the plan optimal",
             Claim::Cut => "the cut's rows cannot be balanced within the bounds",
+            Claim::BoundMet => "the dual bound meets the plan's cost",
+            Claim::BoundBelowCost => "the dual bound is at most the plan's cost",
         }
     }
 }
@@ -203,6 +215,94 @@ pub fn recheck(
         _ => violation(&problem, moves, &solution.x)?,
     };
     Ok(Some(checked))
+}
+
+/// Like [`recheck`], for a verdict reported with the dual bound `bound`: a bound that meets
+/// the plan's cost is the claim checked ([`Claim::BoundMet`]); a bound with a gap must hold as
+/// well ([`Claim::BoundBelowCost`], else [`Error::Refuted`]) before the verdict's own claim
+/// is checked.
+pub fn recheck_with_bound(
+    matrix: &IntMatrix,
+    numbers: Numbers<'_>,
+    moves: Option<&Checker>,
+    verdict: &Verdict,
+    bound: Option<&DualBound>,
+) -> Result<Option<Recheck>> {
+    let Some(bound) = bound else {
+        return recheck(matrix, numbers, moves, verdict);
+    };
+    let checked = bound_check(matrix, numbers, verdict, bound)?;
+    if checked.claim == Claim::BoundMet {
+        return Ok(Some(checked));
+    }
+    checked.confirm()?;
+    recheck(matrix, numbers, moves, verdict)
+}
+
+/// Checks `bound` against the plan of `verdict` from the numbers alone: the plan meets the
+/// rows and the box, its cost is recomputed, `L(y)` is re-evaluated exactly from the
+/// multipliers and must equal the reported value, and `ceil(L(y))` may not exceed the cost.
+fn bound_check(
+    matrix: &IntMatrix,
+    numbers: Numbers<'_>,
+    verdict: &Verdict,
+    bound: &DualBound,
+) -> Result<Recheck> {
+    let (claimed, x) = verdict.optimum().ok_or_else(|| {
+        Error::Dimension("a dual bound was reported for a solve without a plan".into())
+    })?;
+    let claim = if bound.meets(claimed) {
+        Claim::BoundMet
+    } else {
+        Claim::BoundBelowCost
+    };
+    let refuted = |why: String| Ok(Recheck::of_point(claim, 0, Defect::Certificate { why }));
+    if x.len() != matrix.cols() {
+        return refuted(format!(
+            "the plan has {} values for {} variables",
+            x.len(),
+            matrix.cols()
+        ));
+    }
+    if let Some((row, value)) = matrix.first_unmet_row(x, numbers.rhs) {
+        let defect = Defect::OffFibre {
+            row,
+            value: Decimal(value),
+            rhs: numbers.rhs[row],
+        };
+        return Ok(Recheck::of_point(claim, 0, defect));
+    }
+    let problem = numbers.problem()?;
+    if let Some(variable) = problem.first_outside(x) {
+        return Ok(Recheck::of_point(claim, 0, Defect::OutsideBox { variable }));
+    }
+    let cost = problem.objective().value(x)?;
+    if cost != claimed {
+        return refuted(format!("the plan costs {cost}, not the reported {claimed}"));
+    }
+    let value = numbers
+        .bound_instance(matrix)
+        .evaluate(&bound.multipliers)?;
+    if value.as_ref() != Some(&bound.value) {
+        let found = value.map_or("minus infinity".to_string(), |v| v.to_string());
+        return refuted(format!(
+            "the multipliers give the bound {found}, not the reported {}",
+            bound.value
+        ));
+    }
+    if bound.gap(cost) < BigInt::zero() {
+        return refuted(format!(
+            "the bound {} exceeds the plan's cost {cost}: the bound or the plan is wrong",
+            bound.value
+        ));
+    }
+    Ok(Recheck {
+        claim,
+        holds: true,
+        moves_checked: 0,
+        counterexample: None,
+        defect: None,
+    })
 }
 
 /// The claim of a network solve, checked by [`certificate::check`] from the matrix and the
