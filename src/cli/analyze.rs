@@ -2,15 +2,19 @@
 
 use std::io::{self, Write};
 use std::process::ExitCode;
+use std::time::Duration;
 
 use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
+use kernstep::completion::Control;
 use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
+use kernstep::testset::{deepen, project, BuildSpec, Projection};
 use serde::Serialize;
 
 use super::args::AnalyzeArgs;
-use super::table::write_pairs;
+use super::common::interrupted;
+use super::table::{write_pairs, write_table};
 
 /// The `--json` document.
 #[derive(Serialize)]
@@ -19,6 +23,8 @@ struct Report<'a> {
     norm_limit: u64,
     network: NetworkReport,
     analysis: &'a MatrixAnalysis,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    build_estimate: Option<Vec<Projection>>,
 }
 
 /// Whether the matrix is a network matrix, and if not, what stands in the way.
@@ -57,6 +63,10 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
     let options = AnalysisOptions::new().subdet_limit(args.subdet_limit);
     let analysis = MatrixAnalysis::of(&model.matrix, &options);
     let network = NetworkReport::of(&model);
+    let estimate = match args.estimate {
+        Some(probe) => Some(build_estimate(&model, &analysis, probe, args.up_to)?),
+        None => None,
+    };
     let mut out = io::stdout().lock();
     if args.json {
         let report = Report {
@@ -64,6 +74,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
             norm_limit: analysis.norm_limit(),
             network,
             analysis: &analysis,
+            build_estimate: estimate,
         };
         let text = serde_json::to_string_pretty(&report)?;
         writeln!(out, "{text}")?;
@@ -75,9 +86,66 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
             format!("{verdict}: {}", network.detail),
         ));
         write_pairs(&mut out, &rows)?;
+        if let Some(levels) = &estimate {
+            writeln!(out)?;
+            write_estimate(&mut out, levels)?;
+        }
     }
     out.flush()?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// The Graver basis's levels: the first built for up to `probe`, the rest up to `up_to` (or
+/// the proven bound) extrapolated.
+fn build_estimate(
+    model: &Model,
+    analysis: &MatrixAnalysis,
+    probe: Duration,
+    up_to: Option<u64>,
+) -> anyhow::Result<Vec<Projection>> {
+    let control = Control::new().time_limit(probe).cancel_flag(interrupted());
+    let deepened = deepen(
+        model,
+        analysis,
+        &BuildSpec::default(),
+        &control,
+        &mut |_| {},
+    )?;
+    Ok(project(
+        &deepened.levels,
+        up_to.unwrap_or(deepened.proven_bound),
+    ))
+}
+
+fn write_estimate(out: &mut impl Write, levels: &[Projection]) -> io::Result<()> {
+    writeln!(
+        out,
+        "build estimate (Graver basis; measured levels, then extrapolated, an order of magnitude):"
+    )?;
+    let cells: Vec<Vec<String>> = levels
+        .iter()
+        .map(|p| {
+            vec![
+                p.limit.to_string(),
+                format!("{:.0}", p.elements),
+                format!("{:.2}", p.seconds),
+                if p.measured { "built" } else { "extrapolated" }.to_string(),
+            ]
+        })
+        .collect();
+    write_table(
+        out,
+        &["norm limit", "elements", "seconds", "source"],
+        &cells,
+    )?;
+    if let Some(last) = levels.last().filter(|p| !p.measured) {
+        writeln!(
+            out,
+            "a build up to norm {} would take about {:.0} s; `build --budget` keeps the largest level that fits",
+            last.limit, last.seconds
+        )?;
+    }
+    Ok(())
 }
 
 fn decision(d: Decision) -> String {

@@ -16,8 +16,8 @@ use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
-    build, cycles_entry, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, NormLimit,
-    Obtained,
+    build, cycles_entry, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
+    NormLimit, Obtained,
 };
 use serde::Serialize;
 
@@ -62,6 +62,16 @@ pub struct BuildArgs {
     /// Stop a build after S seconds.
     #[arg(long, value_name = "S")]
     pub time_limit: Option<f64>,
+    /// Overnight budget (`90s`, `40m`, `8h`): deepen the norm limit one level at a time and
+    /// keep the largest level that finishes in the budget (and under the memory cap), stored
+    /// as norm-truncated; the proven bound reached gives the complete set. With
+    /// `--norm-limit N` the deepening stops at N.
+    #[arg(long, value_name = "DURATION", value_parser = parse_duration)]
+    pub budget: Option<Duration>,
+    /// Memory cap for the working set (`512M`, `6G`): stop a build, or a level of a budgeted
+    /// build, before its working set would need more (default: the memory available).
+    #[arg(long, value_name = "SIZE", value_parser = parse_size)]
+    pub max_memory: Option<u64>,
     /// Write the set of the one model to FILE (JSON) instead of the cache.
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
@@ -107,6 +117,42 @@ pub enum MethodArg {
     Pottier,
 }
 
+/// `90`, `90s`, `40m` or `8h`.
+pub(super) fn parse_duration(text: &str) -> Result<Duration, String> {
+    let (number, unit) = match text.char_indices().last() {
+        Some((i, c)) if c.is_ascii_alphabetic() => (&text[..i], c),
+        _ => (text, 's'),
+    };
+    let scale = match unit {
+        's' => 1.0,
+        'm' => 60.0,
+        'h' => 3600.0,
+        other => return Err(format!("unknown unit {other:?}; use s, m or h (e.g. 40m)")),
+    };
+    number
+        .trim()
+        .parse::<f64>()
+        .ok()
+        .and_then(|n| Duration::try_from_secs_f64(n * scale).ok())
+        .filter(|d| !d.is_zero())
+        .ok_or_else(|| format!("expected a positive duration such as 90s, 40m or 8h, got {text:?}"))
+}
+
+/// `512M`, `6G`, `800K` or a number of bytes.
+fn parse_size(text: &str) -> Result<u64, String> {
+    let upper = text.trim().to_ascii_uppercase();
+    let (number, shift) = match "KMGT".find(upper.chars().last().unwrap_or(' ')) {
+        Some(power) => (&upper[..upper.len() - 1], 10 * (power + 1)),
+        None => (upper.as_str(), 0),
+    };
+    number
+        .parse::<u64>()
+        .ok()
+        .and_then(|n| n.checked_mul(1u64 << shift))
+        .filter(|&n| n > 0)
+        .ok_or_else(|| format!("expected a size such as 512M or 6G, got {text:?}"))
+}
+
 fn parse_norm_limit(text: &str) -> Result<NormLimit, String> {
     match text {
         "auto" => Ok(NormLimit::Auto),
@@ -146,8 +192,23 @@ struct Row {
     key: Option<String>,
     kind: Option<SetKind>,
     elements: Option<usize>,
+    /// The norm limit a budgeted build reached.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    norm_limit: Option<u64>,
+    /// The levels of a budgeted build.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    levels: Vec<LevelRow>,
     seconds: f64,
     status: String,
+}
+
+/// One level of a budgeted build in the JSON summary.
+#[derive(Debug, Serialize)]
+struct LevelRow {
+    norm_limit: u64,
+    elements: Option<usize>,
+    seconds: f64,
+    stopped: Option<String>,
 }
 
 impl BuildArgs {
@@ -236,6 +297,8 @@ fn build_one(args: &BuildArgs, path: &Path) -> Row {
         key: None,
         kind: None,
         elements: None,
+        norm_limit: None,
+        levels: Vec::new(),
         seconds: 0.0,
         status: String::new(),
     };
@@ -336,10 +399,20 @@ fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<Str
             Duration::try_from_secs_f64(s).context("--time-limit must be a number of seconds")?;
         control = control.time_limit(limit);
     }
-    match (args.max_elements, memory_guard(model.variables())) {
+    let width = model.variables();
+    let memory_cap = args.max_memory.map(|bytes| members_in(bytes, width));
+    match (
+        args.max_elements,
+        memory_cap.or_else(|| memory_guard(width)),
+    ) {
         (Some(m), _) => control = control.max_elements(m),
         (None, Some(guard)) => control = control.max_elements(guard),
         (None, None) => {}
+    }
+    if let Some(budget) = args.budget {
+        let status = budgeted(args, &model, &analysis, control.time_limit(budget), row);
+        bar.finish_and_clear();
+        return status;
     }
     let status = if let Some(out) = &args.out {
         row.key = Some(entry_key(&model.matrix, &spec).digest().to_hex());
@@ -382,6 +455,98 @@ fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<Str
     Ok(status)
 }
 
+/// Deepens the norm limit within the budget of `control` and stores (or writes) the last
+/// level that finished.
+fn budgeted(
+    args: &BuildArgs,
+    model: &Model,
+    analysis: &MatrixAnalysis,
+    control: Control<'_>,
+    row: &mut Row,
+) -> anyhow::Result<String> {
+    let spec = args.spec(model)?;
+    let library = match &args.out {
+        Some(_) => None,
+        None => Some(args.cache.open()?),
+    };
+    let complete = spec.resolve(model, analysis)?;
+    if let (Some(library), false) = (&library, args.rebuild) {
+        if let Some(stored) = library.find(&entry_key(&model.matrix, &complete))? {
+            row.key = Some(stored.digest.to_hex());
+            row.elements = Some(stored.data.len());
+            return Ok("present (the whole request; no deepening needed)".to_string());
+        }
+    }
+    let deepened = deepen(model, analysis, &spec, &control, &mut |_| {})?;
+    row.levels = deepened
+        .levels
+        .iter()
+        .map(|l| LevelRow {
+            norm_limit: l.limit,
+            elements: match l.end {
+                LevelEnd::Built { elements } => Some(elements),
+                LevelEnd::Stopped(_) => None,
+            },
+            seconds: l.elapsed.as_secs_f64(),
+            stopped: match l.end {
+                LevelEnd::Stopped(reason) => Some(format!("{reason:?}")),
+                LevelEnd::Built { .. } => None,
+            },
+        })
+        .collect();
+    let stopped = deepened.levels.last().and_then(|l| match l.end {
+        LevelEnd::Stopped(reason) => Some((l.limit, reason, l.elapsed)),
+        LevelEnd::Built { .. } => None,
+    });
+    let Some(built) = deepened.kept.as_deref() else {
+        let (limit, reason, _) = stopped.expect("a deepening without a kept level stopped");
+        return Ok(format!(
+            "stopped: {reason:?} at norm limit {limit}, the first level; nothing stored"
+        ));
+    };
+    let limit = deepened.limit_reached().unwrap_or_default();
+    row.key = Some(built.key.digest().to_hex());
+    row.elements = Some(built.set.elements.len());
+    row.norm_limit = Some(limit);
+    let mut status = match &args.out {
+        Some(out) => {
+            write_set_file(out, built)?;
+            format!("written to {}", out.display())
+        }
+        None => {
+            let library = library.expect("a cache is open without --out");
+            match library.keep(built)? {
+                Some(damage) => format!("built (replaced a damaged entry: {damage})"),
+                None => "built".to_string(),
+            }
+        }
+    };
+    let proven = match deepened.proven_bound {
+        u64::MAX => "no finite proven bound".to_string(),
+        bound => format!("proven bound {bound}"),
+    };
+    match built.metadata.completeness {
+        cache::Completeness::NormTruncated { .. } => status.push_str(&format!(
+            " within the budget: norm limit {limit} ({proven}; partial)"
+        )),
+        _ => status.push_str(&format!(
+            " within the budget: complete (norm limit {limit} reached the proven bound)"
+        )),
+    }
+    if let Some((next, reason, elapsed)) = stopped {
+        status.push_str(&format!(
+            "; norm limit {next} stopped on {reason:?} after {:.1} s",
+            elapsed.as_secs_f64()
+        ));
+    }
+    Ok(status)
+}
+
+/// Working-set members that fit in `bytes`, with the headroom of [`memory_guard`].
+fn members_in(bytes: u64, width: usize) -> usize {
+    usize::try_from(bytes / (5 * bytes_per_member(width))).unwrap_or(usize::MAX)
+}
+
 /// Bytes of one working-set member (each sign of a vector counts): 4-byte entries, sign masks
 /// and index slots.
 fn bytes_per_member(width: usize) -> u64 {
@@ -402,8 +567,7 @@ fn memory_guard(width: usize) -> Option<usize> {
         .nth(1)?
         .parse()
         .ok()?;
-    let elements = kib.saturating_mul(1024) / (5 * bytes_per_member(width));
-    usize::try_from(elements).ok()
+    Some(members_in(kib.saturating_mul(1024), width))
 }
 
 /// A progress line on stderr when it is a terminal, nothing otherwise.

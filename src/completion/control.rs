@@ -102,6 +102,19 @@ impl<'a> Control<'a> {
         }
     }
 
+    /// The same limits and hooks with the time limit brought forward, if need be, to `within`
+    /// from now: one attempt inside a larger budget.
+    pub fn within(mut self, within: Duration) -> Self {
+        let sooner = self.elapsed().saturating_add(within);
+        self.time_limit = Some(self.time_limit.map_or(sooner, |t| t.min(sooner)));
+        self
+    }
+
+    /// Time left before the time limit; `None` without one.
+    pub fn remaining(&self) -> Option<Duration> {
+        self.time_limit.map(|t| t.saturating_sub(self.elapsed()))
+    }
+
     /// Time since the clock started.
     pub fn elapsed(&self) -> Duration {
         self.start.elapsed()

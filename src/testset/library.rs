@@ -114,6 +114,16 @@ impl SetLibrary {
         }
     }
 
+    /// Stores `built` (a set built outside [`SetLibrary::obtain`], such as the kept level of a
+    /// budgeted build), replacing any entry under its key; returns the damage found in the
+    /// entry it replaced, if any.
+    pub fn keep(&self, built: &BuiltSet) -> Result<Option<String>> {
+        let lock = self.store.lock_for_rebuild(&built.key)?;
+        let replaced = lock.damaged_entry().map(ToString::to_string);
+        lock.commit(&to_data(&built.set)?, &built.metadata)?;
+        Ok(replaced)
+    }
+
     /// Returns the entry of the network matrix `a` (its implicit set of cycles, see
     /// [`super::cycles_entry`]), storing it when missing; with `rebuild` it is replaced.
     pub fn obtain_cycles(

@@ -1,8 +1,10 @@
 //! Test sets as users handle them: a request resolved against a model, built by the
 //! completion, stored in and reused from the cache, resumed from a checkpoint saved for the
-//! same request.
+//! same request, or deepened level by level within a budget.
 
 mod build;
+mod deepen;
+mod estimate;
 mod library;
 mod network;
 mod saved;
@@ -11,6 +13,8 @@ mod spec;
 pub use build::{
     build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
+pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
+pub use estimate::{project, Projection};
 pub use library::{Obtained, SetLibrary};
 pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
