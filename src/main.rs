@@ -13,6 +13,9 @@ use clap::Parser;
 
 fn main() -> ExitCode {
     let args = cli::args::Cli::parse();
+    // Under `mpirun`, MPI lives until the verb has run (finalised when this is dropped).
+    #[cfg(feature = "mpi")]
+    let _mpi = cli::start_ranks();
     match cli::run(args) {
         Ok(code) => code,
         Err(err) if is_broken_pipe(&err) => ExitCode::SUCCESS,

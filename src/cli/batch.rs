@@ -20,8 +20,9 @@ use kernstep::model::Model;
 use kernstep::network::{FlowOutcome, Infeasibility};
 use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared, Verdict};
+use num_bigint::BigInt;
 use serde::ser::{SerializeMap, Serializer};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::common::{
     graver_for, interrupted, with_threads, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
@@ -81,31 +82,45 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let set = graver_for(model, &args.input, &args.cache, args.build, args.engine)?;
     let started = Instant::now();
     let prepared = set.prepare(&model.matrix)?;
+    #[cfg(feature = "mpi")]
+    if let Some(ranks) = super::ranked::current() {
+        let days = super::ranked::batch::block(days, ranks);
+        let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
+        let named = (&set, model.variable_names.as_slice());
+        return super::ranked::batch::finish(args, named, &results, started, ranks);
+    }
     let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
     let wall = started.elapsed();
-    for error in results.iter().filter_map(failure) {
-        eprintln!("kernstep: {error}");
-    }
+    report_failures(&results);
     let tally = Tally::of(&results);
     let summary = Summary::new(&tally, &set, args.threads, wall);
+    let mut body = Vec::new();
+    write_results(&mut body, args.format, &results, &model.variable_names)?;
+    emit(args, &body, &summary)?;
+    Ok(tally.exit_code())
+}
+
+/// Writes the rendered results to `--out` (the summary then to stdout) or to stdout (the
+/// summary then to stderr).
+pub(super) fn emit(args: &BatchArgs, body: &[u8], summary: &Summary<'_>) -> anyhow::Result<()> {
     match &args.out {
         Some(path) => {
             let file =
                 File::create(path).with_context(|| format!("creating {}", path.display()))?;
             let mut out = BufWriter::new(file);
-            write_results(&mut out, args.format, &results, &model.variable_names)?;
-            out.flush()
+            out.write_all(body)
+                .and_then(|()| out.flush())
                 .with_context(|| format!("writing {}", path.display()))?;
             summary.write(&mut io::stdout().lock(), args.json)?;
         }
         None => {
             let mut out = io::stdout().lock();
-            write_results(&mut out, args.format, &results, &model.variable_names)?;
+            out.write_all(body)?;
             out.flush()?;
             summary.write(&mut io::stderr().lock(), args.json)?;
         }
     }
-    Ok(tally.exit_code())
+    Ok(())
 }
 
 /// Re-optimises every day with the prepared set on `threads` threads (Ctrl-C stops).
@@ -126,6 +141,13 @@ pub(super) fn solve_days(
     with_threads(threads, || {
         replan(prepared, model, days, &settings, &origin, &cancel)
     })
+}
+
+/// Each failed day's error on stderr.
+pub(super) fn report_failures(results: &[DayResult]) {
+    for error in results.iter().filter_map(failure) {
+        eprintln!("kernstep: {error}");
+    }
 }
 
 fn failure(result: &DayResult) -> Option<&kernstep::Error> {
@@ -296,7 +318,21 @@ struct Record<'a> {
     plan: Option<Plan<'a>>,
 }
 
-fn write_results(
+/// Writes the results in `format`; a CSV starts with its header.
+pub(super) fn write_results(
+    out: &mut impl Write,
+    format: Format,
+    results: &[DayResult],
+    names: &[String],
+) -> anyhow::Result<()> {
+    if format == Format::Csv {
+        write_csv_header(out, names)?;
+    }
+    write_records(out, format, results, names)
+}
+
+/// Writes one record or CSV row per result, without a header.
+pub(super) fn write_records(
     out: &mut impl Write,
     format: Format,
     results: &[DayResult],
@@ -328,7 +364,8 @@ fn write_results(
     Ok(())
 }
 
-fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> io::Result<()> {
+/// The CSV header: the fixed columns, then one per variable.
+pub(super) fn write_csv_header(out: &mut impl Write, names: &[String]) -> io::Result<()> {
     let mut header = [
         "day",
         "line",
@@ -343,7 +380,10 @@ fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> i
     .map(String::from)
     .to_vec();
     header.extend(names.iter().cloned());
-    writeln!(out, "{}", csv_row(&header))?;
+    writeln!(out, "{}", csv_row(&header))
+}
+
+fn write_csv(out: &mut impl Write, results: &[DayResult], names: &[String]) -> io::Result<()> {
     for r in results {
         let answer = answer(r);
         let (bound, gap) = bound_and_gap(r).unzip();
@@ -383,7 +423,7 @@ fn csv_row(cells: &[String]) -> String {
 }
 
 /// Counts of the days by status, with the total cost of the answered days.
-#[derive(Debug, Default, Serialize)]
+#[derive(Debug, Default, Serialize, Deserialize)]
 pub(super) struct Tally {
     /// Days in the input.
     pub days: usize,
@@ -446,6 +486,26 @@ impl Tally {
         t
     }
 
+    /// Adds the counts of `other` (another rank's days).
+    #[cfg(feature = "mpi")]
+    pub(super) fn absorb(&mut self, other: Tally) {
+        self.days += other.days;
+        self.optimal += other.optimal;
+        self.optimal_by_bound += other.optimal_by_bound;
+        self.optimal_within_norm += other.optimal_within_norm;
+        self.infeasible += other.infeasible;
+        self.unbounded += other.unbounded;
+        self.step_limit += other.step_limit;
+        self.interrupted += other.interrupted;
+        self.errors += other.errors;
+        self.total_objective = self.total_objective.saturating_add(other.total_objective);
+        self.solve_seconds += other.solve_seconds;
+        let gap = |g: &Option<String>| g.as_deref().and_then(|g| g.parse::<BigInt>().ok());
+        if gap(&other.largest_gap) > gap(&self.largest_gap) {
+            self.largest_gap = other.largest_gap;
+        }
+    }
+
     /// 2 for any error, else 1 for any day without a proven answer, else 0.
     pub(super) fn exit_code(&self) -> ExitCode {
         if self.errors > 0 {
@@ -460,7 +520,7 @@ impl Tally {
 
 /// The summary of a run.
 #[derive(Serialize)]
-struct Summary<'a> {
+pub(super) struct Summary<'a> {
     #[serde(flatten)]
     tally: &'a Tally,
     wall_seconds: f64,
@@ -471,7 +531,12 @@ struct Summary<'a> {
 }
 
 impl<'a> Summary<'a> {
-    fn new(tally: &'a Tally, set: &SolverSet, threads: Option<usize>, wall: Duration) -> Self {
+    pub(super) fn new(
+        tally: &'a Tally,
+        set: &SolverSet,
+        threads: Option<usize>,
+        wall: Duration,
+    ) -> Self {
         Summary {
             tally,
             wall_seconds: wall.as_secs_f64(),

@@ -11,7 +11,7 @@ use cache::SetKind;
 use clap::{Args, ValueEnum};
 use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::{Control, Method, Progress, Sign};
+use kernstep::completion::{Control, Method, Progress, Sign, WorkShare};
 use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
@@ -237,8 +237,21 @@ impl BuildArgs {
 }
 
 /// Builds every model's set; exits 0 if all are stored, 1 if a limit stopped one, 2 if one
-/// failed (the others are still built).
+/// failed (the others are still built). Under `mpirun` (feature `mpi`) the ranks share the
+/// build (see `ranked`).
 pub fn run(args: &BuildArgs) -> anyhow::Result<ExitCode> {
+    #[cfg(feature = "mpi")]
+    if let Some(ranks) = super::ranked::current() {
+        return super::ranked::build::run(args, ranks);
+    }
+    run_with(args, None)
+}
+
+/// [`run`], with the completion's work shared through `share` when given.
+pub(super) fn run_with(
+    args: &BuildArgs,
+    share: Option<&dyn WorkShare>,
+) -> anyhow::Result<ExitCode> {
     let paths = model_paths(&args.models)?;
     if args.out.is_some() && paths.len() != 1 {
         anyhow::bail!("--out writes one set: name exactly one model");
@@ -246,7 +259,7 @@ pub fn run(args: &BuildArgs) -> anyhow::Result<ExitCode> {
     let rows = with_threads(args.threads, || {
         paths
             .iter()
-            .map(|p| build_one(args, p))
+            .map(|p| build_one(args, p, share))
             .collect::<Vec<Row>>()
     })?;
     let mut out = io::stdout().lock();
@@ -290,7 +303,7 @@ fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
 }
 
 /// Builds one model's set; every problem becomes the row's status, not an error.
-fn build_one(args: &BuildArgs, path: &Path) -> Row {
+fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Row {
     let start = Instant::now();
     let mut row = Row {
         model: path.display().to_string(),
@@ -302,7 +315,7 @@ fn build_one(args: &BuildArgs, path: &Path) -> Row {
         seconds: 0.0,
         status: String::new(),
     };
-    match try_build(args, path, &mut row) {
+    match try_build(args, path, &mut row, share) {
         Ok(status) => row.status = status,
         Err(e) => row.status = format!("failed: {}", render_chain(&e)),
     }
@@ -374,7 +387,12 @@ fn build_cycles(
     )
 }
 
-fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<String> {
+fn try_build(
+    args: &BuildArgs,
+    path: &Path,
+    row: &mut Row,
+    share: Option<&dyn WorkShare>,
+) -> anyhow::Result<String> {
     let model = PlanInput::load(path)?.into_model();
     if let Some(network) = implicit_network(args, &model)? {
         return build_cycles(args, &model, &network, row);
@@ -393,21 +411,9 @@ fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<Str
             p.elapsed.as_secs_f64()
         ));
     };
-    let mut control = Control::new().cancel_flag(interrupted()).progress(&report);
-    if let Some(s) = args.time_limit {
-        let limit =
-            Duration::try_from_secs_f64(s).context("--time-limit must be a number of seconds")?;
-        control = control.time_limit(limit);
-    }
-    let width = model.variables();
-    let memory_cap = args.max_memory.map(|bytes| members_in(bytes, width));
-    match (
-        args.max_elements,
-        memory_cap.or_else(|| memory_guard(width)),
-    ) {
-        (Some(m), _) => control = control.max_elements(m),
-        (None, Some(guard)) => control = control.max_elements(guard),
-        (None, None) => {}
+    let mut control = limits(args, &model)?.progress(&report);
+    if let Some(share) = share {
+        control = control.shared(share);
     }
     if let Some(budget) = args.budget {
         let status = budgeted(args, &model, &analysis, control.time_limit(budget), row);
@@ -453,6 +459,72 @@ fn try_build(args: &BuildArgs, path: &Path, row: &mut Row) -> anyhow::Result<Str
     };
     bar.finish_and_clear();
     Ok(status)
+}
+
+/// The limits of `args` for a build of `model`: Ctrl-C, `--time-limit`, and the element cap
+/// from `--max-elements`, `--max-memory` or the memory available.
+fn limits<'a>(args: &BuildArgs, model: &Model) -> anyhow::Result<Control<'a>> {
+    let mut control = Control::new().cancel_flag(interrupted());
+    if let Some(s) = args.time_limit {
+        let limit =
+            Duration::try_from_secs_f64(s).context("--time-limit must be a number of seconds")?;
+        control = control.time_limit(limit);
+    }
+    let width = model.variables();
+    let memory_cap = args.max_memory.map(|bytes| members_in(bytes, width));
+    match (
+        args.max_elements,
+        memory_cap.or_else(|| memory_guard(width)),
+    ) {
+        (Some(m), _) => control = control.max_elements(m),
+        (None, Some(guard)) => control = control.max_elements(guard),
+        (None, None) => {}
+    }
+    Ok(control)
+}
+
+/// Whether `build` of the one model at `path` would run a completion (no implicit network
+/// entry, and no stored entry to reuse): what the ranks of a shared build agree on first, so
+/// that all of them build or none.
+#[cfg(feature = "mpi")]
+pub(super) fn would_complete(args: &BuildArgs, path: &Path) -> anyhow::Result<bool> {
+    let model = PlanInput::load(path)?.into_model();
+    if implicit_network(args, &model)?.is_some() {
+        return Ok(false);
+    }
+    if args.out.is_some() || args.rebuild {
+        return Ok(true);
+    }
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = args.spec(&model)?.resolve(&model, &analysis)?;
+    let key = entry_key(&model.matrix, &spec);
+    Ok(args.cache.open()?.find(&key)?.is_none())
+}
+
+/// The part of a shared build that a rank other than the leader runs: the same completion
+/// from the same checkpoint, with its share of each round, storing nothing. 0 when the set
+/// was completed, 1 when a limit stopped it (agreed by all ranks).
+#[cfg(feature = "mpi")]
+pub(super) fn follow(
+    args: &BuildArgs,
+    path: &Path,
+    share: &dyn WorkShare,
+) -> anyhow::Result<ExitCode> {
+    let model = PlanInput::load(path)?.into_model();
+    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+    let spec = args.spec(&model)?.resolve(&model, &analysis)?;
+    let resume = match &args.out {
+        Some(_) => None,
+        None => args.cache.open()?.resume_point(&model.matrix, &spec)?,
+    };
+    let control = limits(args, &model)?.shared(share);
+    let outcome = with_threads(args.threads, || {
+        build(&model.matrix, &analysis, &spec, &control, resume.as_ref())
+    })??;
+    Ok(match outcome {
+        BuildOutcome::Built(_) => ExitCode::SUCCESS,
+        BuildOutcome::Stopped(_) => ExitCode::from(1),
+    })
 }
 
 /// Deepens the norm limit within the budget of `control` and stores (or writes) the last

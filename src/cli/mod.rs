@@ -13,6 +13,8 @@ mod demo;
 mod explain;
 mod instance;
 mod plot;
+#[cfg(feature = "mpi")]
+mod ranked;
 mod setfile;
 mod solve;
 mod table;
@@ -22,6 +24,8 @@ use std::process::ExitCode;
 
 use args::{Cli, Command};
 pub use common::render_chain;
+#[cfg(feature = "mpi")]
+pub use ranked::start as start_ranks;
 
 /// Runs the verb chosen on the command line and returns the exit code its outcome maps to.
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {

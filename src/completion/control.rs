@@ -7,6 +7,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
 use super::checkpoint::Checkpoint;
+use crate::error::{Error, Result};
 
 /// Why a completion stopped before finishing.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -34,6 +35,25 @@ pub struct Progress {
     pub elapsed: Duration,
 }
 
+/// Processes that share the work of one completion, such as the ranks of an MPI job: each
+/// reduces its part of every round of sums (`lift.rs`), and every process receives all the
+/// remainders and adds them in the same canonical order, so each keeps the whole working set
+/// and all end with the set one process computes. Stops are agreed in the same exchange, so
+/// that all processes stop at the same round.
+pub trait WorkShare: Sync {
+    /// This process's index and the number of processes.
+    fn part(&self) -> (usize, usize);
+
+    /// One round: every process passes its remainders (concatenated vectors of one width)
+    /// and its own stop request; returns the remainders of all processes, in process order,
+    /// and the first stop request of any process.
+    fn exchange(
+        &self,
+        remainders: Vec<i32>,
+        stop: Option<StopReason>,
+    ) -> Result<(Vec<i32>, Option<StopReason>)>;
+}
+
 /// Limits and hooks consulted by a running completion.
 #[derive(Clone, Copy)]
 pub struct Control<'a> {
@@ -43,6 +63,7 @@ pub struct Control<'a> {
     cancel: Option<&'a AtomicBool>,
     progress: Option<&'a (dyn Fn(&Progress) + Sync)>,
     stage_done: Option<&'a (dyn Fn(&Checkpoint) + Sync)>,
+    share: Option<&'a dyn WorkShare>,
 }
 
 impl Default for Control<'_> {
@@ -61,7 +82,44 @@ impl<'a> Control<'a> {
             cancel: None,
             progress: None,
             stage_done: None,
+            share: None,
         }
+    }
+
+    /// Share the work with other processes through `share` (default: this process alone).
+    pub fn shared(mut self, share: &'a dyn WorkShare) -> Self {
+        self.share = Some(share);
+        self
+    }
+
+    /// This process's index and the number of processes sharing the work.
+    pub(crate) fn part(&self) -> (usize, usize) {
+        self.share.map_or((0, 1), |s| s.part())
+    }
+
+    /// One round of a shared completion (see [`WorkShare::exchange`]): the remainders of every
+    /// process and the stop agreed on; alone, `remainders` and `stop` as given.
+    pub(crate) fn exchange(
+        &self,
+        width: usize,
+        remainders: Vec<Vec<i32>>,
+        stop: Option<StopReason>,
+    ) -> Result<(Vec<Vec<i32>>, Option<StopReason>)> {
+        let Some(share) = self.share else {
+            return Ok((remainders, stop));
+        };
+        let flat: Vec<i32> = remainders.into_iter().flatten().collect();
+        let (all, stop) = share.exchange(flat, stop)?;
+        if all.is_empty() {
+            return Ok((Vec::new(), stop));
+        }
+        if width == 0 || all.len() % width != 0 {
+            return Err(Error::Dimension(format!(
+                "a shared round returned {} entries, not a whole number of vectors of width {width}",
+                all.len()
+            )));
+        }
+        Ok((all.chunks(width).map(<[i32]>::to_vec).collect(), stop))
     }
 
     /// Stop with [`StopReason::TimeLimit`] after `limit` (default: no limit).

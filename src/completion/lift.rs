@@ -17,7 +17,9 @@
 //! Sums are processed by norm level `||p||_S + ||q||_S + |p_j + q_j|` (the norm of `p + q`
 //! on `T`, by sign-compatibility); one level is reduced in parallel against the set as it was
 //! at the start of the level, and the remainders are merged in a canonical order, so the
-//! result does not depend on the number of threads.
+//! result does not depend on the number of threads. Processes that share the work (see
+//! [`super::WorkShare`]) each reduce every `k`-th pair of a batch and exchange the
+//! remainders; the same canonical merge makes the set the same as one process's.
 
 use std::collections::BTreeMap;
 
@@ -52,6 +54,8 @@ type Groups = BTreeMap<(u64, u64), Vec<u32>>;
 
 struct Lifting<'a> {
     stage: &'a Stage<'a>,
+    /// Entries per vector.
+    width: usize,
     set: WorkingSet,
     masks: Vec<SignMask>,
     norms: Vec<u64>,
@@ -71,6 +75,7 @@ pub(crate) fn lift(
     comps.push(stage.new);
     let mut lifting = Lifting {
         stage,
+        width,
         set: WorkingSet::new(width, comps.clone()),
         masks: Vec::new(),
         norms: Vec::new(),
@@ -91,7 +96,8 @@ pub(crate) fn lift(
             return Ok(Err(stop));
         }
         let (n, m) = stage.number;
-        if let Some(stop) = control.checkpoint(n, m, level, lifting.set.len()) {
+        let local = control.checkpoint(n, m, level, lifting.set.len());
+        if let (_, Some(stop)) = control.exchange(width, Vec::new(), local)? {
             return Ok(Err(stop));
         }
         next = lifting.next_level(level + 1);
@@ -144,16 +150,24 @@ impl Lifting<'_> {
                 }
             }
         }
+        let (rank, size) = control.part();
         let mut sums = Vec::new();
-        for batch in tasks.chunks(BATCH) {
-            if let Some(stop) = control.interrupted() {
+        for batch in tasks.chunks(BATCH * size) {
+            let local = control.interrupted();
+            let mine: Vec<&(u32, &[u32])> = match local {
+                Some(_) => Vec::new(),
+                None => batch.iter().skip(rank).step_by(size).collect(),
+            };
+            let chunks: Vec<Vec<Vec<Entry>>> = mine
+                .par_iter()
+                .map(|&&(p, qs)| self.reduce_pairs(p, qs.iter().copied()))
+                .collect::<Result<_>>()?;
+            let mine = chunks.into_iter().flatten().collect();
+            let (all, stop) = control.exchange(self.width, mine, local)?;
+            if let Some(stop) = stop {
                 return Ok(Err(stop));
             }
-            let chunks: Vec<Vec<Vec<Entry>>> = batch
-                .par_iter()
-                .map(|&(p, qs)| self.reduce_pairs(p, qs.iter().copied()))
-                .collect::<Result<_>>()?;
-            sums.extend(chunks.into_iter().flatten());
+            sums.extend(all);
         }
         Ok(Ok(sums))
     }
@@ -222,13 +236,16 @@ impl Lifting<'_> {
         level: u64,
         control: &Control<'_>,
     ) -> Result<std::result::Result<(), StopReason>> {
+        let (rank, size) = control.part();
         while !fresh.is_empty() {
-            if let Some(stop) = control.interrupted() {
-                return Ok(Err(stop));
-            }
+            let local = control.interrupted();
             let first_new = fresh[0];
             let j = self.stage.new;
-            let sums: Vec<Vec<Vec<Entry>>> = fresh
+            let mine: Vec<u32> = match local {
+                Some(_) => Vec::new(),
+                None => fresh.iter().copied().skip(rank).step_by(size).collect(),
+            };
+            let sums: Vec<Vec<Vec<Entry>>> = mine
                 .par_iter()
                 .map(|&e| {
                     let x = self.set.store.get(e)[j];
@@ -247,7 +264,12 @@ impl Lifting<'_> {
                     self.reduce_pairs(e, partners)
                 })
                 .collect::<Result<_>>()?;
-            fresh = self.merge(sums.into_iter().flatten().collect())?;
+            let mine = sums.into_iter().flatten().collect();
+            let (all, stop) = control.exchange(self.width, mine, local)?;
+            if let Some(stop) = stop {
+                return Ok(Err(stop));
+            }
+            fresh = self.merge(all)?;
         }
         Ok(Ok(()))
     }

@@ -25,7 +25,7 @@ mod working;
 use serde::{Deserialize, Serialize};
 
 pub use checkpoint::Checkpoint;
-pub use control::{Control, Progress, StopReason};
+pub use control::{Control, Progress, StopReason, WorkShare};
 pub use limits::Truncation;
 
 use crate::error::{Error, Result};

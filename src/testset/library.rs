@@ -124,6 +124,14 @@ impl SetLibrary {
         Ok(replaced)
     }
 
+    /// The checkpoint that [`SetLibrary::obtain`] would resume `spec` from, if any: what the
+    /// other processes of a shared build (see [`crate::completion::WorkShare`]) start from,
+    /// so that all resume together.
+    pub fn resume_point(&self, a: &IntMatrix, spec: &ResolvedSpec) -> Result<Option<Checkpoint>> {
+        let key = super::build::entry_key(a, spec);
+        self.checkpoint(&key, &RequestRecord::of(&key, spec), spec)
+    }
+
     /// Returns the entry of the network matrix `a` (its implicit set of cycles, see
     /// [`super::cycles_entry`]), storing it when missing; with `rebuild` it is replaced.
     pub fn obtain_cycles(
