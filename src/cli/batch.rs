@@ -20,7 +20,6 @@ use kernstep::model::Model;
 use kernstep::network::{FlowOutcome, Infeasibility};
 use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared, Verdict};
-use num_bigint::BigInt;
 use serde::ser::{SerializeMap, Serializer};
 use serde::{Deserialize, Serialize};
 
@@ -500,7 +499,10 @@ impl Tally {
         self.errors += other.errors;
         self.total_objective = self.total_objective.saturating_add(other.total_objective);
         self.solve_seconds += other.solve_seconds;
-        let gap = |g: &Option<String>| g.as_deref().and_then(|g| g.parse::<BigInt>().ok());
+        let gap = |g: &Option<String>| {
+            g.as_deref()
+                .and_then(|g| g.parse::<num_bigint::BigInt>().ok())
+        };
         if gap(&other.largest_gap) > gap(&self.largest_gap) {
             self.largest_gap = other.largest_gap;
         }
