@@ -460,7 +460,8 @@ impl Tally {
         };
         let mut widest = None;
         for r in results {
-            let slot = match DayStatus::of(r) {
+            let status = DayStatus::of(r);
+            let slot = match status {
                 DayStatus::Optimal => &mut t.optimal,
                 DayStatus::OptimalWithinNorm => &mut t.optimal_within_norm,
                 DayStatus::Infeasible => &mut t.infeasible,
@@ -470,7 +471,7 @@ impl Tally {
                 DayStatus::Error => &mut t.errors,
             };
             *slot += 1;
-            if r.bound.is_some() && DayStatus::of(r) == DayStatus::Optimal {
+            if r.bound.is_some() && status == DayStatus::Optimal {
                 t.optimal_by_bound += 1;
             }
             if let Some(gap) = answer(r).zip(r.bound.as_ref()).map(|((o, _), b)| b.gap(o)) {

@@ -1,5 +1,6 @@
 //! A dual bound in the form of the `--json` documents and batch records.
 
+use num_traits::ToPrimitive;
 use serde::{Deserialize, Serialize};
 
 use crate::bound::DualBound;
@@ -29,7 +30,7 @@ impl BoundDoc {
         BoundDoc {
             value: bound.ceiling().to_string(),
             exact: bound.value.to_string(),
-            relative_gap: gap.to_string().parse::<f64>().unwrap_or(f64::INFINITY) / scale,
+            relative_gap: gap.to_f64().unwrap_or(f64::INFINITY) / scale,
             gap: gap.to_string(),
             source: "lp_dual".to_string(),
             multipliers: bound
