@@ -81,7 +81,7 @@ fn stored(library: &SetLibrary, m: &Model) -> (StoredSet, Option<Duration>) {
     let built = match obtained {
         Obtained::Reused(_) => None,
         Obtained::Built { .. } => Some(started.elapsed()),
-        Obtained::Stopped(r) => panic!("build stopped: {r:?}"),
+        Obtained::Stopped { reason, .. } => panic!("build stopped: {reason:?}"),
     };
     let set = library
         .store()

@@ -41,7 +41,7 @@ fn main() {
 
     let start = Instant::now();
     let request = Request::graver(model.variables());
-    let Completion::Finished(set) =
+    let Completion::Finished(set, _) =
         complete_kernel(&model.matrix, &request, &Control::new(), None).expect("completion runs")
     else {
         panic!("completion stopped");

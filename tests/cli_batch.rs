@@ -482,10 +482,39 @@ fn without_a_cached_set_batch_says_what_to_build_and_that_build_serves_it() {
 #[test]
 fn a_box_truncated_set_refuses_days_whose_box_is_wider() {
     let cache = tempfile::tempdir().unwrap();
-    let scenario = scenarios().join("brackle_lanes.toml");
+    // The lanes' box cuts no cycle (every cycle moves one unit per lane), so `--box auto`
+    // stores the complete set; closing tannery->north_bank (capacity 0) makes it cut every
+    // cycle through that lane.
+    let original = std::fs::read_to_string(scenarios().join("brackle_lanes.toml")).unwrap();
+    let lane = "to = \"north_bank\"\ncost = 7\ncapacity = 12";
+    assert!(original.contains(lane));
+    let closed = original.replacen(lane, "to = \"north_bank\"\ncost = 7\ncapacity = 0", 1);
+    let scenario = cache.path().join("brackle_closed.toml");
+    std::fs::write(&scenario, closed).unwrap();
     let days = scenarios().join("brackle_lanes_days.jsonl");
     let s = scenario.to_str().unwrap();
-    expect(cache.path(), &["build", s, "--box", "auto"], 0);
+    let built = expect(
+        cache.path(),
+        &["build", s, "--box", "auto", "--engine", "moves"],
+        0,
+    );
+    assert!(!built.0.contains("complete"), "{built:?}");
+    // The same matrix with its own box (another cache: the complete set would serve both).
+    let other = tempfile::tempdir().unwrap();
+    let original = scenarios().join("brackle_lanes.toml");
+    let args = [
+        "build",
+        original.to_str().unwrap(),
+        "--box",
+        "auto",
+        "--engine",
+        "moves",
+    ];
+    let (whole, _) = expect(other.path(), &args, 0);
+    assert!(
+        whole.contains("built (complete: the truncation cut nothing)"),
+        "{whole}"
+    );
     // Day 2026-03-09 lifts the capacity of tannery->north_bank: its range is then unbounded,
     // wider than the box the set was built for, so no answer may claim optimality.
     let d = days.to_str().unwrap();

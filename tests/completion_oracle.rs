@@ -4,7 +4,9 @@
 mod completion_support;
 
 use completion_support::*;
-use kernstep::completion::{Method, Request, Sign, Truncation};
+use kernstep::completion::{
+    complete_kernel, Completion, Control, Cut, Method, Request, Sign, Truncation,
+};
 use kernstep::lattice::{det, echelon};
 use kernstep::IntMatrix;
 use proptest::prelude::*;
@@ -74,7 +76,12 @@ proptest! {
     ) {
         let expected = brute_force_minimal(&a, &signs, oracle_bound(&a));
         for method in [Method::ProjectAndLift, Method::Pottier] {
-            let request = Request { signs: signs.clone(), truncation: Truncation::default(), method };
+            let request = Request {
+                signs: signs.clone(),
+                truncation: Truncation::default(),
+                method,
+                check_cuts: false,
+            };
             let set = run(&a, &request);
             prop_assert_eq!(sorted(&set), expected.clone(), "{:?} on {:?}", method, a);
         }
@@ -97,12 +104,24 @@ proptest! {
             (Truncation { norm_limit: None, bounds: Some(cap.clone()) }, by_box),
         ];
         for (truncation, expected) in cases {
-            let request = Request {
+            let mut request = Request {
                 signs: signs.clone(),
                 truncation: truncation.clone(),
                 method: Method::ProjectAndLift,
+                check_cuts: false,
             };
-            prop_assert_eq!(sorted(&run(&a, &request)), expected, "{:?}", truncation);
+            prop_assert_eq!(sorted(&run(&a, &request)), expected.clone(), "{:?}", truncation);
+            // With the check, the same set, and "cut nothing" only when nothing was cut.
+            request.check_cuts = true;
+            let Completion::Finished(set, cut) =
+                complete_kernel(&a, &request, &Control::new(), None).unwrap()
+            else {
+                panic!("no limit was set");
+            };
+            prop_assert_eq!(sorted(&set), expected.clone(), "{:?}", truncation);
+            if cut == Cut::Nothing {
+                prop_assert_eq!(expected, full.clone(), "{:?} claimed to cut nothing", truncation);
+            }
         }
     }
 }

@@ -344,7 +344,7 @@ fn concurrent_threads(target: &Arc<Target>, tally: &mut Tally) {
                 match target.obtain(&library) {
                     Obtained::Built { built, .. } => (true, built.set.elements.len()),
                     Obtained::Reused(s) => (false, s.data.len()),
-                    Obtained::Stopped(r) => panic!("stopped: {r:?}"),
+                    Obtained::Stopped { reason, .. } => panic!("stopped: {reason:?}"),
                 }
             })
         })

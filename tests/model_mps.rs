@@ -33,7 +33,7 @@ fn optimum(import: &MpsImport) -> Option<f64> {
     let model = &import.model;
     let request = Request::graver(model.variables());
     let set = match complete_kernel(&model.matrix, &request, &Control::new(), None).unwrap() {
-        Completion::Finished(set) => set,
+        Completion::Finished(set, _) => set,
         Completion::Stopped(reason) => panic!("completion stopped: {reason:?}"),
     };
     let prepared = Prepared::new(&model.matrix, &set, Coverage::Complete).unwrap();

@@ -408,7 +408,7 @@ fn graver(a: &IntMatrix, seconds: u64) -> Result<Option<Vec<Vec<i64>>>, Error> {
         .time_limit(std::time::Duration::from_secs(seconds));
     Ok(
         match complete_kernel(a, &Request::graver(a.cols()), &control, None)? {
-            Completion::Finished(set) => Some(set.elements),
+            Completion::Finished(set, _) => Some(set.elements),
             Completion::Stopped(_) => None,
         },
     )

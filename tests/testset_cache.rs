@@ -41,7 +41,7 @@ fn elements(o: &Obtained) -> Vec<Vec<i64>> {
     match o {
         Obtained::Reused(s) => from_data(&s.data).elements,
         Obtained::Built { built, .. } => built.set.elements.clone(),
-        Obtained::Stopped(r) => panic!("stopped: {r:?}"),
+        Obtained::Stopped { reason, .. } => panic!("stopped: {reason:?}"),
     }
 }
 
@@ -176,24 +176,27 @@ fn stopped_at(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec, stage: usize) {
         .obtain(&m.matrix, &analysis, spec, &control, false)
         .unwrap();
     assert!(
-        matches!(outcome, Obtained::Stopped(StopReason::Cancelled)),
+        matches!(
+            outcome,
+            Obtained::Stopped {
+                reason: StopReason::Cancelled,
+                ..
+            }
+        ),
         "{outcome:?}"
     );
 }
 
-/// `lib.obtain` of `spec` when nothing is stored: the set and after how many components it
-/// resumed.
+/// `lib.obtain` of `spec` when nothing is stored: the set and the stage it resumed in.
 fn built(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec) -> (Vec<Vec<i64>>, Option<usize>) {
     let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
     match lib
         .obtain(&m.matrix, &analysis, spec, &Control::new(), false)
         .unwrap()
     {
-        Obtained::Built {
-            built,
-            resumed_after,
-            ..
-        } => (built.set.elements, resumed_after),
+        Obtained::Built { built, resumed, .. } => {
+            (built.set.elements, resumed.map(|state| state.stage))
+        }
         other => panic!("{other:?}"),
     }
 }
@@ -252,11 +255,12 @@ fn a_checkpoint_resumes_only_a_build_of_its_own_request() {
         signs: unlimited.signs.clone(),
         truncation: unlimited.truncation.clone(),
         method: unlimited.method,
+        check_cuts: false,
     };
     complete_kernel(
         &m.matrix,
         &request,
-        &Control::new().on_stage_done(&keep),
+        &Control::new().on_save(&keep, std::time::Duration::MAX),
         None,
     )
     .unwrap();

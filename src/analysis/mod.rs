@@ -23,6 +23,7 @@ mod extremal;
 mod minors;
 mod modularity;
 mod options;
+mod parity;
 
 use num_bigint::BigInt;
 use serde::Serialize;
@@ -33,6 +34,7 @@ pub use delta::Delta;
 pub use extremal::{published_column_number, PublishedColumnNumber, RankCondition};
 pub use modularity::Decision;
 pub use options::AnalysisOptions;
+pub use parity::norm_step;
 
 use crate::lattice;
 use crate::matrix::IntMatrix;

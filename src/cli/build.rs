@@ -1,7 +1,7 @@
 //! `kernstep build MODEL...`: compute test sets and store them in the cache (the overnight
 //! run), or write one set to a file with `--out`.
 
-use std::io::{self, IsTerminal, Write};
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::{Duration, Instant};
@@ -9,21 +9,22 @@ use std::time::{Duration, Instant};
 use anyhow::Context;
 use cache::SetKind;
 use clap::{Args, ValueEnum};
-use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::{Control, Method, Progress, Sign, WorkShare};
+use kernstep::completion::{Control, Method, Progress, Sign, StopReason, WorkShare};
 use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
     build, cycles_entry, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
-    NormLimit, Obtained,
+    NormLimit, Obtained, SavedState,
 };
 use serde::Serialize;
 
 use super::common::{
-    interrupted, model_paths, render_chain, with_threads, write_atomically, CacheArgs, EngineArg,
+    interrupted, model_paths, render_chain, signal_status, with_threads, write_atomically,
+    CacheArgs, EngineArg,
 };
+use super::progress::{BuildProgress, ProgressArg};
 use super::setfile::set_document;
 use super::table::write_table;
 
@@ -72,6 +73,16 @@ pub struct BuildArgs {
     /// build, before its working set would need more (default: the memory available).
     #[arg(long, value_name = "SIZE", value_parser = parse_size)]
     pub max_memory: Option<u64>,
+    /// Save the build's state at least this often (`60s`, `5m`), inside stages too, so that an
+    /// interrupted build (Ctrl-C, SIGTERM, a limit, a crash) loses at most this much work;
+    /// running the same command again resumes.
+    #[arg(long, value_name = "DURATION", value_parser = parse_duration,
+          default_value = "60s")]
+    pub checkpoint_every: Duration,
+    /// Progress on stderr: `auto` (a bar on a terminal, otherwise a line at most every 30 s),
+    /// `bar`, `lines`, `json` (one object per line) or `none`.
+    #[arg(long, value_enum, default_value_t = ProgressArg::Auto)]
+    pub progress: ProgressArg,
     /// Write the set of the one model to FILE (JSON) instead of the cache.
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
@@ -198,8 +209,43 @@ struct Row {
     /// The levels of a budgeted build.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     levels: Vec<LevelRow>,
+    /// The saved state a build resumed from.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    resumed: Option<StateDoc>,
+    /// The saved state a stopped build left for the next run.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    kept: Option<StateDoc>,
+    /// The command that resumes a stopped build.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    resume_command: Option<String>,
     seconds: f64,
     status: String,
+    /// Why a build stopped (`cancelled`, `time_limit`, `element_limit`).
+    #[serde(skip)]
+    stop: Option<StopReason>,
+}
+
+/// A saved state in the JSON summary.
+#[derive(Debug, Serialize)]
+struct StateDoc {
+    stage: usize,
+    stages: usize,
+    mid_stage: bool,
+    /// A decimal string: counts of moves can pass 2^53 in principle.
+    moves: String,
+    work_seconds: f64,
+}
+
+impl StateDoc {
+    fn of(state: &SavedState) -> Self {
+        Self {
+            stage: state.stage,
+            stages: state.stages,
+            mid_stage: state.mid_stage,
+            moves: state.moves.to_string(),
+            work_seconds: state.work.as_secs_f64(),
+        }
+    }
 }
 
 /// One level of a budgeted build in the JSON summary.
@@ -270,10 +316,16 @@ pub(super) fn run_with(
     }
     out.flush()?;
     let failed = rows.iter().any(|r| r.status.starts_with("failed"));
-    let stopped = rows.iter().any(|r| r.status.starts_with("stopped"));
-    Ok(match (failed, stopped) {
-        (true, _) => ExitCode::from(2),
-        (false, true) => ExitCode::from(1),
+    let stopped = rows.iter().any(|r| r.stop.is_some());
+    let signalled = rows
+        .iter()
+        .any(|r| r.stop == Some(StopReason::Cancelled))
+        .then(signal_status)
+        .flatten();
+    Ok(match (failed, signalled, stopped) {
+        (true, _, _) => ExitCode::from(2),
+        (false, Some(status), _) => ExitCode::from(status),
+        (false, None, true) => ExitCode::from(1),
         _ => ExitCode::SUCCESS,
     })
 }
@@ -312,8 +364,12 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
         elements: None,
         norm_limit: None,
         levels: Vec::new(),
+        resumed: None,
+        kept: None,
+        resume_command: None,
         seconds: 0.0,
         status: String::new(),
+        stop: None,
     };
     match try_build(args, path, &mut row, share) {
         Ok(status) => row.status = status,
@@ -382,7 +438,7 @@ fn build_cycles(
                 }
                 status
             }
-            Obtained::Stopped(reason) => format!("stopped: {reason:?}"),
+            Obtained::Stopped { reason, .. } => stopped(row, reason, None),
         },
     )
 }
@@ -400,24 +456,15 @@ fn try_build(
     let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
     let spec = args.spec(&model)?.resolve(&model, &analysis)?;
     row.kind = Some(spec.kind);
-    let bar = progress_bar(path);
-    let report = |p: &Progress| {
-        bar.set_message(format!(
-            "stage {}/{}, norm level {}, {} elements, {:.0}s",
-            p.stage,
-            p.stages,
-            p.level,
-            p.elements,
-            p.elapsed.as_secs_f64()
-        ));
-    };
+    let bar = BuildProgress::new(args.progress, path);
+    let report = |p: &Progress| bar.report(p);
     let mut control = limits(args, &model)?.progress(&report);
     if let Some(share) = share {
         control = control.shared(share);
     }
     if let Some(budget) = args.budget {
         let status = budgeted(args, &model, &analysis, control.time_limit(budget), row);
-        bar.finish_and_clear();
+        bar.finish();
         return status;
     }
     let status = if let Some(out) = &args.out {
@@ -428,10 +475,10 @@ fn try_build(
                 row.elements = Some(built.set.elements.len());
                 format!("written to {}", out.display())
             }
-            BuildOutcome::Stopped(reason) => format!("stopped: {reason:?}"),
+            BuildOutcome::Stopped(reason) => stopped(row, reason, None),
         }
     } else {
-        let library = args.cache.open()?;
+        let library = args.cache.open()?.checkpoint_every(args.checkpoint_every);
         match library.obtain(&model.matrix, &analysis, &spec, &control, args.rebuild)? {
             Obtained::Reused(stored) => {
                 row.key = Some(stored.digest.to_hex());
@@ -441,24 +488,79 @@ fn try_build(
             Obtained::Built {
                 built,
                 replaced,
-                resumed_after,
+                resumed,
             } => {
                 row.key = Some(built.key.digest().to_hex());
                 row.elements = Some(built.set.elements.len());
                 let mut status = "built".to_string();
-                if let Some(k) = resumed_after {
-                    status.push_str(&format!(" (resumed after {k} components)"));
+                if built.key != entry_key(&model.matrix, &spec) {
+                    status.push_str(" (complete: the truncation cut nothing)");
+                }
+                if let Some(state) = resumed {
+                    status.push_str(&format!(" (resumed from {})", describe(&state)));
+                    row.resumed = Some(StateDoc::of(&state));
                 }
                 if let Some(damage) = replaced {
                     status.push_str(&format!(" (replaced a damaged entry: {damage})"));
                 }
                 status
             }
-            Obtained::Stopped(reason) => format!("stopped: {reason:?}"),
+            Obtained::Stopped { reason, kept } => stopped(row, reason, kept),
         }
     };
-    bar.finish_and_clear();
+    bar.finish();
     Ok(status)
+}
+
+/// Records a stop in `row` and returns its status: why, what was kept, and how to go on.
+fn stopped(row: &mut Row, reason: StopReason, kept: Option<SavedState>) -> String {
+    row.stop = Some(reason);
+    let why = match reason {
+        StopReason::Cancelled => "interrupted",
+        StopReason::TimeLimit => "time limit reached",
+        StopReason::ElementLimit => "element or memory limit reached",
+    };
+    let Some(state) = kept else {
+        return format!("stopped: {why}; nothing kept");
+    };
+    row.kept = Some(StateDoc::of(&state));
+    let command = command_line();
+    let status = format!(
+        "stopped: {why}; kept {}; resume with: {command}",
+        describe(&state)
+    );
+    row.resume_command = Some(command);
+    status
+}
+
+/// A saved state in words.
+fn describe(state: &SavedState) -> String {
+    let within = if state.mid_stage { " (mid-stage)" } else { "" };
+    format!(
+        "stage {}/{}{within}, {} moves, {:.0} s of work",
+        state.stage,
+        state.stages,
+        state.moves,
+        state.work.as_secs_f64()
+    )
+}
+
+/// This process's command line, quoted for a POSIX shell: running it again resumes the build.
+fn command_line() -> String {
+    std::env::args()
+        .map(|arg| {
+            let plain = !arg.is_empty()
+                && arg
+                    .bytes()
+                    .all(|b| b.is_ascii_alphanumeric() || b"-_./=:,+@%".contains(&b));
+            if plain {
+                arg
+            } else {
+                format!("'{}'", arg.replace('\'', "'\\''"))
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 /// The limits of `args` for a build of `model`: Ctrl-C, `--time-limit`, and the element cap
@@ -601,11 +703,17 @@ fn budgeted(
         cache::Completeness::NormTruncated { .. } => status.push_str(&format!(
             " within the budget: norm limit {limit} ({proven}; partial)"
         )),
-        _ => status.push_str(&format!(
+        _ if limit >= deepened.proven_bound => status.push_str(&format!(
             " within the budget: complete (norm limit {limit} reached the proven bound)"
+        )),
+        _ => status.push_str(&format!(
+            " within the budget: complete (norm limit {limit} cut nothing)"
         )),
     }
     if let Some((next, reason, elapsed)) = stopped {
+        if reason == StopReason::Cancelled {
+            row.stop = Some(reason);
+        }
         status.push_str(&format!(
             "; norm limit {next} stopped on {reason:?} after {:.1} s",
             elapsed.as_secs_f64()
@@ -640,20 +748,6 @@ fn memory_guard(width: usize) -> Option<usize> {
         .parse()
         .ok()?;
     Some(members_in(kib.saturating_mul(1024), width))
-}
-
-/// A progress line on stderr when it is a terminal, nothing otherwise.
-fn progress_bar(path: &Path) -> ProgressBar {
-    if !io::stderr().is_terminal() {
-        return ProgressBar::hidden();
-    }
-    let bar = ProgressBar::new_spinner().with_prefix(path.display().to_string());
-    bar.set_style(
-        ProgressStyle::with_template("{spinner} {prefix}: {msg} [{elapsed}]")
-            .unwrap_or_else(|_| ProgressStyle::default_spinner()),
-    );
-    bar.enable_steady_tick(Duration::from_millis(200));
-    bar
 }
 
 /// Writes the set's document (see [`set_document`]) next to `path`, then renames it into

@@ -2,8 +2,8 @@
 //! the Graver set a solve needs, and the caution that goes with every summary of plans.
 
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::OnceLock;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::{Arc, OnceLock};
 
 use anyhow::Context;
 use augment::Coverage;
@@ -17,6 +17,7 @@ use kernstep::solve::{coverage_of, Prepared};
 use kernstep::testset::{
     default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
+use signal_hook::consts::{SIGINT, SIGTERM};
 
 /// What the plans leave out: one line of the `demo` and `batch` summaries (after `caution: `),
 /// and their `caution` field in JSON.
@@ -54,15 +55,54 @@ pub fn render_chain(err: &anyhow::Error) -> String {
     text
 }
 
-/// A flag set by Ctrl-C or SIGTERM (the handler is installed on first use).
-pub fn interrupted() -> &'static AtomicBool {
-    static FLAG: OnceLock<&'static AtomicBool> = OnceLock::new();
-    FLAG.get_or_init(|| {
-        let flag: &'static AtomicBool = Box::leak(Box::new(AtomicBool::new(false)));
-        // Without a handler (e.g. one is installed already) Ctrl-C simply ends the process.
-        let _ = ctrlc::set_handler(move || flag.store(true, Ordering::Relaxed));
-        flag
+/// The interrupting signals: the flag the completion and the solvers watch, and which
+/// signal set it.
+struct Signals {
+    flag: Arc<AtomicBool>,
+    which: Arc<AtomicUsize>,
+}
+
+/// Installs the handlers of SIGINT (Ctrl-C) and SIGTERM on first use: the first one sets the
+/// flag (the work stops at its next check and saves what it can), a second one ends the
+/// process at once with the signal's exit status.
+fn signals() -> &'static Signals {
+    static SIGNALS: OnceLock<Signals> = OnceLock::new();
+    SIGNALS.get_or_init(|| {
+        let signals = Signals {
+            flag: Arc::new(AtomicBool::new(false)),
+            which: Arc::new(AtomicUsize::new(0)),
+        };
+        for signal in [SIGINT, SIGTERM] {
+            // Without handlers (none can be installed) a signal simply ends the process.
+            let status = 128 + signal;
+            let _ = signal_hook::flag::register_conditional_shutdown(
+                signal,
+                status,
+                Arc::clone(&signals.flag),
+            );
+            let _ = signal_hook::flag::register_usize(
+                signal,
+                Arc::clone(&signals.which),
+                signal as usize,
+            );
+            let _ = signal_hook::flag::register(signal, Arc::clone(&signals.flag));
+        }
+        signals
     })
+}
+
+/// A flag set by Ctrl-C or SIGTERM (the handlers are installed on first use).
+pub fn interrupted() -> &'static AtomicBool {
+    &signals().flag
+}
+
+/// The exit status for the signal that set [`interrupted`] (130 for SIGINT, 143 for
+/// SIGTERM, the shell's convention of 128 plus the signal number), if one did.
+pub fn signal_status() -> Option<u8> {
+    match signals().which.load(Ordering::Relaxed) {
+        0 => None,
+        signal => u8::try_from(128 + signal).ok(),
+    }
 }
 
 /// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice).
@@ -287,7 +327,9 @@ pub fn graver_for(
             box_limit: None,
             network: None,
         }),
-        Obtained::Stopped(reason) => anyhow::bail!("building the test set stopped: {reason:?}"),
+        Obtained::Stopped { reason, .. } => {
+            anyhow::bail!("building the test set stopped: {reason:?}")
+        }
     }
 }
 

@@ -13,6 +13,7 @@ mod demo;
 mod explain;
 mod instance;
 mod plot;
+mod progress;
 #[cfg(feature = "mpi")]
 mod ranked;
 mod setfile;

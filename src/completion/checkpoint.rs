@@ -1,9 +1,16 @@
-//! The state of project-and-lift between two stages, from which a run can resume.
+//! The state of project-and-lift between two stages, or inside one, from which a run can
+//! resume.
 //!
 //! After a stage the working set is exactly the ⊑-minimal elements of the lattice projected
 //! to the lifted components (within the signs and limits there). That set and the list of
 //! components determine the rest of the run, whatever basis or machine produced them, so
 //! resuming from a checkpoint gives the identical final set.
+//!
+//! Inside a stage ([`InStage`]) the state is the stage's whole working set in insertion order
+//! (so that every member gets back its id), the component being lifted and where the norm
+//! levels stand ([`StagePoint`]), with the remainders already reduced but not yet merged.
+//! Replaying from there repeats the run's own steps in the same order, so the resumed stage
+//! ends with the same working set as an uninterrupted one.
 
 use serde::{Deserialize, Serialize};
 
@@ -22,27 +29,72 @@ pub struct Checkpoint {
     pub elements: Vec<Vec<i64>>,
     /// Whether each element's negation belongs to the set as well.
     pub symmetric: Vec<bool>,
+    /// The stage in progress when the state was saved inside one (`elements` are then its
+    /// working set in insertion order), `None` between stages.
+    pub within: Option<InStage>,
+    /// Whether the truncation has so far cut nothing that could change the set (see
+    /// [`super::Cut`]).
+    pub exact: bool,
+}
+
+/// A stage in progress.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct InStage {
+    /// The component being lifted.
+    pub component: usize,
+    /// Where its work stands.
+    pub point: StagePoint,
+}
+
+/// Where the work of a lifting stage stands between two batches.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum StagePoint {
+    /// Every pair of norm level below `from` is done; the first `tasks_done` pair tasks of the
+    /// next level with pairs are reduced, giving the remainders `sums` (not yet merged).
+    Pairs {
+        /// The smallest norm level not finished.
+        from: u64,
+        /// Pair tasks of that level already reduced.
+        tasks_done: usize,
+        /// Their remainders.
+        sums: Vec<Vec<i64>>,
+    },
+    /// The remainders of norm level `level` are merged; the members from id `first_new` on
+    /// still need their pairs up to that level: the first `members_done` of them are reduced,
+    /// giving the remainders `sums`.
+    CatchUp {
+        /// The norm level being finished.
+        level: u64,
+        /// Id of the first member whose pairs are pending.
+        first_new: u32,
+        /// Pending members already reduced.
+        members_done: usize,
+        /// Their remainders.
+        sums: Vec<Vec<i64>>,
+    },
 }
 
 impl Checkpoint {
     /// The state after a stage.
-    pub(crate) fn of(lifted: &[usize], orbits: &[Orbit]) -> Self {
+    pub(crate) fn of(lifted: &[usize], orbits: &[Orbit], exact: bool) -> Self {
         Self {
             lifted: lifted.to_vec(),
-            elements: orbits
-                .iter()
-                .map(|o| o.rep.iter().map(|&x| i64::from(x)).collect())
-                .collect(),
+            elements: orbits.iter().map(|o| widen(&o.rep)).collect(),
             symmetric: orbits.iter().map(|o| o.symmetric).collect(),
+            within: None,
+            exact,
         }
     }
 
-    /// Checks that every element lies in `ker_Z(a)`.
+    /// Checks that every element and every pending remainder lies in `ker_Z(a)`.
     pub(crate) fn check_kernel(&self, a: &IntMatrix) -> Result<()> {
-        for (i, e) in self.elements.iter().enumerate() {
+        let pending = self.within.iter().flat_map(|s| match &s.point {
+            StagePoint::Pairs { sums, .. } | StagePoint::CatchUp { sums, .. } => sums,
+        });
+        for (i, e) in self.elements.iter().chain(pending).enumerate() {
             if e.len() != a.cols() || a.mul_vec(e).is_none_or(|v| v.iter().any(|&x| x != 0)) {
                 return Err(invalid(format!(
-                    "element {i} is not in the kernel of the matrix"
+                    "vector {i} is not in the kernel of the matrix"
                 )));
             }
         }
@@ -62,6 +114,27 @@ impl Checkpoint {
         }
         if self.symmetric.len() != self.elements.len() {
             return Err(invalid("element and sign flag counts differ".into()));
+        }
+        if let Some(stage) = &self.within {
+            if stage.component >= n || seen[stage.component] {
+                return Err(invalid(format!(
+                    "the component being lifted, {}, is lifted already or out of range",
+                    stage.component
+                )));
+            }
+            let (sums, first) = match &stage.point {
+                StagePoint::Pairs { sums, .. } => (sums, None),
+                StagePoint::CatchUp {
+                    sums, first_new, ..
+                } => (sums, Some(*first_new)),
+            };
+            if let Some(e) = sums.iter().find(|e| e.len() != n) {
+                return Err(invalid(format!("remainder of width {} in Z^{n}", e.len())));
+            }
+            let members: usize = self.symmetric.iter().map(|&s| 1 + usize::from(s)).sum();
+            if first.is_some_and(|f| f as usize > members) {
+                return Err(invalid("pending members beyond the working set".into()));
+            }
         }
         let projected: Vec<Vec<i64>> = basis
             .iter()
@@ -89,6 +162,11 @@ impl Checkpoint {
             .collect::<Result<Vec<_>>>()?;
         Ok((self.lifted.clone(), orbits))
     }
+}
+
+/// Entries as stored in a checkpoint.
+pub(crate) fn widen(v: &[crate::completion::store::Entry]) -> Vec<i64> {
+    v.iter().map(|&x| i64::from(x)).collect()
 }
 
 fn invalid(message: String) -> Error {

@@ -62,7 +62,8 @@ pub struct Control<'a> {
     max_elements: Option<usize>,
     cancel: Option<&'a AtomicBool>,
     progress: Option<&'a (dyn Fn(&Progress) + Sync)>,
-    stage_done: Option<&'a (dyn Fn(&Checkpoint) + Sync)>,
+    save: Option<&'a (dyn Fn(&Checkpoint) + Sync)>,
+    save_every: Option<Duration>,
     share: Option<&'a dyn WorkShare>,
 }
 
@@ -81,7 +82,8 @@ impl<'a> Control<'a> {
             max_elements: None,
             cancel: None,
             progress: None,
-            stage_done: None,
+            save: None,
+            save_every: None,
             share: None,
         }
     }
@@ -146,18 +148,32 @@ impl<'a> Control<'a> {
         self
     }
 
-    /// Call `save` with the state after every finished stage but the last, so that an
-    /// interrupted run can resume there (default: no saving).
-    pub fn on_stage_done(mut self, save: &'a (dyn Fn(&Checkpoint) + Sync)) -> Self {
-        self.stage_done = Some(save);
+    /// Call `save` with a resumable state after every finished stage but the last, inside a
+    /// stage whenever `every` has passed since the last save, and when a limit or a
+    /// cancellation stops the completion, so that an interrupted run loses at most `every` of
+    /// work (default: no saving).
+    pub fn on_save(mut self, save: &'a (dyn Fn(&Checkpoint) + Sync), every: Duration) -> Self {
+        self.save = Some(save);
+        self.save_every = Some(every);
         self
     }
 
-    /// Hands a finished stage's state to the saving hook, if any.
-    pub(crate) fn stage_done(&self, checkpoint: &Checkpoint) {
-        if let Some(save) = self.stage_done {
+    /// Hands a resumable state to the saving hook, if any.
+    pub(crate) fn save(&self, checkpoint: &Checkpoint) {
+        if let Some(save) = self.save {
             save(checkpoint);
         }
+    }
+
+    /// Whether a mid-stage save is due, `since` the last one (never without a saving hook).
+    pub(crate) fn save_due(&self, since: Instant) -> bool {
+        self.save_every
+            .is_some_and(|every| since.elapsed() >= every)
+    }
+
+    /// Whether a saving hook is set (states are only built for one).
+    pub(crate) fn saves(&self) -> bool {
+        self.save.is_some()
     }
 
     /// The same limits and hooks with the time limit brought forward, if need be, to `within`

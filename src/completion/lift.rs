@@ -20,15 +20,29 @@
 //! result does not depend on the number of threads. Processes that share the work (see
 //! [`super::WorkShare`]) each reduce every `k`-th pair of a batch and exchange the
 //! remainders; the same canonical merge makes the set the same as one process's.
+//!
+//! Between two batches the stage's state is a [`StagePoint`] over its working set; it is
+//! saved when a save is due and when the stage stops, and a stage resumed from it repeats the
+//! same steps (see [`super::checkpoint`]).
+//!
+//! Whether a truncation cut anything: the pairs it skipped are exactly those left out of the
+//! completion criterion. If each of them still reduces to zero against the stage's final set,
+//! every admissible pair has a conformal representation on `T`, the set has the positive sum
+//! property there, and its minimal members are those of the untruncated stage (when the
+//! stage's input was). If moreover the truncation removes no minimal member at the end, the
+//! stage lost nothing.
 
 use std::collections::BTreeMap;
+use std::sync::Mutex;
+use std::time::Instant;
 
 use rayon::prelude::*;
 
+use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
 use super::control::{Control, StopReason};
 use super::limits::Truncation;
 use super::reducer::SignMask;
-use super::store::{add_into, norm_on, Entry};
+use super::store::{add_into, norm_on, to_entries, Entry};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
 
@@ -44,6 +58,18 @@ pub(crate) struct Stage<'a> {
     pub truncation: &'a Truncation,
     /// Stage number and count, for progress reports.
     pub number: (usize, usize),
+    /// Whether the run has lost nothing so far (recorded in saved states).
+    pub exact: bool,
+    /// Whether to check that the truncation cuts nothing in this stage.
+    pub check_cuts: bool,
+}
+
+/// A finished stage.
+pub(crate) struct Lifted {
+    /// The minimal members on `S ∪ {j}` within the signs and limits there.
+    pub orbits: Vec<Orbit>,
+    /// Whether the stage was checked and its truncation cut nothing.
+    pub exact: bool,
 }
 
 /// Members whose pairs are reduced between two checks of the time limit.
@@ -51,6 +77,20 @@ const BATCH: usize = 1024;
 
 /// Members on one side of component `j`, grouped by (norm on `S`, `|v_j|`).
 type Groups = BTreeMap<(u64, u64), Vec<u32>>;
+
+/// A result that a limit or a cancellation may have cut short.
+type Run<T> = Result<std::result::Result<T, StopReason>>;
+
+/// How a pair of members on opposite sides of `j` is treated.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum PairKind {
+    /// Not sign-compatible on `S`, or the mirror of a pair processed instead.
+    Skipped,
+    /// Left out by the truncation.
+    Cut,
+    /// Formed and reduced.
+    Formed,
+}
 
 struct Lifting<'a> {
     stage: &'a Stage<'a>,
@@ -61,15 +101,19 @@ struct Lifting<'a> {
     norms: Vec<u64>,
     pos: Groups,
     neg: Groups,
+    /// When the state was last saved (or the stage started).
+    saved_at: Mutex<Instant>,
 }
 
-/// Runs one stage; returns the minimal members on `S ∪ {j}` that satisfy the signs and limits
-/// there, or why it stopped.
+/// Runs one stage from `start` (the minimal members on `S`, or, with `at`, the working set
+/// of a stage saved at that point); returns the minimal members on `S ∪ {j}` that satisfy
+/// the signs and limits there, or why it stopped (after saving where it stood).
 pub(crate) fn lift(
     start: Vec<Orbit>,
     stage: &Stage<'_>,
     control: &Control<'_>,
-) -> Result<std::result::Result<Vec<Orbit>, StopReason>> {
+    at: Option<StagePoint>,
+) -> Run<Lifted> {
     let width = start.first().map_or(0, |o| o.rep.len());
     let mut comps = stage.old.to_vec();
     comps.push(stage.new);
@@ -81,35 +125,85 @@ pub(crate) fn lift(
         norms: Vec::new(),
         pos: Groups::new(),
         neg: Groups::new(),
+        saved_at: Mutex::new(Instant::now()),
     };
     for orbit in &start {
         lifting.add(&orbit.rep, orbit.symmetric);
     }
-    let mut next = lifting.next_level(1);
-    while let Some(level) = next {
-        let sums = match lifting.level_sums(level, control)? {
-            Ok(sums) => sums,
-            Err(stop) => return Ok(Err(stop)),
+    drop(start);
+    let mut point = at.unwrap_or(StagePoint::Pairs {
+        from: 1,
+        tasks_done: 0,
+        sums: Vec::new(),
+    });
+    let end = loop {
+        point = match point {
+            StagePoint::Pairs {
+                from,
+                tasks_done,
+                sums,
+            } => {
+                let Some(level) = lifting.next_level(from) else {
+                    break StagePoint::Pairs {
+                        from,
+                        tasks_done,
+                        sums,
+                    };
+                };
+                let sums = match lifting.level_sums(level, tasks_done, sums, control)? {
+                    Ok(sums) => sums,
+                    Err(stop) => return Ok(Err(stop)),
+                };
+                let first_new = lifting.set.len() as u32;
+                lifting.merge(sums)?;
+                StagePoint::CatchUp {
+                    level,
+                    first_new,
+                    members_done: 0,
+                    sums: Vec::new(),
+                }
+            }
+            StagePoint::CatchUp {
+                level,
+                first_new,
+                members_done,
+                sums,
+            } => {
+                let caught_up = lifting.catch_up(level, first_new, members_done, sums, control)?;
+                if let Err(stop) = caught_up {
+                    return Ok(Err(stop));
+                }
+                let next = StagePoint::Pairs {
+                    from: level + 1,
+                    tasks_done: 0,
+                    sums: Vec::new(),
+                };
+                let (n, m) = stage.number;
+                let local = control.checkpoint(n, m, level, lifting.set.len());
+                if let (_, Some(stop)) = control.exchange(width, Vec::new(), local)? {
+                    lifting.save(&next, control);
+                    return Ok(Err(stop));
+                }
+                lifting.save_if_due(|| next.clone(), control);
+                next
+            }
         };
-        let fresh = lifting.merge(sums)?;
-        if let Err(stop) = lifting.catch_up(fresh, level, control)? {
-            return Ok(Err(stop));
-        }
-        let (n, m) = stage.number;
-        let local = control.checkpoint(n, m, level, lifting.set.len());
-        if let (_, Some(stop)) = control.exchange(width, Vec::new(), local)? {
-            return Ok(Err(stop));
-        }
-        next = lifting.next_level(level + 1);
-    }
-    Ok(Ok(lifting.finish(&comps)))
+    };
+    let exact = stage.check_cuts
+        && match lifting.cut_pairs_vanish(control)? {
+            Ok(vanish) => vanish,
+            Err(stop) => {
+                lifting.save(&end, control);
+                return Ok(Err(stop));
+            }
+        };
+    Ok(Ok(lifting.finish(&comps, exact)))
 }
 
 impl Lifting<'_> {
-    fn add(&mut self, rep: &[Entry], symmetric: bool) -> Vec<u32> {
+    fn add(&mut self, rep: &[Entry], symmetric: bool) {
         let (a, b) = self.set.add(rep, symmetric);
-        let ids: Vec<u32> = std::iter::once(a).chain(b).collect();
-        for &id in &ids {
+        for id in std::iter::once(a).chain(b) {
             let v = self.set.store.get(id);
             let norm = norm_on(v, self.stage.old);
             self.masks.push(SignMask::of(v, self.stage.old));
@@ -122,7 +216,6 @@ impl Lifting<'_> {
                 _ => {}
             }
         }
-        ids
     }
 
     /// The smallest norm level at least `from` that some pair of groups has, if any (levels
@@ -135,13 +228,9 @@ impl Lifting<'_> {
             .min()
     }
 
-    /// Normal forms of all admissible sums `p + q` of norm exactly `level`, in batches between
-    /// which a time limit or cancellation can stop the stage.
-    fn level_sums(
-        &self,
-        level: u64,
-        control: &Control<'_>,
-    ) -> Result<std::result::Result<Vec<Vec<Entry>>, StopReason>> {
+    /// The pair tasks of norm level `level`: a member and the group of its partners, in a
+    /// fixed order (that of the groups).
+    fn level_tasks(&self, level: u64) -> Vec<(u32, &[u32])> {
         let mut tasks: Vec<(u32, &[u32])> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
@@ -150,9 +239,29 @@ impl Lifting<'_> {
                 }
             }
         }
+        tasks
+    }
+
+    /// Normal forms of all admissible sums `p + q` of norm exactly `level`, after the first
+    /// `done` tasks whose remainders are `sums`, in batches between which a time limit or
+    /// cancellation can stop the stage and a due save is made.
+    fn level_sums(
+        &self,
+        level: u64,
+        mut done: usize,
+        sums: Vec<Vec<i64>>,
+        control: &Control<'_>,
+    ) -> Run<Vec<Vec<Entry>>> {
+        let tasks = self.level_tasks(level);
+        let mut sums = narrow_all(sums)?;
         let (rank, size) = control.part();
-        let mut sums = Vec::new();
-        for batch in tasks.chunks(BATCH * size) {
+        let point = |done: usize, sums: &[Vec<Entry>]| StagePoint::Pairs {
+            from: level,
+            tasks_done: done,
+            sums: sums.iter().map(|v| widen(v)).collect(),
+        };
+        for batch in tasks.get(done..).unwrap_or_default().chunks(BATCH * size) {
+            self.save_if_due(|| point(done, &sums), control);
             let local = control.interrupted();
             let mine: Vec<&(u32, &[u32])> = match local {
                 Some(_) => Vec::new(),
@@ -165,9 +274,11 @@ impl Lifting<'_> {
             let mine = chunks.into_iter().flatten().collect();
             let (all, stop) = control.exchange(self.width, mine, local)?;
             if let Some(stop) = stop {
+                self.save(&point(done, &sums), control);
                 return Ok(Err(stop));
             }
             sums.extend(all);
+            done += batch.len();
         }
         Ok(Ok(sums))
     }
@@ -175,9 +286,9 @@ impl Lifting<'_> {
     /// Normal forms of the admissible sums of `p` with each of `partners`.
     fn reduce_pairs(&self, p: u32, partners: impl Iterator<Item = u32>) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
-        let mut w = vec![0; self.set.store.get(p).len()];
+        let mut w = vec![0; self.width];
         for q in partners {
-            if !self.admissible(p, q) {
+            if self.pair_kind(p, q) != PairKind::Formed {
                 continue;
             }
             add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
@@ -188,33 +299,36 @@ impl Lifting<'_> {
         Ok(out)
     }
 
-    /// Whether the sum of `p` and `q` (opposite signs at `j`) must be formed.
-    fn admissible(&self, p: u32, q: u32) -> bool {
+    /// How the sum of `p` and `q` (opposite signs at `j`) is treated.
+    fn pair_kind(&self, p: u32, q: u32) -> PairKind {
         let (pi, qi) = (p as usize, q as usize);
         if !self.masks[pi].compatible(&self.masks[qi]) || !self.set.owns_pair(p, q) {
-            return false;
+            return PairKind::Skipped;
         }
         let t = self.stage.truncation;
         if t.norm_limit
             .is_some_and(|n| self.norms[pi] + self.norms[qi] > n)
         {
-            return false;
+            return PairKind::Cut;
         }
         let (u, v) = (self.set.store.get(p), self.set.store.get(q));
-        t.bounds.as_ref().is_none_or(|b| {
+        let in_box = t.bounds.as_ref().is_none_or(|b| {
             self.stage
                 .old
                 .iter()
                 .all(|&c| u64::from(u[c].unsigned_abs()) + u64::from(v[c].unsigned_abs()) <= b[c])
-        })
+        });
+        if in_box {
+            PairKind::Formed
+        } else {
+            PairKind::Cut
+        }
     }
 
     /// Adds the remainders in canonical order, reducing each against what is already there.
-    /// Returns the ids of the new members.
-    fn merge(&mut self, mut sums: Vec<Vec<Entry>>) -> Result<Vec<u32>> {
+    fn merge(&mut self, mut sums: Vec<Vec<Entry>>) -> Result<()> {
         sums.sort_unstable();
         sums.dedup();
-        let mut fresh = Vec::new();
         for mut w in sums {
             if !self.set.reduce(&mut w)? {
                 let symmetric = self
@@ -222,68 +336,187 @@ impl Lifting<'_> {
                     .old
                     .iter()
                     .all(|&c| self.stage.signs[c] == 0 || w[c] == 0);
-                fresh.extend(self.add(&w, symmetric));
+                self.add(&w, symmetric);
             }
         }
-        Ok(fresh)
+        Ok(())
     }
 
-    /// Processes the pairs of new members whose norm is at most `level` (later levels see them
-    /// through the groups), until no new member appears.
+    /// Processes the pairs of the members from id `first_new` on whose norm is at most
+    /// `level` (later levels see them through the groups), after the first `done` of them
+    /// whose remainders are `sums`, until no new member appears.
     fn catch_up(
         &mut self,
-        mut fresh: Vec<u32>,
         level: u64,
+        mut first_new: u32,
+        mut done: usize,
+        sums: Vec<Vec<i64>>,
         control: &Control<'_>,
-    ) -> Result<std::result::Result<(), StopReason>> {
+    ) -> Run<()> {
         let (rank, size) = control.part();
-        while !fresh.is_empty() {
-            let local = control.interrupted();
-            let first_new = fresh[0];
-            let j = self.stage.new;
-            let mine: Vec<u32> = match local {
-                Some(_) => Vec::new(),
-                None => fresh.iter().copied().skip(rank).step_by(size).collect(),
+        let mut collected = narrow_all(sums)?;
+        while first_new < self.set.len() as u32 || !collected.is_empty() {
+            let fresh: Vec<u32> = (first_new..self.set.len() as u32).collect();
+            let point = |done: usize, sums: &[Vec<Entry>]| StagePoint::CatchUp {
+                level,
+                first_new,
+                members_done: done,
+                sums: sums.iter().map(|v| widen(v)).collect(),
             };
-            let sums: Vec<Vec<Vec<Entry>>> = mine
-                .par_iter()
-                .map(|&e| {
-                    let x = self.set.store.get(e)[j];
-                    let side = match x.signum() {
-                        1 => &self.neg,
-                        -1 => &self.pos,
-                        _ => return Ok(Vec::new()),
-                    };
-                    let x = u64::from(x.unsigned_abs());
-                    let room = level.saturating_sub(self.norms[e as usize]);
-                    let partners = side
-                        .iter()
-                        .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room)
-                        .flat_map(|(_, ids)| ids.iter().copied())
-                        .filter(|&f| f < first_new || f < e);
-                    self.reduce_pairs(e, partners)
-                })
-                .collect::<Result<_>>()?;
-            let mine = sums.into_iter().flatten().collect();
-            let (all, stop) = control.exchange(self.width, mine, local)?;
-            if let Some(stop) = stop {
-                return Ok(Err(stop));
+            for batch in fresh.get(done..).unwrap_or_default().chunks(BATCH * size) {
+                self.save_if_due(|| point(done, &collected), control);
+                let local = control.interrupted();
+                let mine: Vec<u32> = match local {
+                    Some(_) => Vec::new(),
+                    None => batch.iter().copied().skip(rank).step_by(size).collect(),
+                };
+                let sums: Vec<Vec<Vec<Entry>>> = mine
+                    .par_iter()
+                    .map(|&e| self.catch_up_pairs(e, first_new, level))
+                    .collect::<Result<_>>()?;
+                let mine = sums.into_iter().flatten().collect();
+                let (all, stop) = control.exchange(self.width, mine, local)?;
+                if let Some(stop) = stop {
+                    self.save(&point(done, &collected), control);
+                    return Ok(Err(stop));
+                }
+                collected.extend(all);
+                done += batch.len();
             }
-            fresh = self.merge(all)?;
+            first_new = self.set.len() as u32;
+            done = 0;
+            self.merge(std::mem::take(&mut collected))?;
         }
         Ok(Ok(()))
     }
 
-    /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members.
-    fn finish(self, comps: &[usize]) -> Vec<Orbit> {
+    /// Normal forms of the sums of the new member `e` with the partners of norm level at most
+    /// `level` that came before it (older members, or new ones with a smaller id).
+    fn catch_up_pairs(&self, e: u32, first_new: u32, level: u64) -> Result<Vec<Vec<Entry>>> {
+        let x = self.set.store.get(e)[self.stage.new];
+        let side = match x.signum() {
+            1 => &self.neg,
+            -1 => &self.pos,
+            _ => return Ok(Vec::new()),
+        };
+        let x = u64::from(x.unsigned_abs());
+        let room = level.saturating_sub(self.norms[e as usize]);
+        let partners = side
+            .iter()
+            .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room)
+            .flat_map(|(_, ids)| ids.iter().copied())
+            .filter(|&f| f < first_new || f < e);
+        self.reduce_pairs(e, partners)
+    }
+
+    /// Whether every pair the truncation left out reduces to zero against the final working
+    /// set (see the module documentation), checked in increasing norm level so that a pair
+    /// that does not is usually met early.
+    fn cut_pairs_vanish(&self, control: &Control<'_>) -> Run<bool> {
+        let t = self.stage.truncation;
+        let mut groups: Vec<(u64, u32, &[u32])> = Vec::new();
+        for (&(a, x), ps) in &self.pos {
+            for (&(b, y), qs) in &self.neg {
+                if t.bounds.is_some() || t.norm_limit.is_some_and(|n| a + b > n) {
+                    let level = a + b + x.abs_diff(y);
+                    groups.extend(ps.iter().map(|&p| (level, p, qs.as_slice())));
+                }
+            }
+        }
+        groups.sort_by_key(|&(level, p, _)| (level, p));
+        for batch in groups.chunks(BATCH) {
+            if let (_, Some(stop)) =
+                control.exchange(self.width, Vec::new(), control.interrupted())?
+            {
+                return Ok(Err(stop));
+            }
+            let survivor = batch
+                .par_iter()
+                .map(|&(_, p, qs)| self.cut_pair_survives(p, qs))
+                .find_any(|r| !matches!(r, Ok(false)));
+            match survivor {
+                Some(Err(e)) => return Err(e),
+                Some(Ok(_)) => return Ok(Ok(false)),
+                None => {}
+            }
+        }
+        Ok(Ok(true))
+    }
+
+    /// Whether some pair of `p` with a member of `qs` that the truncation cut has a nonzero
+    /// normal form.
+    fn cut_pair_survives(&self, p: u32, qs: &[u32]) -> Result<bool> {
+        let mut w = vec![0; self.width];
+        for &q in qs {
+            if self.pair_kind(p, q) != PairKind::Cut {
+                continue;
+            }
+            add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
+            if !self.set.reduce(&mut w)? {
+                return Ok(true);
+            }
+        }
+        Ok(false)
+    }
+
+    /// Saves the state at `point` through the control's hook, if it has one.
+    fn save(&self, point: &StagePoint, control: &Control<'_>) {
+        if !control.saves() {
+            return;
+        }
+        let orbits = self.set.orbits_where(|_| true);
+        let mut state = Checkpoint::of(self.stage.old, &orbits, self.stage.exact);
+        state.within = Some(InStage {
+            component: self.stage.new,
+            point: point.clone(),
+        });
+        control.save(&state);
+        if let Ok(mut at) = self.saved_at.lock() {
+            *at = Instant::now();
+        }
+    }
+
+    /// Saves the state at `point()` if the control's interval has passed since the last save.
+    fn save_if_due(&self, point: impl FnOnce() -> StagePoint, control: &Control<'_>) {
+        let due = self.saved_at.lock().is_ok_and(|at| control.save_due(*at));
+        if due {
+            self.save(&point(), control);
+        }
+    }
+
+    /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members; with
+    /// `exact`, reports whether the limits removed none of the minimal members.
+    fn finish(self, comps: &[usize], exact: bool) -> Lifted {
         let j = self.stage.new;
         let sign = self.stage.signs[j];
         let t = self.stage.truncation;
-        let kept = self.set.orbits_where(|v| {
-            (sign == 0 || v[j].signum() * Entry::from(sign) >= 0) && t.admits(v, comps)
-        });
-        minimal(kept, comps)
+        let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
+        if !exact {
+            let kept = self.set.orbits_where(|v| signed(v) && t.admits(v, comps));
+            return Lifted {
+                orbits: minimal(kept, comps),
+                exact: false,
+            };
+        }
+        // Members above the limits are never needed to show that a member within them is
+        // not minimal (anything ⊑ it is within them too), so cutting after the minimal
+        // pass gives the same set as cutting before it.
+        let all = minimal(self.set.orbits_where(signed), comps);
+        let total = all.len();
+        let orbits: Vec<Orbit> = all
+            .into_iter()
+            .filter(|o| t.admits(&o.rep, comps))
+            .collect();
+        Lifted {
+            exact: orbits.len() == total,
+            orbits,
+        }
     }
+}
+
+/// Remainders saved in a checkpoint, back as entries.
+fn narrow_all(sums: Vec<Vec<i64>>) -> Result<Vec<Vec<Entry>>> {
+    sums.iter().map(|v| to_entries(v)).collect()
 }
 
 /// The ⊑-minimal orbits (on `comps`) among `orbits`.

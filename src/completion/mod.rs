@@ -24,7 +24,7 @@ mod working;
 
 use serde::{Deserialize, Serialize};
 
-pub use checkpoint::Checkpoint;
+pub use checkpoint::{Checkpoint, InStage, StagePoint};
 pub use control::{Control, Progress, StopReason, WorkShare};
 pub use limits::Truncation;
 
@@ -73,6 +73,10 @@ pub struct Request {
     pub truncation: Truncation,
     /// Algorithm (default: project-and-lift).
     pub method: Method,
+    /// Check whether the truncation cut anything (see [`Cut`]), so that a truncated request
+    /// whose result is the whole set says so; costs at most the reductions of the pairs the
+    /// truncation skips (default: false).
+    pub check_cuts: bool,
 }
 
 impl Request {
@@ -82,6 +86,7 @@ impl Request {
             signs: vec![Sign::Free; n],
             truncation: Truncation::default(),
             method: Method::ProjectAndLift,
+            check_cuts: false,
         }
     }
 
@@ -103,11 +108,23 @@ pub struct MoveSet {
     pub elements: Vec<Vec<i64>>,
 }
 
+/// Whether the truncation of a finished completion left anything out.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Cut {
+    /// Nothing: the set is the untruncated one. Either there was no truncation, or every pair
+    /// the truncation kept from forming reduces to zero against the final set of its stage and
+    /// no minimal element was beyond the limits (the completion criterion holds as without
+    /// the truncation; Hemmecke 2003).
+    Nothing,
+    /// Elements beyond the truncation may be missing (or [`Request::check_cuts`] was off).
+    Possibly,
+}
+
 /// How a completion ended.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Completion {
-    /// Finished: the set asked for.
-    Finished(MoveSet),
+    /// Finished: the set asked for, and whether its truncation cut anything.
+    Finished(MoveSet, Cut),
     /// Stopped early by a limit or a cancellation; no partial set is returned.
     Stopped(StopReason),
 }
@@ -152,7 +169,14 @@ pub fn complete(
         Method::Pottier => by_pottier(&entries, &signs, request, control)?,
     };
     Ok(match orbits {
-        Ok(orbits) => Completion::Finished(canonical(n, orbits)),
+        Ok((orbits, exact)) => {
+            let cut = if exact || request.truncation.is_none() {
+                Cut::Nothing
+            } else {
+                Cut::Possibly
+            };
+            Completion::Finished(canonical(n, orbits), cut)
+        }
         Err(stop) => Completion::Stopped(stop),
     })
 }
@@ -172,7 +196,9 @@ pub fn complete_kernel(
     complete(&reduced_kernel_basis(a)?, request, control, resume)
 }
 
-type Staged = Result<std::result::Result<Vec<Orbit>, StopReason>>;
+/// The final orbits and whether the truncation was shown to cut nothing, or why the
+/// completion stopped.
+type Staged = Result<std::result::Result<(Vec<Orbit>, bool), StopReason>>;
 
 fn by_pottier(
     basis: &[Vec<Entry>],
@@ -199,8 +225,12 @@ fn by_lifting(
 ) -> Staged {
     let n = signs.len();
     let stages = n - basis.len() + 1;
-    let (mut done, mut orbits) = match resume {
-        Some(checkpoint) => checkpoint.restore(basis, n)?,
+    let checked = request.check_cuts && !request.truncation.is_none();
+    let (mut done, mut orbits, mut exact, mut within) = match resume {
+        Some(checkpoint) => {
+            let (done, orbits) = checkpoint.restore(basis, n)?;
+            (done, orbits, checkpoint.exact, checkpoint.within.clone())
+        }
         None => {
             let projection = projection::choose(basis)?;
             let comps = projection.comps.clone();
@@ -219,30 +249,38 @@ fn by_lifting(
                     Err(stop) => return Ok(Err(stop)),
                 },
             };
-            let orbits = restrict(start, signs, &comps, &request.truncation);
-            control.stage_done(&Checkpoint::of(&comps, &orbits));
-            (comps, orbits)
+            let (orbits, exact) = restrict(start, signs, &comps, &request.truncation);
+            let exact = checked && exact;
+            control.save(&Checkpoint::of(&comps, &orbits, exact));
+            (comps, orbits, exact, None)
         }
     };
     for number in done.len() + 1 - basis.len()..stages {
-        let j = next_component(&orbits, &done, signs);
+        let (j, at) = match within.take() {
+            Some(stage) => (stage.component, Some(stage.point)),
+            None => (next_component(&orbits, &done, signs), None),
+        };
         let stage = lift::Stage {
             old: &done,
             new: j,
             signs,
             truncation: &request.truncation,
             number: (number, stages),
+            exact,
+            check_cuts: checked && exact,
         };
-        orbits = match lift::lift(orbits, &stage, control)? {
-            Ok(o) => o,
+        let lifted = match lift::lift(orbits, &stage, control, at)? {
+            Ok(lifted) => lifted,
             Err(stop) => return Ok(Err(stop)),
         };
+        orbits = lifted.orbits;
+        exact = exact && lifted.exact;
         done.push(j);
         if number + 1 < stages {
-            control.stage_done(&Checkpoint::of(&done, &orbits));
+            control.save(&Checkpoint::of(&done, &orbits, exact));
         }
     }
-    Ok(Ok(orbits))
+    Ok(Ok((orbits, exact)))
 }
 
 /// The component to lift next: sign-restricted ones first (they halve the set), then the one
@@ -257,13 +295,20 @@ fn next_component(orbits: &[Orbit], done: &[usize], signs: &[i8]) -> usize {
         .expect("a component is left to lift")
 }
 
-/// Keeps the members that satisfy the signs and limits on `comps`, then the minimal ones.
-fn restrict(orbits: Vec<Orbit>, signs: &[i8], comps: &[usize], t: &Truncation) -> Vec<Orbit> {
+/// Keeps the members that satisfy the signs on `comps`, then the minimal ones, then those
+/// within the limits (cutting after the minimal pass gives the same set as before it:
+/// anything ⊑ a member within the limits is within them too); tells whether the limits
+/// removed none.
+fn restrict(
+    orbits: Vec<Orbit>,
+    signs: &[i8],
+    comps: &[usize],
+    t: &Truncation,
+) -> (Vec<Orbit>, bool) {
     let fits = |v: &[Entry]| {
         comps
             .iter()
             .all(|&c| signs[c] == 0 || v[c].signum() * Entry::from(signs[c]) >= 0)
-            && t.admits(v, comps)
     };
     let mut kept = Vec::new();
     for o in orbits {
@@ -281,7 +326,14 @@ fn restrict(orbits: Vec<Orbit>, signs: &[i8], comps: &[usize], t: &Truncation) -
             (false, false) => {}
         }
     }
-    lift::minimal(kept, comps)
+    let minimal = lift::minimal(kept, comps);
+    let total = minimal.len();
+    let within: Vec<Orbit> = minimal
+        .into_iter()
+        .filter(|o| t.admits(&o.rep, comps))
+        .collect();
+    let exact = within.len() == total;
+    (within, exact)
 }
 
 /// Orients and sorts the final orbits.

@@ -2,12 +2,12 @@
 
 use std::time::Instant;
 
-use cache::{EntryKey, SetMetadata, TestSetData};
+use cache::{Completeness, EntryKey, SetMetadata, TestSetData};
 
 use super::spec::{model_box, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{
-    complete_kernel, Checkpoint, Completion, Control, Method, MoveSet, Request, Sign,
+    complete_kernel, Checkpoint, Completion, Control, Cut, Method, MoveSet, Request, Sign,
 };
 use crate::error::Result;
 use crate::lattice::RowSpaceKey;
@@ -71,7 +71,9 @@ pub fn default_graver_keys(model: &Model) -> (EntryKey, Option<EntryKey>) {
     (complete, boxed)
 }
 
-/// Runs the completion for `a` as `spec` says, from `resume` if given.
+/// Runs the completion for `a` as `spec` says, from `resume` if given. A truncated request
+/// whose completion shows that the truncation cut nothing gives the whole set, keyed and
+/// recorded as complete.
 pub fn build(
     a: &IntMatrix,
     analysis: &MatrixAnalysis,
@@ -84,11 +86,18 @@ pub fn build(
         signs: spec.signs.clone(),
         truncation: spec.truncation.clone(),
         method: spec.method,
+        check_cuts: spec.completeness != Completeness::Complete,
     };
-    let set = match complete_kernel(a, &request, control, resume)? {
-        Completion::Finished(set) => set,
+    let (set, cut) = match complete_kernel(a, &request, control, resume)? {
+        Completion::Finished(set, cut) => (set, cut),
         Completion::Stopped(reason) => return Ok(BuildOutcome::Stopped(reason)),
     };
+    let mut key = entry_key(a, spec);
+    let mut completeness = spec.completeness.clone();
+    if cut == Cut::Nothing {
+        key.truncation = cache::Truncation::default();
+        completeness = Completeness::Complete;
+    }
     let metadata = SetMetadata {
         matrix: a.to_rows(),
         rank: analysis.rank as u64,
@@ -97,7 +106,7 @@ pub fn build(
         column_number: analysis.column_number as u64,
         norm_bound: spec.truncation.norm_limit,
         method: method_name(spec.method).to_string(),
-        completeness: spec.completeness.clone(),
+        completeness,
         build_seconds: start.elapsed().as_secs_f64(),
         kernstep_version: env!("CARGO_PKG_VERSION").to_string(),
         created_unix: std::time::SystemTime::now()
@@ -105,7 +114,7 @@ pub fn build(
             .map_or(0, |d| d.as_secs()),
     };
     Ok(BuildOutcome::Built(Box::new(BuiltSet {
-        key: entry_key(a, spec),
+        key,
         metadata,
         set,
     })))

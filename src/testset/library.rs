@@ -1,12 +1,14 @@
 //! The test sets of one cache directory: reuse what is stored, build what is missing.
 
 use std::path::Path;
+use std::sync::Mutex;
+use std::time::{Duration, Instant};
 
 use cache::{BuildGuard, CheckpointState, EntryKey, Store, StoredSet};
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
 use super::network::cycles_entry;
-use super::saved::{self, RequestRecord};
+use super::saved::{self, RequestRecord, Saved};
 use super::spec::ResolvedSpec;
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{Checkpoint, Control, Method, StopReason};
@@ -25,17 +27,55 @@ pub enum Obtained {
         built: Box<BuiltSet>,
         /// The damage found in the entry this one replaced, if any.
         replaced: Option<String>,
-        /// When an interrupted build was resumed: how many components it had lifted.
-        resumed_after: Option<usize>,
+        /// When an interrupted build was resumed: the state it resumed from.
+        resumed: Option<SavedState>,
     },
-    /// A limit or a cancellation stopped the build; the store is unchanged.
-    Stopped(StopReason),
+    /// A limit or a cancellation stopped the build; no entry was stored, and the state
+    /// saved last (from which the same request resumes), if any, is `kept`.
+    Stopped {
+        /// Why it stopped.
+        reason: StopReason,
+        /// The state saved last.
+        kept: Option<SavedState>,
+    },
 }
+
+/// A saved state of a build, as reported: where it stands and the work it holds.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SavedState {
+    /// The stage being worked on (stages finished, plus one when saved inside a stage).
+    pub stage: usize,
+    /// Number of stages of the build (the rank of the matrix plus one).
+    pub stages: usize,
+    /// Whether the state was saved inside a stage.
+    pub mid_stage: bool,
+    /// Moves in the state (a stage's working set inside a stage; one per `±` pair).
+    pub moves: usize,
+    /// Build work, over every run, up to the state.
+    pub work: Duration,
+}
+
+impl SavedState {
+    fn of(state: &Checkpoint, width: usize, rank: usize, work: Duration) -> Self {
+        let lifted_past_start = state.lifted.len().saturating_sub(width - rank);
+        Self {
+            stage: lifted_past_start + usize::from(state.within.is_some()),
+            stages: rank + 1,
+            mid_stage: state.within.is_some(),
+            moves: state.elements.len(),
+            work,
+        }
+    }
+}
+
+/// How often a build saves its state by default.
+pub const CHECKPOINT_EVERY: Duration = Duration::from_secs(60);
 
 /// A cache directory used by the root crate.
 #[derive(Clone, Debug)]
 pub struct SetLibrary {
     store: Store,
+    checkpoint_every: Duration,
 }
 
 impl SetLibrary {
@@ -43,7 +83,15 @@ impl SetLibrary {
     pub fn open(dir: Option<&Path>) -> Result<Self> {
         Ok(Self {
             store: Store::open_default(dir)?,
+            checkpoint_every: CHECKPOINT_EVERY,
         })
+    }
+
+    /// Save the state of a build at least every `every` of work, inside stages too (default:
+    /// [`CHECKPOINT_EVERY`]), so an interrupted build loses at most that much.
+    pub fn checkpoint_every(mut self, every: Duration) -> Self {
+        self.checkpoint_every = every;
+        self
     }
 
     /// The underlying store (for listing, verifying, pruning).
@@ -89,26 +137,57 @@ impl SetLibrary {
         let replaced = lock.damaged_entry().map(ToString::to_string);
         let request = RequestRecord::of(&key, spec);
         let resume = self.checkpoint(&key, &request, spec)?;
-        let save_failed = std::sync::Mutex::new(None);
+        let (width, rank) = (a.cols(), analysis.rank);
+        let earlier = resume.as_ref().map_or(0.0, |r| r.work_seconds);
+        let started = Instant::now();
+        let last_saved = Mutex::new(None);
+        let save_failed = Mutex::new(None);
         let save = |state: &Checkpoint| {
-            if let Err(e) = self.save_checkpoint(&key, &request, state) {
-                save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
+            let work = earlier + started.elapsed().as_secs_f64();
+            match self.save_checkpoint(&key, &request, state, work) {
+                Ok(()) => {
+                    let work = Duration::from_secs_f64(work);
+                    let saved = SavedState::of(state, width, rank, work);
+                    last_saved.lock().map(|mut slot| *slot = Some(saved)).ok();
+                }
+                Err(e) => {
+                    save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
+                }
             }
         };
-        let control = control.on_stage_done(&save);
-        let outcome = build(a, analysis, spec, &control, resume.as_ref())?;
+        let control = control.on_save(&save, self.checkpoint_every);
+        let from = resume.as_ref().map(|r| &r.state);
+        let outcome = build(a, analysis, spec, &control, from)?;
         if let Some(e) = save_failed.into_inner().ok().flatten() {
             return Err(e);
         }
+        let resumed = resume.map(|r| {
+            SavedState::of(
+                &r.state,
+                width,
+                rank,
+                Duration::from_secs_f64(r.work_seconds),
+            )
+        });
         match outcome {
-            BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped(reason)),
+            BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped {
+                reason,
+                kept: last_saved.into_inner().ok().flatten().or(resumed),
+            }),
             BuildOutcome::Built(built) => {
-                lock.commit(&to_data(&built.set)?, &built.metadata)?;
+                if built.key == key {
+                    lock.commit(&to_data(&built.set)?, &built.metadata)?;
+                } else {
+                    // The completion showed that the truncation cut nothing: the whole set,
+                    // stored under its own key.
+                    drop(lock);
+                    self.keep(&built)?;
+                }
                 self.store.remove_checkpoint(&key)?;
                 Ok(Obtained::Built {
                     built,
                     replaced,
-                    resumed_after: resume.map(|c| c.lifted.len()),
+                    resumed,
                 })
             }
         }
@@ -129,7 +208,9 @@ impl SetLibrary {
     /// so that all resume together.
     pub fn resume_point(&self, a: &IntMatrix, spec: &ResolvedSpec) -> Result<Option<Checkpoint>> {
         let key = super::build::entry_key(a, spec);
-        self.checkpoint(&key, &RequestRecord::of(&key, spec), spec)
+        Ok(self
+            .checkpoint(&key, &RequestRecord::of(&key, spec), spec)?
+            .map(|saved| saved.state))
     }
 
     /// Returns the entry of the network matrix `a` (its implicit set of cycles, see
@@ -159,7 +240,7 @@ impl SetLibrary {
         Ok(Obtained::Built {
             built: Box::new(built),
             replaced,
-            resumed_after: None,
+            resumed: None,
         })
     }
 
@@ -172,7 +253,7 @@ impl SetLibrary {
         key: &EntryKey,
         request: &RequestRecord,
         spec: &ResolvedSpec,
-    ) -> Result<Option<Checkpoint>> {
+    ) -> Result<Option<Saved>> {
         if spec.method != Method::ProjectAndLift {
             return Ok(None);
         }
@@ -187,9 +268,10 @@ impl SetLibrary {
         key: &EntryKey,
         request: &RequestRecord,
         state: &Checkpoint,
+        work_seconds: f64,
     ) -> Result<()> {
         self.store
-            .save_checkpoint(key, &saved::encode(request, state))?;
+            .save_checkpoint(key, &saved::encode(request, state, work_seconds))?;
         Ok(())
     }
 }

@@ -15,6 +15,6 @@ pub use build::{
 };
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
 pub use estimate::{project, Projection};
-pub use library::{Obtained, SetLibrary};
+pub use library::{Obtained, SavedState, SetLibrary, CHECKPOINT_EVERY};
 pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};

@@ -9,8 +9,9 @@
 //! for exactly its own request.
 //!
 //! Layout (bincode, standard configuration): the string [`LAYOUT`], then the
-//! [`RequestRecord`], then the [`Checkpoint`]. A payload that does not start with that string
-//! (an older layout, or damage the container's checksum missed) is not read.
+//! [`RequestRecord`], the [`Checkpoint`] and the build work done up to it, in seconds over
+//! every run of the build. A payload that does not start with that string (an older layout,
+//! or damage the container's checksum missed) is not read.
 
 use bincode::config;
 use cache::EntryKey;
@@ -20,8 +21,8 @@ use super::spec::ResolvedSpec;
 use crate::completion::{Checkpoint, Method};
 
 /// The tag that opens every payload of this layout. Layout 1 (no tag, the bare state) did
-/// not record the request.
-const LAYOUT: &str = "kernstep.lift-checkpoint.2";
+/// not record the request; layout 2 held states between stages only and no work time.
+const LAYOUT: &str = "kernstep.lift-checkpoint.3";
 
 /// Everything that decides how a build runs: the entry key (row space, kind, signs and the
 /// truncation that changes the set) and the truncation and method handed to the completion.
@@ -50,6 +51,7 @@ impl RequestRecord {
 struct Body<'a> {
     request: &'a RequestRecord,
     state: &'a Checkpoint,
+    work_seconds: f64,
 }
 
 /// The payload's fields after the tag, as read.
@@ -57,14 +59,30 @@ struct Body<'a> {
 struct ReadBody {
     request: RequestRecord,
     state: Checkpoint,
+    work_seconds: f64,
 }
 
-/// The payload that saves `state` of a build of `request`.
-pub(crate) fn encode(request: &RequestRecord, state: &Checkpoint) -> Vec<u8> {
+/// A state read back, with the build work done up to it.
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) struct Saved {
+    /// The completion's state.
+    pub state: Checkpoint,
+    /// Seconds of build work, over every run, up to the state.
+    pub work_seconds: f64,
+}
+
+/// The payload that saves `state` of a build of `request`, reached after `work_seconds` of
+/// build work.
+pub(crate) fn encode(request: &RequestRecord, state: &Checkpoint, work_seconds: f64) -> Vec<u8> {
     // Encoding strings, integers and vectors into memory cannot fail.
     let mut bytes =
         bincode::serde::encode_to_vec(LAYOUT, config::standard()).expect("a string encodes");
-    let body = bincode::serde::encode_to_vec(Body { request, state }, config::standard())
+    let body = Body {
+        request,
+        state,
+        work_seconds,
+    };
+    let body = bincode::serde::encode_to_vec(body, config::standard())
         .expect("a checkpoint of integers and vectors encodes");
     bytes.extend_from_slice(&body);
     bytes
@@ -72,7 +90,7 @@ pub(crate) fn encode(request: &RequestRecord, state: &Checkpoint) -> Vec<u8> {
 
 /// The saved state, if `bytes` is a payload of this layout saved for exactly `request`;
 /// `None` for any other payload (another request, an older layout, unreadable bytes).
-pub(crate) fn decode(bytes: &[u8], request: &RequestRecord) -> Option<Checkpoint> {
+pub(crate) fn decode(bytes: &[u8], request: &RequestRecord) -> Option<Saved> {
     let (layout, used) =
         bincode::serde::decode_from_slice::<String, _>(bytes, config::standard()).ok()?;
     if layout != LAYOUT {
@@ -81,7 +99,14 @@ pub(crate) fn decode(bytes: &[u8], request: &RequestRecord) -> Option<Checkpoint
     let rest = bytes.get(used..)?;
     let (body, read) =
         bincode::serde::decode_from_slice::<ReadBody, _>(rest, config::standard()).ok()?;
-    (read == rest.len() && body.request == *request).then_some(body.state)
+    let valid = read == rest.len()
+        && body.request == *request
+        && body.work_seconds.is_finite()
+        && body.work_seconds >= 0.0;
+    valid.then_some(Saved {
+        state: body.state,
+        work_seconds: body.work_seconds,
+    })
 }
 
 #[cfg(test)]
@@ -108,13 +133,22 @@ mod tests {
             lifted: vec![0, 2],
             elements: vec![vec![1, -1, 0], vec![0, 1, -1]],
             symmetric: vec![true, false],
+            within: None,
+            exact: false,
         }
+    }
+
+    fn saved() -> Option<Saved> {
+        Some(Saved {
+            state: state(),
+            work_seconds: 2.5,
+        })
     }
 
     #[test]
     fn a_state_reads_back_only_for_its_own_request() {
-        let bytes = encode(&request(Some(4)), &state());
-        assert_eq!(decode(&bytes, &request(Some(4))), Some(state()));
+        let bytes = encode(&request(Some(4)), &state(), 2.5);
+        assert_eq!(decode(&bytes, &request(Some(4))), saved());
         assert_eq!(decode(&bytes, &request(None)), None);
         assert_eq!(decode(&bytes, &request(Some(5))), None);
     }
@@ -123,7 +157,7 @@ mod tests {
     fn the_bare_state_of_layout_1_and_cut_payloads_are_not_read() {
         let bare = bincode::serde::encode_to_vec(state(), config::standard()).unwrap();
         assert_eq!(decode(&bare, &request(Some(4))), None);
-        let bytes = encode(&request(Some(4)), &state());
+        let bytes = encode(&request(Some(4)), &state(), 2.5);
         for cut in 0..bytes.len() {
             assert_eq!(
                 decode(&bytes[..cut], &request(Some(4))),

@@ -31,7 +31,7 @@ pub fn matrix(rows: &[&[i64]]) -> IntMatrix {
 /// Runs a completion to the end and returns the set.
 pub fn run(a: &IntMatrix, request: &Request) -> MoveSet {
     match complete_kernel(a, request, &Control::new(), None).unwrap() {
-        Completion::Finished(set) => set,
+        Completion::Finished(set, _) => set,
         Completion::Stopped(reason) => panic!("completion stopped: {reason:?}"),
     }
 }

@@ -1,0 +1,149 @@
+//! Progress of a build on stderr: a bar on a terminal, otherwise one line at most every
+//! [`LINE_EVERY`] (logs, cron, CI), or JSON lines for programs that watch the build.
+
+use std::io::{self, IsTerminal, Write};
+use std::path::Path;
+use std::sync::Mutex;
+use std::time::{Duration, Instant};
+
+use clap::ValueEnum;
+use indicatif::{ProgressBar, ProgressStyle};
+use kernstep::completion::Progress;
+use serde::Serialize;
+
+/// Longest silence of a build whose stderr is not a terminal.
+pub const LINE_EVERY: Duration = Duration::from_secs(30);
+
+/// `--progress`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ProgressArg {
+    /// A bar on a terminal, lines otherwise.
+    Auto,
+    /// A bar (drawn only on a terminal).
+    Bar,
+    /// One line at most every 30 s.
+    Lines,
+    /// One JSON object per line at most every 30 s (schema `kernstep.progress/1`).
+    Json,
+    /// Nothing.
+    None,
+}
+
+/// One progress record of `--progress json`.
+#[derive(Serialize)]
+struct ProgressLine<'a> {
+    schema: &'static str,
+    model: &'a str,
+    stage: usize,
+    stages: usize,
+    norm_level: u64,
+    moves: usize,
+    moves_per_second: f64,
+    elapsed_seconds: f64,
+}
+
+/// The reporter of one model's build.
+pub struct BuildProgress {
+    mode: ProgressArg,
+    model: String,
+    bar: ProgressBar,
+    /// When the last line was written (none yet: `None`).
+    last_line: Mutex<Option<Instant>>,
+}
+
+impl BuildProgress {
+    /// A reporter for the build of `path` in `mode` (`Auto` resolved against stderr).
+    pub fn new(mode: ProgressArg, path: &Path) -> Self {
+        let terminal = io::stderr().is_terminal();
+        let mode = match mode {
+            ProgressArg::Auto if terminal => ProgressArg::Bar,
+            ProgressArg::Auto => ProgressArg::Lines,
+            ProgressArg::Bar if !terminal => ProgressArg::None,
+            other => other,
+        };
+        let model = path.display().to_string();
+        let bar = if mode == ProgressArg::Bar {
+            let bar = ProgressBar::new_spinner().with_prefix(model.clone());
+            bar.set_style(
+                ProgressStyle::with_template("{spinner} {prefix}: {msg} [{elapsed}]")
+                    .unwrap_or_else(|_| ProgressStyle::default_spinner()),
+            );
+            bar.enable_steady_tick(Duration::from_millis(200));
+            bar
+        } else {
+            ProgressBar::hidden()
+        };
+        Self {
+            mode,
+            model,
+            bar,
+            last_line: Mutex::new(None),
+        }
+    }
+
+    /// Shows a snapshot of the running completion.
+    pub fn report(&self, p: &Progress) {
+        let seconds = p.elapsed.as_secs_f64();
+        let rate = if seconds > 0.0 {
+            p.elements as f64 / seconds
+        } else {
+            0.0
+        };
+        let text = format!(
+            "stage {}/{}, norm level {}, {} moves, {:.0} moves/s",
+            p.stage, p.stages, p.level, p.elements, rate
+        );
+        match self.mode {
+            ProgressArg::Bar => self.bar.set_message(text),
+            ProgressArg::Lines => {
+                if self.line_due() {
+                    self.line(&format!("{text}, {:.0} s", seconds));
+                }
+            }
+            ProgressArg::Json => {
+                if self.line_due() {
+                    let record = ProgressLine {
+                        schema: "kernstep.progress/1",
+                        model: &self.model,
+                        stage: p.stage,
+                        stages: p.stages,
+                        norm_level: p.level,
+                        moves: p.elements,
+                        moves_per_second: rate,
+                        elapsed_seconds: seconds,
+                    };
+                    if let Ok(json) = serde_json::to_string(&record) {
+                        self.write(&json);
+                    }
+                }
+            }
+            ProgressArg::Auto | ProgressArg::None => {}
+        }
+    }
+
+    /// Removes the bar.
+    pub fn finish(&self) {
+        self.bar.finish_and_clear();
+    }
+
+    /// Whether a line is due (the first one always is), taking the slot if so.
+    fn line_due(&self) -> bool {
+        let Ok(mut last) = self.last_line.lock() else {
+            return false;
+        };
+        let due = last.is_none_or(|at| at.elapsed() >= LINE_EVERY);
+        if due {
+            *last = Some(Instant::now());
+        }
+        due
+    }
+
+    fn line(&self, text: &str) {
+        self.write(&format!("kernstep: {}: {text}", self.model));
+    }
+
+    fn write(&self, line: &str) {
+        // Progress is best effort: a closed stderr must not stop the build.
+        let _ = writeln!(io::stderr().lock(), "{line}");
+    }
+}
