@@ -103,19 +103,32 @@ fn a_capped_budget_keeps_a_partial_set_whose_plan_the_bound_proves() {
 }
 
 #[test]
-fn the_estimate_measures_the_first_levels() {
-    let output = std::process::Command::new(env!("CARGO_BIN_EXE_kernstep"))
-        .args(["analyze", &transport(), "--estimate", "10s", "--json"])
-        .output()
-        .unwrap();
-    assert_eq!(output.status.code(), Some(0));
-    let report: Value = serde_json::from_slice(&output.stdout).unwrap();
-    let levels = report["build_estimate"].as_array().unwrap();
-    let last = levels.last().unwrap();
-    // Reached the proven bound within the probe: everything measured, 15 elements.
-    assert!(levels.iter().all(|l| l["measured"] == true));
-    assert_eq!(last["elements"], 15.0);
-    assert_eq!(last["limit"], report["norm_limit"]);
+fn the_estimate_measures_a_build_that_finishes_in_the_probe() {
+    let transport_path = transport();
+    let estimate = |extra: &[&str]| {
+        let mut args = vec!["analyze", &transport_path, "--estimate", "10s", "--json"];
+        args.extend_from_slice(extra);
+        let output = std::process::Command::new(env!("CARGO_BIN_EXE_kernstep"))
+            .args(&args)
+            .output()
+            .unwrap();
+        assert_eq!(output.status.code(), Some(0));
+        let report: Value = serde_json::from_slice(&output.stdout).unwrap();
+        report["build_estimate"].clone()
+    };
+    // The build finishes within the probe: measured, the 15 moves of K_{3,3}'s incidence
+    // matrix (9 four-cycles and 6 six-cycles: sum_k C(3,k)^2 k!(k-1)!/2, standard count).
+    let e = estimate(&[]);
+    assert_eq!(e["measured"], true, "{e}");
+    assert_eq!(e["set"], "complete");
+    assert_eq!(e["complete"]["elements"], "15");
+    assert_eq!(e["complete"]["low"]["elements"], "15");
+    assert_eq!(e["norm_step"], 2, "transport tables have even norms");
+    assert!(e["stages"].as_u64() > Some(1));
+    // Up to norm 4: the nine 4-cycles.
+    let e = estimate(&["--up-to", "4"]);
+    assert_eq!(e["set"], "norm<=4", "{e}");
+    assert_eq!(e["up_to_norm"]["elements"], "9", "{e}");
 }
 
 #[test]

@@ -4,17 +4,19 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 use std::time::Duration;
 
-use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
+use kernstep::analysis::{
+    norm_step, AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition,
+};
 use kernstep::completion::Control;
 use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
-use kernstep::testset::{deepen, project, BuildSpec, Projection};
+use kernstep::testset::{estimate, BuildEstimate, Range};
 use serde::Serialize;
 
 use super::args::AnalyzeArgs;
 use super::common::interrupted;
-use super::table::{write_pairs, write_table};
+use super::table::write_pairs;
 
 /// The `--json` document.
 #[derive(Serialize)]
@@ -24,7 +26,91 @@ struct Report<'a> {
     network: NetworkReport,
     analysis: &'a MatrixAnalysis,
     #[serde(skip_serializing_if = "Option::is_none")]
-    build_estimate: Option<Vec<Projection>>,
+    build_estimate: Option<EstimateDoc>,
+}
+
+/// `build_estimate` in the `--json` document.
+#[derive(Serialize)]
+struct EstimateDoc {
+    /// 2 when every kernel vector has even ℓ1 norm (odd limits hold nothing more), else 1.
+    norm_step: u64,
+    /// `complete`, or `norm<=N` with `--up-to N`.
+    set: String,
+    /// Whether the probe finished the build: the figures are then measured.
+    measured: bool,
+    /// The estimate of the complete set (absent when the probe finished too little to
+    /// extrapolate from, or with `--up-to`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    complete: Option<FiguresDoc>,
+    /// The estimate of the set up to the `--up-to` norm.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    up_to_norm: Option<FiguresDoc>,
+    stages: usize,
+    probe: Vec<kernstep::testset::StageMark>,
+}
+
+/// Elements (a decimal string) and seconds, with their low and high ends.
+#[derive(Serialize)]
+struct FiguresDoc {
+    elements: String,
+    seconds: f64,
+    low: EndDoc,
+    high: EndDoc,
+}
+
+/// One end of an estimate's range.
+#[derive(Serialize)]
+struct EndDoc {
+    elements: String,
+    seconds: f64,
+}
+
+impl FiguresDoc {
+    fn of(e: &BuildEstimate) -> Self {
+        let count = |x: f64| format!("{:.0}", x.round());
+        let end = |elements: f64, seconds: f64| EndDoc {
+            elements: count(elements),
+            seconds,
+        };
+        Self {
+            elements: count(e.elements.value),
+            seconds: e.seconds.value,
+            low: end(e.elements.low, e.seconds.low),
+            high: end(e.elements.high, e.seconds.high),
+        }
+    }
+}
+
+/// The probe's outcome: an estimate, or a probe too short to extrapolate from.
+struct Probed {
+    norm_step: u64,
+    up_to: Option<u64>,
+    estimate: Option<BuildEstimate>,
+    stages: usize,
+}
+
+impl Probed {
+    fn doc(&self) -> EstimateDoc {
+        let figures = self.estimate.as_ref().map(FiguresDoc::of);
+        let truncated = self.estimate.as_ref().map_or(self.up_to, |e| e.norm_limit);
+        let (complete, up_to_norm) = match truncated {
+            None => (figures, None),
+            Some(_) => (None, figures),
+        };
+        EstimateDoc {
+            norm_step: self.norm_step,
+            set: truncated.map_or("complete".into(), |n| format!("norm<={n}")),
+            measured: self.estimate.as_ref().is_some_and(|e| e.measured),
+            complete,
+            up_to_norm,
+            stages: self.stages,
+            probe: self
+                .estimate
+                .as_ref()
+                .map(|e| e.probe.clone())
+                .unwrap_or_default(),
+        }
+    }
 }
 
 /// Whether the matrix is a network matrix, and if not, what stands in the way.
@@ -74,7 +160,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
             norm_limit: analysis.norm_limit(),
             network,
             analysis: &analysis,
-            build_estimate: estimate,
+            build_estimate: estimate.as_ref().map(Probed::doc),
         };
         let text = serde_json::to_string_pretty(&report)?;
         writeln!(out, "{text}")?;
@@ -86,66 +172,79 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
             format!("{verdict}: {}", network.detail),
         ));
         write_pairs(&mut out, &rows)?;
-        if let Some(levels) = &estimate {
+        if let Some(probed) = &estimate {
             writeln!(out)?;
-            write_estimate(&mut out, levels)?;
+            write_estimate(&mut out, probed)?;
         }
     }
     out.flush()?;
     Ok(ExitCode::SUCCESS)
 }
 
-/// The Graver basis's levels: the first built for up to `probe`, the rest up to `up_to` (or
-/// the proven bound) extrapolated.
+/// Runs the build of the Graver basis (up to `up_to`, else complete) for up to `probe`, then
+/// measures or extrapolates its size and time.
 fn build_estimate(
     model: &Model,
     analysis: &MatrixAnalysis,
     probe: Duration,
     up_to: Option<u64>,
-) -> anyhow::Result<Vec<Projection>> {
+) -> anyhow::Result<Probed> {
     let control = Control::new().time_limit(probe).cancel_flag(interrupted());
-    let deepened = deepen(
-        model,
-        analysis,
-        &BuildSpec::default(),
-        &control,
-        &mut |_| {},
-    )?;
-    Ok(project(
-        &deepened.levels,
-        up_to.unwrap_or(deepened.proven_bound),
-    ))
+    Ok(Probed {
+        norm_step: norm_step(&model.matrix)?,
+        up_to,
+        estimate: estimate(model, analysis, up_to, &control)?,
+        stages: analysis.rank + 1,
+    })
 }
 
-fn write_estimate(out: &mut impl Write, levels: &[Projection]) -> io::Result<()> {
-    writeln!(
-        out,
-        "build estimate (Graver basis; measured levels, then extrapolated, an order of magnitude):"
-    )?;
-    let cells: Vec<Vec<String>> = levels
-        .iter()
-        .map(|p| {
-            vec![
-                p.limit.to_string(),
-                format!("{:.0}", p.elements),
-                format!("{:.2}", p.seconds),
-                if p.measured { "built" } else { "extrapolated" }.to_string(),
-            ]
-        })
-        .collect();
-    write_table(
-        out,
-        &["norm limit", "elements", "seconds", "source"],
-        &cells,
-    )?;
-    if let Some(last) = levels.last().filter(|p| !p.measured) {
-        writeln!(
+fn write_estimate(out: &mut impl Write, probed: &Probed) -> io::Result<()> {
+    let set = probed
+        .up_to
+        .map_or("the complete Graver basis".to_string(), |n| {
+            format!("the Graver elements up to norm {n}")
+        });
+    let Some(e) = &probed.estimate else {
+        return writeln!(
             out,
-            "a build up to norm {} would take about {:.0} s; `build --budget` keeps the largest level that fits",
-            last.limit, last.seconds
-        )?;
-    }
-    Ok(())
+            "build estimate for {set}: the probe finished too few growing stages of {}; probe longer",
+            probed.stages
+        );
+    };
+    let range = |r: &Range, digits: usize| {
+        if e.measured {
+            format!("{:.*}", digits, r.value)
+        } else {
+            format!(
+                "about {:.*} ({:.*} to {:.*})",
+                digits, r.value, digits, r.low, digits, r.high
+            )
+        }
+    };
+    let how = if e.measured {
+        "measured: the probe finished the build".to_string()
+    } else {
+        let done = e.probe.last().map_or(0, |m| m.stage);
+        format!(
+            "extrapolated from {done} of {} stages finished in the probe",
+            e.stages - 1
+        )
+    };
+    let rows = vec![
+        ("set".to_string(), set),
+        ("moves".to_string(), range(&e.elements, 0)),
+        ("build seconds".to_string(), range(&e.seconds, 1)),
+        ("source".to_string(), how),
+        (
+            "norm step".to_string(),
+            match probed.norm_step {
+                2 => "2 (every kernel vector has even norm; budgets try even limits)".to_string(),
+                _ => "1".to_string(),
+            },
+        ),
+    ];
+    writeln!(out, "build estimate:")?;
+    write_pairs(out, &rows)
 }
 
 fn decision(d: Decision) -> String {

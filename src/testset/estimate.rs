@@ -1,162 +1,293 @@
-//! What a build will cost before it runs: the first norm levels are built for real (a short
-//! [`super::deepen`]), and the levels beyond are extrapolated geometrically from them.
+//! What a build will cost before it runs: the build itself runs for a short probe, and the
+//! stages it did not reach are extrapolated from the ones it finished.
 //!
-//! Over the first levels that carry elements, counts grow by a roughly constant factor per
-//! level, and the time of a level at least as fast (common practice, and what the builds of
-//! this project show; the lattice points of norm up to `N` are far more than the Graver
-//! elements among them, so no closed count serves).
-//! The factor is taken from the last two measured levels with different counts (matrices
-//! whose elements all have even norm repeat each count), the time factor from the last two
-//! measured times. An estimate, good to an order of magnitude: it tells which budget to set.
+//! Project-and-lift passes through `r + 1` stages (the start projection, then one lifted
+//! component each), and the set after stage `k` is the minimal set of the lattice projected
+//! to the components lifted so far; the last one is the set asked for. Early stages are cheap
+//! and the last few hold nearly all the time, so a probe of seconds finishes most stages. Two
+//! regularities of the stage sizes `s_k` serve the extrapolation (observed on the builds of
+//! this project: three-way tables, complete bipartite graphs, lane plans; common practice, not
+//! a theorem): the growth `s_k / s_{k-1} - 1` shrinks from stage to stage once it falls, by a
+//! roughly steady factor, and a stage's time grows as a power `α` of its size (the pairs it
+//! forms). The factor and `α` are read off the last stages measured; their spread over those
+//! stages gives the low and high ends of the estimate. A probe that finishes gives the exact
+//! count.
+//!
+//! The earlier estimate, which extrapolated norm levels up to the proven norm bound, is gone:
+//! proven bounds run to millions where the moves stop at a few dozen, so it predicted sets
+//! many times too large.
 
-use super::deepen::{Level, LevelEnd};
+use std::sync::Mutex;
+use std::time::Instant;
 
-/// Times below this (seconds) are too noisy to extrapolate from.
-const NOISE: f64 = 0.01;
-/// At most this many levels are projected: the next, then doubling distances, then the
-/// last one asked for.
-const MAX_AHEAD: usize = 16;
-/// Levels projected past this many seconds (30 days) are not listed.
-const HORIZON: f64 = 30.0 * 86_400.0;
+use serde::Serialize;
 
-/// One level's size and time, measured or extrapolated.
-#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
-pub struct Projection {
-    /// The ℓ1 norm limit.
-    pub limit: u64,
-    /// Elements of the set up to the limit.
-    pub elements: f64,
-    /// Seconds to build the set up to the limit, from scratch.
+use super::build::{build, BuildOutcome};
+use super::spec::{BuildSpec, NormLimit};
+use crate::analysis::MatrixAnalysis;
+use crate::completion::{Checkpoint, Control};
+use crate::error::Result;
+use crate::model::Model;
+
+/// Growth below this between two stages is not a trend (stages that lift a component few
+/// moves touch).
+const FLAT: f64 = 0.05;
+/// Stage durations below this (seconds) are too noisy to fit `α` from.
+const NOISE: f64 = 0.005;
+/// Decay factors considered: the last this many.
+const RECENT: usize = 2;
+/// The power of a stage's size its time grows with when no stage shows it (pairs of members:
+/// quadratic; common practice).
+const DEFAULT_POWER: f64 = 2.0;
+
+/// A finished stage of the probe.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct StageMark {
+    /// Stage number (0 is the start projection).
+    pub stage: usize,
+    /// Moves of the stage's set (one per `±` pair).
+    pub elements: usize,
+    /// Seconds from the start of the probe to the end of the stage.
     pub seconds: f64,
-    /// True for a level that was built; false for an extrapolated one.
+}
+
+/// A figure with its plausible range.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+pub struct Range {
+    /// The estimate.
+    pub value: f64,
+    /// Its low end.
+    pub low: f64,
+    /// Its high end.
+    pub high: f64,
+}
+
+impl Range {
+    fn exact(value: f64) -> Self {
+        Self {
+            value,
+            low: value,
+            high: value,
+        }
+    }
+}
+
+/// The estimated cost of one build.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct BuildEstimate {
+    /// The norm limit of the set estimated (`None`: the complete set).
+    pub norm_limit: Option<u64>,
+    /// Whether the probe finished the build (the figures are then measured).
     pub measured: bool,
+    /// Moves of the set.
+    pub elements: Range,
+    /// Seconds of a build from scratch.
+    pub seconds: Range,
+    /// Stages of the build.
+    pub stages: usize,
+    /// The stages the probe finished.
+    pub probe: Vec<StageMark>,
 }
 
-/// The measured levels of `levels` followed by levels up to `up_to` (the next ones, at
-/// doubling distances, and `up_to`) extrapolated from them (only the measured ones when fewer than two levels carry distinct counts). A level
-/// that a limit stopped is extrapolated, and at least the time it ran.
-pub fn project(levels: &[Level], up_to: u64) -> Vec<Projection> {
-    let mut out: Vec<Projection> = levels
+/// Estimates the build of `model`'s Graver basis (up to `up_to`, else complete) by running it
+/// under `control` (whose time limit is the probe); `None` when the probe finished too few
+/// growing stages to extrapolate from.
+pub fn estimate(
+    model: &Model,
+    analysis: &MatrixAnalysis,
+    up_to: Option<u64>,
+    control: &Control<'_>,
+) -> Result<Option<BuildEstimate>> {
+    let spec = BuildSpec {
+        norm_limit: up_to.map_or(NormLimit::Auto, NormLimit::AtMost),
+        ..BuildSpec::default()
+    };
+    let resolved = spec.resolve(model, analysis)?;
+    let start_dimension = model.variables() - analysis.rank;
+    let started = Instant::now();
+    let marks = Mutex::new(Vec::new());
+    let record = |state: &Checkpoint| {
+        if state.within.is_none() {
+            let mark = StageMark {
+                stage: state.lifted.len().saturating_sub(start_dimension),
+                elements: state.elements.len(),
+                seconds: started.elapsed().as_secs_f64(),
+            };
+            marks.lock().map(|mut m| m.push(mark)).ok();
+        }
+    };
+    let probe = control.on_save(&record, std::time::Duration::MAX);
+    let outcome = build(&model.matrix, analysis, &resolved, &probe, None)?;
+    let elapsed = started.elapsed().as_secs_f64();
+    let probe_marks = marks.into_inner().unwrap_or_default();
+    let stages = analysis.rank + 1;
+    let norm_limit = up_to.filter(|&n| n < resolved.proven_bound);
+    Ok(match outcome {
+        BuildOutcome::Built(built) => Some(BuildEstimate {
+            norm_limit,
+            measured: true,
+            elements: Range::exact(built.set.elements.len() as f64),
+            seconds: Range::exact(elapsed),
+            stages,
+            probe: probe_marks,
+        }),
+        BuildOutcome::Stopped(_) => {
+            extrapolate(&probe_marks, stages - 1, elapsed).map(|(elements, seconds)| {
+                BuildEstimate {
+                    norm_limit,
+                    measured: false,
+                    elements,
+                    seconds,
+                    stages,
+                    probe: probe_marks,
+                }
+            })
+        }
+    })
+}
+
+/// The size and time of the stage `last` extrapolated from the finished stages `marks` (in
+/// stage order) of a probe that ran `ran` seconds; `None` without a growing stage.
+pub fn extrapolate(marks: &[StageMark], last: usize, ran: f64) -> Option<(Range, Range)> {
+    let end = marks.last()?;
+    let steps: Vec<(&StageMark, &StageMark)> = marks
+        .windows(2)
+        .map(|w| (&w[0], &w[1]))
+        .filter(|(a, b)| b.stage == a.stage + 1 && a.elements > 0)
+        .collect();
+    let growths: Vec<f64> = steps
         .iter()
-        .filter_map(|l| match l.end {
-            LevelEnd::Built { elements } => Some(Projection {
-                limit: l.limit,
-                elements: elements as f64,
-                seconds: l.elapsed.as_secs_f64(),
-                measured: true,
-            }),
-            LevelEnd::Stopped(_) => None,
+        .map(|(a, b)| b.elements as f64 / a.elements as f64 - 1.0)
+        .filter(|&g| g >= FLAT)
+        .collect();
+    let &growth = growths.last()?;
+    let decays: Vec<f64> = growths
+        .windows(2)
+        .map(|w| w[1] / w[0])
+        .rev()
+        .take(RECENT)
+        .collect();
+    let (decay, decay_low, decay_high) = spread(&decays, 0.7, 0.2, 1.0);
+    let powers: Vec<f64> = steps
+        .windows(2)
+        .filter_map(|w| {
+            let ((a, b), (_, c)) = (w[0], w[1]);
+            let (before, after) = (b.seconds - a.seconds, c.seconds - b.seconds);
+            let size = c.elements as f64 / b.elements as f64;
+            (before >= NOISE && after >= NOISE && size > 1.0 + FLAT)
+                .then(|| (after / before).ln() / size.ln())
         })
+        .rev()
+        .take(RECENT)
         .collect();
-    let Some((anchor, growth)) = element_growth(&out) else {
-        return out;
-    };
-    let pace = time_growth(&out).map_or(growth, |t| t.max(growth));
-    let Some(&last) = out.last() else {
-        return out;
-    };
-    let stopped: Vec<(u64, f64)> = levels
-        .iter()
-        .filter(|l| matches!(l.end, LevelEnd::Stopped(_)))
-        .map(|l| (l.limit, l.elapsed.as_secs_f64()))
-        .collect();
-    let ahead = (0..)
-        .map(|k| last.limit.saturating_add(1u64 << k))
-        .take_while(|&l| l < up_to)
-        .take(MAX_AHEAD)
-        .chain((last.limit < up_to).then_some(up_to));
-    for limit in ahead {
-        let steps = (limit - last.limit) as f64;
-        let ran = stopped
-            .iter()
-            .find(|(l, _)| *l == limit)
-            .map_or(0.0, |(_, s)| *s);
-        let seconds = (last.seconds.max(NOISE) * pace.powf(steps)).max(ran);
-        if seconds > HORIZON {
-            break;
+    let (power, power_low, power_high) = spread(&powers, DEFAULT_POWER, 1.0, 4.0);
+    let duration = steps
+        .last()
+        .map_or(end.seconds, |(a, b)| (b.seconds - a.seconds).max(NOISE));
+    let remaining = last.saturating_sub(end.stage);
+    let project = |decay: f64, power: f64| {
+        let (mut size, mut growth, mut stage_time, mut total) =
+            (end.elements as f64, growth, duration, end.seconds);
+        for _ in 0..remaining {
+            growth *= decay;
+            stage_time *= (1.0 + growth).powf(power);
+            size *= 1.0 + growth;
+            total += stage_time;
         }
-        out.push(Projection {
-            limit,
-            elements: anchor.elements * growth.powf((limit - anchor.limit) as f64),
-            seconds,
-            measured: false,
-        });
-    }
-    out
+        (size, total.max(ran))
+    };
+    let (elements, seconds) = project(decay, power);
+    let (low, fast) = project(decay_low, power_low);
+    let (high, slow) = project(decay_high, power_high);
+    Some((
+        Range {
+            value: elements,
+            low,
+            high,
+        },
+        Range {
+            value: seconds,
+            low: fast,
+            high: slow,
+        },
+    ))
 }
 
-/// The first level of the last distinct nonzero element count, and the per-level factor
-/// between the last two distinct counts (counts are extrapolated from that level, so a count
-/// that repeats every other level is not mistaken for a slowdown).
-fn element_growth(measured: &[Projection]) -> Option<(Projection, f64)> {
-    let mut distinct: Vec<&Projection> = Vec::new();
-    for p in measured.iter().filter(|p| p.elements > 0.0) {
-        if distinct.last().is_none_or(|d| d.elements != p.elements) {
-            distinct.push(p);
-        }
+/// The geometric mean of `values` (else `default`) and a range around it: the smallest and
+/// largest value, widened by 15% each way, all within `[floor, ceiling]`.
+fn spread(values: &[f64], default: f64, floor: f64, ceiling: f64) -> (f64, f64, f64) {
+    let clamp = |x: f64| x.clamp(floor, ceiling);
+    if values.is_empty() {
+        return (default, clamp(default * 0.7), clamp(default * 1.3));
     }
-    let [.., a, b] = distinct.as_slice() else {
-        return None;
-    };
-    let factor = (b.elements / a.elements).powf(1.0 / (b.limit - a.limit) as f64);
-    Some((**b, factor))
-}
-
-/// The per-level factor between the last two measured times above the noise.
-fn time_growth(measured: &[Projection]) -> Option<f64> {
-    let timed: Vec<&Projection> = measured.iter().filter(|p| p.seconds >= NOISE).collect();
-    let [.., a, b] = timed.as_slice() else {
-        return None;
-    };
-    Some((b.seconds / a.seconds).powf(1.0 / (b.limit - a.limit) as f64))
+    let mean = (values.iter().map(|v| v.ln()).sum::<f64>() / values.len() as f64).exp();
+    let low = values.iter().copied().fold(mean, f64::min) * 0.85;
+    let high = values.iter().copied().fold(mean, f64::max) * 1.15;
+    (clamp(mean), clamp(low), clamp(high))
 }
 
 #[cfg(test)]
 mod tests {
-    use std::time::Duration;
-
     use super::*;
-    use crate::completion::StopReason;
 
-    fn built(limit: u64, elements: usize, seconds: f64) -> Level {
-        Level {
-            limit,
-            end: LevelEnd::Built { elements },
-            elapsed: Duration::from_secs_f64(seconds),
-        }
+    fn marks(sizes: &[(usize, f64)], first: usize) -> Vec<StageMark> {
+        sizes
+            .iter()
+            .enumerate()
+            .map(|(i, &(elements, seconds))| StageMark {
+                stage: first + i,
+                elements,
+                seconds,
+            })
+            .collect()
     }
 
     #[test]
-    fn counts_that_repeat_every_other_level_give_the_factor_per_level() {
-        // Counts 0, 0, 100, 100, 2500, 2500 at norms 2..7: a factor 25 over two levels, 5 per
-        // level, from norm 6 on; times 0.2 then 1.0 then 5.0 s: 5 per level (by hand).
-        let levels = [
-            built(2, 0, 0.001),
-            built(3, 0, 0.001),
-            built(4, 100, 0.1),
-            built(5, 100, 0.2),
-            built(6, 2500, 1.0),
-            built(7, 2500, 5.0),
-            Level {
-                limit: 8,
-                end: LevelEnd::Stopped(StopReason::TimeLimit),
-                elapsed: Duration::from_secs(40),
-            },
-        ];
-        let p = project(&levels, 9);
-        assert_eq!(p.len(), 8);
-        assert!(p[..6].iter().all(|p| p.measured));
-        // Norm 8: 2500 * 5^2 elements; 5 * 5 = 25 s, but the stopped level already ran 40 s.
-        assert!((p[6].elements - 62_500.0).abs() < 1e-6);
-        assert!((p[6].seconds - 40.0).abs() < 1e-9);
-        // Norm 9: 2500 * 5^3 elements, 5 * 5^2 s.
-        assert!((p[7].elements - 312_500.0).abs() < 1e-6);
-        assert!((p[7].seconds - 125.0).abs() < 1e-6);
+    fn growth_shrinking_by_half_each_stage_is_carried_on() {
+        // Sizes 100, 300 (growth 2), 600 (growth 1): the growth halves; two more stages give
+        // 600 * 1.5 * 1.25 = 1125 (by hand). Times double-quadratic: 1, 1 + 4 s.
+        let probe = marks(&[(100, 1.0), (300, 2.0), (600, 6.0)], 5);
+        let (elements, seconds) = extrapolate(&probe, 9, 6.5).unwrap();
+        assert!((elements.value - 1125.0).abs() < 1e-6, "{elements:?}");
+        assert!(elements.low <= elements.value && elements.value <= elements.high);
+        assert!(seconds.value > 6.5 && seconds.low <= seconds.value);
+        assert!(seconds.value <= seconds.high);
     }
 
     #[test]
-    fn one_count_gives_nothing_to_extrapolate() {
-        let p = project(&[built(2, 0, 0.0), built(3, 7, 0.02)], 10);
-        assert_eq!(p.len(), 2);
+    fn a_probe_without_growth_gives_nothing() {
+        let probe = marks(&[(10, 0.1), (10, 0.2), (10, 0.3)], 0);
+        assert_eq!(extrapolate(&probe, 9, 1.0), None);
+        assert_eq!(extrapolate(&[], 9, 1.0), None);
+    }
+
+    #[test]
+    fn the_complete_bipartite_graph_k66_within_3x() {
+        // Stage-end sizes of the K_{6,6} incidence matrix's build, measured by this project
+        // (stages 6..9, seconds from the start); the Graver basis has 113,865 moves, the
+        // circuits of K_{6,6}: sum_k C(6,k)^2 k! (k-1)! / 2 (standard cycle count).
+        let probe = marks(
+            &[
+                (75, 0.007),
+                (325, 0.008),
+                (1525, 0.018),
+                (6795, 0.122),
+                (23935, 2.123),
+            ],
+            5,
+        );
+        let (elements, _) = extrapolate(&probe, 11, 5.0).unwrap();
+        let truth: f64 = (2..=6u64)
+            .map(|k| {
+                let c = (1..=k).fold(1.0, |acc, i| acc * (7 - i) as f64 / i as f64);
+                let f = |m: u64| (1..=m).product::<u64>() as f64;
+                c * c * f(k) * f(k - 1) / 2.0
+            })
+            .sum();
+        assert_eq!(truth, 113_865.0);
+        assert!(
+            elements.value < 3.0 * truth && elements.value > truth / 3.0,
+            "{elements:?}"
+        );
     }
 }

@@ -14,7 +14,7 @@ pub use build::{
     build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
-pub use estimate::{project, Projection};
+pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
 pub use library::{Obtained, SavedState, SetLibrary, CHECKPOINT_EVERY};
 pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
