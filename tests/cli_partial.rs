@@ -40,8 +40,22 @@ fn a_budget_that_suffices_stores_the_complete_set_of_a_plain_build() {
     // K_{3,3} has 9 cycles of length 4 and 6 of length 6 (counting formula: C(3,2)^2 and
     // 3! 2! / 2), its Graver basis (Sturmfels 1996, chapter 5).
     assert_eq!(row["elements"], 15);
-    let last = row["levels"].as_array().unwrap().last().unwrap().clone();
+    let levels = row["levels"].as_array().unwrap();
+    let last = levels.last().unwrap().clone();
     assert_eq!(last["elements"], 15);
+    // Transport tables have only even norms, so the limits are even, up to the circuit
+    // bound r + 1 = 6 of a unimodular matrix.
+    assert!(
+        levels
+            .iter()
+            .all(|l| l["norm_limit"].as_u64().unwrap() % 2 == 0),
+        "{row}"
+    );
+    let status = row["status"].as_str().unwrap();
+    assert!(
+        status.ends_with("complete (norm limit 6 reached the proven bound)"),
+        "{status}"
+    );
     let plain = tempfile::tempdir().unwrap();
     let built = json(
         plain.path(),
@@ -100,6 +114,45 @@ fn a_capped_budget_keeps_a_partial_set_whose_plan_the_bound_proves() {
     assert_eq!(solved["bound"]["multipliers"].as_array().unwrap().len(), 6);
     let human = expect(cache.path(), &["solve", &model, "--engine", "moves"], 0);
     assert!(human.contains("dual bound  691, meets the cost"), "{human}");
+}
+
+/// Issue 21: the three-way 3x3x3 tables' proven bound is far above their moves; the budget
+/// stops at the first level that cut nothing and stores the set of a plain build, complete.
+#[test]
+fn a_budget_stops_at_the_first_level_that_cut_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let (p, q, r) = (3, 3, 3);
+    let var = |i: usize, j: usize, k: usize| (i * q + j) * r + k;
+    let mut rows = Vec::new();
+    let line = |cells: Vec<usize>| {
+        let mut row = vec![0; p * q * r];
+        cells.into_iter().for_each(|c| row[c] = 1);
+        row
+    };
+    for a in 0..3 {
+        for b in 0..3 {
+            rows.push(line((0..3).map(|c| var(a, b, c)).collect()));
+            rows.push(line((0..3).map(|c| var(a, c, b)).collect()));
+            rows.push(line((0..3).map(|c| var(c, a, b)).collect()));
+        }
+    }
+    let model = dir.path().join("tables.json");
+    let doc = serde_json::json!({"matrix": rows, "rhs": vec![0; rows.len()]});
+    std::fs::write(&model, doc.to_string()).unwrap();
+    let model = model.to_str().unwrap();
+    let budgeted = json(
+        dir.path(),
+        &["build", model, "--budget", "10m", "--json"],
+        0,
+    );
+    let row = &budgeted[0];
+    let status = row["status"].as_str().unwrap();
+    assert!(status.contains("complete (norm limit "), "{status}");
+    assert!(status.ends_with(" cut nothing)"), "{status}");
+    let plain = tempfile::tempdir().unwrap();
+    let built = json(plain.path(), &["build", model, "--json"], 0);
+    assert_eq!(built[0]["key"], row["key"], "the complete entry");
+    assert_eq!(built[0]["elements"], row["elements"]);
 }
 
 #[test]
