@@ -25,31 +25,9 @@ import time
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 sys.path.insert(0, os.path.join(ROOT, "benches"))
+from ranks import tables  # noqa: E402  (the three-way tables model)
+
 BINARY = os.path.join(ROOT, "target", "release", "kernstep")
-
-
-def tables(p, q, s):
-    """The three-way tables model (as benches/ranks.py): one row per line sum."""
-    def var(i, j, k):
-        return (i * q + j) * s + k
-    rows = []
-
-    def line(cells):
-        row = [0] * (p * q * s)
-        for c in cells:
-            row[c] = 1
-        rows.append(row)
-    for i in range(p):
-        for j in range(q):
-            line([var(i, j, k) for k in range(s)])
-    for i in range(p):
-        for k in range(s):
-            line([var(i, j, k) for j in range(q)])
-    for j in range(q):
-        for k in range(s):
-            line([var(i, j, k) for i in range(p)])
-    n = p * q * s
-    return {"matrix": rows, "rhs": [0] * len(rows), "lower": [0] * n}
 
 
 def complete_bipartite(p, q):
