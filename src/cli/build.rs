@@ -14,8 +14,8 @@ use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
-    build, cycles_entry, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
-    NormLimit, Obtained, SavedState,
+    build, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd, NormLimit,
+    Obtained, SavedState,
 };
 use serde::Serialize;
 
@@ -353,7 +353,8 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     row
 }
 
-/// The network of `model` when its set is to be the implicit one (see `--engine`).
+/// The network of `model` when its set is to be the implicit one (see `--engine`). A set
+/// written to a file (`--out`) is always enumerated: a file cannot hold the implicit set.
 fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Network>> {
     let default_request = args.kind == KindArg::Graver
         && args.signs.is_none()
@@ -361,7 +362,11 @@ fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Ne
         && args.bounds == BoxArg::None
         && args.method == MethodArg::Lift;
     match args.engine {
+        EngineArg::Cycles if args.out.is_some() => anyhow::bail!(
+            "--engine cycles stores the implicit entry in the cache, which --out cannot write; leave --engine out (or pass --engine moves) to write the enumerated cycles"
+        ),
         EngineArg::Moves => Ok(None),
+        EngineArg::Auto if args.out.is_some() => Ok(None),
         EngineArg::Auto if !default_request || !model.convex.is_empty() => Ok(None),
         EngineArg::Auto => Ok(Network::detect(&model.matrix).ok()),
         EngineArg::Cycles if !default_request => anyhow::bail!(
@@ -376,7 +381,7 @@ fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Ne
     }
 }
 
-/// Stores (or writes) the implicit entry of a network matrix.
+/// Stores the implicit entry of a network matrix.
 fn build_cycles(
     args: &BuildArgs,
     model: &Model,
@@ -385,15 +390,6 @@ fn build_cycles(
 ) -> anyhow::Result<String> {
     row.kind = Some(SetKind::Cycles);
     row.elements = Some(0);
-    if let Some(out) = &args.out {
-        let built = cycles_entry(&model.matrix, network);
-        row.key = Some(built.key.digest().to_hex());
-        write_set_file(out, &built)?;
-        return Ok(format!(
-            "written to {} (implicit: the network's cycles)",
-            out.display()
-        ));
-    }
     let library = args.cache.open()?;
     Ok(
         match library.obtain_cycles(&model.matrix, network, args.rebuild)? {
