@@ -190,3 +190,100 @@ fn too_many_threads_are_capped_with_one_warning_and_the_answers_stay() {
     };
     assert_eq!(stored(one_dir.path()), stored(many_dir.path()));
 }
+
+/// Writes a model of `matrix` with zero right-hand sides.
+fn matrix_model(dir: &Path, name: &str, matrix: &str, rows: usize) -> PathBuf {
+    let path = dir.join(name);
+    let rhs = vec!["0"; rows].join(",");
+    std::fs::write(&path, format!(r#"{{"matrix": {matrix}, "rhs": [{rhs}]}}"#)).unwrap();
+    path
+}
+
+/// Issue 21: an entry of 2^31 passed the reader and every build then failed on an overflow
+/// naming no file. The reader's limit is now 2^31 - 1, the completion's 32-bit entries: 2^31
+/// is refused at read, naming the file and field, by every verb.
+#[test]
+fn a_matrix_entry_of_two_to_the_31_is_refused_at_read() {
+    let dir = tempfile::tempdir().unwrap();
+    let cache = tempfile::tempdir().unwrap();
+    for entry in ["2147483648", "-2147483648"] {
+        let model = matrix_model(dir.path(), "big.json", &format!("[[1, {entry}]]"), 1);
+        let field = format!("big.json: matrix[0][1]: {entry} exceeds the limit of 2147483647");
+        let (stdout, _) = expect_both(cache.path(), &["build", path_str(&model)], 2);
+        assert!(stdout.contains(&field), "{stdout}");
+        let (_, stderr) = expect_both(cache.path(), &["solve", path_str(&model), "--build"], 2);
+        assert!(stderr.contains(&field), "{stderr}");
+    }
+    let mps = dir.path().join("big.mps");
+    std::fs::write(
+        &mps,
+        "NAME big\nROWS\n N obj\n E r\nCOLUMNS\n M1 'MARKER' 'INTORG'\n x obj 1 r 1\n y obj 1 r 2147483648\n M2 'MARKER' 'INTEND'\nRHS\n rhs r 1\nENDATA\n",
+    )
+    .unwrap();
+    let (_, stderr) = expect_both(cache.path(), &["solve", path_str(&mps), "--build"], 2);
+    assert!(
+        stderr.contains("big.mps: line 8") && stderr.contains("exceeds the limit of 2147483647"),
+        "{stderr}"
+    );
+}
+
+/// The largest accepted entry builds exactly: the kernel of [a 1] is spanned by (1, -a), so
+/// that and its negation are the whole Graver basis (elementary: every kernel vector is an
+/// integer multiple of it). A right-hand side at the value limit b = 2^62 then solves
+/// exactly: the plans x >= 0 of a x1 + x2 = b are (k, b - k a) for 0 <= k <= b div a, and the
+/// cost x2 is least at k = b div a (by hand).
+#[test]
+fn entries_at_the_limit_build_exactly_and_large_values_solve() {
+    let dir = tempfile::tempdir().unwrap();
+    let cache = tempfile::tempdir().unwrap();
+    let a: i64 = (1 << 31) - 1;
+    let b: i64 = 1 << 62;
+    let model = dir.path().join("edge.json");
+    std::fs::write(
+        &model,
+        format!(r#"{{"matrix": [[{a}, 1]], "rhs": [{b}], "cost": [0, 1], "lower": [0, 0]}}"#),
+    )
+    .unwrap();
+    let out = dir.path().join("set.json");
+    expect_both(
+        cache.path(),
+        &["build", path_str(&model), "--out", path_str(&out)],
+        0,
+    );
+    let file: serde_json::Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
+    let elements: Vec<Vec<i64>> = serde_json::from_value(file["elements"].clone()).unwrap();
+    assert!(
+        elements == [vec![1, -a]] || elements == [vec![-1, a]],
+        "{elements:?}"
+    );
+    let (stdout, _) = expect_both(
+        cache.path(),
+        &["solve", path_str(&model), "--build", "--json"],
+        0,
+    );
+    let doc: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let k = b / a;
+    assert_eq!(doc["x"], serde_json::json!([k, b - k * a]), "{doc}");
+}
+
+/// Entries within the limit whose products are not: the kernel of [a 1 0; 0 a 1] holds
+/// (1, -a, a^2), beyond 32 bits for a = 2^31 - 1. The build cannot hold the set and says so,
+/// naming the file and its matrix, in `build` and in `solve --build`.
+#[test]
+fn a_set_beyond_32_bits_fails_naming_the_file_and_matrix() {
+    let dir = tempfile::tempdir().unwrap();
+    let cache = tempfile::tempdir().unwrap();
+    let a = (1i64 << 31) - 1;
+    let model = matrix_model(
+        dir.path(),
+        "wide.json",
+        &format!("[[{a}, 1, 0], [0, {a}, 1]]"),
+        2,
+    );
+    let named = "wide.json: matrix: its test set needs entries beyond 2^31 - 1";
+    let (stdout, _) = expect_both(cache.path(), &["build", path_str(&model)], 2);
+    assert!(stdout.contains(named), "{stdout}");
+    let (_, stderr) = expect_both(cache.path(), &["solve", path_str(&model), "--build"], 2);
+    assert!(stderr.contains(named), "{stderr}");
+    assert!(entries(cache.path()).is_empty());
+}

@@ -20,7 +20,8 @@ use kernstep::testset::{
 use serde::Serialize;
 
 use super::common::{
-    model_paths, render_chain, signal_status, with_threads, write_atomically, CacheArgs, EngineArg,
+    model_paths, overflow_named, render_chain, signal_status, with_threads, write_atomically,
+    CacheArgs, EngineArg,
 };
 use super::limits::LimitArgs;
 use super::progress::{BuildProgress, ProgressArg};
@@ -347,7 +348,7 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     };
     match try_build(args, path, &mut row, share) {
         Ok(status) => row.status = status,
-        Err(e) => row.status = format!("failed: {}", render_chain(&e)),
+        Err(e) => row.status = format!("failed: {}", render_chain(&overflow_named(e, path))),
     }
     row.seconds = start.elapsed().as_secs_f64();
     row

@@ -250,11 +250,43 @@ impl SolverSet {
     }
 }
 
+/// `err`, with an integer overflow of a build turned into an input error naming the model file
+/// (`input`) and its matrix: the reader keeps each entry within the completion's 32-bit
+/// entries, but a test set's entries grow with the matrix's subdeterminants (the matrix
+/// `[a 1 0; 0 a 1]` has the move `(1, -a, a^2)`), which only the build finds out.
+pub fn overflow_named(err: anyhow::Error, input: &Path) -> anyhow::Error {
+    match err.downcast::<kernstep::Error>() {
+        Ok(kernstep::Error::Overflow(what)) => kernstep::Error::Input {
+            file: input.display().to_string(),
+            field: "matrix".to_string(),
+            message: format!(
+                "its test set needs entries beyond 2^31 - 1, more than a build holds (integer overflow in {what}): the matrix's subdeterminants are too large"
+            ),
+        }
+        .into(),
+        Ok(other) => other.into(),
+        Err(err) => err,
+    }
+}
+
 /// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
 /// builds it within `limits` when `build_on_miss` (a stopped build is a
 /// [`super::limits::BuildStopped`] error), else says which `build` to run. For a network matrix (as `engine`
 /// decides) it is the implicit set of the network's cycles, with no cache.
 pub fn graver_for(
+    model: &Model,
+    input: &Path,
+    cache: &CacheArgs,
+    build_on_miss: bool,
+    engine: EngineArg,
+    limits: &LimitArgs,
+) -> anyhow::Result<SolverSet> {
+    find_or_build(model, input, cache, build_on_miss, engine, limits)
+        .map_err(|e| overflow_named(e, input))
+}
+
+/// [`graver_for`] before an overflow is named.
+fn find_or_build(
     model: &Model,
     input: &Path,
     cache: &CacheArgs,

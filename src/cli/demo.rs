@@ -18,8 +18,8 @@ use serde::Serialize;
 
 use super::batch::{answer, solve_days, steps, DayStatus, Tally};
 use super::common::{
-    build_command, build_uncached, graver_for, interrupted, render_chain, write_atomically,
-    CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
+    build_command, build_uncached, graver_for, interrupted, overflow_named, render_chain,
+    write_atomically, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
 };
 use super::limits::{BuildStopped, LimitArgs};
 use super::plot::write_step_plot;
@@ -123,6 +123,7 @@ fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::R
             let spec = BuildSpec::default().resolve(model, &analysis)?;
             let command = build_command(input, cache, EngineArg::Auto);
             build_uncached(model, &analysis, &spec, limits, command)
+                .map_err(|e| overflow_named(e, input))
         }
     }
 }
