@@ -7,7 +7,8 @@ circuits (Sturmfels 1996, Groebner Bases and Convex Polytopes, Prop. 8.11): the 
 cycles of the underlying undirected graph, +1 on arcs traversed forward and -1 on arcs traversed
 backward, one vector per cycle up to sign.
 
-For seeded random connected digraphs this writes, per graph: the arc list, the incidence
+For seeded random connected digraphs, and for the Petersen graph (networkx
+`petersen_graph`, each edge given a seeded random direction), this writes, per graph: the arc list, the incidence
 matrix and the cycle vectors (first nonzero entry +1, sorted lexicographically), with the
 cycles enumerated by networkx `simple_cycles` on the undirected graph. The digraphs have no
 parallel or antiparallel arcs, so the undirected graph is simple. As an independent check the
@@ -45,6 +46,10 @@ CASES = [
 ]
 
 
+# The Petersen graph: seed of its arc directions.
+PETERSEN_SEED = 113
+
+
 def random_digraph(rng, nodes, arcs):
     """A connected digraph: a random spanning tree plus random extra arcs, random directions."""
     order = list(range(nodes))
@@ -57,6 +62,13 @@ def random_digraph(rng, nodes, arcs):
     ]
     pairs += rng.sample(others, arcs - len(pairs))
     arc_list = [(u, v) if rng.random() < 0.5 else (v, u) for u, v in pairs]
+    rng.shuffle(arc_list)
+    return arc_list
+
+
+def petersen_digraph(rng):
+    """The Petersen graph's edges, each directed at random, in a random order."""
+    arc_list = [(u, v) if rng.random() < 0.5 else (v, u) for u, v in nx.petersen_graph().edges()]
     rng.shuffle(arc_list)
     return arc_list
 
@@ -123,12 +135,16 @@ def to_json(fixture):
 
 def main():
     OUT.mkdir(parents=True, exist_ok=True)
-    for seed, nodes, arcs in CASES:
-        arc_list = random_digraph(random.Random(seed), nodes, arcs)
+    graphs = [
+        (f"graph_n{nodes}_m{arcs}_s{seed}", seed, nodes, random_digraph(random.Random(seed), nodes, arcs))
+        for seed, nodes, arcs in CASES
+    ]
+    petersen = petersen_digraph(random.Random(PETERSEN_SEED))
+    graphs.append((f"petersen_s{PETERSEN_SEED}", PETERSEN_SEED, 10, petersen))
+    for name, seed, nodes, arc_list in graphs:
         a = incidence(nodes, arc_list)
         vectors = cycle_vectors(nodes, arc_list)
         check(nodes, arc_list, a, vectors)
-        name = f"graph_n{nodes}_m{arcs}_s{seed}"
         fixture = {
             "name": name,
             "generator": f"networkx {nx.__version__} simple_cycles",

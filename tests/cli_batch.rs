@@ -462,8 +462,9 @@ fn without_a_cached_set_batch_says_what_to_build_and_that_build_serves_it() {
     let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
     let args = ["batch", s, d, "--engine", "moves"];
     let (_, stderr) = expect(cache.path(), &args, 2);
+    // The command names the engine too: without it `build` would store the implicit entry.
     let command = format!(
-        "kernstep build {} --cache-dir {}",
+        "kernstep build {} --engine moves --cache-dir {}",
         scenario.display(),
         cache.path().display()
     );

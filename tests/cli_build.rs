@@ -535,3 +535,148 @@ fn a_network_gets_an_implicit_entry_of_its_own_kind() {
         "{status}"
     );
 }
+
+/// Writes the model of a directed graph on `nodes` nodes: its node-arc incidence matrix (+1 at
+/// the tail, -1 at the head), zero right-hand sides, no bounds.
+fn digraph_model(dir: &Path, name: &str, nodes: usize, arcs: &[(usize, usize)]) -> PathBuf {
+    let mut rows = vec![vec![0i64; arcs.len()]; nodes];
+    for (j, &(tail, head)) in arcs.iter().enumerate() {
+        rows[tail][j] = 1;
+        rows[head][j] = -1;
+    }
+    let doc = serde_json::json!({ "matrix": rows, "rhs": vec![0; nodes] });
+    let path = dir.join(format!("{name}.json"));
+    std::fs::write(&path, doc.to_string()).unwrap();
+    path
+}
+
+/// `build MODEL --out FILE` (default engine): the written file's elements, after checking
+/// that the file is a complete Graver set.
+fn written_set(model: &Path) -> Vec<Vec<i64>> {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let out_dir = tempfile::tempdir().unwrap();
+    let out = out_dir.path().join("set.json");
+    let rows = json(
+        cache_dir.path(),
+        &["build", path_str(model), "--out", path_str(&out), "--json"],
+        0,
+    );
+    assert_eq!(rows[0]["kind"], "Graver", "{rows}");
+    let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
+    assert_eq!(file["key"]["kind"], "Graver");
+    assert_eq!(file["metadata"]["completeness"], "Complete");
+    assert_eq!(
+        rows[0]["elements"],
+        file["elements"].as_array().unwrap().len()
+    );
+    serde_json::from_value(file["elements"].clone()).unwrap()
+}
+
+fn binomial(n: u64, k: u64) -> u64 {
+    (0..k).fold(1, |acc, i| acc * (n - i) / (i + 1))
+}
+
+fn factorial(n: u64) -> u64 {
+    (1..=n).product()
+}
+
+/// Issue 21: `build --out` on a network matrix writes its enumerated Graver basis, the signed
+/// circuits (one per cycle up to sign), never the implicit entry's empty list. The cycles of
+/// K_{p,q}: a cycle of length 2k picks k nodes on each side, and the k! (k-1)! / 2 ways to
+/// alternate them around a cycle give sum_{k>=2} C(p,k) C(q,k) k! (k-1)! / 2 (a standard
+/// count; OEIS A070968 for K_{n,n}: 15, 204, ...).
+#[test]
+fn out_on_a_network_writes_the_cycles_of_complete_bipartite_graphs() {
+    let models = tempfile::tempdir().unwrap();
+    for (p, q) in [(3, 3), (3, 4), (4, 4), (2, 5)] {
+        let arcs: Vec<(usize, usize)> = (0..p)
+            .flat_map(|i| (0..q).map(move |k| (i, p + k)))
+            .collect();
+        let model = digraph_model(models.path(), &format!("k{p}{q}"), p + q, &arcs);
+        let circuits: u64 = (2..=p.min(q) as u64)
+            .map(|k| {
+                binomial(p as u64, k) * binomial(q as u64, k) * factorial(k) * factorial(k - 1) / 2
+            })
+            .sum();
+        let set = written_set(&model);
+        assert_eq!(set.len() as u64, circuits, "K_{{{p},{q}}}");
+        // Each element is a signed cycle: entries 0 and ±1, in the kernel of the incidence
+        // matrix (every node balanced).
+        for g in &set {
+            assert!(g.iter().all(|x| x.abs() <= 1), "{g:?}");
+            let mut balance = vec![0i64; p + q];
+            for (j, &(tail, head)) in arcs.iter().enumerate() {
+                balance[tail] += g[j];
+                balance[head] -= g[j];
+            }
+            assert!(balance.iter().all(|&b| b == 0), "{g:?}");
+        }
+    }
+}
+
+/// The Petersen graph with an arbitrary orientation: 57 cycles, enumerated by networkx
+/// `simple_cycles` (and recounted by brute force) in scripts/graph_cycles_reference.py.
+#[test]
+fn out_on_the_petersen_graph_writes_the_networkx_cycles() {
+    #[derive(serde::Deserialize)]
+    struct Fixture {
+        generator: String,
+        nodes: usize,
+        arcs: Vec<(usize, usize)>,
+        cycles: Vec<Vec<i64>>,
+    }
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/cycles/petersen_s113.json");
+    let fixture: Fixture = serde_json::from_slice(&std::fs::read(path).unwrap()).unwrap();
+    assert!(fixture.generator.starts_with("networkx "));
+    let models = tempfile::tempdir().unwrap();
+    let model = digraph_model(models.path(), "petersen", fixture.nodes, &fixture.arcs);
+    let mut set: Vec<Vec<i64>> = written_set(&model)
+        .into_iter()
+        .map(|g| {
+            // The fixture's orientation: first nonzero entry +1.
+            let first = g.iter().copied().find(|&x| x != 0).unwrap();
+            g.iter().map(|&x| x * first.signum()).collect()
+        })
+        .collect();
+    set.sort();
+    assert_eq!(set, fixture.cycles);
+}
+
+/// `--engine cycles --out` cannot write the implicit entry: refused, nothing written; and
+/// `cache export` of a stored implicit entry refuses rather than print an empty set.
+#[test]
+fn implicit_network_entries_are_never_written_as_empty_sets() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let out_dir = tempfile::tempdir().unwrap();
+    let out = out_dir.path().join("set.json");
+    let lanes = examples().join("scenarios/brackle_lanes.toml");
+    let refused = json(
+        cache_dir.path(),
+        &[
+            "build",
+            path_str(&lanes),
+            "--engine",
+            "cycles",
+            "--out",
+            path_str(&out),
+            "--json",
+        ],
+        2,
+    );
+    let status = refused[0]["status"].as_str().unwrap();
+    assert!(status.contains("--engine moves"), "{status}");
+    assert!(!out.exists());
+
+    let rows = json(cache_dir.path(), &["build", path_str(&lanes), "--json"], 0);
+    assert_eq!(rows[0]["kind"], "Cycles");
+    let key = rows[0]["key"].as_str().unwrap();
+    let export = kernstep(cache_dir.path(), &["cache", "export", key]);
+    assert_eq!(export.status.code(), Some(2));
+    assert!(export.stdout.is_empty());
+    let stderr = text(&export.stderr);
+    assert!(
+        stderr.contains("implicit set of a network matrix") && stderr.contains("--engine moves"),
+        "{stderr}"
+    );
+}

@@ -3,7 +3,8 @@
 //! The incidence matrix of a directed graph is totally unimodular, so its Graver basis is the
 //! set of its circuits (Sturmfels 1996, Gröbner Bases and Convex Polytopes, Prop. 8.11): one
 //! vector per simple cycle of the underlying undirected graph, `+1` on arcs traversed forward
-//! and `-1` on arcs traversed backward. The cycles of seeded random digraphs are enumerated by
+//! and `-1` on arcs traversed backward. The cycles of seeded random digraphs (and of the
+//! Petersen graph with seeded random arc directions) are enumerated by
 //! networkx `simple_cycles` in `scripts/graph_cycles_reference.py`, which writes
 //! `tests/fixtures/cycles/`.
 
@@ -16,8 +17,8 @@ use kernstep::completion::{Method, MoveSet};
 use kernstep::IntMatrix;
 use serde::Deserialize;
 
-/// Number of fixture files the generator writes.
-const FIXTURES: usize = 12;
+/// Number of fixture files the generator writes (12 random digraphs and the Petersen graph).
+const FIXTURES: usize = 13;
 
 /// Pottier's procedure runs on the fixtures with fewer cycles than this (test time).
 const POTTIER_CYCLE_LIMIT: usize = 300;

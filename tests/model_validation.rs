@@ -64,8 +64,8 @@ fn every_rejection_names_file_and_field() {
             "m.json: matrix[0][0]: 2.0 is not an integer literal",
         ),
         (
-            r#"{"matrix": [[2147483649]], "rhs": [0]}"#.into(),
-            "m.json: matrix[0][0]: 2147483649 exceeds the limit of 2147483648",
+            r#"{"matrix": [[1, 2147483648]], "rhs": [0]}"#.into(),
+            "m.json: matrix[0][1]: 2147483648 exceeds the limit of 2147483647",
         ),
         (
             r#"{"matrix": [[1]], "rhs": [18446744073709551615]}"#.into(),

@@ -1,6 +1,6 @@
 //! Every parser on random and damaged input: model JSON and TOML, variants (JSON Lines), MPS
 //! and cache files never panic and always answer with a typed error that names the file; and
-//! values near the documented limits (`|a| <= 2^31` in the matrix, `2^62` elsewhere) give a
+//! values near the documented limits (`|a| <= 2^31 - 1` in the matrix, `2^62` elsewhere) give a
 //! correct answer or an overflow error, never a panic or a wrong answer.
 
 use std::path::Path;
@@ -422,10 +422,10 @@ fn gcd(a: i128, b: i128) -> i128 {
     }
 }
 
-/// Entries within 40 of `±2^31`.
+/// Entries within 40 of `±(2^31 - 1)`, the largest accepted.
 fn near_matrix_limit() -> impl Strategy<Value = i64> {
     (0i64..40, any::<bool>()).prop_map(|(d, neg)| {
-        let v = (1i64 << 31) - d;
+        let v = (1i64 << 31) - 1 - d;
         if neg {
             -v
         } else {
@@ -543,10 +543,11 @@ fn graver_with_an_entry_at_the_limit_is_exact_or_stopped() {
 fn model_limits_are_inclusive() {
     let at =
         |a: i128, b: i128| format!(r#"{{"matrix": [[{a}, 1]], "rhs": [{b}], "lower": [0, 0]}}"#);
-    let ok = Model::from_str(&at(1 << 31, 1 << 62), ModelKind::Json, "l.json");
+    let ok = Model::from_str(&at((1 << 31) - 1, 1 << 62), ModelKind::Json, "l.json");
     assert!(ok.is_ok());
     for (a, b, field) in [
-        ((1 << 31) + 1, 0, "matrix[0][0]"),
+        (1 << 31, 0, "matrix[0][0]"),
+        (-(1 << 31), 0, "matrix[0][0]"),
         (1, (1 << 62) + 1, "rhs[0]"),
     ] {
         let err = Model::from_str(&at(a, b), ModelKind::Json, "l.json").unwrap_err();

@@ -267,7 +267,7 @@ fn errors_name_the_file_and_field() {
         ),
         (
             TRUCKLOADS.replace("truck_capacity = 3", "truck_capacity = 0"),
-            "test.toml: truck_capacity: 0 is not in 1 ..= 2^31",
+            "test.toml: truck_capacity: 0 is not in 1 ..= 2^31 - 1",
         ),
         (
             PRODUCT_LINES.replace("volume = 1, ", ""),

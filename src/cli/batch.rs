@@ -24,9 +24,11 @@ use serde::ser::{SerializeMap, Serializer};
 use serde::{Deserialize, Serialize};
 
 use super::common::{
-    graver_for, interrupted, with_threads, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
+    capped_threads, graver_for, interrupted, with_threads, CacheArgs, EngineArg, SetSource,
+    SolverSet, CAUTION,
 };
 use super::days::read_days;
+use super::limits::LimitArgs;
 use super::table::write_pairs;
 
 /// Arguments of `batch`.
@@ -46,6 +48,8 @@ pub struct BatchArgs {
     /// Build the test set when the cache has none, instead of stopping.
     #[arg(long)]
     pub build: bool,
+    #[command(flatten)]
+    pub limits: LimitArgs,
     /// Which test set serves the days.
     #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
     pub engine: EngineArg,
@@ -78,7 +82,14 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();
-    let set = graver_for(model, &args.input, &args.cache, args.build, args.engine)?;
+    let set = graver_for(
+        model,
+        &args.input,
+        &args.cache,
+        args.build,
+        args.engine,
+        &args.limits,
+    )?;
     let started = Instant::now();
     let prepared = set.prepare(&model.matrix)?;
     #[cfg(feature = "mpi")]
@@ -543,7 +554,7 @@ impl<'a> Summary<'a> {
         Summary {
             tally,
             wall_seconds: wall.as_secs_f64(),
-            threads,
+            threads: threads.map(capped_threads),
             moves: set.set.elements.len(),
             set: match &set.source {
                 SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),

@@ -6,7 +6,6 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::{Duration, Instant};
 
-use anyhow::Context;
 use cache::SetKind;
 use clap::{Args, ValueEnum};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
@@ -15,15 +14,16 @@ use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
-    build, cycles_entry, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
-    NormLimit, Obtained, SavedState,
+    build, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd, NormLimit,
+    Obtained, SavedState,
 };
 use serde::Serialize;
 
 use super::common::{
-    interrupted, model_paths, render_chain, signal_status, with_threads, write_atomically,
+    model_paths, overflow_named, render_chain, signal_status, with_threads, write_atomically,
     CacheArgs, EngineArg,
 };
+use super::limits::LimitArgs;
 use super::progress::{BuildProgress, ProgressArg};
 use super::setfile::set_document;
 use super::table::write_table;
@@ -55,24 +55,14 @@ pub struct BuildArgs {
     /// Worker threads (default: one per core).
     #[arg(long, value_name = "N")]
     pub threads: Option<usize>,
-    /// Stop a build once its working set exceeds N elements (default: as many as fit in the
-    /// memory available when the build starts, so that a build too large for this machine
-    /// stops with a status and a checkpoint instead of being killed).
-    #[arg(long, value_name = "N")]
-    pub max_elements: Option<usize>,
-    /// Stop a build after S seconds.
-    #[arg(long, value_name = "S")]
-    pub time_limit: Option<f64>,
     /// Overnight budget (`90s`, `40m`, `8h`): deepen the norm limit one level at a time and
     /// keep the largest level that finishes in the budget (and under the memory cap), stored
     /// as norm-truncated; the proven bound reached gives the complete set. With
     /// `--norm-limit N` the deepening stops at N.
     #[arg(long, value_name = "DURATION", value_parser = parse_duration)]
     pub budget: Option<Duration>,
-    /// Memory cap for the working set (`512M`, `6G`): stop a build, or a level of a budgeted
-    /// build, before its working set would need more (default: the memory available).
-    #[arg(long, value_name = "SIZE", value_parser = parse_size)]
-    pub max_memory: Option<u64>,
+    #[command(flatten)]
+    pub limits: LimitArgs,
     /// Save the build's state at least this often (`60s`, `5m`), inside stages too, so that an
     /// interrupted build (Ctrl-C, SIGTERM, a limit, a crash) loses at most this much work;
     /// running the same command again resumes.
@@ -147,21 +137,6 @@ pub(super) fn parse_duration(text: &str) -> Result<Duration, String> {
         .and_then(|n| Duration::try_from_secs_f64(n * scale).ok())
         .filter(|d| !d.is_zero())
         .ok_or_else(|| format!("expected a positive duration such as 90s, 40m or 8h, got {text:?}"))
-}
-
-/// `512M`, `6G`, `800K` or a number of bytes.
-fn parse_size(text: &str) -> Result<u64, String> {
-    let upper = text.trim().to_ascii_uppercase();
-    let (number, shift) = match "KMGT".find(upper.chars().last().unwrap_or(' ')) {
-        Some(power) => (&upper[..upper.len() - 1], 10 * (power + 1)),
-        None => (upper.as_str(), 0),
-    };
-    number
-        .parse::<u64>()
-        .ok()
-        .and_then(|n| n.checked_mul(1u64 << shift))
-        .filter(|&n| n > 0)
-        .ok_or_else(|| format!("expected a size such as 512M or 6G, got {text:?}"))
 }
 
 fn parse_norm_limit(text: &str) -> Result<NormLimit, String> {
@@ -373,13 +348,14 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     };
     match try_build(args, path, &mut row, share) {
         Ok(status) => row.status = status,
-        Err(e) => row.status = format!("failed: {}", render_chain(&e)),
+        Err(e) => row.status = format!("failed: {}", render_chain(&overflow_named(e, path))),
     }
     row.seconds = start.elapsed().as_secs_f64();
     row
 }
 
-/// The network of `model` when its set is to be the implicit one (see `--engine`).
+/// The network of `model` when its set is to be the implicit one (see `--engine`). A set
+/// written to a file (`--out`) is always enumerated: a file cannot hold the implicit set.
 fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Network>> {
     let default_request = args.kind == KindArg::Graver
         && args.signs.is_none()
@@ -387,7 +363,11 @@ fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Ne
         && args.bounds == BoxArg::None
         && args.method == MethodArg::Lift;
     match args.engine {
+        EngineArg::Cycles if args.out.is_some() => anyhow::bail!(
+            "--engine cycles stores the implicit entry in the cache, which --out cannot write; leave --engine out (or pass --engine moves) to write the enumerated cycles"
+        ),
         EngineArg::Moves => Ok(None),
+        EngineArg::Auto if args.out.is_some() => Ok(None),
         EngineArg::Auto if !default_request || !model.convex.is_empty() => Ok(None),
         EngineArg::Auto => Ok(Network::detect(&model.matrix).ok()),
         EngineArg::Cycles if !default_request => anyhow::bail!(
@@ -402,7 +382,7 @@ fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Ne
     }
 }
 
-/// Stores (or writes) the implicit entry of a network matrix.
+/// Stores the implicit entry of a network matrix.
 fn build_cycles(
     args: &BuildArgs,
     model: &Model,
@@ -411,15 +391,6 @@ fn build_cycles(
 ) -> anyhow::Result<String> {
     row.kind = Some(SetKind::Cycles);
     row.elements = Some(0);
-    if let Some(out) = &args.out {
-        let built = cycles_entry(&model.matrix, network);
-        row.key = Some(built.key.digest().to_hex());
-        write_set_file(out, &built)?;
-        return Ok(format!(
-            "written to {} (implicit: the network's cycles)",
-            out.display()
-        ));
-    }
     let library = args.cache.open()?;
     Ok(
         match library.obtain_cycles(&model.matrix, network, args.rebuild)? {
@@ -458,7 +429,7 @@ fn try_build(
     row.kind = Some(spec.kind);
     let bar = BuildProgress::new(args.progress, path);
     let report = |p: &Progress| bar.report(p);
-    let mut control = limits(args, &model)?.progress(&report);
+    let mut control = args.limits.control(model.variables())?.progress(&report);
     if let Some(share) = share {
         control = control.shared(share);
     }
@@ -534,7 +505,7 @@ fn stopped(row: &mut Row, reason: StopReason, kept: Option<SavedState>) -> Strin
 }
 
 /// A saved state in words.
-fn describe(state: &SavedState) -> String {
+pub(super) fn describe(state: &SavedState) -> String {
     let within = if state.mid_stage { " (mid-stage)" } else { "" };
     format!(
         "stage {}/{}{within}, {} moves, {:.0} s of work",
@@ -561,28 +532,6 @@ fn command_line() -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
-}
-
-/// The limits of `args` for a build of `model`: Ctrl-C, `--time-limit`, and the element cap
-/// from `--max-elements`, `--max-memory` or the memory available.
-fn limits<'a>(args: &BuildArgs, model: &Model) -> anyhow::Result<Control<'a>> {
-    let mut control = Control::new().cancel_flag(interrupted());
-    if let Some(s) = args.time_limit {
-        let limit =
-            Duration::try_from_secs_f64(s).context("--time-limit must be a number of seconds")?;
-        control = control.time_limit(limit);
-    }
-    let width = model.variables();
-    let memory_cap = args.max_memory.map(|bytes| members_in(bytes, width));
-    match (
-        args.max_elements,
-        memory_cap.or_else(|| memory_guard(width)),
-    ) {
-        (Some(m), _) => control = control.max_elements(m),
-        (None, Some(guard)) => control = control.max_elements(guard),
-        (None, None) => {}
-    }
-    Ok(control)
 }
 
 /// Whether `build` of the one model at `path` would run a completion (no implicit network
@@ -619,7 +568,7 @@ pub(super) fn follow(
         Some(_) => None,
         None => args.cache.open()?.resume_point(&model.matrix, &spec)?,
     };
-    let control = limits(args, &model)?.shared(share);
+    let control = args.limits.control(model.variables())?.shared(share);
     let outcome = with_threads(args.threads, || {
         build(&model.matrix, &analysis, &spec, &control, resume.as_ref())
     })??;
@@ -720,34 +669,6 @@ fn budgeted(
         ));
     }
     Ok(status)
-}
-
-/// Working-set members that fit in `bytes`, with the headroom of [`memory_guard`].
-fn members_in(bytes: u64, width: usize) -> usize {
-    usize::try_from(bytes / (5 * bytes_per_member(width))).unwrap_or(usize::MAX)
-}
-
-/// Bytes of one working-set member (each sign of a vector counts): 4-byte entries, sign masks
-/// and index slots.
-fn bytes_per_member(width: usize) -> u64 {
-    4 * width as u64 + 40
-}
-
-/// The largest working set that fits in the memory available now (from /proc/meminfo), so
-/// that a build that would run out of memory stops cleanly with an element-limit status (and
-/// a checkpoint) instead of being killed. The factor 5 of headroom covers pair buffers and the
-/// minimal-set pass: the K_{6,6} build peaked at 197 MiB with 227,730 members, 4.9 times the
-/// plain member size. `None` where the figure is unknown.
-fn memory_guard(width: usize) -> Option<usize> {
-    let info = std::fs::read_to_string("/proc/meminfo").ok()?;
-    let kib: u64 = info
-        .lines()
-        .find(|l| l.starts_with("MemAvailable:"))?
-        .split_whitespace()
-        .nth(1)?
-        .parse()
-        .ok()?;
-    Some(members_in(kib.saturating_mul(1024), width))
 }
 
 /// Writes the set's document (see [`set_document`]) next to `path`, then renames it into

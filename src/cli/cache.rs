@@ -441,6 +441,14 @@ fn export(
     out: &mut impl Write,
 ) -> anyhow::Result<ExitCode> {
     let entry = store.export(key)?;
+    if entry.key.kind == SetKind::Cycles {
+        // Its elements are implicit (the network's cycles): an empty list printed as a
+        // complete set would be wrong.
+        anyhow::bail!(
+            "entry {} is the implicit set of a network matrix (its cycles, not enumerated), which cannot be exported; to export the cycles, build the enumerated set with `kernstep build MODEL --engine moves` (or write it with `kernstep build MODEL --out FILE`)",
+            &entry.key.digest().to_hex()[..SHORT_KEY]
+        );
+    }
     match format {
         ExportFormat::Json => {
             out.write_all(set_document(&entry.key, &entry.metadata, &entry.elements)?.as_bytes())?;

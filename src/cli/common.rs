@@ -10,7 +10,7 @@ use augment::Coverage;
 use cache::EntryKey;
 use clap::{Args, ValueEnum};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::{Control, MoveSet};
+use kernstep::completion::MoveSet;
 use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::solve::{coverage_of, Prepared};
@@ -18,6 +18,8 @@ use kernstep::testset::{
     default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
 };
 use signal_hook::consts::{SIGINT, SIGTERM};
+
+use super::limits::LimitArgs;
 
 /// What the plans leave out: one line of the `demo` and `batch` summaries (after `caution: `),
 /// and their `caution` field in JSON.
@@ -105,7 +107,15 @@ pub fn signal_status() -> Option<u8> {
     }
 }
 
-/// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice).
+/// A `--threads` count capped to the machine's parallelism: more threads than cores only add
+/// switching (and, in a build, memory for each thread's buffers).
+pub fn capped_threads(threads: usize) -> usize {
+    let cores = std::thread::available_parallelism().map_or(usize::MAX, |n| n.get());
+    threads.min(cores)
+}
+
+/// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice), capped by
+/// [`capped_threads`] with one warning line on stderr when the count was above the cap.
 pub fn with_threads<T: Send>(
     threads: Option<usize>,
     f: impl FnOnce() -> T + Send,
@@ -113,7 +123,13 @@ pub fn with_threads<T: Send>(
     match threads {
         None => Ok(f()),
         Some(0) => anyhow::bail!("--threads must be at least 1"),
-        Some(n) => {
+        Some(asked) => {
+            let n = capped_threads(asked);
+            if n < asked {
+                eprintln!(
+                    "kernstep: warning: --threads {asked} is more than the {n} threads this machine runs at once; using {n}"
+                );
+            }
             let pool = rayon::ThreadPoolBuilder::new()
                 .num_threads(n)
                 .build()
@@ -234,16 +250,55 @@ impl SolverSet {
     }
 }
 
+/// `err`, with an integer overflow of a build turned into an input error naming the model file
+/// (`input`) and its matrix: the reader keeps each entry within the completion's 32-bit
+/// entries, but a test set's entries grow with the matrix's subdeterminants (the matrix
+/// `[a 1 0; 0 a 1]` has the move `(1, -a, a^2)`), which only the build finds out.
+pub fn overflow_named(err: anyhow::Error, input: &Path) -> anyhow::Error {
+    match err.downcast::<kernstep::Error>() {
+        Ok(kernstep::Error::Overflow(what)) => kernstep::Error::Input {
+            file: input.display().to_string(),
+            field: "matrix".to_string(),
+            message: format!(
+                "its test set needs entries beyond 2^31 - 1, more than a build holds (integer overflow in {what}): the matrix's subdeterminants are too large"
+            ),
+        }
+        .into(),
+        Ok(other) => other.into(),
+        Err(err) => err,
+    }
+}
+
 /// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
-/// builds it when `build_on_miss`, else says which `build` to run. For a network matrix
-/// (as `engine` decides) it is the implicit set of the network's cycles, with no cache.
+/// builds it within `limits` when `build_on_miss` (a stopped build is a
+/// [`super::limits::BuildStopped`] error), else says which `build` to run. For a network matrix (as `engine`
+/// decides) it is the implicit set of the network's cycles, with no cache.
 pub fn graver_for(
     model: &Model,
     input: &Path,
     cache: &CacheArgs,
     build_on_miss: bool,
     engine: EngineArg,
+    limits: &LimitArgs,
 ) -> anyhow::Result<SolverSet> {
+    find_or_build(model, input, cache, build_on_miss, engine, limits)
+        .map_err(|e| overflow_named(e, input))
+}
+
+/// [`graver_for`] before an overflow is named.
+fn find_or_build(
+    model: &Model,
+    input: &Path,
+    cache: &CacheArgs,
+    build_on_miss: bool,
+    engine: EngineArg,
+    limits: &LimitArgs,
+) -> anyhow::Result<SolverSet> {
+    if limits.any() && !build_on_miss {
+        anyhow::bail!(
+            "--max-elements, --max-memory and --time-limit limit the build that --build starts on a cache miss; add --build"
+        );
+    }
     // A network matrix needs no stored set: its cycles are its Graver basis. Convex costs
     // are left to the enumerated set, which serves them.
     match engine {
@@ -280,7 +335,8 @@ pub fn graver_for(
                 render_chain(&e)
             );
             let (analysis, spec) = resolve()?;
-            return build_uncached(model, &analysis, &spec);
+            let command = build_command(input, cache, engine);
+            return build_uncached(model, &analysis, &spec, limits, command);
         }
         Err(e) => return Err(e),
     };
@@ -305,19 +361,14 @@ pub fn graver_for(
         if let Some(stored) = library.find_largest(&by_norm)? {
             return Ok(cached(&stored));
         }
-        let dir = cache
-            .cache_dir
-            .as_ref()
-            .map(|d| format!(" --cache-dir {}", d.display()))
-            .unwrap_or_default();
         anyhow::bail!(
-            "no test set for this matrix in the cache ({}); run `kernstep build {}{dir}` first, or pass --build",
+            "no test set for this matrix in the cache ({}); run `{}` first, or pass --build",
             library.store().dir().display(),
-            input.display()
+            build_command(input, cache, engine)
         );
     }
     let (analysis, spec) = resolve()?;
-    let control = Control::new().cancel_flag(interrupted());
+    let control = limits.control(model.variables())?;
     match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
         Obtained::Reused(stored) => Ok(cached(&stored)),
         Obtained::Built { built, .. } => Ok(SolverSet {
@@ -327,9 +378,14 @@ pub fn graver_for(
             box_limit: None,
             network: None,
         }),
-        Obtained::Stopped { reason, .. } => {
-            anyhow::bail!("building the test set stopped: {reason:?}")
-        }
+        Obtained::Stopped { reason, kept } => Err(limits
+            .stopped(
+                reason,
+                build_command(input, cache, engine),
+                model.variables(),
+                kept,
+            )
+            .into()),
     }
 }
 
@@ -344,12 +400,30 @@ fn cached(stored: &cache::StoredSet) -> SolverSet {
     }
 }
 
-fn build_uncached(
+/// The `kernstep build` command that stores the set a solve of `input` looks for.
+pub fn build_command(input: &Path, cache: &CacheArgs, engine: EngineArg) -> String {
+    let engine = match engine {
+        EngineArg::Moves => " --engine moves",
+        EngineArg::Auto | EngineArg::Cycles => "",
+    };
+    let dir = cache
+        .cache_dir
+        .as_ref()
+        .map(|d| format!(" --cache-dir {}", d.display()))
+        .unwrap_or_default();
+    format!("kernstep build {}{engine}{dir}", input.display())
+}
+
+/// Builds the Graver basis of `model` within `limits`, without a cache: a stopped build is a
+/// [`super::limits::BuildStopped`] error that names `command` as the way on.
+pub fn build_uncached(
     model: &Model,
     analysis: &MatrixAnalysis,
     spec: &ResolvedSpec,
+    limits: &LimitArgs,
+    command: String,
 ) -> anyhow::Result<SolverSet> {
-    let control = Control::new().cancel_flag(interrupted());
+    let control = limits.control(model.variables())?;
     match kernstep::testset::build(&model.matrix, analysis, spec, &control, None)? {
         kernstep::testset::BuildOutcome::Built(built) => Ok(SolverSet {
             coverage: coverage_of(&built.metadata.completeness),
@@ -358,8 +432,8 @@ fn build_uncached(
             box_limit: None,
             network: None,
         }),
-        kernstep::testset::BuildOutcome::Stopped(reason) => {
-            anyhow::bail!("building the test set stopped: {reason:?}")
-        }
+        kernstep::testset::BuildOutcome::Stopped(reason) => Err(limits
+            .stopped(reason, command, model.variables(), None)
+            .into()),
     }
 }

@@ -10,15 +10,18 @@ use std::time::Instant;
 use anyhow::Context;
 use clap::Args;
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::Control;
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
-use kernstep::solve::{coverage_of, Prepared};
-use kernstep::testset::{build, BuildOutcome, BuildSpec};
+use kernstep::solve::Prepared;
+use kernstep::testset::BuildSpec;
 use serde::Serialize;
 
 use super::batch::{answer, solve_days, steps, DayStatus, Tally};
-use super::common::{interrupted, write_atomically, CacheArgs, SetSource, SolverSet, CAUTION};
+use super::common::{
+    build_command, build_uncached, graver_for, interrupted, overflow_named, render_chain,
+    write_atomically, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
+};
+use super::limits::{BuildStopped, LimitArgs};
 use super::plot::write_step_plot;
 use super::table::write_table;
 
@@ -36,6 +39,8 @@ const DAYS: &str = include_str!("../../examples/scenarios/vell_valley_days.jsonl
 pub struct DemoArgs {
     #[command(flatten)]
     pub cache: CacheArgs,
+    #[command(flatten)]
+    pub limits: LimitArgs,
     /// Run the first N of the 30 demo days.
     #[arg(long, value_name = "N", default_value_t = 30,
           value_parser = clap::value_parser!(u16).range(1..=30))]
@@ -57,7 +62,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     let mut days = parse_day_lines(&scenario, DAYS, DAYS_PATH);
     days.truncate(usize::from(args.days));
     let started = Instant::now();
-    let set = obtain_set(&model, &args.cache)?;
+    let set = obtain_set(&model, &args.cache, &args.limits)?;
     let set_seconds = started.elapsed().as_secs_f64();
     let prepared = set.prepare(&model.matrix)?;
     let results = solve_days(&prepared, &model, days, false, None, Path::new(DAYS_PATH))?;
@@ -102,41 +107,23 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     })
 }
 
-/// The Graver basis from the cache or built (and stored); built in memory when the cache
-/// cannot be used at all.
-fn obtain_set(model: &Model, cache: &CacheArgs) -> anyhow::Result<SolverSet> {
-    match super::common::graver_for(
-        model,
-        Path::new(SCENARIO_PATH),
-        cache,
-        true,
-        super::common::EngineArg::Auto,
-    ) {
+/// The Graver basis from the cache or built (and stored) within `limits`; built in memory
+/// when the cache cannot be used at all. A build that a limit stopped is not tried again.
+fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::Result<SolverSet> {
+    let input = Path::new(SCENARIO_PATH);
+    match graver_for(model, input, cache, true, EngineArg::Auto, limits) {
         Ok(set) => Ok(set),
+        Err(e) if e.downcast_ref::<BuildStopped>().is_some() => Err(e),
         Err(e) => {
             eprintln!(
                 "kernstep: warning: {}; building the test set in memory",
-                super::common::render_chain(&e)
+                render_chain(&e)
             );
-            in_memory(model)
-        }
-    }
-}
-
-fn in_memory(model: &Model) -> anyhow::Result<SolverSet> {
-    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
-    let spec = BuildSpec::default().resolve(model, &analysis)?;
-    let control = Control::new().cancel_flag(interrupted());
-    match build(&model.matrix, &analysis, &spec, &control, None)? {
-        BuildOutcome::Built(built) => Ok(SolverSet {
-            coverage: coverage_of(&built.metadata.completeness),
-            set: built.set,
-            source: SetSource::Built,
-            box_limit: None,
-            network: None,
-        }),
-        BuildOutcome::Stopped(reason) => {
-            anyhow::bail!("building the test set stopped: {reason:?}")
+            let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
+            let spec = BuildSpec::default().resolve(model, &analysis)?;
+            let command = build_command(input, cache, EngineArg::Auto);
+            build_uncached(model, &analysis, &spec, limits, command)
+                .map_err(|e| overflow_named(e, input))
         }
     }
 }

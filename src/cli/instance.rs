@@ -16,6 +16,7 @@ use serde::Deserialize;
 
 use super::common::{graver_for, interrupted, CacheArgs, EngineArg, SolverSet};
 use super::days::pick_day;
+use super::limits::LimitArgs;
 
 /// The `schema` value of `solve --json` documents.
 pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
@@ -55,6 +56,8 @@ pub struct InstanceArgs {
     /// Build the Graver basis (and store it in the cache) when the cache has none.
     #[arg(long)]
     pub build: bool,
+    #[command(flatten)]
+    pub limits: LimitArgs,
     /// Which test set serves the solve.
     #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
     pub engine: EngineArg,
@@ -118,7 +121,14 @@ impl InstanceArgs {
             .as_deref()
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
-        let set = graver_for(&model, &self.model, &self.cache, self.build, self.engine)?;
+        let set = graver_for(
+            &model,
+            &self.model,
+            &self.cache,
+            self.build,
+            self.engine,
+            &self.limits,
+        )?;
         let prepared = set.prepare(&model.matrix)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,

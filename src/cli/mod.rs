@@ -12,6 +12,7 @@ mod days;
 mod demo;
 mod explain;
 mod instance;
+mod limits;
 mod plot;
 mod progress;
 #[cfg(feature = "mpi")]
@@ -29,8 +30,11 @@ pub use common::render_chain;
 pub use ranked::start as start_ranks;
 
 /// Runs the verb chosen on the command line and returns the exit code its outcome maps to.
+///
+/// A build that a solving verb started on a cache miss and a limit stopped
+/// ([`limits::BuildStopped`]) is printed here and exits 1 (after Ctrl-C, 130 or 143).
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
-    match cli.command {
+    let outcome = match cli.command {
         Command::Analyze(a) => analyze::run(&a),
         Command::Build(a) => build::run(&a),
         Command::Cache(a) => cache::run(&a),
@@ -38,5 +42,15 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Trace(a) => trace::run(&a),
         Command::Batch(a) => batch::run(&a),
         Command::Demo(a) => demo::run(&a),
+    };
+    match outcome {
+        Err(err) => match err.downcast_ref::<limits::BuildStopped>() {
+            Some(stop) => {
+                eprintln!("kernstep: {}", render_chain(&err));
+                Ok(ExitCode::from(stop.exit_status()))
+            }
+            None => Err(err),
+        },
+        done => done,
     }
 }

@@ -8,8 +8,8 @@
 //! `names = { variables = [...], rows = [...] }` (generated as `x1..`, `r1..` when absent),
 //! and optional `convex_cost = { <variable name> = { breaks = [...], slopes = [...] } }`:
 //! piecewise-linear convex costs added to the linear cost (see [`Pieces`]).
-//! Matrix entries are limited to `|a| <= 2^31` ([`MATRIX_ENTRY_LIMIT`]) so that the lattice
-//! work starts from moderate numbers; every other value to `|v| <= 2^62` ([`VALUE_LIMIT`]).
+//! Matrix entries are limited to `|a| <= 2^31 - 1` ([`MATRIX_ENTRY_LIMIT`]), the 32-bit
+//! entries the completion stores, so that the lattice work starts from moderate numbers; every other value to `|v| <= 2^62` ([`VALUE_LIMIT`]).
 //! Integers must be written as integer literals (`2`, not `2.0`).
 //!
 //! Every error is an [`Error::Input`] that names the file and the exact field, with row and
@@ -27,8 +27,11 @@ use crate::matrix::IntMatrix;
 
 pub use convex::{ConvexCosts, Pieces, PiecesFault};
 
-/// Largest absolute value accepted for a matrix entry: `2^31`.
-pub const MATRIX_ENTRY_LIMIT: i128 = 1 << 31;
+/// Largest absolute value accepted for a matrix entry: `2^31 - 1`, the largest entry of the
+/// completion's vectors (`i32`, without `-2^31` so that every entry can be negated). A unit
+/// column next to an entry `a` puts `a` itself into a kernel vector (`[a 1]` has the move
+/// `(1, -a)`), so a larger entry could never be built.
+pub const MATRIX_ENTRY_LIMIT: i128 = (1 << 31) - 1;
 /// Largest absolute value accepted for a right-hand side, cost or bound: `2^62`.
 pub const VALUE_LIMIT: i128 = 1 << 62;
 

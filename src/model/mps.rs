@@ -30,7 +30,7 @@
 //!   decimals is multiplied by the smallest power of ten that makes it integral
 //!   ([`MpsImport::row_scales`]); the cost vector likewise as a whole
 //!   ([`MpsImport::cost_scale`]), so the objective kernstep reports is `10^cost_scale` times
-//!   the file's (and negated for `MAX`). A scaled value beyond the model limits (`2^31` for
+//!   the file's (and negated for `MAX`). A scaled value beyond the model limits (`2^31 - 1` for
 //!   matrix entries, `2^62` otherwise) is refused, naming the row and the value.
 //!
 //! Every error is an [`Error::Input`] whose field names the line and the MPS field, for

@@ -196,7 +196,7 @@ fn scenario_kind(r: &Reader, tree: &Value) -> Result<ScenarioKind> {
 fn truck_capacity(r: &Reader, value: &Value) -> Result<i64> {
     let c = r.int(value, "truck_capacity")?;
     if c < 1 || i128::from(c) > MATRIX_ENTRY_LIMIT {
-        return Err(r.error("truck_capacity", format!("{c} is not in 1 ..= 2^31")));
+        return Err(r.error("truck_capacity", format!("{c} is not in 1 ..= 2^31 - 1")));
     }
     Ok(c)
 }

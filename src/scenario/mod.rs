@@ -177,7 +177,7 @@ pub struct Lane {
 ///
 /// Invariant: names are unique within depots, zones and products; lanes are unique pairs;
 /// `tables` holds exactly one table per field of `kind`, named as documented on [`Field`];
-/// `truck_capacity` is `Some(C)` with `1 <= C <= 2^31` exactly for truckloads;
+/// `truck_capacity` is `Some(C)` with `1 <= C <= 2^31 - 1` exactly for truckloads;
 /// `surcharges` has one entry per lane, all `None` for product lines.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Scenario {
