@@ -263,9 +263,11 @@ fn byte_flips(f: &Fixture, tally: &mut Tally) {
 }
 
 fn foreign_version_and_renamed(f: &Fixture, tally: &mut Tally) {
-    let mut newer = f.good[0].clone();
-    newer[8..10].copy_from_slice(&2u16.to_le_bytes());
-    tally.record("format version 2", f.damage(0, &newer));
+    for version in [1u16, 3] {
+        let mut other = f.good[0].clone();
+        other[8..10].copy_from_slice(&version.to_le_bytes());
+        tally.record(&format!("format version {version}"), f.damage(0, &other));
+    }
     tally.record(
         "entry 1 stored under entry 0's name",
         f.damage(0, &f.good[1]),

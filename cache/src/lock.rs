@@ -1,9 +1,11 @@
 //! Per-key advisory locks, so that concurrent builders of one key do the work once.
 //!
-//! The lock is an exclusive `File::lock` on `<digest>.lock` in the store directory. Lock
-//! files are left in place: deleting one while another process waits on it would let two
-//! builders run at once. The lock is released when its holder is dropped (or its process
-//! dies), so a crashed builder never blocks others.
+//! The lock is an exclusive `File::lock` on `<digest>.lock` in the store directory. The lock
+//! is released when its holder is dropped (or its process dies), so a crashed builder never
+//! blocks others. `prune` may delete a lock file, but only while holding its lock; so that a
+//! process that opened the file before the deletion cannot then hold a lock nobody else sees,
+//! a locker checks after locking that the path still names the file it locked, and starts
+//! again if not.
 
 use std::fs::{File, OpenOptions, TryLockError};
 use std::path::PathBuf;
@@ -126,19 +128,26 @@ impl Store {
     /// Waits for and takes the exclusive lock on `digest`.
     pub(crate) fn lock_key(&self, digest: Digest) -> Result<KeyLock, CacheError> {
         let path = self.lock_path(digest);
-        let file = self.open_lock_file(&path)?;
-        file.lock().map_err(|e| CacheError::io("lock", &path, e))?;
-        Ok(KeyLock { _file: file })
+        loop {
+            let file = self.open_lock_file(&path)?;
+            file.lock().map_err(|e| CacheError::io("lock", &path, e))?;
+            if still_at(&file, &path)? {
+                return Ok(KeyLock { _file: file });
+            }
+        }
     }
 
     /// Takes the lock on `digest` if it is free, `Ok(None)` if someone holds it.
     pub(crate) fn try_lock_key(&self, digest: Digest) -> Result<Option<KeyLock>, CacheError> {
         let path = self.lock_path(digest);
-        let file = self.open_lock_file(&path)?;
-        match file.try_lock() {
-            Ok(()) => Ok(Some(KeyLock { _file: file })),
-            Err(TryLockError::WouldBlock) => Ok(None),
-            Err(TryLockError::Error(e)) => Err(CacheError::io("lock", &path, e)),
+        loop {
+            let file = self.open_lock_file(&path)?;
+            match file.try_lock() {
+                Ok(()) if still_at(&file, &path)? => return Ok(Some(KeyLock { _file: file })),
+                Ok(()) => {}
+                Err(TryLockError::WouldBlock) => return Ok(None),
+                Err(TryLockError::Error(e)) => return Err(CacheError::io("lock", &path, e)),
+            }
         }
     }
 
@@ -151,3 +160,28 @@ impl Store {
             .map_err(|e| CacheError::io("open lock file", path, e))
     }
 }
+
+/// Whether `path` still names the open `file` (it was not deleted and recreated meanwhile).
+#[cfg(unix)]
+fn still_at(file: &File, path: &std::path::Path) -> Result<bool, CacheError> {
+    use std::os::unix::fs::MetadataExt;
+    let opened = file
+        .metadata()
+        .map_err(|e| CacheError::io("inspect", path, e))?;
+    Ok(match std::fs::metadata(path) {
+        Ok(now) => now.dev() == opened.dev() && now.ino() == opened.ino(),
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => false,
+        Err(e) => return Err(CacheError::io("inspect", path, e)),
+    })
+}
+
+/// Lock files are never deleted on this platform (see [`LOCKS_REMOVABLE`]), so the path
+/// always names the file.
+#[cfg(not(unix))]
+fn still_at(_file: &File, _path: &std::path::Path) -> Result<bool, CacheError> {
+    Ok(true)
+}
+
+/// Whether `prune` may delete unused lock files: only where [`still_at`] can tell a deleted
+/// file from the one at the path.
+pub(crate) const LOCKS_REMOVABLE: bool = cfg!(unix);
