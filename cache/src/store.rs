@@ -299,7 +299,7 @@ impl Store {
     }
 
     /// Digests of every file named like an entry, sorted.
-    pub(crate) fn entry_digests(&self) -> Result<Vec<Digest>, CacheError> {
+    pub fn entry_digests(&self) -> Result<Vec<Digest>, CacheError> {
         let mut digests = Vec::new();
         for name in self.file_names()? {
             let Some(stem) = name.strip_suffix(&format!(".{ENTRY_SUFFIX}")) else {

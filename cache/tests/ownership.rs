@@ -137,7 +137,10 @@ fn a_set_aside_checkpoint_is_listed_and_pruned() {
         store.load_checkpoint(&k).unwrap(),
         CheckpointState::Missing
     ));
-    assert!(store.list_checkpoints().unwrap()[0].1, "listed as set aside");
+    assert!(
+        store.list_checkpoints().unwrap()[0].1,
+        "listed as set aside"
+    );
     age(&to);
     let report = store.prune(Duration::from_secs(60)).unwrap();
     assert_eq!(report.set_aside_removed, 1);

@@ -320,13 +320,18 @@ pub fn graver_for(
     let control = Control::new().cancel_flag(interrupted());
     match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
         Obtained::Reused(stored) => Ok(cached(&stored)),
-        Obtained::Built { built, .. } => Ok(SolverSet {
-            coverage: coverage_of(&built.metadata.completeness),
-            set: built.set,
-            source: SetSource::Built,
-            box_limit: None,
-            network: None,
-        }),
+        Obtained::Built {
+            built, set_aside, ..
+        } => {
+            super::build::warn_set_aside(set_aside.as_ref());
+            Ok(SolverSet {
+                coverage: coverage_of(&built.metadata.completeness),
+                set: built.set,
+                source: SetSource::Built,
+                box_limit: None,
+                network: None,
+            })
+        }
         Obtained::Stopped { reason, .. } => {
             anyhow::bail!("building the test set stopped: {reason:?}")
         }
