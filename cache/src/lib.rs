@@ -6,11 +6,15 @@
 //! - an [`EntryKey`] (row space text, [`SetKind`], [`Sign`] pattern, [`Truncation`]) has a
 //!   stable [`Digest`] that names the file `<digest-hex>.kset`;
 //! - each file holds a versioned header, the key, [`SetMetadata`] and the elements in the
-//!   narrowest [`ElementEncoding`], with a checksum over everything (layout in [`mod@format`]);
+//!   narrowest [`ElementEncoding`], sealed with a keyed hash under the cache's own secret and
+//!   checksummed (layout in [`mod@format`]); an entry that another cache sealed, or that was
+//!   edited, comes back marked [`Provenance::Foreign`] for the caller to check in full;
+//! - the directory carries a marker, and maintenance touches only kernstep's own files there,
+//!   never those of a build holding its key's lock ([`FileKind`], [`Store::prune`]);
 //! - writes are atomic (temporary file, fsync, rename, directory fsync), builders of one key
 //!   are serialised by a per-key lock ([`Store::lock_for_build`]), and every load checks the
-//!   whole file: a damaged, truncated, foreign or renamed file gives a typed [`CacheError`]
-//!   naming it and is never handed back;
+//!   whole file (only if it is a regular file): a damaged, truncated, other-version or renamed
+//!   file gives a typed [`CacheError`] naming it and is never handed back;
 //! - [`Store::find_covering`] reuses a box- or norm-truncated set for instances inside its
 //!   truncation;
 //! - checkpoints of resumable builds are opaque checksummed bytes ([`Store::save_checkpoint`]).
