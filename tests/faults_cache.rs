@@ -956,6 +956,12 @@ fn cache_list_shows_checkpoints_and_held_and_stale_locks() {
     assert_eq!(checkpoint["lifted"], state.lifted.len(), "{held}");
     assert_eq!(checkpoint["components"], 12, "{held}");
     assert_eq!(held["locks"][0]["held"], true, "{held}");
+    assert!(
+        list()["locks"].as_array().unwrap().is_empty(),
+        "released, its file went"
+    );
+    // What a builder killed with SIGKILL leaves: its lock file, held by nobody.
+    std::fs::write(store.lock_path(target.key.digest()), b"").unwrap();
     let stale = list();
     assert_eq!(stale["locks"][0]["digest"], hex.as_str(), "{stale}");
     assert_eq!(stale["locks"][0]["held"], false, "{stale}");

@@ -2,10 +2,10 @@
 //!
 //! The lock is an exclusive `File::lock` on `<digest>.lock` in the store directory. The lock
 //! is released when its holder is dropped (or its process dies), so a crashed builder never
-//! blocks others. `prune` may delete a lock file, but only while holding its lock; so that a
-//! process that opened the file before the deletion cannot then hold a lock nobody else sees,
-//! a locker checks after locking that the path still names the file it locked, and starts
-//! again if not.
+//! blocks others. A lock file is deleted only by a holder of its lock (the holder on release,
+//! or `prune` for a crashed builder's file); so that a process that opened the file before
+//! the deletion cannot then hold a lock nobody else sees, a locker checks after locking that
+//! the path still names the file it locked, and starts again if not.
 
 use std::fs::{File, OpenOptions, TryLockError};
 use std::path::PathBuf;
@@ -20,10 +20,23 @@ use crate::store::{EntrySummary, Store, StoredSet};
 /// File-name suffix of per-key lock files.
 pub const LOCK_SUFFIX: &str = "lock";
 
-/// An exclusive lock on one key, released on drop.
+/// An exclusive lock on one key, released on drop. Its file is deleted on drop, while the
+/// lock is still held (see the module doc), so that lock files outlive only crashed builders.
 #[derive(Debug)]
 pub(crate) struct KeyLock {
+    /// Held open (and locked) until the lock is dropped.
     _file: File,
+    path: PathBuf,
+}
+
+impl Drop for KeyLock {
+    fn drop(&mut self) {
+        if LOCKS_REMOVABLE {
+            // Best effort: a lock file left behind is only listed as stale and pruned.
+            let _ = std::fs::remove_file(&self.path);
+        }
+        // `file` closes, and so unlocks, after this.
+    }
 }
 
 /// What [`Store::lock_for_build`] hands back.
@@ -132,7 +145,7 @@ impl Store {
             let file = self.open_lock_file(&path)?;
             file.lock().map_err(|e| CacheError::io("lock", &path, e))?;
             if still_at(&file, &path)? {
-                return Ok(KeyLock { _file: file });
+                return Ok(KeyLock { _file: file, path });
             }
         }
     }
@@ -143,7 +156,9 @@ impl Store {
         loop {
             let file = self.open_lock_file(&path)?;
             match file.try_lock() {
-                Ok(()) if still_at(&file, &path)? => return Ok(Some(KeyLock { _file: file })),
+                Ok(()) if still_at(&file, &path)? => {
+                    return Ok(Some(KeyLock { _file: file, path }))
+                }
                 Ok(()) => {}
                 Err(TryLockError::WouldBlock) => return Ok(None),
                 Err(TryLockError::Error(e)) => return Err(CacheError::io("lock", &path, e)),

@@ -166,6 +166,7 @@ impl Store {
     pub fn remove(&self, prefix: &str) -> Result<Digest, CacheError> {
         self.check_owned()?;
         let digest = self.resolve_any(prefix)?;
+        // Dropping the lock at the end deletes its file.
         let lock = self.lock_key(digest)?;
         for (name, kind) in self.owned_files()? {
             match kind {
@@ -179,9 +180,6 @@ impl Store {
                 }
                 _ => {}
             }
-        }
-        if LOCKS_REMOVABLE {
-            remove_file(&self.lock_path(digest))?;
         }
         drop(lock);
         sync_dir(self.dir())?;
@@ -233,10 +231,8 @@ impl Store {
                 report.busy.push(digest);
                 continue;
             };
-            let mut remove_lock = !lock_existed;
             for (path, kind) in files {
                 match kind {
-                    FileKind::Lock(_) => remove_lock = true,
                     FileKind::Entry(d) if remove_file(&path)? => report.removed.push(d),
                     FileKind::Checkpoint(d) if remove_file(&path)? => {
                         report.checkpoints_removed.push(d);
@@ -250,10 +246,9 @@ impl Store {
                     _ => {}
                 }
             }
-            if remove_lock && LOCKS_REMOVABLE && remove_file(&self.lock_path(digest))? {
-                report.locks_removed += usize::from(lock_existed);
-            }
+            // Releasing an unused lock deletes its file.
             drop(lock);
+            report.locks_removed += usize::from(lock_existed && LOCKS_REMOVABLE);
         }
         sync_dir(self.dir())?;
         Ok(report)
