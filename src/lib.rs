@@ -65,6 +65,7 @@ pub mod analysis;
 pub mod bound;
 pub mod completion;
 pub mod error;
+pub mod input;
 pub mod lattice;
 pub mod matrix;
 pub mod model;

@@ -10,6 +10,11 @@
 //!
 //! The SIGKILL case re-runs this test binary as a child writer (`--exact` with an environment
 //! variable naming its role), as the cache crate's own concurrency tests do.
+//!
+//! Focused tests follow (issue 21): forged and copied-in entries, a foreign directory, prune
+//! racing a build, checkpoints with a valid checksum and invalid content, `cache list` of
+//! checkpoints and locks, and FIFOs and `/dev/zero` as model and entry (each run of the
+//! binary there is bounded in time, so a hang fails instead of hanging the suite).
 
 use std::env;
 use std::path::{Path, PathBuf};
@@ -263,9 +268,11 @@ fn byte_flips(f: &Fixture, tally: &mut Tally) {
 }
 
 fn foreign_version_and_renamed(f: &Fixture, tally: &mut Tally) {
-    let mut newer = f.good[0].clone();
-    newer[8..10].copy_from_slice(&2u16.to_le_bytes());
-    tally.record("format version 2", f.damage(0, &newer));
+    for version in [1u16, 3] {
+        let mut other = f.good[0].clone();
+        other[8..10].copy_from_slice(&version.to_le_bytes());
+        tally.record(&format!("format version {version}"), f.damage(0, &other));
+    }
     tally.record(
         "entry 1 stored under entry 0's name",
         f.damage(0, &f.good[1]),
@@ -467,7 +474,8 @@ fn writer_killed_mid_write(attempt: usize, tally: &mut Tally) {
     let killed_mid_write = temp_file_present(dir.path());
     let sets = synthetic_versions();
     let loaded = store.load(&synthetic_key()).map_err(|e| e.to_string());
-    let verify = kernstep(dir.path(), &["cache", "verify"]);
+    // The synthetic sets are no kernel sets, so `cache verify` (which checks content too)
+    // would refuse them whatever the file; the file's integrity is what `load` checks here.
     let list = kernstep(dir.path(), &["cache", "list", "--json"]);
     let listing: serde_json::Value = serde_json::from_slice(&list.stdout).unwrap_or_default();
     let prune = kernstep(
@@ -480,16 +488,14 @@ fn writer_killed_mid_write(attempt: usize, tally: &mut Tally) {
         ensure(
             killed_mid_write
                 && matches!(&loaded, Ok(Some(s)) if sets.contains(&s.data))
-                && verify.status.code() == Some(0)
                 && listing["entries"].as_array().is_some_and(|e| e.len() == 1)
                 && listing["unreadable"].as_array().is_some_and(Vec::is_empty)
                 && pruned["temp_files_removed"].as_u64() >= Some(1)
                 && !temp_file_present(dir.path()),
             || {
                 format!(
-                    "mid-write {killed_mid_write}, load {:?}, verify {:?}, prune {pruned}",
+                    "mid-write {killed_mid_write}, load {:?}, prune {pruned}",
                     loaded.map(|s| s.is_some()),
-                    verify.status
                 )
             },
         ),
@@ -623,4 +629,477 @@ fn every_cache_fault_is_detected_and_handled() {
     }
     assert!(tally.tried >= 50);
     assert!(tally.missed.is_empty(), "{:#?}", tally.missed);
+}
+
+// Issue 21: a cache that keeps its own and cannot be fooled. Focused cases, one test each.
+
+/// Runs the binary with a private cache, failing the test (instead of hanging it) if it has
+/// not ended in 20 s.
+fn bounded(cache: &Path, args: &[&str]) -> std::process::Output {
+    bounded_run(cli_support::command(cache, args))
+}
+
+/// Runs `command` to its end, failing the test if it has not ended in 20 s.
+fn bounded_run(mut command: Command) -> std::process::Output {
+    let mut child = command
+        .stdin(Stdio::null())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let deadline = Instant::now() + Duration::from_secs(20);
+    while child.try_wait().unwrap().is_none() {
+        if Instant::now() > deadline {
+            child.kill().unwrap();
+            panic!("{command:?} hung");
+        }
+        std::thread::sleep(Duration::from_millis(10));
+    }
+    child.wait_with_output().unwrap()
+}
+
+/// A cache holding the complete set of `examples/transport_3x3.json`, and that model.
+fn cache_with_transport() -> (tempfile::TempDir, Target) {
+    let dir = tempfile::tempdir().unwrap();
+    let target = Target::new(examples().join("transport_3x3.json"));
+    let (code, status) = target.build_status(dir.path());
+    assert_eq!((code, status.as_str()), (Some(0), "built"));
+    (dir, target)
+}
+
+/// Writes the entry of `key` with `elements` (and the metadata of `like`) in a cache of its
+/// own, then copies the file into `cache`: a forged entry, or one copied from another cache.
+fn copy_in(cache: &Path, like: &cache::StoredSet, key: &EntryKey, elements: Vec<i64>) -> PathBuf {
+    let other = tempfile::tempdir().unwrap();
+    let store = Store::open(other.path()).unwrap();
+    let data = TestSetData::new(key.width(), elements).unwrap();
+    store.replace(key, &data, &like.metadata).unwrap();
+    let to = cache.join(store.entry_path(key.digest()).file_name().unwrap());
+    std::fs::copy(store.entry_path(key.digest()), &to).unwrap();
+    to
+}
+
+#[test]
+fn forged_entries_are_refused_with_the_file_named() {
+    let (dir, target) = cache_with_transport();
+    let store = Store::open(dir.path()).unwrap();
+    let real = store.load(&target.key).unwrap().unwrap();
+    let elements = real.data.elements().to_vec();
+    let width = real.data.width();
+    let mut off_kernel = elements.clone();
+    off_kernel[0] += 1;
+    let mut duplicated = elements.clone();
+    duplicated.extend(elements[..width].iter().map(|x| -x));
+    // Dropping elements leaves a set that need not generate the kernel (the 3 x 3
+    // transportation lattice has dimension 4; its first element alone cannot span it).
+    let first_only = elements[..width].to_vec();
+    let cases = [
+        ("empty element list", Vec::new(), "do not generate"),
+        (
+            "element outside the kernel",
+            off_kernel,
+            "not in the kernel",
+        ),
+        ("element and its negation", duplicated, "negation"),
+        ("one element of many", first_only, "do not generate"),
+    ];
+    let model = path_str(&target.model);
+    for (name, forged, why) in cases {
+        let path = copy_in(dir.path(), &real, &target.key, forged);
+        let file = path.display().to_string();
+        let verify = bounded(dir.path(), &["cache", "verify"]);
+        let stderr = text(&verify.stderr);
+        assert_eq!(verify.status.code(), Some(2), "{name}: {stderr}");
+        assert!(
+            stderr.contains(&file) && stderr.contains(why),
+            "{name}: {stderr}"
+        );
+        let solve = bounded(dir.path(), &["solve", model, "--engine", "moves", "--json"]);
+        let stderr = text(&solve.stderr);
+        assert_eq!(solve.status.code(), Some(2), "{name}: {stderr}");
+        assert!(stderr.contains(&file), "{name}: {stderr}");
+        assert!(solve.stdout.is_empty(), "{name}: nothing is answered");
+    }
+    // A sign pattern the key forbids: a Hilbert entry (every variable >= 0) with a negative
+    // entry.
+    let hilbert = EntryKey {
+        kind: SetKind::Hilbert,
+        signs: vec![Sign::NonNegative; width],
+        ..target.key.clone()
+    };
+    let path = copy_in(dir.path(), &real, &hilbert, elements[..width].to_vec());
+    let verify = bounded(dir.path(), &["cache", "verify", &hilbert.digest().to_hex()]);
+    let stderr = text(&verify.stderr);
+    assert_eq!(verify.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(&path.display().to_string()) && stderr.contains("violates"),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn an_entry_copied_from_another_cache_is_verified_then_served_and_sealed() {
+    let (dir, target) = cache_with_transport();
+    let store = Store::open(dir.path()).unwrap();
+    let real = store.load(&target.key).unwrap().unwrap();
+    copy_in(
+        dir.path(),
+        &real,
+        &target.key,
+        real.data.elements().to_vec(),
+    );
+    assert_eq!(
+        store.load(&target.key).unwrap().unwrap().provenance,
+        cache::Provenance::Foreign
+    );
+    let verify = bounded(dir.path(), &["cache", "verify", "--json"]);
+    assert_eq!(verify.status.code(), Some(0), "{}", text(&verify.stderr));
+    let checked: serde_json::Value = serde_json::from_slice(&verify.stdout).unwrap();
+    assert_eq!(checked[0]["foreign"], true, "{checked}");
+    let model = path_str(&target.model);
+    let solve = bounded(dir.path(), &["solve", model, "--engine", "moves", "--json"]);
+    assert_eq!(solve.status.code(), Some(0), "{}", text(&solve.stderr));
+    let loaded = store.load(&target.key).unwrap().unwrap();
+    assert_eq!(loaded.provenance, cache::Provenance::Sealed);
+    assert_eq!(loaded.data, real.data);
+}
+
+#[test]
+fn a_foreign_directory_is_never_pruned() {
+    let dir = tempfile::tempdir().unwrap();
+    let notes = dir.path().join("notes.txt");
+    std::fs::write(&notes, "field notes").unwrap();
+    let draft = dir.path().join(".draft.tmp");
+    std::fs::write(&draft, "draft").unwrap();
+    let out = bounded(dir.path(), &["cache", "prune", "--older-than", "0s"]);
+    let stderr = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("not a kernstep cache directory") && stderr.contains("notes.txt"),
+        "{stderr}"
+    );
+    assert!(notes.exists() && draft.exists());
+    assert!(!dir.path().join(cache::MARKER_NAME).exists());
+}
+
+#[test]
+fn prune_racing_a_build_removes_none_of_its_files() {
+    let models = tempfile::tempdir().unwrap();
+    let model = transport_model(models.path(), 4, 6);
+    let cache = tempfile::tempdir().unwrap();
+    let args = [
+        "build",
+        "--engine",
+        "moves",
+        path_str(&model),
+        "--checkpoint-every",
+        "0.01s",
+        "--json",
+    ];
+    let mut build = cli_support::command(cache.path(), &args)
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut busy = 0;
+    let mut prunes = 0;
+    while build.try_wait().unwrap().is_none() {
+        let out = kernstep(
+            cache.path(),
+            &["cache", "prune", "--older-than", "0s", "--json"],
+        );
+        assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+        let report: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        prunes += 1;
+        busy += usize::from(report["busy"].as_array().is_some_and(|b| !b.is_empty()));
+    }
+    let out = build.wait_with_output().unwrap();
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(rows[0]["status"], "built", "{rows}");
+    eprintln!("{prunes} prunes ran during the build, {busy} found its files busy");
+    // The race really happened: some prune found the build's files and left them alone.
+    assert!(busy >= 1, "no prune overlapped the build ({prunes} ran)");
+    let verify = kernstep(cache.path(), &["cache", "verify"]);
+    assert_eq!(verify.status.code(), Some(0), "{}", text(&verify.stderr));
+}
+
+/// The library's saved state of an interrupted build of `target` in `dir`: a build stopped
+/// by a time limit right after its first save.
+fn stopped_build(dir: &Path, target: &Target) -> kernstep::completion::Checkpoint {
+    let library = SetLibrary::open(Some(dir))
+        .unwrap()
+        .checkpoint_every(Duration::ZERO);
+    let analysis = MatrixAnalysis::of(&target.parsed.matrix, &AnalysisOptions::new());
+    let control = Control::new().time_limit(Duration::from_nanos(1));
+    let outcome = library
+        .obtain(
+            &target.parsed.matrix,
+            &analysis,
+            &target.spec,
+            &control,
+            false,
+        )
+        .unwrap();
+    assert!(
+        matches!(outcome, Obtained::Stopped { kept: Some(_), .. }),
+        "{outcome:?}"
+    );
+    library
+        .resume_point(&target.parsed.matrix, &target.spec)
+        .unwrap()
+        .expect("a checkpoint was saved")
+}
+
+/// Replaces the state inside the checkpoint of `target` by `state`, keeping the rest of the
+/// payload (layout tag, request, work time) and writing a container with a valid checksum.
+fn rewrite_state(
+    store: &Store,
+    target: &Target,
+    old: &kernstep::completion::Checkpoint,
+    state: &kernstep::completion::Checkpoint,
+) {
+    let encode = |c| bincode::serde::encode_to_vec(c, bincode::config::standard()).unwrap();
+    let (old, new) = (encode(old), encode(state));
+    let bytes = std::fs::read(store.checkpoint_path(target.key.digest())).unwrap();
+    // The container: a 36-byte head and an 8-byte checksum around the payload.
+    let payload = &bytes[36..bytes.len() - 8];
+    let at = payload
+        .windows(old.len())
+        .position(|w| w == old.as_slice())
+        .expect("the state is in the payload");
+    let mut forged = payload[..at].to_vec();
+    forged.extend_from_slice(&new);
+    forged.extend_from_slice(&payload[at + old.len()..]);
+    store.save_checkpoint(&target.key, &forged).unwrap();
+}
+
+#[test]
+fn a_checkpoint_with_a_valid_checksum_and_invalid_content_is_set_aside() {
+    let models = tempfile::tempdir().unwrap();
+    let target = Target::new(transport_model(models.path(), 3, 4));
+    let expected = target.uncached();
+    type Forge = fn(&mut kernstep::completion::Checkpoint);
+    let cases: [(&str, Forge); 2] = [
+        ("an element outside the kernel", |c| c.elements[0][0] += 1),
+        ("a component lifted twice", |c| c.lifted.push(c.lifted[0])),
+    ];
+    for (name, forge) in cases {
+        let dir = tempfile::tempdir().unwrap();
+        let store = Store::open(dir.path()).unwrap();
+        let state = stopped_build(dir.path(), &target);
+        let mut bad = state.clone();
+        forge(&mut bad);
+        rewrite_state(&store, &target, &state, &bad);
+        let checkpoint = store.checkpoint_path(target.key.digest());
+        let (code, status) = {
+            let out = bounded(
+                dir.path(),
+                &[
+                    "build",
+                    "--engine",
+                    "moves",
+                    path_str(&target.model),
+                    "--json",
+                ],
+            );
+            let stderr = text(&out.stderr);
+            assert!(
+                stderr.contains(&checkpoint.display().to_string())
+                    && stderr.contains("moved it to")
+                    && stderr.contains(".kckpt.bad"),
+                "{name}: {stderr}"
+            );
+            let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+            (
+                out.status.code(),
+                rows[0]["status"].as_str().unwrap().to_string(),
+            )
+        };
+        assert_eq!((code, status.as_str()), (Some(0), "built"), "{name}");
+        assert!(!checkpoint.exists(), "{name}");
+        assert!(store.set_aside_path(target.key.digest()).exists(), "{name}");
+        let built = store.load(&target.key).unwrap().unwrap();
+        assert_eq!(
+            built.data.rows().map(<[i64]>::to_vec).collect::<Vec<_>>(),
+            expected
+        );
+        // The next build finds the entry; the set-aside file is listed until pruned.
+        let listing = bounded(dir.path(), &["cache", "list", "--json"]);
+        let doc: serde_json::Value = serde_json::from_slice(&listing.stdout).unwrap();
+        assert_eq!(doc["checkpoints"][0]["set_aside"], true, "{doc}");
+    }
+}
+
+#[test]
+fn cache_list_shows_checkpoints_and_held_and_stale_locks() {
+    let models = tempfile::tempdir().unwrap();
+    let target = Target::new(transport_model(models.path(), 3, 4));
+    let dir = tempfile::tempdir().unwrap();
+    let state = stopped_build(dir.path(), &target);
+    let store = Store::open(dir.path()).unwrap();
+    let list = || -> serde_json::Value {
+        let out = bounded(dir.path(), &["cache", "list", "--json"]);
+        assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+        serde_json::from_slice(&out.stdout).unwrap()
+    };
+    let held = {
+        let _guard = store.lock_for_build(&target.key).unwrap();
+        list()
+    };
+    let hex = target.hex();
+    let checkpoint = &held["checkpoints"][0];
+    assert_eq!(checkpoint["digest"], hex.as_str(), "{held}");
+    assert_eq!(checkpoint["held"], true, "{held}");
+    assert_eq!(checkpoint["set_aside"], false, "{held}");
+    assert_eq!(checkpoint["moves"], state.elements.len(), "{held}");
+    assert_eq!(checkpoint["lifted"], state.lifted.len(), "{held}");
+    assert_eq!(checkpoint["components"], 12, "{held}");
+    assert_eq!(held["locks"][0]["held"], true, "{held}");
+    assert!(
+        list()["locks"].as_array().unwrap().is_empty(),
+        "released, its file went"
+    );
+    // What a builder killed with SIGKILL leaves: its lock file, held by nobody.
+    std::fs::write(store.lock_path(target.key.digest()), b"").unwrap();
+    let stale = list();
+    assert_eq!(stale["locks"][0]["digest"], hex.as_str(), "{stale}");
+    assert_eq!(stale["locks"][0]["held"], false, "{stale}");
+    let table = text(&bounded(dir.path(), &["cache", "list"]).stdout);
+    assert!(
+        table.contains("checkpoints") && table.contains("stopped"),
+        "{table}"
+    );
+    assert!(
+        table.contains("locks") && table.contains("stale"),
+        "{table}"
+    );
+    // Old and unlocked: prune takes the checkpoint and the lock.
+    let pruned = bounded(
+        dir.path(),
+        &["cache", "prune", "--older-than", "0s", "--json"],
+    );
+    let report: serde_json::Value = serde_json::from_slice(&pruned.stdout).unwrap();
+    assert_eq!(report["checkpoints_removed"][0], hex.as_str(), "{report}");
+    assert_eq!(report["locks_removed"], 1, "{report}");
+    let after = list();
+    assert!(
+        after["checkpoints"].as_array().unwrap().is_empty(),
+        "{after}"
+    );
+    assert!(after["locks"].as_array().unwrap().is_empty(), "{after}");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_fifo_or_a_link_to_dev_zero_is_refused_as_model_and_as_entry() {
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("plan.json");
+    let status = Command::new("mkfifo").arg(&fifo).status().unwrap();
+    assert!(status.success());
+    let zero = dir.path().join("zero.json");
+    std::os::unix::fs::symlink("/dev/zero", &zero).unwrap();
+    let cache = tempfile::tempdir().unwrap();
+    for (path, found) in [(&fifo, "a FIFO"), (&zero, "a device")] {
+        let mut analyze = Command::new(env!("CARGO_BIN_EXE_kernstep"));
+        analyze.args(["analyze", path_str(path)]);
+        let out = bounded_run(analyze);
+        let stderr = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains(&path.display().to_string()) && stderr.contains(found),
+            "{stderr}"
+        );
+    }
+    // As the cache entry of the model a solve looks up.
+    let target = Target::new(examples().join("transport_3x3.json"));
+    let model = path_str(&target.model);
+    for make in ["fifo", "zero"] {
+        let store = Store::open(cache.path()).unwrap();
+        let entry = store.entry_path(target.key.digest());
+        let _ = std::fs::remove_file(&entry);
+        if make == "fifo" {
+            assert!(Command::new("mkfifo")
+                .arg(&entry)
+                .status()
+                .unwrap()
+                .success());
+        } else {
+            std::os::unix::fs::symlink("/dev/zero", &entry).unwrap();
+        }
+        let verify = bounded(cache.path(), &["cache", "verify"]);
+        let stderr = text(&verify.stderr);
+        assert_eq!(verify.status.code(), Some(2), "{make}: {stderr}");
+        assert!(stderr.contains("not a regular file"), "{make}: {stderr}");
+        let solve = bounded(cache.path(), &["solve", model, "--engine", "moves"]);
+        assert_eq!(
+            solve.status.code(),
+            Some(2),
+            "{make}: {}",
+            text(&solve.stderr)
+        );
+        let list = bounded(cache.path(), &["cache", "list"]);
+        assert_eq!(list.status.code(), Some(0), "{make}");
+    }
+}
+
+/// Issue 21: a build that has to wait for another build of its set says so on stderr, naming
+/// that build's process and start time; it goes on when the lock is released (and then
+/// builds, the holder having stored nothing), and Ctrl-C ends the wait with exit 130, nothing
+/// kept and no entry written.
+#[test]
+fn a_build_waiting_for_a_lock_names_its_holder() {
+    use std::io::BufRead;
+    let models = tempfile::tempdir().unwrap();
+    let target = Target::new(transport_model(models.path(), 3, 4));
+    let args = [
+        "build",
+        "--engine",
+        "moves",
+        path_str(&target.model),
+        "--progress",
+        "none",
+        "--json",
+    ];
+    for signal in [None, Some("-INT")] {
+        let dir = tempfile::tempdir().unwrap();
+        let store = Store::open(dir.path()).unwrap();
+        let guard = store.lock_for_build(&target.key).unwrap();
+        let mut child = cli_support::command(dir.path(), &args)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        let mut stderr = std::io::BufReader::new(child.stderr.take().unwrap());
+        let mut line = String::new();
+        stderr.read_line(&mut line).unwrap();
+        let holder = format!(
+            "kernstep: waiting for another build of this set (process {}, started ",
+            std::process::id()
+        );
+        assert!(line.starts_with(&holder), "{line}");
+        match signal {
+            None => drop(guard),
+            Some(signal) => {
+                let sent = Command::new("kill")
+                    .args([signal, &child.id().to_string()])
+                    .status()
+                    .unwrap();
+                assert!(sent.success());
+            }
+        }
+        let out = child.wait_with_output().unwrap();
+        let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        if signal.is_none() {
+            assert_eq!(out.status.code(), Some(0), "{rows}");
+            assert_eq!(rows[0]["status"], "built", "{rows}");
+        } else {
+            assert_eq!(out.status.code(), Some(130), "{rows}");
+            assert_eq!(
+                rows[0]["status"], "stopped: interrupted; nothing kept",
+                "{rows}"
+            );
+            assert!(store.list().unwrap().is_empty(), "no entry written");
+        }
+    }
 }

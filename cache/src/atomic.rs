@@ -4,7 +4,7 @@
 //! file system), which is flushed and fsynced, then renamed over the target; finally the
 //! directory itself is fsynced so the rename survives a power cut. A writer killed half-way
 //! leaves only a temporary file, which listings ignore and [`Store::prune`](crate::Store::prune)
-//! removes.
+//! removes once no builder holds the key's lock.
 
 use std::fs::{self, OpenOptions};
 use std::io::Write;
@@ -34,12 +34,9 @@ pub(crate) fn write_atomic(target: &Path, bytes: &[u8]) -> Result<(), CacheError
     result
 }
 
-/// Whether a directory entry name is one of our temporary files.
-pub(crate) fn is_temp_name(name: &str) -> bool {
-    name.starts_with('.') && name.ends_with(TEMP_SUFFIX)
-}
-
-fn temp_path(target: &Path) -> PathBuf {
+/// A fresh temporary name beside `target`: `.<target name>.<pid>-<n>.tmp`, so that the file
+/// is attributable to the key (and lock) of its target.
+pub(crate) fn temp_path(target: &Path) -> PathBuf {
     let name = target
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())

@@ -25,6 +25,8 @@ use crate::digest::Digest;
 use crate::error::CacheError;
 use crate::format::{check_magic_version, checked_body, key_mismatch, too_short};
 use crate::key::EntryKey;
+use crate::owned::SET_ASIDE_SUFFIX;
+use crate::safe_read::{open_regular, read_exactly, read_up_to};
 use crate::store::Store;
 
 /// File-name suffix of checkpoints.
@@ -74,17 +76,42 @@ impl Store {
     /// Loads the checkpoint for `key`; a damaged one is reported as
     /// [`CheckpointState::Damaged`], never returned as data. `Err` only for I/O failures.
     pub fn load_checkpoint(&self, key: &EntryKey) -> Result<CheckpointState, CacheError> {
-        let digest = key.digest();
+        self.load_checkpoint_of(key.digest())
+    }
+
+    /// [`Store::load_checkpoint`] by the key's digest (for listings).
+    pub fn load_checkpoint_of(&self, digest: Digest) -> Result<CheckpointState, CacheError> {
         let path = self.checkpoint_path(digest);
-        let bytes = match fs::read(&path) {
-            Ok(b) => b,
-            Err(e) if e.kind() == ErrorKind::NotFound => return Ok(CheckpointState::Missing),
-            Err(e) => return Err(CacheError::io("read", path, e)),
+        let bytes = match read_checkpoint_file(&path) {
+            Ok(Some(bytes)) => bytes,
+            Ok(None) => return Ok(CheckpointState::Missing),
+            Err(e) if e.is_damage() => return Ok(CheckpointState::Damaged(e)),
+            Err(e) => return Err(e),
         };
         Ok(match decode_checkpoint(&bytes, &path, digest) {
             Ok(state) => CheckpointState::Present(state.to_vec()),
             Err(e) => CheckpointState::Damaged(e),
         })
+    }
+
+    /// Where a checkpoint of `digest` set aside as unusable goes.
+    pub fn set_aside_path(&self, digest: Digest) -> PathBuf {
+        self.dir()
+            .join(format!("{digest}.{CHECKPOINT_SUFFIX}.{SET_ASIDE_SUFFIX}"))
+    }
+
+    /// Moves the checkpoint for `key` aside (renamed to [`Store::set_aside_path`], replacing
+    /// an older one there), so that a build starts over and the file stays for inspection
+    /// until `prune` removes it. Returns where it went, `Ok(None)` if there was none. The
+    /// caller holds the key's build lock.
+    pub fn set_aside_checkpoint(&self, key: &EntryKey) -> Result<Option<PathBuf>, CacheError> {
+        let digest = key.digest();
+        let (from, to) = (self.checkpoint_path(digest), self.set_aside_path(digest));
+        match fs::rename(&from, &to) {
+            Ok(()) => sync_dir(self.dir()).map(|()| Some(to)),
+            Err(e) if e.kind() == ErrorKind::NotFound => Ok(None),
+            Err(e) => Err(CacheError::io("set aside", from, e)),
+        }
     }
 
     /// Removes the checkpoint for `key`; `Ok(false)` if there was none.
@@ -96,6 +123,32 @@ impl Store {
             Err(e) => Err(CacheError::io("remove", path, e)),
         }
     }
+}
+
+/// Reads a checkpoint file with the checks of [`crate::format::read_entry_file`]: a regular
+/// file, magic and version first, its length against the header's before the rest.
+fn read_checkpoint_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError> {
+    let Some((mut file, file_len)) = open_regular(path, "checkpoint")? else {
+        return Ok(None);
+    };
+    let mut bytes = vec![0u8; HEAD];
+    let got = read_up_to(&mut file, &mut bytes, path)?;
+    bytes.truncate(got);
+    check_magic_version(&bytes, path, &CHECKPOINT_MAGIC, "checkpoint", VERSION)?;
+    if bytes.len() < HEAD {
+        return Err(too_short(path, HEAD + TRAILER, bytes.len()));
+    }
+    let len = u64::from_le_bytes(bytes[28..36].try_into().expect("8 bytes"));
+    let expected = len.checked_add((HEAD + TRAILER) as u64);
+    if expected != Some(file_len) {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected: expected.unwrap_or(u64::MAX),
+            actual: file_len,
+        });
+    }
+    bytes.extend(read_exactly(&mut file, file_len - HEAD as u64, path)?);
+    Ok(Some(bytes))
 }
 
 fn decode_checkpoint<'a>(

@@ -147,6 +147,36 @@ pub enum CacheError {
         /// Every digest that matches it.
         matches: Vec<String>,
     },
+    /// Something other than a regular file (a FIFO, a device, a socket, a directory) is where
+    /// a cache file should be; it is never read.
+    #[error("{} is {found}, not a regular file: refusing to read it as a {what}", path.display())]
+    NotRegularFile {
+        /// The path concerned.
+        path: PathBuf,
+        /// What the file should have been ("test-set", "checkpoint", ...).
+        what: &'static str,
+        /// What is there instead ("a FIFO", "a device", ...).
+        found: &'static str,
+    },
+    /// The cache's secret key cannot be read, created or trusted.
+    #[error("cache secret {}: {problem}", path.display())]
+    Secret {
+        /// The secret's file.
+        path: PathBuf,
+        /// What is wrong.
+        problem: String,
+    },
+    /// Maintenance was asked of a directory without kernstep's marker that holds other files:
+    /// nothing is deleted there.
+    #[error("{} is not a kernstep cache directory (no {marker}, and it holds {stranger:?}, which kernstep did not write): nothing removed", dir.display())]
+    ForeignDir {
+        /// The directory.
+        dir: PathBuf,
+        /// The marker's file name.
+        marker: &'static str,
+        /// One file that kernstep did not write.
+        stranger: String,
+    },
     /// The text is not a (prefix of a) hexadecimal digest.
     #[error("'{text}' is not a hexadecimal digest or digest prefix")]
     BadDigestText {
@@ -156,8 +186,9 @@ pub enum CacheError {
 }
 
 impl CacheError {
-    /// Whether the error says a stored file is damaged, foreign or of another version (as
-    /// opposed to an I/O failure or bad input): such a file is never used and may be rebuilt.
+    /// Whether the error says a stored file is damaged, foreign, of another version or not a
+    /// regular file at all (as opposed to an I/O failure or bad input): such a file is never
+    /// used and may be rebuilt.
     pub fn is_damage(&self) -> bool {
         matches!(
             self,
@@ -168,6 +199,7 @@ impl CacheError {
                 | CacheError::KeyMismatch { .. }
                 | CacheError::Malformed { .. }
                 | CacheError::Decode { .. }
+                | CacheError::NotRegularFile { .. }
         )
     }
 

@@ -1,11 +1,11 @@
-//! The entry file format, version 1 (`<digest-hex>.kset`).
+//! The entry file format, version 2 (`<digest-hex>.kset`).
 //!
 //! All integers are little-endian. Offsets in bytes:
 //!
 //! ```text
 //! offset  size  field
 //!      0     8  magic: 0x89 'K' 'S' 'E' 'T' 0x0D 0x0A 0x1A
-//!      8     2  format version (u16) = 1
+//!      8     2  format version (u16) = 2
 //!     10     1  element encoding tag (see `encoding`: 0 Trit, 1 i8, 2 i16, 3 i32, 4 i64)
 //!     11     1  flags, must be 0
 //!     12    16  key digest (XXH3-128 of the canonical key encoding, see `key`)
@@ -18,16 +18,21 @@
 //!     68     K  key: `EntryKey`, bincode 2 standard configuration via serde
 //!   68+K     M  metadata: `SetMetadata`, same configuration
 //! 68+K+M     P  elements, flat row-major, in the tagged encoding
-//!    end-8   8  XXH3-64 of every preceding byte
+//!   end-40  32  keyed BLAKE3 of every preceding byte under the cache's secret (the seal)
+//!    end-8   8  XXH3-64 of every preceding byte, the seal included (the checksum)
 //! ```
 //!
-//! A reader checks, in this order: magic, version, flags and tag, total length
-//! (68 + K + M + P + 8, which catches truncation), checksum, then the key digest against the
-//! file name and against the stored key, then the sections. Any failure is a typed [`CacheError`] naming the
+//! Version 1 had the checksum alone; its files are refused as of another version (and
+//! rebuilt). A reader checks, in this order: that the path is a regular file, magic,
+//! version, flags and tag, the total length (68 + K + M + P + 40, against the file's length
+//! before anything more is read, which catches truncation), checksum, then the key digest
+//! against the file name and against the stored key, then the sections, and finally the seal.
+//! A bad checksum means damage; a good checksum with a seal that does not verify under this
+//! cache's secret means a foreign entry ([`Provenance::Foreign`]), which the caller must check
+//! in full before use. Any failure is a typed [`CacheError`] naming the
 //! file, and the entry is not used. The magic's first byte is non-ASCII and its tail holds CR
 //! LF and SUB, so text-mode transfers are detected.
 
-use std::fs::File;
 use std::io::Read;
 use std::path::Path;
 
@@ -41,15 +46,19 @@ use crate::encoding::{self, ElementEncoding};
 use crate::error::CacheError;
 use crate::key::EntryKey;
 use crate::metadata::SetMetadata;
+use crate::safe_read::{open_regular, read_exactly, read_up_to};
+use crate::seal::{Provenance, Secret, SEAL_LEN};
 
 /// First eight bytes of every entry file.
 pub const ENTRY_MAGIC: [u8; 8] = [0x89, b'K', b'S', b'E', b'T', 0x0D, 0x0A, 0x1A];
 /// The entry format version this build reads and writes.
-pub const FORMAT_VERSION: u16 = 1;
+pub const FORMAT_VERSION: u16 = 2;
 /// Bytes before the key section.
 pub const HEADER_LEN: usize = 68;
-/// Bytes of the checksum trailer.
-pub const TRAILER_LEN: usize = 8;
+/// Bytes of the checksum.
+const CHECKSUM_LEN: usize = 8;
+/// Bytes of the trailer: seal, then checksum.
+pub const TRAILER_LEN: usize = CHECKSUM_LEN + SEAL_LEN;
 const WHAT: &str = "test-set";
 /// Largest section bincode may decode (guards allocations in unchecksummed partial reads).
 const SECTION_LIMIT: usize = 1 << 28;
@@ -73,6 +82,7 @@ pub(crate) struct DecodedEntry {
     pub metadata: SetMetadata,
     pub data: TestSetData,
     pub encoding: ElementEncoding,
+    pub provenance: Provenance,
 }
 
 /// The header, key and metadata of an entry, read without the elements and unchecksummed.
@@ -83,11 +93,12 @@ pub(crate) struct EntryHead {
     pub file_len: u64,
 }
 
-/// Serialises one entry to the bytes of its file.
+/// Serialises one entry to the bytes of its file, sealed with `secret`.
 pub(crate) fn encode_entry(
     key: &EntryKey,
     data: &TestSetData,
     metadata: &SetMetadata,
+    secret: &Secret,
 ) -> Result<Vec<u8>, CacheError> {
     let key_bytes = encode_section("key", key)?;
     let meta_bytes = encode_section("metadata", metadata)?;
@@ -118,6 +129,8 @@ pub(crate) fn encode_entry(
     out.extend_from_slice(&key_bytes);
     out.extend_from_slice(&meta_bytes);
     encoding::encode(encoding, data.elements(), &mut out);
+    let seal = secret.seal(&out);
+    out.extend_from_slice(&seal);
     let checksum = xxh3_64(&out);
     out.extend_from_slice(&checksum.to_le_bytes());
     Ok(out)
@@ -125,7 +138,7 @@ pub(crate) fn encode_entry(
 
 /// Checks that `bytes` has the `expected` length (`None`: a length that overflowed) and that
 /// its trailing XXH3-64 matches everything before it; returns that checked body. Shared by
-/// entries and checkpoints.
+/// entries (without their seal) and checkpoints.
 pub(crate) fn checked_body<'a>(
     bytes: &'a [u8],
     path: &Path,
@@ -138,7 +151,7 @@ pub(crate) fn checked_body<'a>(
             actual: bytes.len() as u64,
         });
     }
-    let (body, trailer) = bytes.split_at(bytes.len() - TRAILER_LEN);
+    let (body, trailer) = bytes.split_at(bytes.len() - CHECKSUM_LEN);
     let stored = u64::from_le_bytes(trailer.try_into().expect("trailer is 8 bytes"));
     let computed = xxh3_64(body);
     if stored != computed {
@@ -151,35 +164,72 @@ pub(crate) fn checked_body<'a>(
     Ok(body)
 }
 
-/// Checks and decodes a whole entry file whose name says it holds `named`.
+/// Reads the whole entry file at `path` (`Ok(None)` if absent): a regular file whose header
+/// is checked, and whose length is compared with the header's, before the rest is read.
+pub(crate) fn read_entry_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError> {
+    let Some((mut file, file_len)) = open_regular(path, WHAT)? else {
+        return Ok(None);
+    };
+    let mut bytes = vec![0u8; HEADER_LEN];
+    let got = read_up_to(&mut file, &mut bytes, path)?;
+    bytes.truncate(got);
+    let header = parse_header(&bytes, path)?;
+    let expected = total_len(&header, path)?;
+    if expected != file_len {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected,
+            actual: file_len,
+        });
+    }
+    bytes.extend(read_exactly(&mut file, expected - HEADER_LEN as u64, path)?);
+    Ok(Some(bytes))
+}
+
+/// Checks and decodes a whole entry file whose name says it holds `named`, and tells whether
+/// `secret` sealed it.
 pub(crate) fn decode_entry(
     bytes: &[u8],
     path: &Path,
     named: Digest,
+    secret: &Secret,
 ) -> Result<DecodedEntry, CacheError> {
     let header = parse_header(bytes, path)?;
-    let body = checked_body(bytes, path, Some(total_len(&header, path)?))?;
+    let total = total_len(&header, path)?;
+    if total != bytes.len() as u64 {
+        return Err(CacheError::LengthMismatch {
+            path: path.to_owned(),
+            expected: total,
+            actual: bytes.len() as u64,
+        });
+    }
+    let checked = checked_body(bytes, path, Some(total))?;
+    let (body, seal) = checked.split_at(checked.len() - SEAL_LEN);
     let key_end = HEADER_LEN + header.key_len;
     let meta_end = key_end + header.meta_len;
     let key = decode_key(&bytes[HEADER_LEN..key_end], &header, path, named)?;
     let metadata = decode_section(&bytes[key_end..meta_end], path, "metadata")?;
     let data = decode_payload(&bytes[meta_end..body.len()], &header, &key, path)?;
+    let seal: &[u8; SEAL_LEN] = seal.try_into().expect("the seal's length");
     Ok(DecodedEntry {
         key,
         metadata,
         data,
         encoding: header.encoding,
+        provenance: secret.verifies(body, seal),
     })
 }
 
 /// Reads header, key and metadata of the file at `path` (no checksum: for listings and
 /// for choosing candidates, which are fully checked before use).
 pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheError> {
-    let mut file = File::open(path).map_err(|e| CacheError::io("open", path, e))?;
-    let file_len = file
-        .metadata()
-        .map_err(|e| CacheError::io("inspect", path, e))?
-        .len();
+    let (mut file, file_len) = open_regular(path, WHAT)?.ok_or_else(|| {
+        CacheError::io(
+            "open",
+            path,
+            std::io::Error::from(std::io::ErrorKind::NotFound),
+        )
+    })?;
     let mut head = vec![0u8; HEADER_LEN];
     let got = read_up_to(&mut file, &mut head, path)?;
     head.truncate(got);
@@ -204,19 +254,6 @@ pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheEr
         metadata,
         file_len,
     })
-}
-
-fn read_up_to(file: &mut File, buf: &mut [u8], path: &Path) -> Result<usize, CacheError> {
-    let mut filled = 0;
-    while filled < buf.len() {
-        match file.read(&mut buf[filled..]) {
-            Ok(0) => break,
-            Ok(n) => filled += n,
-            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
-            Err(e) => return Err(CacheError::io("read", path, e)),
-        }
-    }
-    Ok(filled)
 }
 
 /// Checks magic, version, flags and encoding tag, then parses the fixed header.

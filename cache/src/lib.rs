@@ -6,11 +6,15 @@
 //! - an [`EntryKey`] (row space text, [`SetKind`], [`Sign`] pattern, [`Truncation`]) has a
 //!   stable [`Digest`] that names the file `<digest-hex>.kset`;
 //! - each file holds a versioned header, the key, [`SetMetadata`] and the elements in the
-//!   narrowest [`ElementEncoding`], with a checksum over everything (layout in [`mod@format`]);
+//!   narrowest [`ElementEncoding`], sealed with a keyed hash under the cache's own secret and
+//!   checksummed (layout in [`mod@format`]); an entry that another cache sealed, or that was
+//!   edited, comes back marked [`Provenance::Foreign`] for the caller to check in full;
+//! - the directory carries a marker, and maintenance touches only kernstep's own files there,
+//!   never those of a build holding its key's lock ([`FileKind`], [`Store::prune`]);
 //! - writes are atomic (temporary file, fsync, rename, directory fsync), builders of one key
 //!   are serialised by a per-key lock ([`Store::lock_for_build`]), and every load checks the
-//!   whole file: a damaged, truncated, foreign or renamed file gives a typed [`CacheError`]
-//!   naming it and is never handed back;
+//!   whole file (only if it is a regular file): a damaged, truncated, other-version or renamed
+//!   file gives a typed [`CacheError`] naming it and is never handed back;
 //! - [`Store::find_covering`] reuses a box- or norm-truncated set for instances inside its
 //!   truncation;
 //! - checkpoints of resumable builds are opaque checksummed bytes ([`Store::save_checkpoint`]).
@@ -68,6 +72,9 @@ mod location;
 mod lock;
 mod maintenance;
 mod metadata;
+mod owned;
+mod safe_read;
+mod seal;
 mod store;
 mod validate;
 
@@ -79,7 +86,9 @@ pub use encoding::ElementEncoding;
 pub use error::CacheError;
 pub use key::{EntryKey, SetKind, Sign, Truncation};
 pub use location::{default_dir, resolve_dir, DIR_ENV};
-pub use lock::{BuildGuard, BuildLock, LOCK_SUFFIX};
-pub use maintenance::{ExportedEntry, PruneReport, Verified};
+pub use lock::{BuildGuard, BuildLock, LockHolder, LockWait, LOCK_SUFFIX};
+pub use maintenance::{ExportedEntry, FileSummary, PruneReport, Verified};
 pub use metadata::{Completeness, SetMetadata};
+pub use owned::{classify, FileKind, MARKER_NAME, SET_ASIDE_SUFFIX};
+pub use seal::{Provenance, SECRET_NAME};
 pub use store::{EntrySummary, Store, StoredSet, ENTRY_SUFFIX};

@@ -1,8 +1,8 @@
 //! The store: a directory of entry files named by key digest.
 
 use std::fs;
-use std::io::ErrorKind;
 use std::path::{Path, PathBuf};
+use std::sync::{Arc, OnceLock};
 
 use serde::{Deserialize, Serialize};
 
@@ -15,6 +15,8 @@ use crate::format::{self, key_mismatch};
 use crate::key::{EntryKey, SetKind, Truncation};
 use crate::location::default_dir;
 use crate::metadata::{Completeness, SetMetadata};
+use crate::owned::{claim, MARKER_NAME};
+use crate::seal::{Provenance, Secret};
 use crate::validate::check_entry;
 
 /// File-name suffix of entries: `<digest-hex>.kset`.
@@ -24,6 +26,11 @@ pub const ENTRY_SUFFIX: &str = "kset";
 #[derive(Clone, Debug)]
 pub struct Store {
     dir: PathBuf,
+    /// `None` when the directory is kernstep's (it has the marker); else one file in it that
+    /// kernstep did not write, and maintenance is refused.
+    stranger: Option<String>,
+    /// The secret that seals entries, read (or created) on first use.
+    secret: Arc<OnceLock<Secret>>,
 }
 
 /// A checked entry as loaded from disk.
@@ -41,6 +48,9 @@ pub struct StoredSet {
     pub encoding: ElementEncoding,
     /// File size in bytes.
     pub size_bytes: u64,
+    /// Whether this cache sealed the entry; a [`Provenance::Foreign`] entry passed every
+    /// check of the file but must have its content checked in full before it is used.
+    pub provenance: Provenance,
 }
 
 /// One line of a listing.
@@ -85,7 +95,9 @@ impl StoredSet {
 
 impl Store {
     /// Opens (creating if needed) the store in `dir` and checks that it is writable by
-    /// creating and removing a probe file; otherwise [`CacheError::DirUnusable`].
+    /// creating and removing a probe file; otherwise [`CacheError::DirUnusable`]. Writes the
+    /// cache marker when the directory is new, empty or holds only kernstep's files (see
+    /// [`crate::FileKind`]); any other directory opens as foreign ([`Store::is_foreign`]).
     pub fn open(dir: impl Into<PathBuf>) -> Result<Store, CacheError> {
         let dir = dir.into();
         let unusable = |source| CacheError::DirUnusable {
@@ -104,7 +116,39 @@ impl Store {
         ));
         fs::write(&probe, b"").map_err(unusable)?;
         fs::remove_file(&probe).map_err(unusable)?;
-        Ok(Store { dir })
+        let stranger = claim(&dir)?;
+        Ok(Store {
+            dir,
+            stranger,
+            secret: Arc::default(),
+        })
+    }
+
+    /// Whether the directory lacks kernstep's marker and holds files kernstep did not write:
+    /// entries load and store there, but `prune` and `remove` refuse to delete anything.
+    pub fn is_foreign(&self) -> bool {
+        self.stranger.is_some()
+    }
+
+    /// [`CacheError::ForeignDir`] unless the directory is kernstep's own.
+    pub(crate) fn check_owned(&self) -> Result<(), CacheError> {
+        match &self.stranger {
+            None => Ok(()),
+            Some(name) => Err(CacheError::ForeignDir {
+                dir: self.dir.clone(),
+                marker: MARKER_NAME,
+                stranger: name.clone(),
+            }),
+        }
+    }
+
+    /// The cache's secret, read or created on first use.
+    pub(crate) fn secret(&self) -> Result<&Secret, CacheError> {
+        if let Some(secret) = self.secret.get() {
+            return Ok(secret);
+        }
+        let secret = Secret::load_or_create(&self.dir)?;
+        Ok(self.secret.get_or_init(|| secret))
     }
 
     /// Opens the store at [`default_dir`]`(explicit)`.
@@ -123,7 +167,8 @@ impl Store {
     }
 
     /// Loads the entry for exactly `key`: `Ok(None)` if there is none, an error if the file
-    /// is damaged (it is never handed back).
+    /// is damaged (it is never handed back). A foreign entry is handed back marked as such
+    /// ([`StoredSet::provenance`]).
     pub fn load(&self, key: &EntryKey) -> Result<Option<StoredSet>, CacheError> {
         let digest = key.digest();
         let Some(set) = self.load_if_present(digest)? else {
@@ -203,6 +248,14 @@ impl Store {
         }
     }
 
+    /// Seals a foreign entry with this cache's key, once the caller has checked its content
+    /// in full: rewrites it (waiting for a builder of the key) with the same key, metadata
+    /// and elements.
+    pub fn reseal(&self, set: &StoredSet) -> Result<EntrySummary, CacheError> {
+        let _lock = self.lock_key(set.digest)?;
+        self.write_entry(&set.key, &set.data, &set.metadata)
+    }
+
     /// Validates and writes an entry; the caller holds the key's lock.
     pub(crate) fn write_entry(
         &self,
@@ -211,7 +264,7 @@ impl Store {
         metadata: &SetMetadata,
     ) -> Result<EntrySummary, CacheError> {
         check_entry(key, data, metadata)?;
-        let bytes = format::encode_entry(key, data, metadata)?;
+        let bytes = format::encode_entry(key, data, metadata, self.secret()?)?;
         let digest = key.digest();
         write_atomic(&self.entry_path(digest), &bytes)?;
         Ok(EntrySummary {
@@ -230,12 +283,10 @@ impl Store {
     /// Reads and fully checks the entry named `digest`, `Ok(None)` if the file is absent.
     pub(crate) fn load_if_present(&self, digest: Digest) -> Result<Option<StoredSet>, CacheError> {
         let path = self.entry_path(digest);
-        let bytes = match fs::read(&path) {
-            Ok(b) => b,
-            Err(e) if e.kind() == ErrorKind::NotFound => return Ok(None),
-            Err(e) => return Err(CacheError::io("read", path, e)),
+        let Some(bytes) = format::read_entry_file(&path)? else {
+            return Ok(None);
         };
-        let entry = format::decode_entry(&bytes, &path, digest)?;
+        let entry = format::decode_entry(&bytes, &path, digest, self.secret()?)?;
         Ok(Some(StoredSet {
             digest,
             key: entry.key,
@@ -243,11 +294,12 @@ impl Store {
             data: entry.data,
             encoding: entry.encoding,
             size_bytes: bytes.len() as u64,
+            provenance: entry.provenance,
         }))
     }
 
     /// Digests of every file named like an entry, sorted.
-    pub(crate) fn entry_digests(&self) -> Result<Vec<Digest>, CacheError> {
+    pub fn entry_digests(&self) -> Result<Vec<Digest>, CacheError> {
         let mut digests = Vec::new();
         for name in self.file_names()? {
             let Some(stem) = name.strip_suffix(&format!(".{ENTRY_SUFFIX}")) else {

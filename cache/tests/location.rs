@@ -28,10 +28,14 @@ fn missing_directories_are_created() {
     let nested = dir.path().join("a/b/c");
     let store = Store::open(&nested).unwrap();
     assert!(store.dir().is_dir());
+    let names: Vec<_> = fs::read_dir(&nested)
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
     assert_eq!(
-        fs::read_dir(&nested).unwrap().count(),
-        0,
-        "the probe file is removed"
+        names,
+        [cache::MARKER_NAME],
+        "the probe file is removed, the marker written"
     );
 }
 

@@ -15,7 +15,7 @@ use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
     build, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd, NormLimit,
-    Obtained, SavedState,
+    Obtained, SavedState, SetAside,
 };
 use serde::Serialize;
 
@@ -460,7 +460,9 @@ fn try_build(
                 built,
                 replaced,
                 resumed,
+                set_aside,
             } => {
+                warn_set_aside(set_aside.as_ref());
                 row.key = Some(built.key.digest().to_hex());
                 row.elements = Some(built.set.elements.len());
                 let mut status = "built".to_string();
@@ -476,11 +478,30 @@ fn try_build(
                 }
                 status
             }
-            Obtained::Stopped { reason, kept } => stopped(row, reason, kept),
+            Obtained::Stopped {
+                reason,
+                kept,
+                set_aside,
+            } => {
+                warn_set_aside(set_aside.as_ref());
+                stopped(row, reason, kept)
+            }
         }
     };
     bar.finish();
     Ok(status)
+}
+
+/// Names on stderr a checkpoint that could not be resumed and was moved aside.
+pub(super) fn warn_set_aside(set_aside: Option<&SetAside>) {
+    if let Some(s) = set_aside {
+        eprintln!(
+            "kernstep: warning: checkpoint {} cannot be resumed ({}); moved it to {} and started the build over",
+            s.from.display(),
+            s.problem,
+            s.to.display()
+        );
+    }
 }
 
 /// Records a stop in `row` and returns its status: why, what was kept, and how to go on.

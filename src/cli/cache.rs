@@ -8,10 +8,11 @@ use std::process::ExitCode;
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
 use ::cache::{
-    CacheError, Completeness, Digest, EntryKey, EntrySummary, PruneReport, SetKind, SetMetadata,
-    Sign, Store, StoredSet, Truncation,
+    Completeness, Digest, EntryKey, EntrySummary, FileSummary, Provenance, PruneReport, SetKind,
+    SetMetadata, Sign, Store, StoredSet, Truncation,
 };
 use clap::{Args, Subcommand, ValueEnum};
+use kernstep::testset::{CheckpointInfo, SetLibrary};
 use serde::Serialize;
 
 use super::common::CacheArgs;
@@ -37,14 +38,17 @@ pub struct CacheVerbArgs {
 /// The `cache` sub-verbs.
 #[derive(Debug, Subcommand)]
 pub enum Action {
-    /// One line per stored set, read from the file heads (fast; `verify` checks whole files).
+    /// One line per stored set, read from the file heads (fast; `verify` checks whole files),
+    /// then the checkpoints of interrupted builds and the build locks.
     List,
     /// Key, build facts, counts, encoding and size of one stored set.
     Show {
         /// Key digest or a unique prefix of one.
         key: String,
     },
-    /// Check whole files (checksum, key, every section); exit 2 if any is damaged.
+    /// Check whole files (checksum, key, every section, seal) and their content (every element
+    /// in the kernel, signs, truncation, no duplicates; a complete Graver set generates the
+    /// kernel lattice); exit 2 if any fails.
     Verify {
         /// Key digest or a unique prefix of one (default: every entry).
         #[arg(conflicts_with = "all")]
@@ -53,12 +57,15 @@ pub enum Action {
         #[arg(long)]
         all: bool,
     },
-    /// Delete one stored set (waiting for a builder of it to finish).
+    /// Delete one stored set with its checkpoint and lock (waiting for a builder of it to
+    /// finish); KEY may also name a key that has only a checkpoint.
     Remove {
         /// Key digest or a unique prefix of one.
         key: String,
     },
-    /// Delete sets built longer ago than the given age, and leftover temporary files.
+    /// Delete sets built longer ago than the given age, and checkpoints, unused locks and
+    /// leftover temporary files not modified since; never the files of a running build, and
+    /// only in a directory kernstep marked as its cache.
     Prune {
         /// Age such as `30d`, `12h`, `90m` or `3600s`.
         #[arg(long, value_name = "AGE", default_value = "30d", value_parser = parse_age)]
@@ -109,9 +116,9 @@ pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
     let store = library.store();
     let mut out = io::stdout().lock();
     let code = match &args.action {
-        Action::List => list(store, args.json, &mut out)?,
+        Action::List => list(&library, args.json, &mut out)?,
         Action::Show { key } => show(store, key, args.json, &mut out)?,
-        Action::Verify { key, .. } => verify(store, key.as_deref(), args.json, &mut out)?,
+        Action::Verify { key, .. } => verify(&library, key.as_deref(), args.json, &mut out)?,
         Action::Remove { key } => remove(store, key, args.json, &mut out)?,
         Action::Prune { older_than } => prune(store, *older_than, args.json, &mut out)?,
         Action::Export { key, format } => export(store, key, *format, &mut out)?,
@@ -120,7 +127,8 @@ pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
     Ok(code)
 }
 
-fn list(store: &Store, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+fn list(library: &SetLibrary, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+    let store = library.store();
     let mut entries = Vec::new();
     let mut unreadable = Vec::new();
     for item in store.list()? {
@@ -129,14 +137,24 @@ fn list(store: &Store, json: bool, out: &mut impl Write) -> anyhow::Result<ExitC
             Err(e) => unreadable.push(e.to_string()),
         }
     }
+    let checkpoints: Vec<CheckpointDoc> = library
+        .checkpoints()?
+        .iter()
+        .map(CheckpointDoc::of)
+        .collect();
+    let locks = store.list_locks()?;
     if json {
         #[derive(Serialize)]
         struct Listing<'a> {
             entries: &'a [EntrySummary],
+            checkpoints: &'a [CheckpointDoc],
+            locks: &'a [FileSummary],
             unreadable: &'a [String],
         }
         let doc = Listing {
             entries: &entries,
+            checkpoints: &checkpoints,
+            locks: &locks,
             unreadable: &unreadable,
         };
         writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
@@ -158,11 +176,93 @@ fn list(store: &Store, json: bool, out: &mut impl Write) -> anyhow::Result<ExitC
             ],
             &rows,
         )?;
+        if !checkpoints.is_empty() {
+            writeln!(out, "\ncheckpoints")?;
+            let rows: Vec<Vec<String>> = checkpoints.iter().map(|c| c.row(now)).collect();
+            write_table(
+                out,
+                &["key", "lifted", "moves", "work", "bytes", "age", "state"],
+                &rows,
+            )?;
+        }
+        if !locks.is_empty() {
+            writeln!(out, "\nlocks")?;
+            let rows: Vec<Vec<String>> = locks
+                .iter()
+                .map(|l| {
+                    vec![
+                        short_key(l.digest),
+                        age_text(now.saturating_sub(l.modified_unix)),
+                        if l.held { "held" } else { "stale" }.to_string(),
+                    ]
+                })
+                .collect();
+            write_table(out, &["key", "age", "state"], &rows)?;
+        }
     }
     for problem in &unreadable {
         eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// One checkpoint in `list`.
+#[derive(Serialize)]
+struct CheckpointDoc {
+    #[serde(flatten)]
+    file: FileSummary,
+    /// Set aside as unusable (`<key>.kckpt.bad`).
+    set_aside: bool,
+    /// Components lifted so far and the number of components, when readable.
+    lifted: Option<usize>,
+    components: Option<usize>,
+    mid_stage: Option<bool>,
+    moves: Option<usize>,
+    work_seconds: Option<f64>,
+}
+
+impl CheckpointDoc {
+    fn of(info: &CheckpointInfo) -> Self {
+        let s = info.state.as_ref();
+        Self {
+            file: info.file.clone(),
+            set_aside: info.set_aside,
+            lifted: s.map(|s| s.lifted),
+            components: s.map(|s| s.width),
+            mid_stage: s.map(|s| s.mid_stage),
+            moves: s.map(|s| s.moves),
+            work_seconds: s.map(|s| s.work.as_secs_f64()),
+        }
+    }
+
+    fn row(&self, now: u64) -> Vec<String> {
+        let state = if self.set_aside {
+            "set aside"
+        } else if self.file.held {
+            "building"
+        } else if self.moves.is_none() {
+            "unreadable"
+        } else {
+            "stopped"
+        };
+        let lifted = match (self.lifted, self.components, self.mid_stage) {
+            (Some(k), Some(n), Some(mid)) => format!("{k}/{n}{}", if mid { "+" } else { "" }),
+            _ => "-".into(),
+        };
+        vec![
+            short_key(self.file.digest),
+            lifted,
+            self.moves.map_or("-".into(), |m| m.to_string()),
+            self.work_seconds.map_or("-".into(), |w| age_text(w as u64)),
+            self.file.size_bytes.to_string(),
+            age_text(now.saturating_sub(self.file.modified_unix)),
+            state.to_string(),
+        ]
+    }
+}
+
+fn short_key(digest: Digest) -> String {
+    digest.to_hex()[..SHORT_KEY].to_string()
 }
 
 fn summary_row(s: &EntrySummary, now: u64) -> Vec<String> {
@@ -317,35 +417,37 @@ struct Checked {
     digest: Digest,
     path: String,
     ok: bool,
+    /// Not sealed by this cache (copied in or edited); with `ok`, its content is valid.
+    foreign: bool,
     elements: Option<u64>,
     problem: Option<String>,
 }
 
 fn verify(
-    store: &Store,
+    library: &SetLibrary,
     key: Option<&str>,
     json: bool,
     out: &mut impl Write,
 ) -> anyhow::Result<ExitCode> {
-    let outcomes: Vec<(Digest, Result<EntrySummary, CacheError>)> = match key {
-        Some(prefix) => {
-            let digest = store.resolve(prefix)?;
-            vec![(digest, store.verify(&digest.to_hex()))]
-        }
-        None => store
-            .verify_all()?
-            .into_iter()
-            .map(|v| (v.digest, v.outcome))
-            .collect(),
+    let store = library.store();
+    let digests = match key {
+        Some(prefix) => vec![store.resolve(prefix)?],
+        None => store.entry_digests()?,
     };
-    let checked: Vec<Checked> = outcomes
+    let checked: Vec<Checked> = digests
         .into_iter()
-        .map(|(digest, outcome)| Checked {
-            digest,
-            path: store.entry_path(digest).display().to_string(),
-            ok: outcome.is_ok(),
-            elements: outcome.as_ref().ok().map(|s| s.elements),
-            problem: outcome.err().map(|e| e.to_string()),
+        .map(|digest| {
+            let outcome = library.verify_entry(digest);
+            Checked {
+                digest,
+                path: store.entry_path(digest).display().to_string(),
+                ok: outcome.is_ok(),
+                foreign: outcome
+                    .as_ref()
+                    .is_ok_and(|(_, p)| *p == Provenance::Foreign),
+                elements: outcome.as_ref().ok().map(|(s, _)| s.elements),
+                problem: outcome.err().map(|e| e.to_string()),
+            }
         })
         .collect();
     if json {
@@ -354,20 +456,25 @@ fn verify(
         let rows: Vec<Vec<String>> = checked
             .iter()
             .map(|c| {
+                let state = match (c.ok, c.foreign) {
+                    (true, false) => "ok",
+                    (true, true) => "ok (foreign: sealed on first use)",
+                    (false, _) => "refused",
+                };
                 vec![
-                    c.digest.to_hex()[..SHORT_KEY].to_string(),
+                    short_key(c.digest),
                     c.elements.map_or("-".into(), |e| e.to_string()),
-                    if c.ok { "ok" } else { "damaged" }.to_string(),
+                    state.to_string(),
                 ]
             })
             .collect();
         write_table(out, &["key", "elements", "state"], &rows)?;
     }
-    let damaged: Vec<&String> = checked.iter().filter_map(|c| c.problem.as_ref()).collect();
-    for problem in &damaged {
+    let refused: Vec<&String> = checked.iter().filter_map(|c| c.problem.as_ref()).collect();
+    for problem in &refused {
         eprintln!("kernstep: {problem}");
     }
-    Ok(if damaged.is_empty() {
+    Ok(if refused.is_empty() {
         ExitCode::SUCCESS
     } else {
         ExitCode::from(2)
@@ -396,6 +503,9 @@ fn prune(
     if json {
         let doc = serde_json::json!({
             "removed": report.removed,
+            "checkpoints_removed": report.checkpoints_removed,
+            "set_aside_removed": report.set_aside_removed,
+            "locks_removed": report.locks_removed,
             "temp_files_removed": report.temp_files_removed,
             "busy": report.busy,
             "unreadable": unreadable,
@@ -416,6 +526,18 @@ fn prune(
                 report.removed.len().to_string(),
             ),
             ("removed keys".to_string(), short(&report.removed)),
+            (
+                "checkpoints removed".to_string(),
+                report.checkpoints_removed.len().to_string(),
+            ),
+            (
+                "set-aside checkpoints removed".to_string(),
+                report.set_aside_removed.to_string(),
+            ),
+            (
+                "unused locks removed".to_string(),
+                report.locks_removed.to_string(),
+            ),
             (
                 "temporary files removed".to_string(),
                 report.temp_files_removed.to_string(),

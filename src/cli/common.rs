@@ -38,7 +38,22 @@ pub struct CacheArgs {
 impl CacheArgs {
     /// Opens the cache directory.
     pub fn open(&self) -> anyhow::Result<SetLibrary> {
-        Ok(SetLibrary::open(self.cache_dir.as_deref())?)
+        Ok(SetLibrary::open(self.cache_dir.as_deref())?.on_wait(Arc::new(report_wait)))
+    }
+}
+
+/// Says on stderr that a build waits for another build of the same set, and for which one.
+fn report_wait(holder: Option<cache::LockHolder>) {
+    match holder {
+        Some(holder) => eprintln!(
+            "kernstep: waiting for another build of this set (process {}, started {}); \
+             Ctrl-C stops waiting",
+            holder.pid,
+            humantime::format_rfc3339_seconds(holder.since)
+        ),
+        None => eprintln!(
+            "kernstep: waiting for another build of this set to finish; Ctrl-C stops waiting"
+        ),
     }
 }
 
@@ -371,21 +386,33 @@ fn find_or_build(
     let control = limits.control(model.variables())?;
     match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
         Obtained::Reused(stored) => Ok(cached(&stored)),
-        Obtained::Built { built, .. } => Ok(SolverSet {
-            coverage: coverage_of(&built.metadata.completeness),
-            set: built.set,
-            source: SetSource::Built,
-            box_limit: None,
-            network: None,
-        }),
-        Obtained::Stopped { reason, kept } => Err(limits
-            .stopped(
-                reason,
-                build_command(input, cache, engine),
-                model.variables(),
-                kept,
-            )
-            .into()),
+        Obtained::Built {
+            built, set_aside, ..
+        } => {
+            super::build::warn_set_aside(set_aside.as_ref());
+            Ok(SolverSet {
+                coverage: coverage_of(&built.metadata.completeness),
+                set: built.set,
+                source: SetSource::Built,
+                box_limit: None,
+                network: None,
+            })
+        }
+        Obtained::Stopped {
+            reason,
+            kept,
+            set_aside,
+        } => {
+            super::build::warn_set_aside(set_aside.as_ref());
+            Err(limits
+                .stopped(
+                    reason,
+                    build_command(input, cache, engine),
+                    model.variables(),
+                    kept,
+                )
+                .into())
+        }
     }
 }
 

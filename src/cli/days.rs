@@ -102,7 +102,7 @@ impl Shown {
 }
 
 fn read_text(path: &Path) -> anyhow::Result<String> {
-    std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))
+    kernstep::input::read_text(path).with_context(|| format!("reading {}", path.display()))
 }
 
 /// A scenario's days from the text of `path`: CSV rows for a `.csv` file, else JSON Lines.

@@ -7,6 +7,7 @@ use std::sync::atomic::Ordering;
 use anyhow::Context;
 use augment::{Options, Rule};
 use clap::{Args, ValueEnum};
+use kernstep::input::read_text;
 use kernstep::model::Model;
 use kernstep::scenario::PlanInput;
 use kernstep::solve::{parse_lines, Prepared, Variant, WarmStart};
@@ -207,8 +208,8 @@ fn read_variant(spec: &str, id: Option<&str>) -> anyhow::Result<(Variant, String
         return Ok((variant, origin));
     }
     let path = Path::new(spec);
-    let text = std::fs::read_to_string(path)
-        .with_context(|| format!("reading the variants file {}", path.display()))?;
+    let text =
+        read_text(path).with_context(|| format!("reading the variants file {}", path.display()))?;
     let origin = path.display().to_string();
     let mut unreadable = None;
     for (_, parsed) in parse_lines(&text, &origin) {
@@ -240,8 +241,7 @@ struct PreviousPlan {
 /// The plan of a previous solve document, checked against `model` (`A x = rhs`).
 fn read_warm_start(path: &Path, model: &Model) -> anyhow::Result<WarmStart> {
     let origin = path.display().to_string();
-    let text = std::fs::read_to_string(path)
-        .with_context(|| format!("reading the warm start {origin}"))?;
+    let text = read_text(path).with_context(|| format!("reading the warm start {origin}"))?;
     let previous: PreviousPlan = serde_json::from_str(&text).map_err(|e| Error::Input {
         file: origin.clone(),
         field: "document".to_string(),

@@ -196,6 +196,16 @@ pub fn complete_kernel(
     complete(&reduced_kernel_basis(a)?, request, control, resume)
 }
 
+/// Runs the checks [`complete_kernel`] makes before resuming from `resume` for `ker_Z(a)`
+/// (its vectors lie in the kernel, its components and working set fit the lattice), so that
+/// a caller can set an unusable checkpoint aside and start over instead of failing.
+pub fn check_resumable(a: &IntMatrix, resume: &Checkpoint) -> Result<()> {
+    resume.check_kernel(a)?;
+    resume
+        .restore(&reduced_kernel_basis(a)?, a.cols())
+        .map(drop)
+}
+
 /// The final orbits and whether the truncation was shown to cut nothing, or why the
 /// completion stopped.
 type Staged = Result<std::result::Result<(Vec<Orbit>, bool), StopReason>>;

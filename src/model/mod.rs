@@ -94,10 +94,7 @@ impl Model {
             field: "file name".to_string(),
             message: "unknown model file type; use a .json, .toml or .mps extension".to_string(),
         })?;
-        let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-            path: path.to_path_buf(),
-            source,
-        })?;
+        let text = crate::input::read_text(path)?;
         Model::from_str(&text, kind, &origin)
     }
 

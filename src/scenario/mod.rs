@@ -286,9 +286,6 @@ fn read_input(path: &Path) -> Result<(String, ModelKind, String)> {
         message: "unknown model file type; use a .json, .toml or .mps extension (scenarios: .json or .toml)"
             .to_string(),
     })?;
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let text = crate::input::read_text(path)?;
     Ok((text, kind, origin))
 }

@@ -1,17 +1,21 @@
 //! The test sets of one cache directory: reuse what is stored, build what is missing.
 
-use std::path::Path;
-use std::sync::Mutex;
+use std::path::{Path, PathBuf};
+use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
-use cache::{BuildGuard, CheckpointState, EntryKey, Store, StoredSet};
+use cache::{
+    BuildGuard, CheckpointState, Digest, EntryKey, EntrySummary, LockHolder, LockWait, Provenance,
+    Store, StoredSet,
+};
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
 use super::network::cycles_entry;
 use super::saved::{self, RequestRecord, Saved};
 use super::spec::ResolvedSpec;
+use super::verify::verify_content;
 use crate::analysis::MatrixAnalysis;
-use crate::completion::{Checkpoint, Control, Method, StopReason};
+use crate::completion::{check_resumable, Checkpoint, Control, Method, StopReason};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 use crate::network::Network;
@@ -29,6 +33,8 @@ pub enum Obtained {
         replaced: Option<String>,
         /// When an interrupted build was resumed: the state it resumed from.
         resumed: Option<SavedState>,
+        /// An unusable checkpoint of the key, moved aside before the build started over.
+        set_aside: Option<SetAside>,
     },
     /// A limit or a cancellation stopped the build; no entry was stored, and the state
     /// saved last (from which the same request resumes), if any, is `kept`.
@@ -37,7 +43,60 @@ pub enum Obtained {
         reason: StopReason,
         /// The state saved last.
         kept: Option<SavedState>,
+        /// An unusable checkpoint of the key, moved aside before the build started over.
+        set_aside: Option<SetAside>,
     },
+}
+
+/// A checkpoint that could not be resumed (damaged, of an older layout, or inconsistent with
+/// the lattice although its checksum is right): renamed aside so that builds start over
+/// instead of failing on it, and kept for inspection until `cache prune` removes it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SetAside {
+    /// Where the checkpoint was.
+    pub from: PathBuf,
+    /// Where it is now.
+    pub to: PathBuf,
+    /// Why it was unusable.
+    pub problem: String,
+}
+
+impl Obtained {
+    /// A build stopped while it waited for another build's lock: nothing of its own kept.
+    fn stopped_waiting(control: &Control<'_>) -> Self {
+        Self::Stopped {
+            reason: control.interrupted().unwrap_or(StopReason::Cancelled),
+            kept: None,
+            set_aside: None,
+        }
+    }
+}
+
+/// A checkpoint as listed: its file facts and, when readable, the state it holds.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CheckpointInfo {
+    /// Key digest, size, age and whether a build holds the key's lock.
+    pub file: cache::FileSummary,
+    /// Whether it was set aside as unusable.
+    pub set_aside: bool,
+    /// Components lifted (out of the key's width), moves and work time; `None` when the
+    /// file cannot be read as a checkpoint.
+    pub state: Option<CheckpointFacts>,
+}
+
+/// What a readable checkpoint holds.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct CheckpointFacts {
+    /// Components lifted so far.
+    pub lifted: usize,
+    /// Number of components (variables).
+    pub width: usize,
+    /// Whether it was saved inside a stage.
+    pub mid_stage: bool,
+    /// Moves in the state.
+    pub moves: usize,
+    /// Build work up to the state.
+    pub work: Duration,
 }
 
 /// A saved state of a build, as reported: where it stands and the work it holds.
@@ -71,11 +130,45 @@ impl SavedState {
 /// How often a build saves its state by default.
 pub const CHECKPOINT_EVERY: Duration = Duration::from_secs(60);
 
+/// Told, once per wait, who holds the lock of a key that a build has to wait for (`None`
+/// when the lock file holds no readable record).
+pub type WaitReport = dyn Fn(Option<LockHolder>) + Send + Sync;
+
 /// A cache directory used by the root crate.
-#[derive(Clone, Debug)]
+#[derive(Clone)]
 pub struct SetLibrary {
     store: Store,
     checkpoint_every: Duration,
+    on_wait: Option<Arc<WaitReport>>,
+}
+
+impl std::fmt::Debug for SetLibrary {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("SetLibrary")
+            .field("store", &self.store)
+            .field("checkpoint_every", &self.checkpoint_every)
+            .field("on_wait", &self.on_wait.is_some())
+            .finish()
+    }
+}
+
+/// A wait for another build's lock: reported through the library's [`WaitReport`], given up
+/// when the build's [`Control`] is cancelled or out of time.
+struct Patience<'a> {
+    report: Option<&'a WaitReport>,
+    control: &'a Control<'a>,
+}
+
+impl LockWait for Patience<'_> {
+    fn waiting(&mut self, holder: Option<LockHolder>) {
+        if let Some(report) = self.report {
+            report(holder);
+        }
+    }
+
+    fn give_up(&mut self) -> bool {
+        self.control.interrupted().is_some()
+    }
 }
 
 impl SetLibrary {
@@ -84,6 +177,35 @@ impl SetLibrary {
         Ok(Self {
             store: Store::open_default(dir)?,
             checkpoint_every: CHECKPOINT_EVERY,
+            on_wait: None,
+        })
+    }
+
+    /// Tell `report` who holds the lock whenever a build has to wait for another build of
+    /// the same key (a wait is otherwise silent).
+    pub fn on_wait(mut self, report: Arc<WaitReport>) -> Self {
+        self.on_wait = Some(report);
+        self
+    }
+
+    /// Takes the key's build lock, waiting patiently (see [`Patience`]); `Ok(None)` when
+    /// the control stopped the wait. With `rebuild` the lock is granted over a valid entry.
+    fn lock(
+        &self,
+        key: &EntryKey,
+        control: &Control<'_>,
+        rebuild: bool,
+    ) -> Result<Option<BuildGuard>> {
+        let mut patience = Patience {
+            report: self.on_wait.as_deref(),
+            control,
+        };
+        Ok(if rebuild {
+            self.store
+                .lock_for_rebuild_waiting(key, &mut patience)?
+                .map(BuildGuard::Build)
+        } else {
+            self.store.lock_for_build_waiting(key, &mut patience)?
         })
     }
 
@@ -100,13 +222,76 @@ impl SetLibrary {
     }
 
     /// A stored set that serves `key` (the entry itself or one whose truncation covers it).
+    /// A foreign entry is served only after its content passes [`verify_content`]; one that
+    /// fails is an error naming the file.
     pub fn find(&self, key: &EntryKey) -> Result<Option<StoredSet>> {
-        Ok(self.store.find_covering(key)?.found)
+        self.store
+            .find_covering(key)?
+            .found
+            .map(|s| self.admit(s))
+            .transpose()
     }
 
-    /// The stored set with the most elements that covers `key`, skipping damaged entries.
+    /// The stored set with the most elements that covers `key`, skipping damaged entries
+    /// (foreign ones as in [`SetLibrary::find`]).
     pub fn find_largest(&self, key: &EntryKey) -> Result<Option<StoredSet>> {
-        Ok(self.store.find_largest_covering(key)?.found)
+        self.store
+            .find_largest_covering(key)?
+            .found
+            .map(|s| self.admit(s))
+            .transpose()
+    }
+
+    /// `set` as it may be served: a sealed one as it is; a foreign one (not sealed by this
+    /// cache) after a full check of its content, then sealed with this cache's key.
+    fn admit(&self, set: StoredSet) -> Result<StoredSet> {
+        if set.provenance == Provenance::Sealed {
+            return Ok(set);
+        }
+        verify_content(&set, &self.store.entry_path(set.digest))?;
+        self.store.reseal(&set)?;
+        Ok(StoredSet {
+            provenance: Provenance::Sealed,
+            ..set
+        })
+    }
+
+    /// Checks the entry `digest` in full: the file (checksum, key, layout, seal) and its
+    /// content ([`verify_content`]). Returns its summary and whether this cache sealed it; a
+    /// foreign entry that passes is left as it is (it is sealed when first served).
+    pub fn verify_entry(&self, digest: Digest) -> Result<(EntrySummary, Provenance)> {
+        let set = self.store.load_digest(&digest.to_hex())?;
+        verify_content(&set, &self.store.entry_path(digest))?;
+        Ok((set.summary(), set.provenance))
+    }
+
+    /// Every checkpoint of the cache, with the state it holds when readable.
+    pub fn checkpoints(&self) -> Result<Vec<CheckpointInfo>> {
+        let mut out = Vec::new();
+        for (file, set_aside) in self.store.list_checkpoints()? {
+            let state = if set_aside {
+                None
+            } else {
+                match self.store.load_checkpoint_of(file.digest)? {
+                    CheckpointState::Present(bytes) => {
+                        saved::peek(&bytes).map(|(width, saved)| CheckpointFacts {
+                            lifted: saved.state.lifted.len(),
+                            width,
+                            mid_stage: saved.state.within.is_some(),
+                            moves: saved.state.elements.len(),
+                            work: Duration::from_secs_f64(saved.work_seconds),
+                        })
+                    }
+                    CheckpointState::Missing | CheckpointState::Damaged(_) => None,
+                }
+            };
+            out.push(CheckpointInfo {
+                file,
+                set_aside,
+                state,
+            });
+        }
+        Ok(out)
     }
 
     /// Returns the stored set for `spec`, or builds and stores it. Two processes asking for
@@ -126,17 +311,19 @@ impl SetLibrary {
                 return Ok(Obtained::Reused(Box::new(found)));
             }
         }
-        let lock = if rebuild {
-            self.store.lock_for_rebuild(&key)?
-        } else {
-            match self.store.lock_for_build(&key)? {
-                BuildGuard::Ready(set) => return Ok(Obtained::Reused(Box::new(set))),
-                BuildGuard::Build(lock) => lock,
+        let lock = match self.lock(&key, control, rebuild)? {
+            Some(BuildGuard::Build(lock)) => lock,
+            Some(BuildGuard::Ready(set)) => {
+                return Ok(Obtained::Reused(Box::new(self.admit(set)?)));
             }
+            None => return Ok(Obtained::stopped_waiting(control)),
         };
         let replaced = lock.damaged_entry().map(ToString::to_string);
         let request = RequestRecord::of(&key, spec);
-        let resume = self.checkpoint(&key, &request, spec)?;
+        let (resume, set_aside) = match self.checkpoint(&key, &request, spec, a)? {
+            Ok(resume) => (resume, None),
+            Err(problem) => (None, self.set_aside(&key, problem)?),
+        };
         let (width, rank) = (a.cols(), analysis.rank);
         let earlier = resume.as_ref().map_or(0.0, |r| r.work_seconds);
         let started = Instant::now();
@@ -173,6 +360,7 @@ impl SetLibrary {
             BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped {
                 reason,
                 kept: last_saved.into_inner().ok().flatten().or(resumed),
+                set_aside,
             }),
             BuildOutcome::Built(built) => {
                 if built.key == key {
@@ -188,6 +376,7 @@ impl SetLibrary {
                     built,
                     replaced,
                     resumed,
+                    set_aside,
                 })
             }
         }
@@ -209,7 +398,9 @@ impl SetLibrary {
     pub fn resume_point(&self, a: &IntMatrix, spec: &ResolvedSpec) -> Result<Option<Checkpoint>> {
         let key = super::build::entry_key(a, spec);
         Ok(self
-            .checkpoint(&key, &RequestRecord::of(&key, spec), spec)?
+            .checkpoint(&key, &RequestRecord::of(&key, spec), spec, a)?
+            .ok()
+            .flatten()
             .map(|saved| saved.state))
     }
 
@@ -231,7 +422,9 @@ impl SetLibrary {
             self.store.lock_for_rebuild(&built.key)?
         } else {
             match self.store.lock_for_build(&built.key)? {
-                BuildGuard::Ready(set) => return Ok(Obtained::Reused(Box::new(set))),
+                BuildGuard::Ready(set) => {
+                    return Ok(Obtained::Reused(Box::new(self.admit(set)?)));
+                }
                 BuildGuard::Build(lock) => lock,
             }
         };
@@ -241,26 +434,48 @@ impl SetLibrary {
             built: Box::new(built),
             replaced,
             resumed: None,
+            set_aside: None,
         })
     }
 
     /// The saved state of an interrupted build of `key`, if one was saved for exactly
-    /// `request`. A damaged checkpoint, one of an older layout and one saved for another
-    /// request of the same key are ignored (the build starts over, and its first stage
-    /// overwrites the file) rather than trusted.
+    /// `request` (`Ok(Ok(None))` when there is none, or one saved for another request of the
+    /// same key, which the build's first save replaces). `Ok(Err(problem))`: the checkpoint
+    /// cannot be resumed (damaged, of an older layout, or inconsistent with `a`'s lattice);
+    /// the caller sets it aside.
     fn checkpoint(
         &self,
         key: &EntryKey,
         request: &RequestRecord,
         spec: &ResolvedSpec,
-    ) -> Result<Option<Saved>> {
+        a: &IntMatrix,
+    ) -> Result<std::result::Result<Option<Saved>, String>> {
         if spec.method != Method::ProjectAndLift {
-            return Ok(None);
+            return Ok(Ok(None));
         }
-        let CheckpointState::Present(bytes) = self.store.load_checkpoint(key)? else {
-            return Ok(None);
+        let bytes = match self.store.load_checkpoint(key)? {
+            CheckpointState::Missing => return Ok(Ok(None)),
+            CheckpointState::Damaged(e) => return Ok(Err(e.to_string())),
+            CheckpointState::Present(bytes) => bytes,
         };
-        Ok(saved::decode(&bytes, request))
+        let path = self.store.checkpoint_path(key.digest());
+        Ok(match saved::decode(&bytes, request) {
+            Ok(Some(saved)) => match check_resumable(a, &saved.state) {
+                Ok(()) => Ok(Some(saved)),
+                Err(e) => Err(format!("{}: {e}", path.display())),
+            },
+            Ok(None) => Ok(None),
+            Err(problem) => Err(format!("{}: {problem}", path.display())),
+        })
+    }
+
+    /// Moves the checkpoint of `key` aside for `problem` (the caller holds the key's lock).
+    fn set_aside(&self, key: &EntryKey, problem: String) -> Result<Option<SetAside>> {
+        let from = self.store.checkpoint_path(key.digest());
+        Ok(self
+            .store
+            .set_aside_checkpoint(key)?
+            .map(|to| SetAside { from, to, problem }))
     }
 
     fn save_checkpoint(

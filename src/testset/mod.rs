@@ -9,12 +9,16 @@ mod library;
 mod network;
 mod saved;
 mod spec;
+mod verify;
 
 pub use build::{
     build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
 pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
-pub use library::{Obtained, SavedState, SetLibrary, CHECKPOINT_EVERY};
+pub use library::{
+    CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
+};
 pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
+pub use verify::verify_content;

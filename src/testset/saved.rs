@@ -11,7 +11,8 @@
 //! Layout (bincode, standard configuration): the string [`LAYOUT`], then the
 //! [`RequestRecord`], the [`Checkpoint`] and the build work done up to it, in seconds over
 //! every run of the build. A payload that does not start with that string (an older layout,
-//! or damage the container's checksum missed) is not read.
+//! or damage the container's checksum missed) is not read: the build sets the file aside
+//! and starts over.
 
 use bincode::config;
 use cache::EntryKey;
@@ -88,9 +89,39 @@ pub(crate) fn encode(request: &RequestRecord, state: &Checkpoint, work_seconds: 
     bytes
 }
 
-/// The saved state, if `bytes` is a payload of this layout saved for exactly `request`;
-/// `None` for any other payload (another request, an older layout, unreadable bytes).
-pub(crate) fn decode(bytes: &[u8], request: &RequestRecord) -> Option<Saved> {
+/// The saved state, if `bytes` is a payload of this layout saved for exactly `request`:
+/// `Ok(None)` for a valid payload of another request (of the same key), `Err` with the
+/// problem for anything unusable (an older layout, unreadable bytes).
+pub(crate) fn decode(
+    bytes: &[u8],
+    request: &RequestRecord,
+) -> std::result::Result<Option<Saved>, String> {
+    let Some(body) = read(bytes) else {
+        return Err(format!("not a checkpoint payload of layout {LAYOUT:?}"));
+    };
+    if !(body.work_seconds.is_finite() && body.work_seconds >= 0.0) {
+        return Err(format!("work time {} is not a duration", body.work_seconds));
+    }
+    Ok((body.request == *request).then_some(Saved {
+        state: body.state,
+        work_seconds: body.work_seconds,
+    }))
+}
+
+/// What a checkpoint payload holds, whatever request it was saved for (for listings): the
+/// key's width, the state and the work time; `None` if unusable.
+pub(crate) fn peek(bytes: &[u8]) -> Option<(usize, Saved)> {
+    let body = read(bytes)?;
+    Some((
+        body.request.key.width(),
+        Saved {
+            state: body.state,
+            work_seconds: body.work_seconds,
+        },
+    ))
+}
+
+fn read(bytes: &[u8]) -> Option<ReadBody> {
     let (layout, used) =
         bincode::serde::decode_from_slice::<String, _>(bytes, config::standard()).ok()?;
     if layout != LAYOUT {
@@ -99,14 +130,7 @@ pub(crate) fn decode(bytes: &[u8], request: &RequestRecord) -> Option<Saved> {
     let rest = bytes.get(used..)?;
     let (body, read) =
         bincode::serde::decode_from_slice::<ReadBody, _>(rest, config::standard()).ok()?;
-    let valid = read == rest.len()
-        && body.request == *request
-        && body.work_seconds.is_finite()
-        && body.work_seconds >= 0.0;
-    valid.then_some(Saved {
-        state: body.state,
-        work_seconds: body.work_seconds,
-    })
+    (read == rest.len()).then_some(body)
 }
 
 #[cfg(test)]
@@ -148,25 +172,24 @@ mod tests {
     #[test]
     fn a_state_reads_back_only_for_its_own_request() {
         let bytes = encode(&request(Some(4)), &state(), 2.5);
-        assert_eq!(decode(&bytes, &request(Some(4))), saved());
-        assert_eq!(decode(&bytes, &request(None)), None);
-        assert_eq!(decode(&bytes, &request(Some(5))), None);
+        assert_eq!(decode(&bytes, &request(Some(4))), Ok(saved()));
+        assert_eq!(decode(&bytes, &request(None)), Ok(None));
+        assert_eq!(decode(&bytes, &request(Some(5))), Ok(None));
     }
 
     #[test]
     fn the_bare_state_of_layout_1_and_cut_payloads_are_not_read() {
         let bare = bincode::serde::encode_to_vec(state(), config::standard()).unwrap();
-        assert_eq!(decode(&bare, &request(Some(4))), None);
+        assert!(decode(&bare, &request(Some(4))).is_err());
         let bytes = encode(&request(Some(4)), &state(), 2.5);
         for cut in 0..bytes.len() {
-            assert_eq!(
-                decode(&bytes[..cut], &request(Some(4))),
-                None,
+            assert!(
+                decode(&bytes[..cut], &request(Some(4))).is_err(),
                 "cut at {cut}"
             );
         }
         let mut longer = bytes.clone();
         longer.push(0);
-        assert_eq!(decode(&longer, &request(Some(4))), None);
+        assert!(decode(&longer, &request(Some(4))).is_err());
     }
 }
