@@ -12,10 +12,12 @@ use ::cache::{
     SetMetadata, Sign, Store, StoredSet, Truncation,
 };
 use clap::{Args, Subcommand, ValueEnum};
-use kernstep::testset::{CheckpointInfo, SetLibrary};
+use kernstep::matrix::IntMatrix;
+use kernstep::testset::{enumerate_cycles, BuildOutcome, CheckpointInfo, SetLibrary};
 use serde::Serialize;
 
 use super::common::CacheArgs;
+use super::limits::LimitArgs;
 use super::setfile::set_document;
 use super::table::{write_pairs, write_table};
 
@@ -564,12 +566,20 @@ fn export(
 ) -> anyhow::Result<ExitCode> {
     let entry = store.export(key)?;
     if entry.key.kind == SetKind::Cycles {
-        // Its elements are implicit (the network's cycles): an empty list printed as a
-        // complete set would be wrong.
-        anyhow::bail!(
-            "entry {} is the implicit set of a network matrix (its cycles, not enumerated), which cannot be exported; to export the cycles, build the enumerated set with `kernstep build MODEL --engine moves` (or write it with `kernstep build MODEL --out FILE`)",
-            &entry.key.digest().to_hex()[..SHORT_KEY]
-        );
+        // Its elements are implicit (the network's cycles): enumerate them, so the file holds
+        // the Graver basis as `build --out` writes it.
+        let a = IntMatrix::from_rows(&entry.metadata.matrix)?;
+        let limits = LimitArgs::default();
+        let built = match enumerate_cycles(&a, &limits.control(a.cols())?)? {
+            BuildOutcome::Built(built) => built,
+            BuildOutcome::Stopped(reason) => anyhow::bail!(
+                "enumerating the cycles of entry {key} stopped: {}",
+                limits.named(reason, a.cols())
+            ),
+        };
+        let ExportFormat::Json = format;
+        out.write_all(set_document(&built.key, &built.metadata, &built.set.elements)?.as_bytes())?;
+        return Ok(ExitCode::SUCCESS);
     }
     match format {
         ExportFormat::Json => {

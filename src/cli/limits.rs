@@ -65,7 +65,7 @@ impl LimitArgs {
     }
 
     /// The limit behind `reason`, in the words of the command line.
-    fn named(&self, reason: StopReason, width: usize) -> String {
+    pub(super) fn named(&self, reason: StopReason, width: usize) -> String {
         match reason {
             StopReason::Cancelled => "interrupted".to_string(),
             StopReason::TimeLimit => match self.time_limit {

@@ -85,6 +85,23 @@ pub struct Model {
 }
 
 impl Model {
+    /// The model of `matrix` alone: zero right-hand side and cost, every variable free, names
+    /// generated (`x1`.., `r1`..). A test set depends on the matrix only, so this is what
+    /// building one needs when no model file is at hand (a cache entry's matrix).
+    pub fn of_matrix(matrix: IntMatrix) -> Model {
+        let (m, n) = (matrix.rows(), matrix.cols());
+        Model {
+            rhs: vec![0; m],
+            cost: vec![0; n],
+            convex: ConvexCosts::default(),
+            lower: vec![None; n],
+            upper: vec![None; n],
+            variable_names: (1..=n).map(|i| format!("x{i}")).collect(),
+            row_names: (1..=m).map(|i| format!("r{i}")).collect(),
+            matrix,
+        }
+    }
+
     /// Reads and validates a model file; its extension (`.json`, `.toml` or `.mps`) decides
     /// the syntax.
     pub fn load(path: &Path) -> Result<Model> {

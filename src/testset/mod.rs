@@ -19,6 +19,6 @@ pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
 pub use library::{
     CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
 };
-pub use network::{cycles_entry, cycles_key, CYCLES_METHOD};
+pub use network::{cycles_entry, cycles_key, enumerate_cycles, CYCLES_METHOD};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
 pub use verify::verify_content;

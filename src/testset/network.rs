@@ -12,11 +12,14 @@ use std::time::Instant;
 
 use cache::{Completeness, EntryKey, SetKind, SetMetadata, Truncation};
 
-use super::build::BuiltSet;
-use crate::analysis::ColumnClasses;
-use crate::completion::MoveSet;
+use super::build::{build, BuildOutcome, BuiltSet};
+use super::spec::BuildSpec;
+use crate::analysis::{AnalysisOptions, ColumnClasses, MatrixAnalysis};
+use crate::completion::{Control, MoveSet};
+use crate::error::Result;
 use crate::lattice::RowSpaceKey;
 use crate::matrix::IntMatrix;
+use crate::model::Model;
 use crate::network::Network;
 
 /// The name recorded as the method of such entries.
@@ -31,6 +34,16 @@ pub fn cycles_key(a: &IntMatrix) -> EntryKey {
         signs: vec![cache::Sign::Free; a.cols()],
         truncation: Truncation::default(),
     }
+}
+
+/// The signed cycles of the network matrix `a` enumerated: its whole Graver basis built by
+/// the completion under `control`, as a default build of the matrix writes it. This is what
+/// a file gets where the cache holds the implicit entry, which has no elements to write.
+pub fn enumerate_cycles(a: &IntMatrix, control: &Control<'_>) -> Result<BuildOutcome> {
+    let model = Model::of_matrix(a.clone());
+    let analysis = MatrixAnalysis::of(a, &AnalysisOptions::new());
+    let spec = BuildSpec::default().resolve(&model, &analysis)?;
+    build(a, &analysis, &spec, control, None)
 }
 
 /// The entry of `a`, detected as `network`: key, figures and no elements.
