@@ -63,6 +63,7 @@
 
 pub mod analysis;
 pub mod bound;
+pub mod certify;
 pub mod completion;
 pub mod error;
 pub mod input;

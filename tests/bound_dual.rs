@@ -4,6 +4,7 @@
 
 use augment::{Coverage, Options, Status};
 use kernstep::bound::{prove, BoundInstance, DualBound, Multipliers};
+use kernstep::certify::{judge, Answer};
 use kernstep::completion::Request;
 use kernstep::model::{ConvexCosts, Model, ModelKind, Pieces};
 use kernstep::solve::{Numbers, Prepared, Verdict};
@@ -234,6 +235,80 @@ fn bounds_never_exceed_the_highs_optimum_of_the_fixtures() {
     assert!(
         met > 0 && met < bounded,
         "{met} of {bounded} met: the fixtures should give both"
+    );
+}
+
+/// Issue 23: a partial set's answer claims only what is proven. Every variant of every fixture,
+/// over its Graver basis truncated at norms 2 and 4, judged with its dual bound
+/// ([`judge`]): `optimal` only at the HiGHS optimum, `feasible` never below it, `infeasible`
+/// and `unbounded` only where HiGHS says so; a partial set that finds no plan is `unknown`,
+/// also on instances HiGHS solves (which were reported infeasible before).
+#[test]
+fn partial_sets_claim_only_what_highs_confirms() {
+    let mut unknown_but_feasible = 0;
+    let mut judged = 0;
+    for fixture in fixtures() {
+        for case in &fixture.variants {
+            // Reference: HiGHS 1.16.0 through highspy (named in each fixture file).
+            let want = case.expect.status.as_str();
+            for norm in [2, 4] {
+                let p = partial(
+                    &fixture.matrix,
+                    &case.rhs,
+                    &case.cost,
+                    &case.lower,
+                    &case.upper,
+                    norm,
+                );
+                let answer = judge(&p.verdict, p.bound.as_ref());
+                let id = &case.id;
+                match &answer {
+                    Answer::Optimal { objective, .. } => {
+                        assert_eq!(want, "optimal", "{id} norm {norm}: {answer:?}");
+                        assert_eq!(Some(*objective), case.expect.objective, "{id}");
+                    }
+                    Answer::Feasible { bound, .. } if want == "unbounded" => {
+                        // A feasible plan, rightly not claimed optimal; no finite bound exists.
+                        assert!(bound.is_none(), "{id}: a bound on an unbounded instance");
+                    }
+                    Answer::Feasible {
+                        objective, bound, ..
+                    } => {
+                        assert_eq!(want, "optimal", "{id} norm {norm}: {answer:?}");
+                        let optimum = case.expect.objective.unwrap();
+                        assert!(*objective >= optimum, "{id}: a plan below the optimum");
+                        if let Some(bound) = bound {
+                            assert!(*bound <= BigInt::from(optimum), "{id}: bound too high");
+                        }
+                    }
+                    Answer::Infeasible(_) => {
+                        assert_eq!(want, "infeasible", "{id} norm {norm}: {answer:?}")
+                    }
+                    Answer::Unbounded(_) => {
+                        assert_eq!(want, "unbounded", "{id} norm {norm}: {answer:?}")
+                    }
+                    Answer::Unknown { .. } => {
+                        unknown_but_feasible += usize::from(want == "optimal");
+                    }
+                    Answer::Stopped(limit) => panic!("{id} norm {norm}: stopped by {limit:?}"),
+                }
+                let rows: Vec<String> =
+                    (0..fixture.matrix.len()).map(|r| format!("r{r}")).collect();
+                let document =
+                    Outcome::of_bounded(&p.verdict, p.bound.as_ref(), &fixture.variables, &rows);
+                assert_eq!(
+                    matches!(document, Outcome::InfeasibleUnproven { .. }),
+                    matches!(answer, Answer::Unknown { .. }),
+                    "{id}: the document says what the answer says"
+                );
+                judged += 1;
+            }
+        }
+    }
+    assert!(judged >= 400, "only {judged} answers");
+    assert!(
+        unknown_but_feasible > 0,
+        "the fixtures should hold a feasible instance that a partial set cannot start"
     );
 }
 

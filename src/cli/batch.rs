@@ -14,10 +14,9 @@ use std::sync::atomic::Ordering;
 use std::time::{Duration, Instant};
 
 use anyhow::Context;
-use augment::Status;
 use clap::{Args, ValueEnum};
+use kernstep::certify::{Answer, Limit, Proof};
 use kernstep::model::Model;
-use kernstep::network::{FlowOutcome, Infeasibility};
 use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
@@ -167,15 +166,18 @@ fn failure(result: &DayResult) -> Option<&kernstep::Error> {
     }
 }
 
-/// How a day ended, as written in results and counted in the summary.
+/// How a day ended, as written in results and counted in the summary: the day's certified
+/// answer ([`kernstep::certify::judge`]) in the words of the batch records.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub(super) enum DayStatus {
     /// Proven optimal.
     Optimal,
-    /// Optimal among the moves of a truncated set.
+    /// Optimal among the moves of a truncated set, not proven optimal.
     OptimalWithinNorm,
-    /// No plan exists (or, with an incomplete set, none was found).
+    /// Proven to have no plan.
     Infeasible,
+    /// A partial set found no plan: nothing proven.
+    Unknown,
     /// The cost falls without limit.
     Unbounded,
     /// The step limit stopped the solve.
@@ -190,22 +192,14 @@ impl DayStatus {
     /// The status of `result`.
     pub(super) fn of(result: &DayResult) -> DayStatus {
         match &result.outcome {
-            DayOutcome::Solved(Verdict::Solved(s)) => match s.status {
-                Status::Optimal => DayStatus::Optimal,
-                Status::OptimalForMovesUpTo(_) if result.proven_optimal() => DayStatus::Optimal,
-                Status::OptimalForMovesUpTo(_) => DayStatus::OptimalWithinNorm,
-                Status::Infeasible(_) => DayStatus::Infeasible,
-                Status::Unbounded(_) => DayStatus::Unbounded,
-                Status::StepLimit => DayStatus::StepLimit,
-                Status::Cancelled => DayStatus::Interrupted,
-            },
-            DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => DayStatus::Infeasible,
-            DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
-                FlowOutcome::Optimal { .. } => DayStatus::Optimal,
-                FlowOutcome::Infeasible(_) => DayStatus::Infeasible,
-                FlowOutcome::Unbounded { .. } => DayStatus::Unbounded,
-                FlowOutcome::StepLimit { .. } => DayStatus::StepLimit,
-                FlowOutcome::Cancelled { .. } => DayStatus::Interrupted,
+            DayOutcome::Solved(_) => match result.answer() {
+                Some(Answer::Optimal { .. }) => DayStatus::Optimal,
+                Some(Answer::Feasible { .. }) => DayStatus::OptimalWithinNorm,
+                Some(Answer::Infeasible(_)) => DayStatus::Infeasible,
+                Some(Answer::Unknown { .. }) => DayStatus::Unknown,
+                Some(Answer::Unbounded(_)) => DayStatus::Unbounded,
+                Some(Answer::Stopped(Limit::Steps)) => DayStatus::StepLimit,
+                Some(Answer::Stopped(Limit::Cancelled)) | None => DayStatus::Interrupted,
             },
             DayOutcome::Failed(_) => DayStatus::Error,
             DayOutcome::NotRun => DayStatus::Interrupted,
@@ -218,6 +212,7 @@ impl DayStatus {
             DayStatus::Optimal => "optimal",
             DayStatus::OptimalWithinNorm => "optimal_within_norm",
             DayStatus::Infeasible => "infeasible",
+            DayStatus::Unknown => "unknown",
             DayStatus::Unbounded => "unbounded",
             DayStatus::StepLimit => "step_limit",
             DayStatus::Interrupted => "interrupted",
@@ -255,42 +250,41 @@ pub(super) fn steps(result: &DayResult) -> Option<u64> {
 
 /// Why a day has no answer, in words.
 fn detail(result: &DayResult) -> Option<String> {
-    match &result.outcome {
-        DayOutcome::Solved(Verdict::Solved(s)) => match &s.status {
-            Status::Optimal => None,
-            Status::OptimalForMovesUpTo(_) if result.proven_optimal() => None,
-            Status::OptimalForMovesUpTo(n) => Some(match bound_and_gap(result) {
-                Some((_, gap)) => format!(
-                    "no improving move of norm <= {n}; the dual bound leaves a gap of {gap}"
-                ),
-                None => format!("no improving move of norm <= {n}; no finite dual bound"),
-            }),
-            Status::Infeasible(reason) => Some(reason.to_string()),
-            Status::Unbounded(_) => Some("the cost falls without limit along a move".into()),
-            Status::StepLimit => Some("stopped at the step limit".into()),
-            Status::Cancelled => Some("interrupted during the solve".into()),
+    let answer = match &result.outcome {
+        DayOutcome::Solved(_) => result.answer()?,
+        DayOutcome::Failed(e) => return Some(e.to_string()),
+        DayOutcome::NotRun => return Some("not solved: interrupted before this day".into()),
+    };
+    let network = matches!(&result.outcome, DayOutcome::Solved(Verdict::Flow(_)));
+    Some(match answer {
+        Answer::Optimal { .. } => return None,
+        Answer::Feasible { norm, .. } => match answer.gap() {
+            Some(gap) => format!(
+                "no improving move of norm <= {norm}; the dual bound leaves a gap of {gap}"
+            ),
+            None => format!("no improving move of norm <= {norm}; no finite dual bound"),
         },
-        DayOutcome::Solved(Verdict::NoIntegerSolution(_)) => {
-            Some("the day's numbers admit no integer solution of the rows".into())
+        Answer::Infeasible(Proof::NoIntegerSolution { .. }) => {
+            "the day's numbers admit no integer solution of the rows".into()
         }
-        DayOutcome::Solved(Verdict::Flow(f)) => match &f.solution.outcome {
-            FlowOutcome::Optimal { .. } => None,
-            FlowOutcome::Infeasible(Infeasibility::EmptyRange { arc }) => Some(format!(
-                "variable {arc} has its lower bound above its upper bound"
-            )),
-            FlowOutcome::Infeasible(Infeasibility::Cut(cut)) => Some(format!(
-                "no plan meets the bounds: {} rows (a cut) ask for more than their lanes can carry",
-                cut.rows().len()
-            )),
-            FlowOutcome::Unbounded { .. } => {
-                Some("the cost falls without limit along a cycle".into())
-            }
-            FlowOutcome::StepLimit { .. } => Some("stopped at the step limit".into()),
-            FlowOutcome::Cancelled { .. } => Some("interrupted during the solve".into()),
-        },
-        DayOutcome::Failed(e) => Some(e.to_string()),
-        DayOutcome::NotRun => Some("not solved: interrupted before this day".into()),
-    }
+        Answer::Infeasible(Proof::EmptyRange { variable }) => {
+            format!("variable {variable} has a lower bound above its upper bound")
+        }
+        Answer::Infeasible(Proof::NoLatticePointInBox { min_violation }) => format!(
+            "no lattice point of this fibre lies in the box (minimum violation {min_violation})"
+        ),
+        Answer::Infeasible(Proof::Cut { weights }) => format!(
+            "no plan meets the bounds: {} rows (a cut) ask for more than their lanes can carry",
+            weights.iter().filter(|&&w| w != 0).count()
+        ),
+        Answer::Unknown { violation } => format!(
+            "no feasible plan found (violation {violation}); the move set is incomplete, so this is not a proof of infeasibility"
+        ),
+        Answer::Unbounded(_) if network => "the cost falls without limit along a cycle".into(),
+        Answer::Unbounded(_) => "the cost falls without limit along a move".into(),
+        Answer::Stopped(Limit::Steps) => "stopped at the step limit".into(),
+        Answer::Stopped(Limit::Cancelled) => "interrupted during the solve".into(),
+    })
 }
 
 /// The nonzero entries of a plan, by variable name, in model order.
@@ -446,8 +440,10 @@ pub(super) struct Tally {
     /// The largest gap left by a dual bound, over the days optimal within the norm that have
     /// one.
     pub largest_gap: Option<String>,
-    /// No plan.
+    /// Proven to have no plan.
     pub infeasible: usize,
+    /// No plan found with a partial set: nothing proven.
+    pub unknown: usize,
     /// Cost without limit.
     pub unbounded: usize,
     /// Stopped by the step limit.
@@ -476,6 +472,7 @@ impl Tally {
                 DayStatus::Optimal => &mut t.optimal,
                 DayStatus::OptimalWithinNorm => &mut t.optimal_within_norm,
                 DayStatus::Infeasible => &mut t.infeasible,
+                DayStatus::Unknown => &mut t.unknown,
                 DayStatus::Unbounded => &mut t.unbounded,
                 DayStatus::StepLimit => &mut t.step_limit,
                 DayStatus::Interrupted => &mut t.interrupted,
@@ -505,6 +502,7 @@ impl Tally {
         self.optimal_by_bound += other.optimal_by_bound;
         self.optimal_within_norm += other.optimal_within_norm;
         self.infeasible += other.infeasible;
+        self.unknown += other.unknown;
         self.unbounded += other.unbounded;
         self.step_limit += other.step_limit;
         self.interrupted += other.interrupted;
@@ -524,7 +522,13 @@ impl Tally {
     pub(super) fn exit_code(&self) -> ExitCode {
         if self.errors > 0 {
             ExitCode::from(2)
-        } else if self.infeasible + self.unbounded + self.step_limit + self.interrupted > 0 {
+        } else if self.infeasible
+            + self.unknown
+            + self.unbounded
+            + self.step_limit
+            + self.interrupted
+            > 0
+        {
             ExitCode::from(1)
         } else {
             ExitCode::SUCCESS
@@ -577,6 +581,7 @@ impl<'a> Summary<'a> {
             ("  of which by dual bound", t.optimal_by_bound),
             ("optimal within norm", t.optimal_within_norm),
             ("infeasible", t.infeasible),
+            ("unknown (partial set, no plan found)", t.unknown),
             ("unbounded", t.unbounded),
             ("step limit", t.step_limit),
             ("not solved (Ctrl-C)", t.interrupted),

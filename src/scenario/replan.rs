@@ -18,6 +18,7 @@ use std::time::{Duration, Instant};
 use rayon::prelude::*;
 
 use crate::bound::{DualBound, Multipliers};
+use crate::certify::{judge, Answer};
 use crate::error::Error;
 use crate::model::Model;
 use crate::network::FlowOutcome;
@@ -75,27 +76,19 @@ impl DayResult {
         }
     }
 
+    /// The certified answer of a solved day (see [`judge`]); `None` for a day that failed
+    /// or did not run.
+    pub fn answer(&self) -> Option<Answer> {
+        match &self.outcome {
+            DayOutcome::Solved(verdict) => Some(judge(verdict, self.bound.as_ref())),
+            _ => None,
+        }
+    }
+
     /// True when the day's plan is proven optimal: by the set (complete, or a network), or by
     /// a dual bound that meets its cost.
     pub fn proven_optimal(&self) -> bool {
-        let DayOutcome::Solved(verdict) = &self.outcome else {
-            return false;
-        };
-        match verdict {
-            Verdict::Solved(s) => match s.status {
-                augment::Status::Optimal => true,
-                augment::Status::OptimalForMovesUpTo(_) => {
-                    let cost = s.objective;
-                    self.bound
-                        .as_ref()
-                        .zip(cost)
-                        .is_some_and(|(b, cost)| b.meets(cost))
-                }
-                _ => false,
-            },
-            Verdict::Flow(_) => verdict.optimum().is_some(),
-            Verdict::NoIntegerSolution(_) => false,
-        }
+        matches!(self.answer(), Some(Answer::Optimal { .. }))
     }
 
     /// The row potentials that proved the day's plan optimal (network solves only).

@@ -4,12 +4,12 @@
 //! fields are its details; large values are decimal strings ([`Decimal`]). Variables are
 //! named, so a reader needs no second file to understand a verdict.
 
-use augment::{Coverage, InfeasibleReason, Sign, Status};
+use augment::{Coverage, Sign};
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
 use crate::bound::DualBound;
-use crate::network::{FlowOutcome, Infeasibility};
+use crate::certify::{judge, Answer, Limit, Proof};
 use crate::solve::Verdict;
 
 /// The outcome of one solve.
@@ -70,80 +70,58 @@ pub enum Outcome {
 }
 
 impl Outcome {
-    /// The outcome of `verdict`; `names` names the variables and `rows` the rows.
+    /// The outcome of `verdict` without a dual bound; `names` names the variables and `rows`
+    /// the rows.
     pub fn of(verdict: &Verdict, names: &[String], rows: &[String]) -> Outcome {
-        let solution = match verdict {
-            Verdict::NoIntegerSolution(c) => {
-                return Outcome::NoIntegerSolution {
-                    multipliers: c.y.iter().map(ToString::to_string).collect(),
-                }
-            }
-            Verdict::Flow(f) => return Outcome::of_flow(&f.solution.outcome, names, rows),
-            Verdict::Solved(solution) => solution,
-        };
-        match &solution.status {
-            Status::Optimal => Outcome::Optimal,
-            Status::OptimalForMovesUpTo(norm) => Outcome::OptimalForMovesUpTo { norm: *norm },
-            Status::Infeasible(InfeasibleReason::EmptyRange { variable }) => Outcome::EmptyRange {
-                variable: names[*variable].clone(),
-            },
-            Status::Infeasible(InfeasibleReason::NoLatticePointInBox { min_violation }) => {
-                Outcome::NoLatticePointInBox {
-                    min_violation: Decimal(*min_violation),
-                }
-            }
-            Status::Infeasible(InfeasibleReason::Unproven { violation }) => {
-                Outcome::InfeasibleUnproven {
-                    violation: Decimal(*violation),
-                }
-            }
-            Status::Unbounded(ray) => Outcome::Unbounded {
-                move_index: Some(ray.move_index),
-                sign: sign_number(ray.sign),
-                direction: ray.direction.clone(),
-            },
-            Status::StepLimit => Outcome::StepLimit,
-            Status::Cancelled => Outcome::Cancelled,
-        }
+        Outcome::of_answer(&judge(verdict, None), names, rows)
     }
 
     /// The outcome of `verdict` once `bound` is known: a plan optimal among the moves of a
-    /// truncated set is optimal outright when the bound meets its cost.
+    /// truncated set is optimal outright when the bound meets its cost (see [`judge`]).
     pub fn of_bounded(
         verdict: &Verdict,
         bound: Option<&DualBound>,
         names: &[String],
         rows: &[String],
     ) -> Outcome {
-        let outcome = Outcome::of(verdict, names, rows);
-        match (&outcome, bound, verdict.optimum()) {
-            (Outcome::OptimalForMovesUpTo { .. }, Some(b), Some((cost, _))) if b.meets(cost) => {
-                Outcome::Optimal
-            }
-            _ => outcome,
-        }
+        Outcome::of_answer(&judge(verdict, bound), names, rows)
     }
 
-    fn of_flow(outcome: &FlowOutcome, names: &[String], rows: &[String]) -> Outcome {
-        match outcome {
-            FlowOutcome::Optimal { .. } => Outcome::Optimal,
-            FlowOutcome::Infeasible(Infeasibility::EmptyRange { arc }) => Outcome::EmptyRange {
-                variable: names[*arc].clone(),
-            },
-            FlowOutcome::Infeasible(Infeasibility::Cut(cut)) => {
-                let members = cut.rows();
-                Outcome::InfeasibleCut {
-                    rows: members.iter().map(|&r| rows[r].clone()).collect(),
-                    weights: members.iter().map(|&r| cut.weights[r]).collect(),
+    /// The document form of `answer`, with variables and rows named.
+    pub fn of_answer(answer: &Answer, names: &[String], rows: &[String]) -> Outcome {
+        match answer {
+            Answer::Optimal { .. } => Outcome::Optimal,
+            Answer::Feasible { norm, .. } => Outcome::OptimalForMovesUpTo { norm: *norm },
+            Answer::Infeasible(Proof::NoIntegerSolution { multipliers }) => {
+                Outcome::NoIntegerSolution {
+                    multipliers: multipliers.iter().map(ToString::to_string).collect(),
                 }
             }
-            FlowOutcome::Unbounded { cycle, .. } => Outcome::Unbounded {
-                move_index: None,
-                sign: 1,
-                direction: cycle.vector(names.len()),
+            Answer::Infeasible(Proof::EmptyRange { variable }) => Outcome::EmptyRange {
+                variable: names[*variable].clone(),
             },
-            FlowOutcome::StepLimit { .. } => Outcome::StepLimit,
-            FlowOutcome::Cancelled { .. } => Outcome::Cancelled,
+            Answer::Infeasible(Proof::NoLatticePointInBox { min_violation }) => {
+                Outcome::NoLatticePointInBox {
+                    min_violation: Decimal(*min_violation),
+                }
+            }
+            Answer::Infeasible(Proof::Cut { weights }) => {
+                let members: Vec<usize> = (0..weights.len()).filter(|&r| weights[r] != 0).collect();
+                Outcome::InfeasibleCut {
+                    rows: members.iter().map(|&r| rows[r].clone()).collect(),
+                    weights: members.iter().map(|&r| weights[r]).collect(),
+                }
+            }
+            Answer::Unknown { violation } => Outcome::InfeasibleUnproven {
+                violation: Decimal(*violation),
+            },
+            Answer::Unbounded(ray) => Outcome::Unbounded {
+                move_index: ray.move_index,
+                sign: sign_number(ray.sign),
+                direction: ray.direction.clone(),
+            },
+            Answer::Stopped(Limit::Steps) => Outcome::StepLimit,
+            Answer::Stopped(Limit::Cancelled) => Outcome::Cancelled,
         }
     }
 
