@@ -11,7 +11,7 @@ use serde::Deserialize;
 use crate::bound::BoundInstance;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
-use crate::model::{ConvexCosts, Model};
+use crate::model::{ConvexCosts, Model, VALUE_LIMIT};
 use crate::network::FlowNumbers;
 
 /// The numbers of one variant; `None` keeps the model's.
@@ -86,6 +86,12 @@ impl Variant {
         check("cost", cost.len(), n)?;
         check("lower", lower.len(), n)?;
         check("upper", upper.len(), n)?;
+        let exact = |v: &'a Option<Vec<i64>>| v.iter().flatten().copied().map(Some);
+        let bounds = |v: &'a Option<Vec<Option<i64>>>| v.iter().flatten().copied();
+        self.within_range("rhs", exact(&self.rhs), origin)?;
+        self.within_range("cost", exact(&self.cost), origin)?;
+        self.within_range("lower", bounds(&self.lower), origin)?;
+        self.within_range("upper", bounds(&self.upper), origin)?;
         Ok(Numbers {
             rhs,
             cost,
@@ -93,6 +99,30 @@ impl Variant {
             lower,
             upper,
         })
+    }
+}
+
+impl Variant {
+    /// Refuses a value beyond `±2^62` ([`VALUE_LIMIT`], the range model files are held to,
+    /// within which the solver's checked arithmetic is exact), naming the entry.
+    fn within_range(
+        &self,
+        name: &str,
+        values: impl Iterator<Item = Option<i64>>,
+        origin: &str,
+    ) -> Result<()> {
+        let beyond = values.enumerate().find_map(|(i, v)| {
+            v.filter(|&v| i128::from(v).abs() > VALUE_LIMIT)
+                .map(|v| (i, v))
+        });
+        match beyond {
+            Some((i, v)) => Err(Error::Input {
+                file: origin.to_string(),
+                field: format!("variant {:?}: {name}[{i}]", self.id),
+                message: format!("{v} is out of range (|v| <= 2^62)"),
+            }),
+            None => Ok(()),
+        }
     }
 }
 
@@ -161,6 +191,26 @@ impl<'a> Numbers<'a> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn values_beyond_two_to_the_62_are_refused_by_entry() {
+        let model = Model::of_matrix(IntMatrix::from_rows(&[vec![1, 1]]).unwrap());
+        let text = format!(
+            "{{\"id\":\"mon\",\"rhs\":[{}]}}\n{{\"id\":\"tue\",\"upper\":[null,{}]}}\n",
+            1i64 << 62,
+            (1i64 << 62) + 1
+        );
+        let lines = parse_lines(&text, "days.jsonl");
+        let at_limit = lines[0].1.as_ref().unwrap();
+        assert!(at_limit.numbers(&model, "days.jsonl").is_ok());
+        let beyond = lines[1].1.as_ref().unwrap();
+        let err = beyond
+            .numbers(&model, "days.jsonl")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("variant \"tue\": upper[1]"), "{err}");
+        assert!(err.contains("out of range"), "{err}");
+    }
 
     #[test]
     fn bad_lines_are_reported_with_their_number() {
