@@ -60,7 +60,8 @@ pub enum Proof {
 /// A direction along which the cost falls without limit, from the returned plan.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Ray {
-    /// Index of the move in the set; `None` for a cycle of a network (an implicit set).
+    /// Index of the move in the set; `None` for a cycle of a network (an implicit set) or a
+    /// ray that no single move gives (the difference of two points of the descent).
     pub move_index: Option<usize>,
     /// The sign in which the move is applied.
     pub sign: Sign,
@@ -179,7 +180,7 @@ pub fn judge(verdict: &Verdict, bound: Option<&DualBound>) -> Answer {
                 violation: *violation,
             },
             Status::Unbounded(ray) => Answer::Unbounded(Ray {
-                move_index: Some(ray.move_index),
+                move_index: ray.move_index,
                 sign: ray.sign,
                 direction: ray.direction.clone(),
             }),

@@ -777,3 +777,42 @@ ENDATA
     let (_, moves) = solve_json(model, dir.path(), &["--engine", "moves"]);
     assert_eq!(moves["objective"], "56");
 }
+
+/// Issue 23: a partial set on an unbounded instance reports the ray instead of running to
+/// the step limit. `x1 - 2 x2 + 3 x3 = 0`, cost `-x1`, `x1 >= 0`, `x2` in `[0, 1]`, `x3`
+/// free (a worked example from memory): the moves up to norm 3 are `(2, 1, 0)` and
+/// `(1, -1, -1)`, each blocked by `x2` within a step, whose sum `(3, 0, -1)` is the ray. The
+/// direction is checked here by hand: in the kernel, within every bound's recession cone,
+/// and the cost falls along it.
+#[test]
+fn a_partial_set_reports_a_ray_that_no_single_move_gives() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("ray.json");
+    std::fs::write(
+        &model,
+        r#"{"matrix": [[1, -2, 3]], "rhs": [0], "cost": [-1, 0, 0],
+            "lower": [0, 0, null], "upper": [null, 1, null]}"#,
+    )
+    .unwrap();
+    let m = model.to_str().unwrap();
+    let cache = dir.path().join("cache");
+    let build = ["build", m, "--engine", "moves", "--norm-limit", "3"];
+    expect_both(&cache, &build, 0);
+    let solve = ["solve", m, "--engine", "moves", "--json"];
+    let doc: Value = serde_json::from_str(&expect_both(&cache, &solve, 1).0).unwrap();
+    assert_eq!(doc["status"]["tag"], "unbounded", "{doc}");
+    assert_eq!(doc["status"]["move_index"], Value::Null, "{doc}");
+    let d: Vec<i64> = serde_json::from_value(doc["status"]["direction"].clone()).unwrap();
+    assert_eq!(d[0] - 2 * d[1] + 3 * d[2], 0, "in the kernel: {d:?}");
+    assert!(
+        d[0] >= 0 && d[1] == 0,
+        "within the bounds' recession cone: {d:?}"
+    );
+    assert!(-d[0] < 0, "the cost falls: {d:?}");
+    assert_eq!(doc["recheck"]["holds"], true, "{doc}");
+    let steps = doc["steps"]["cost"].as_u64().unwrap();
+    assert!(
+        steps < 2_000,
+        "found after {steps} steps, not at the step limit"
+    );
+}

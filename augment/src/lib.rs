@@ -9,8 +9,9 @@
 //!   complete Graver basis a positive minimum proves that the box holds no lattice point of the
 //!   fibre (Murota, Saito, Weismantel 2004).
 //! - Phase II augments by the chosen [`Rule`] (Graver-best by default) until no move improves,
-//!   detecting unbounded rays, and reports a [`Status`] that is honest about the set's
-//!   [`Coverage`].
+//!   detecting unbounded rays (also those no single move of a truncated set gives, from a
+//!   descent that keeps returning to one position on the doubly bounded variables), and
+//!   reports a [`Status`] that is honest about the set's [`Coverage`].
 //! - [`certify`] independently checks that no move improves a point.
 //!
 //! Arithmetic is exact: coordinates in checked `i64`, objective values in checked `i128`;
@@ -47,6 +48,7 @@ mod moves;
 mod objective;
 mod options;
 mod problem;
+mod recurrence;
 mod repair;
 mod search;
 mod select;

@@ -48,11 +48,12 @@ impl fmt::Display for InfeasibleReason {
     }
 }
 
-/// A direction of unbounded improvement: applying the move any number of times stays feasible.
+/// A direction of unbounded improvement: adding it any number of times stays feasible.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Ray {
-    /// Index of the move in the set.
-    pub move_index: usize,
+    /// Index of the move in the set; `None` for a ray that no single move gives, found as the
+    /// difference of two points of the descent (see `recurrence.rs`).
+    pub move_index: Option<usize>,
     /// Sign in which the move is applied.
     pub sign: Sign,
     /// The signed move itself.

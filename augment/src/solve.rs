@@ -14,6 +14,7 @@ use crate::moves::{Coverage, MoveSet};
 use crate::objective::Separable;
 use crate::options::Options;
 use crate::problem::Problem;
+use crate::recurrence::{Recurrence, WATCH_AFTER};
 use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
 use crate::select::{Candidate, Rule, Scan};
@@ -130,6 +131,9 @@ enum Outcome {
     Stationary(i128),
     /// An improving move can be applied without limit.
     Ray(Candidate),
+    /// The descent came back to its position on every doubly bounded variable, further on
+    /// along this direction: a ray of a linear objective (see [`Recurrence`]).
+    Recurred(Vec<i64>),
     /// The step limit or the cancellation hook stopped the phase.
     Stopped(Status),
 }
@@ -145,12 +149,14 @@ impl<'a> Run<'a> {
         let repair = |run: &Self, violation| {
             sweep::select(&run.repair_scan(violation), run.options.is_parallel())
         };
-        match self.descend(Phase::Feasibility, violation, repair)? {
+        match self.descend(Phase::Feasibility, violation, repair, false)? {
             Outcome::Stopped(status) => return Ok(status),
             Outcome::Stationary(0) => {}
             Outcome::Stationary(left) => return Ok(Status::Infeasible(self.infeasible(left))),
             // The violation is bounded below by 0, so no step along it is unbounded.
-            Outcome::Ray(_) => unreachable!("the violation has no ray of descent"),
+            Outcome::Ray(_) | Outcome::Recurred(_) => {
+                unreachable!("the violation has no ray of descent")
+            }
         }
         let objective = self.problem.objective();
         let value = objective.value(&self.x)?;
@@ -173,14 +179,24 @@ impl<'a> Run<'a> {
             run.scan(objective, slopes.as_ref())
                 .select(run.options.is_parallel())
         };
-        Ok(match self.descend(Phase::Optimality, value, improve)? {
-            Outcome::Stopped(status) => status,
-            Outcome::Stationary(_) => match self.optimality.coverage() {
-                Coverage::Complete | Coverage::BoxValid => Status::Optimal,
-                Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
+        // A linear objective falls along the difference of two points of the descent, so a
+        // return to the same position on the doubly bounded variables may prove a ray.
+        let watch = slopes.is_some();
+        Ok(
+            match self.descend(Phase::Optimality, value, improve, watch)? {
+                Outcome::Stopped(status) => status,
+                Outcome::Stationary(_) => match self.optimality.coverage() {
+                    Coverage::Complete | Coverage::BoxValid => Status::Optimal,
+                    Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
+                },
+                Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
+                Outcome::Recurred(direction) => Status::Unbounded(Ray {
+                    move_index: None,
+                    sign: crate::moves::Sign::Plus,
+                    direction,
+                }),
             },
-            Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
-        })
+        )
     }
 
     /// Augments along the steps `select` picks at the current point and value until it finds
@@ -190,7 +206,9 @@ impl<'a> Run<'a> {
         phase: Phase,
         mut value: i128,
         select: impl Fn(&Self, i128) -> Result<Option<Candidate>>,
+        watch: bool,
     ) -> Result<Outcome> {
+        let mut recurrence = None;
         loop {
             if phase == Phase::Feasibility && value == 0 {
                 return Ok(Outcome::Stationary(0));
@@ -213,6 +231,12 @@ impl<'a> Run<'a> {
             value = after;
             if phase == Phase::Optimality {
                 self.objective = Some(value);
+                if watch && self.steps[1] >= WATCH_AFTER {
+                    let record = recurrence.get_or_insert_with(|| Recurrence::new(self.problem));
+                    if let Some(direction) = record.visit(&self.x) {
+                        return Ok(Outcome::Recurred(direction));
+                    }
+                }
             }
         }
     }
@@ -312,7 +336,7 @@ impl<'a> Run<'a> {
         // overflow.
         let factor = found.sign.factor();
         Ray {
-            move_index: self.whole_index(Phase::Optimality, found.index),
+            move_index: Some(self.whole_index(Phase::Optimality, found.index)),
             sign: found.sign,
             direction: self
                 .optimality

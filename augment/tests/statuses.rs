@@ -31,7 +31,7 @@ fn free_direction_with_negative_cost_is_an_unbounded_ray() {
     assert_eq!(
         solution.status,
         Status::Unbounded(Ray {
-            move_index: 0,
+            move_index: Some(0),
             sign: Sign::Plus,
             direction: vec![1, 1]
         })

@@ -489,7 +489,7 @@ mod tests {
         assert!(message.contains("row 2 of A x is 5"), "{message}");
         // The same point claimed as the start of a ray, or as a minimum violation.
         let ray = Ray {
-            move_index: 0,
+            move_index: Some(0),
             sign: augment::Sign::Plus,
             direction: vec![1, -1, -1, 1],
         };
@@ -544,7 +544,7 @@ mod tests {
     #[test]
     fn a_ray_must_avoid_finite_bounds() {
         let ray = Ray {
-            move_index: 0,
+            move_index: Some(0),
             sign: augment::Sign::Plus,
             direction: vec![1, -1, -1, 1],
         };
