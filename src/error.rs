@@ -61,12 +61,37 @@ pub enum Error {
         /// What refutes it.
         why: String,
     },
+    /// No stored test set serves the model, and building one was not asked for.
+    #[error("no test set for this matrix in the cache {}", dir.display())]
+    NotCached {
+        /// The cache directory searched.
+        dir: PathBuf,
+    },
+    /// A build that a solve needed stopped before it finished (a limit or a cancellation).
+    #[error("building the test set stopped: {}", stop_text(*reason))]
+    BuildStopped {
+        /// Why it stopped.
+        reason: crate::completion::StopReason,
+        /// The state saved last, from which the build resumes.
+        kept: Option<crate::testset::SavedState>,
+        /// A checkpoint found unusable and set aside on the way.
+        set_aside: Option<Box<crate::testset::SetAside>>,
+    },
     /// The test-set cache refused an operation or found a damaged entry.
     #[error(transparent)]
     Cache(#[from] cache::CacheError),
     /// The augmentation solver rejected its input or hit an arithmetic limit.
     #[error(transparent)]
     Augment(#[from] augment::AugmentError),
+}
+
+/// A stop reason in words for [`Error::BuildStopped`].
+fn stop_text(reason: crate::completion::StopReason) -> &'static str {
+    match reason {
+        crate::completion::StopReason::ElementLimit => "the element or memory limit was reached",
+        crate::completion::StopReason::TimeLimit => "the time limit was reached",
+        crate::completion::StopReason::Cancelled => "interrupted",
+    }
 }
 
 /// `u - l` in words for [`Error::BeyondSetBox`].

@@ -59,6 +59,34 @@
 //! assert_eq!(plan.objective, Some(44));
 //! # Ok::<(), kernstep::Error>(())
 //! ```
+//!
+//! # What `kernstep solve --build` does
+//!
+//! The same plan through the library's policies: [`testset::serve`] picks the stored set that
+//! serves the model (building and storing the complete set on a miss) and
+//! [`certify::judge`] says what the solve proved, with the dual bound of a partial set's plan.
+//!
+//! ```
+//! use kernstep::certify::{judge, Answer, Claim};
+//! use kernstep::completion::Control;
+//! use kernstep::solve::Numbers;
+//! use kernstep::testset::{serve, Engine, SetLibrary};
+//!
+//! # let text = "matrix = [[1, 1, 0, 0], [1, 0, 1, 0], [0, 1, 0, 1]]\nrhs = [7, 5, 6]\n\
+//! #     cost = [4, 6, 5, 3]\nlower = [0, 0, 0, 0]\nupper = [5, \"inf\", 4, \"inf\"]";
+//! # let model = kernstep::model::Model::from_str(text, kernstep::model::ModelKind::Toml, "m")?;
+//! # let dir = tempfile::tempdir().unwrap();
+//! let library = SetLibrary::open(Some(dir.path()))?;
+//! let served = serve(&model, Some(&library), Engine::Auto, Some(&Control::new()))?;
+//! let prepared = served.prepare(&model.matrix)?;
+//! let options = augment::Options::default();
+//! let verdict = prepared.solve(&model, &options, None, &|| false)?;
+//! let bound = prepared.bound(Numbers::of(&model), &verdict, None)?;
+//! let answer = judge(&verdict, bound.as_ref());
+//! // The lanes form a network, so its cycles serve it and row potentials prove the plan.
+//! assert_eq!(answer, Answer::Optimal { objective: 44, claim: Claim::Potentials });
+//! # Ok::<(), kernstep::Error>(())
+//! ```
 #![deny(missing_docs)]
 
 pub mod analysis;

@@ -22,9 +22,10 @@ use kernstep::solve::{ParsedLine, Prepared, Verdict};
 use serde::ser::{SerializeMap, Serializer};
 use serde::{Deserialize, Serialize};
 
+use kernstep::testset::{Served, Source};
+
 use super::common::{
-    capped_threads, graver_for, interrupted, with_threads, CacheArgs, EngineArg, SetSource,
-    SolverSet, CAUTION,
+    capped_threads, graver_for, interrupted, with_threads, CacheArgs, EngineArg, CAUTION,
 };
 use super::days::read_days;
 use super::limits::LimitArgs;
@@ -281,7 +282,10 @@ fn detail(result: &DayResult) -> Option<String> {
             "no feasible plan found (violation {violation}); the move set is incomplete, so this is not a proof of infeasibility"
         ),
         Answer::Unbounded(_) if network => "the cost falls without limit along a cycle".into(),
-        Answer::Unbounded(_) => "the cost falls without limit along a move".into(),
+        Answer::Unbounded(ray) if ray.move_index.is_some() => {
+            "the cost falls without limit along a move".into()
+        }
+        Answer::Unbounded(_) => "the cost falls without limit along a sum of moves".into(),
         Answer::Stopped(Limit::Steps) => "stopped at the step limit".into(),
         Answer::Stopped(Limit::Cancelled) => "interrupted during the solve".into(),
     })
@@ -551,7 +555,7 @@ pub(super) struct Summary<'a> {
 impl<'a> Summary<'a> {
     pub(super) fn new(
         tally: &'a Tally,
-        set: &SolverSet,
+        set: &Served,
         threads: Option<usize>,
         wall: Duration,
     ) -> Self {
@@ -561,9 +565,9 @@ impl<'a> Summary<'a> {
             threads: threads.map(capped_threads),
             moves: set.set.elements.len(),
             set: match &set.source {
-                SetSource::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
-                SetSource::Built => "built for this run".to_string(),
-                SetSource::Network => "network".to_string(),
+                Source::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
+                Source::Built => "built for this run".to_string(),
+                Source::Network => "network".to_string(),
             },
             caution: CAUTION,
         }

@@ -6,17 +6,9 @@ use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::sync::{Arc, OnceLock};
 
 use anyhow::Context;
-use augment::Coverage;
-use cache::EntryKey;
 use clap::{Args, ValueEnum};
-use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::MoveSet;
 use kernstep::model::Model;
-use kernstep::network::Network;
-use kernstep::solve::{coverage_of, Prepared};
-use kernstep::testset::{
-    default_graver_keys, from_data, BuildSpec, Obtained, ResolvedSpec, SetLibrary,
-};
+use kernstep::testset::{by_cycles, serve, Engine, Served, SetLibrary};
 use signal_hook::consts::{SIGINT, SIGTERM};
 
 use super::limits::LimitArgs;
@@ -214,53 +206,13 @@ pub enum EngineArg {
     Cycles,
 }
 
-/// Where the moves of a solve came from.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum SetSource {
-    /// A cache entry, named by its digest.
-    Cached(String),
-    /// Built for this run (and stored, when the cache was usable).
-    Built,
-    /// None needed: the matrix is a network, whose cycles are its Graver basis.
-    Network,
-}
-
-/// The Graver basis a solve of `model` uses, with its coverage.
-#[derive(Debug, Clone)]
-pub struct SolverSet {
-    /// The moves.
-    pub set: MoveSet,
-    /// What the set guarantees.
-    pub coverage: Coverage,
-    /// Where it came from.
-    pub source: SetSource,
-    /// The box the set was truncated to, if any (it serves only instances inside it).
-    pub box_limit: Option<Vec<u64>>,
-    /// The network, when the matrix is one: then `set` is empty and the network solver runs.
-    pub network: Option<Network>,
-}
-
-impl SolverSet {
-    /// The set prepared for solving instances of `matrix`, refusing instances wider than its
-    /// box.
-    pub fn prepare(&self, matrix: &kernstep::IntMatrix) -> kernstep::Result<Prepared> {
-        if let Some(network) = &self.network {
-            return Ok(Prepared::network(matrix, network.clone()));
-        }
-        Ok(Prepared::new(matrix, &self.set, self.coverage)?.with_box_limit(self.box_limit.clone()))
-    }
-
-    /// The implicit set of a network matrix: its cycles, with nothing to enumerate or store.
-    fn network(model: &Model, network: Network) -> Self {
-        SolverSet {
-            set: MoveSet {
-                width: model.variables(),
-                elements: Vec::new(),
-            },
-            coverage: Coverage::Complete,
-            source: SetSource::Network,
-            box_limit: None,
-            network: Some(network),
+impl EngineArg {
+    /// The library's engine choice.
+    pub fn engine(self) -> Engine {
+        match self {
+            EngineArg::Auto => Engine::Auto,
+            EngineArg::Moves => Engine::Moves,
+            EngineArg::Cycles => Engine::Cycles,
         }
     }
 }
@@ -284,10 +236,9 @@ pub fn overflow_named(err: anyhow::Error, input: &Path) -> anyhow::Error {
     }
 }
 
-/// Finds the Graver basis of `model`'s matrix (read from `input`) in the cache; on a miss
-/// builds it within `limits` when `build_on_miss` (a stopped build is a
-/// [`super::limits::BuildStopped`] error), else says which `build` to run. For a network matrix (as `engine`
-/// decides) it is the implicit set of the network's cycles, with no cache.
+/// The test set that serves `model` (read from `input`), as the library's policy chooses it
+/// ([`serve`]): on a miss built within `limits` when `build_on_miss` (a stopped build is a
+/// [`super::limits::BuildStopped`] error), else the error says which `build` to run.
 pub fn graver_for(
     model: &Model,
     input: &Path,
@@ -295,135 +246,90 @@ pub fn graver_for(
     build_on_miss: bool,
     engine: EngineArg,
     limits: &LimitArgs,
-) -> anyhow::Result<SolverSet> {
-    find_or_build(model, input, cache, build_on_miss, engine, limits)
-        .map_err(|e| overflow_named(e, input))
-}
-
-/// [`graver_for`] before an overflow is named.
-fn find_or_build(
-    model: &Model,
-    input: &Path,
-    cache: &CacheArgs,
-    build_on_miss: bool,
-    engine: EngineArg,
-    limits: &LimitArgs,
-) -> anyhow::Result<SolverSet> {
+) -> anyhow::Result<Served> {
     if limits.any() && !build_on_miss {
         anyhow::bail!(
             "--max-elements, --max-memory and --time-limit limit the build that --build starts on a cache miss; add --build"
         );
     }
-    // A network matrix needs no stored set: its cycles are its Graver basis. Convex costs
-    // are left to the enumerated set, which serves them.
-    match engine {
-        EngineArg::Auto if model.convex.is_empty() => {
-            if let Ok(network) = Network::detect(&model.matrix) {
-                return Ok(SolverSet::network(model, network));
-            }
+    let served = match by_cycles(model, engine.engine()) {
+        // A network needs no cache: open none.
+        Ok(Some(served)) => Ok(served),
+        Ok(None) => {
+            let library = match cache.open() {
+                Ok(library) => Some(library),
+                Err(e) if build_on_miss => {
+                    eprintln!(
+                        "kernstep: warning: {}; building without the cache",
+                        render_chain(&e)
+                    );
+                    None
+                }
+                Err(e) => return Err(e),
+            };
+            let control = build_on_miss
+                .then(|| limits.control(model.variables()))
+                .transpose()?;
+            serve(model, library.as_ref(), engine.engine(), control.as_ref())
         }
-        EngineArg::Cycles => {
-            if !model.convex.is_empty() {
-                anyhow::bail!("--engine cycles: the model has convex costs, which the network solver does not take; use --engine moves");
-            }
-            let network = Network::detect(&model.matrix).map_err(|why| {
-                anyhow::anyhow!(
-                    "--engine cycles: {} is not a network matrix: {why}",
-                    input.display()
-                )
-            })?;
-            return Ok(SolverSet::network(model, network));
-        }
-        EngineArg::Auto | EngineArg::Moves => {}
-    }
-    // The analysis (subdeterminants) is only needed to build; lookups use keys without it.
-    let resolve = || -> anyhow::Result<(MatrixAnalysis, ResolvedSpec)> {
-        let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
-        let spec = BuildSpec::default().resolve(model, &analysis)?;
-        Ok((analysis, spec))
+        Err(e) => Err(e),
     };
-    let library = match cache.open() {
-        Ok(library) => library,
-        Err(e) if build_on_miss => {
-            eprintln!(
-                "kernstep: warning: {}; building without the cache",
-                render_chain(&e)
-            );
-            let (analysis, spec) = resolve()?;
-            let command = build_command(input, cache, engine);
-            return build_uncached(model, &analysis, &spec, limits, command);
-        }
-        Err(e) => return Err(e),
-    };
-    // The complete set first; else a set truncated to a box that holds this instance's box
-    // (a test set for every instance inside it).
-    let (complete, boxed) = default_graver_keys(model);
-    for key in std::iter::once(&complete).chain(&boxed) {
-        if let Some(stored) = library.find(key)? {
-            return Ok(cached(&stored));
-        }
+    if let Ok(served) = &served {
+        super::build::warn_set_aside(served.set_aside.as_ref());
     }
-    if !build_on_miss {
-        // Else the largest set truncated by norm alone (e.g. `build --norm-limit N`): its
-        // answers say "optimal among moves of norm <= N", never plain "optimal".
-        let by_norm = EntryKey {
-            truncation: cache::Truncation {
-                norm_limit: Some(1),
-                bounds: None,
-            },
-            ..complete
-        };
-        if let Some(stored) = library.find_largest(&by_norm)? {
-            return Ok(cached(&stored));
-        }
-        anyhow::bail!(
-            "no test set for this matrix in the cache ({}); run `{}` first, or pass --build",
-            library.store().dir().display(),
-            build_command(input, cache, engine)
-        );
-    }
-    let (analysis, spec) = resolve()?;
+    served.map_err(|e| serve_error(e, model, input, cache, engine, limits))
+}
+
+/// The complete set of `model` built in memory within `limits`, with no cache.
+pub fn graver_uncached(
+    model: &Model,
+    input: &Path,
+    cache: &CacheArgs,
+    limits: &LimitArgs,
+) -> anyhow::Result<Served> {
     let control = limits.control(model.variables())?;
-    match library.obtain(&model.matrix, &analysis, &spec, &control, false)? {
-        Obtained::Reused(stored) => Ok(cached(&stored)),
-        Obtained::Built {
-            built, set_aside, ..
-        } => {
-            super::build::warn_set_aside(set_aside.as_ref());
-            Ok(SolverSet {
-                coverage: coverage_of(&built.metadata.completeness),
-                set: built.set,
-                source: SetSource::Built,
-                box_limit: None,
-                network: None,
-            })
-        }
-        Obtained::Stopped {
+    serve(model, None, Engine::Moves, Some(&control))
+        .map_err(|e| serve_error(e, model, input, cache, EngineArg::Auto, limits))
+}
+
+/// A serve's error in the words of the command line: the `build` command that goes on, the
+/// limit that stopped a build, the file whose matrix overflowed.
+fn serve_error(
+    e: kernstep::Error,
+    model: &Model,
+    input: &Path,
+    cache: &CacheArgs,
+    engine: EngineArg,
+    limits: &LimitArgs,
+) -> anyhow::Error {
+    match e {
+        kernstep::Error::NotCached { dir } => anyhow::anyhow!(
+            "no test set for this matrix in the cache ({}); run `{}` first, or pass --build",
+            dir.display(),
+            build_command(input, cache, engine)
+        ),
+        kernstep::Error::BuildStopped {
             reason,
             kept,
             set_aside,
         } => {
-            super::build::warn_set_aside(set_aside.as_ref());
-            Err(limits
+            super::build::warn_set_aside(set_aside.as_deref());
+            limits
                 .stopped(
                     reason,
                     build_command(input, cache, engine),
                     model.variables(),
                     kept,
                 )
-                .into())
+                .into()
         }
-    }
-}
-
-/// The solver's view of a stored set.
-fn cached(stored: &cache::StoredSet) -> SolverSet {
-    SolverSet {
-        set: from_data(&stored.data),
-        coverage: coverage_of(&stored.metadata.completeness),
-        source: SetSource::Cached(stored.digest.to_hex()),
-        box_limit: stored.key.truncation.bounds.clone(),
-        network: None,
+        kernstep::Error::Unsupported(why) if engine == EngineArg::Cycles => {
+            anyhow::anyhow!(
+                "--engine cycles: {}: {why}; use --engine moves",
+                input.display()
+            )
+        }
+        e => overflow_named(e.into(), input),
     }
 }
 
@@ -439,28 +345,4 @@ pub fn build_command(input: &Path, cache: &CacheArgs, engine: EngineArg) -> Stri
         .map(|d| format!(" --cache-dir {}", d.display()))
         .unwrap_or_default();
     format!("kernstep build {}{engine}{dir}", input.display())
-}
-
-/// Builds the Graver basis of `model` within `limits`, without a cache: a stopped build is a
-/// [`super::limits::BuildStopped`] error that names `command` as the way on.
-pub fn build_uncached(
-    model: &Model,
-    analysis: &MatrixAnalysis,
-    spec: &ResolvedSpec,
-    limits: &LimitArgs,
-    command: String,
-) -> anyhow::Result<SolverSet> {
-    let control = limits.control(model.variables())?;
-    match kernstep::testset::build(&model.matrix, analysis, spec, &control, None)? {
-        kernstep::testset::BuildOutcome::Built(built) => Ok(SolverSet {
-            coverage: coverage_of(&built.metadata.completeness),
-            set: built.set,
-            source: SetSource::Built,
-            box_limit: None,
-            network: None,
-        }),
-        kernstep::testset::BuildOutcome::Stopped(reason) => Err(limits
-            .stopped(reason, command, model.variables(), None)
-            .into()),
-    }
 }

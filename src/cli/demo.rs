@@ -9,17 +9,17 @@ use std::time::Instant;
 
 use anyhow::Context;
 use clap::Args;
-use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
 use kernstep::solve::Prepared;
-use kernstep::testset::BuildSpec;
 use serde::Serialize;
+
+use kernstep::testset::{Served, Source};
 
 use super::batch::{answer, solve_days, steps, DayStatus, Tally};
 use super::common::{
-    build_command, build_uncached, graver_for, interrupted, overflow_named, render_chain,
-    write_atomically, CacheArgs, EngineArg, SetSource, SolverSet, CAUTION,
+    graver_for, graver_uncached, interrupted, render_chain, write_atomically, CacheArgs, EngineArg,
+    CAUTION,
 };
 use super::limits::{BuildStopped, LimitArgs};
 use super::plot::write_step_plot;
@@ -109,7 +109,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
 
 /// The Graver basis from the cache or built (and stored) within `limits`; built in memory
 /// when the cache cannot be used at all. A build that a limit stopped is not tried again.
-fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::Result<SolverSet> {
+fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::Result<Served> {
     let input = Path::new(SCENARIO_PATH);
     match graver_for(model, input, cache, true, EngineArg::Auto, limits) {
         Ok(set) => Ok(set),
@@ -119,23 +119,19 @@ fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::R
                 "kernstep: warning: {}; building the test set in memory",
                 render_chain(&e)
             );
-            let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
-            let spec = BuildSpec::default().resolve(model, &analysis)?;
-            let command = build_command(input, cache, EngineArg::Auto);
-            build_uncached(model, &analysis, &spec, limits, command)
-                .map_err(|e| overflow_named(e, input))
+            graver_uncached(model, input, cache, limits)
         }
     }
 }
 
-fn source_word(source: &SetSource) -> String {
+fn source_word(source: &Source) -> String {
     match source {
-        SetSource::Cached(digest) => format!(
+        Source::Cached(digest) => format!(
             "loaded from the cache ({})",
             &digest[..12.min(digest.len())]
         ),
-        SetSource::Built => "built".to_string(),
-        SetSource::Network => "the network's cycles".to_string(),
+        Source::Built => "built".to_string(),
+        Source::Network => "the network's cycles".to_string(),
     }
 }
 

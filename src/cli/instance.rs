@@ -15,7 +15,9 @@ use kernstep::trace::TRACE_SCHEMA;
 use kernstep::Error;
 use serde::Deserialize;
 
-use super::common::{graver_for, interrupted, CacheArgs, EngineArg, SolverSet};
+use kernstep::testset::Served;
+
+use super::common::{graver_for, interrupted, CacheArgs, EngineArg};
 use super::days::pick_day;
 use super::limits::LimitArgs;
 
@@ -98,7 +100,7 @@ pub struct Instance {
     /// own numbers, where the solve starts (as `batch` does).
     pub base: Option<WarmStart>,
     /// The moves and where they came from.
-    pub set: SolverSet,
+    pub set: Served,
     /// The Hermite form and move set of the matrix.
     pub prepared: Prepared,
     /// The solver settings.

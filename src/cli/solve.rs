@@ -9,7 +9,8 @@ use kernstep::solve::{Numbers, Verdict};
 use kernstep::trace::{recheck_with_bound, BoundDoc, CoverageDoc, Decimal, Outcome, Recheck};
 use serde::Serialize;
 
-use super::common::{SetSource, SolverSet};
+use kernstep::testset::{Served, Source};
+
 use super::explain::{certificate_line, count_moves, ensure_holds, status_line, wrap};
 use super::instance::{cancelled, Instance, InstanceArgs, SOLVE_SCHEMA};
 use super::table::{write_pairs, write_table};
@@ -65,11 +66,11 @@ struct SetDoc<'a> {
 }
 
 impl<'a> SetDoc<'a> {
-    fn of(set: &'a SolverSet) -> Self {
+    fn of(set: &'a Served) -> Self {
         let (source, digest) = match &set.source {
-            SetSource::Cached(d) => ("cache", Some(d.as_str())),
-            SetSource::Built => ("built", None),
-            SetSource::Network => ("network", None),
+            Source::Cached(d) => ("cache", Some(d.as_str())),
+            Source::Built => ("built", None),
+            Source::Network => ("network", None),
         };
         SetDoc {
             source,
@@ -193,11 +194,11 @@ fn document<'a>(instance: &'a Instance, report: &'a Report<'a>) -> anyhow::Resul
 
 /// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`, or the implicit set of a
 /// network.
-pub fn set_text(set: &SolverSet) -> String {
+pub fn set_text(set: &Served) -> String {
     let source = match &set.source {
-        SetSource::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
-        SetSource::Built => "built for this run".to_string(),
-        SetSource::Network => {
+        Source::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
+        Source::Built => "built for this run".to_string(),
+        Source::Network => {
             return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
                 .to_string()
         }

@@ -8,6 +8,7 @@ mod estimate;
 mod library;
 mod network;
 mod saved;
+mod serve;
 mod spec;
 mod verify;
 
@@ -20,5 +21,6 @@ pub use library::{
     CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
 };
 pub use network::{cycles_entry, cycles_key, enumerate_cycles, CYCLES_METHOD};
+pub use serve::{by_cycles, serve, Engine, Served, Source};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
 pub use verify::verify_content;

@@ -11,11 +11,12 @@ use std::time::Instant;
 use kernstep::scenario::DayResult;
 use kernstep::solve::ParsedLine;
 
+use kernstep::testset::Served;
+
 use super::Ranks;
 use crate::cli::batch::{
     emit, report_failures, write_records, write_results, BatchArgs, Summary, Tally,
 };
-use crate::cli::common::SolverSet;
 
 /// This rank's block of `days`: `[r n / N, (r + 1) n / N)`.
 pub fn block(days: Vec<ParsedLine>, ranks: Ranks) -> Vec<ParsedLine> {
@@ -31,7 +32,7 @@ pub fn block(days: Vec<ParsedLine>, ranks: Ranks) -> Vec<ParsedLine> {
 /// of all days; every rank returns the exit code of all days.
 pub fn finish(
     args: &BatchArgs,
-    (set, names): (&SolverSet, &[String]),
+    (set, names): (&Served, &[String]),
     results: &[DayResult],
     started: Instant,
     ranks: Ranks,
