@@ -688,3 +688,25 @@ fn implicit_network_entries_are_never_written_as_empty_sets() {
     assert_eq!(exported["elements"], written["elements"]);
     assert_eq!(exported["key"], written["key"]);
 }
+
+/// `--out` with a bare file name writes into the working directory through the one atomic
+/// writer (whose directory sync must take the empty parent as `.`), leaving no temporary file.
+#[test]
+fn out_with_a_bare_file_name_writes_into_the_working_directory() {
+    let work = tempfile::tempdir().unwrap();
+    let cache_dir = tempfile::tempdir().unwrap();
+    let cubic = examples().join("twisted_cubic.json");
+    let out = command(
+        cache_dir.path(),
+        &["build", path_str(&cubic), "--out", "cubic_set.json"],
+    )
+    .current_dir(work.path())
+    .output()
+    .unwrap();
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let names: Vec<String> = std::fs::read_dir(work.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(names, ["cubic_set.json"]);
+}

@@ -18,9 +18,14 @@ pub(crate) const TEMP_SUFFIX: &str = ".tmp";
 
 static COUNTER: AtomicU64 = AtomicU64::new(0);
 
-/// Writes `bytes` to `target` atomically (see the module doc).
-pub(crate) fn write_atomic(target: &Path, bytes: &[u8]) -> Result<(), CacheError> {
-    let dir = target.parent().unwrap_or(Path::new("."));
+/// Writes `bytes` to `target` atomically (see the module doc): the one writer of every file
+/// kernstep writes, cache files and the command line's output files alike.
+pub fn write_atomic(target: &Path, bytes: &[u8]) -> Result<(), CacheError> {
+    // A bare file name has the empty path as its parent: the current directory.
+    let dir = match target.parent() {
+        Some(parent) if !parent.as_os_str().is_empty() => parent,
+        _ => Path::new("."),
+    };
     let temp = temp_path(target);
     let result = write_synced(&temp, bytes)
         .and_then(|()| {

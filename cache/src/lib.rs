@@ -78,6 +78,7 @@ mod seal;
 mod store;
 mod validate;
 
+pub use atomic::write_atomic;
 pub use checkpoint::{CheckpointState, CHECKPOINT_MAGIC, CHECKPOINT_SUFFIX};
 pub use covering::CoverSearch;
 pub use data::TestSetData;

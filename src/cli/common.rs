@@ -146,23 +146,11 @@ pub fn with_threads<T: Send>(
     }
 }
 
-/// Writes `bytes` to `path` atomically: a hidden temporary file beside it, synced, then
-/// renamed into place, so readers see the old file or the whole new one, never a part.
+/// Writes `bytes` to `path` atomically with the cache's writer ([`cache::write_atomic`]: a
+/// hidden temporary file beside it, synced, renamed into place, the directory synced), so
+/// readers see the old file or the whole new one, never a part.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    let name = path
-        .file_name()
-        .map_or("output".into(), |n| n.to_string_lossy());
-    let temp = path.with_file_name(format!(".{name}.{}.tmp", std::process::id()));
-    let write = || -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&temp)?;
-        std::io::Write::write_all(&mut f, bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&temp, path)
-    };
-    write().with_context(|| {
-        let _ = std::fs::remove_file(&temp);
-        format!("writing {}", path.display())
-    })
+    cache::write_atomic(path, bytes).with_context(|| format!("writing {}", path.display()))
 }
 
 /// The model files named on the command line: files as given, directories replaced by the
