@@ -9,13 +9,9 @@ use std::time::Duration;
 use anyhow::Context;
 use clap::Args;
 use kernstep::completion::{Control, StopReason};
-use kernstep::testset::SavedState;
+use kernstep::testset::{BuildLimits, SavedState, GUARD_PERCENT};
 
 use super::common::interrupted;
-
-/// Share of the memory available that the default guard lets a build's working set use: the
-/// rest is left to the other programs on the machine (and to this one's other needs).
-const GUARD_PERCENT: u64 = 75;
 
 /// `--max-elements`, `--time-limit` and `--max-memory`.
 #[derive(Debug, Clone, Default, Args)]
@@ -41,27 +37,34 @@ impl LimitArgs {
         self.max_elements.is_some() || self.time_limit.is_some() || self.max_memory.is_some()
     }
 
+    /// The library's limits these flags ask for.
+    pub fn limits(&self) -> anyhow::Result<BuildLimits> {
+        let time_limit = self
+            .time_limit
+            .map(Duration::try_from_secs_f64)
+            .transpose()
+            .context("--time-limit must be a number of seconds")?;
+        Ok(BuildLimits {
+            max_elements: self.max_elements,
+            time_limit,
+            max_memory: self.max_memory,
+        })
+    }
+
     /// The control of a build of vectors of `width` entries: Ctrl-C, `--time-limit`, and the
     /// element cap from `--max-elements`, `--max-memory` or the default memory guard.
     pub fn control<'a>(&self, width: usize) -> anyhow::Result<Control<'a>> {
-        let mut control = Control::new().cancel_flag(interrupted());
-        if let Some(s) = self.time_limit {
-            let limit = Duration::try_from_secs_f64(s)
-                .context("--time-limit must be a number of seconds")?;
-            control = control.time_limit(limit);
-        }
-        if let Some(cap) = self.element_cap(width) {
-            control = control.max_elements(cap);
-        }
-        Ok(control)
+        Ok(self.limits()?.control(width, Some(interrupted())))
     }
 
     /// The element cap of a build of vectors of `width` entries, if any.
     fn element_cap(&self, width: usize) -> Option<usize> {
-        self.max_elements.or_else(|| match self.max_memory {
-            Some(bytes) => Some(members_in(bytes, width)),
-            None => memory_guard(width),
-        })
+        BuildLimits {
+            max_elements: self.max_elements,
+            time_limit: None,
+            max_memory: self.max_memory,
+        }
+        .element_cap(width)
     }
 
     /// The limit behind `reason`, in the words of the command line.
@@ -166,40 +169,6 @@ fn parse_size(text: &str) -> Result<u64, String> {
         .ok_or_else(|| format!("expected a size such as 512M or 6G, got {text:?}"))
 }
 
-/// Working-set members that fit in `bytes`, with the headroom of [`memory_guard`].
-fn members_in(bytes: u64, width: usize) -> usize {
-    usize::try_from(bytes / (5 * bytes_per_member(width))).unwrap_or(usize::MAX)
-}
-
-/// Bytes of one working-set member (each sign of a vector counts): 4-byte entries, sign masks
-/// and index slots.
-fn bytes_per_member(width: usize) -> u64 {
-    4 * width as u64 + 40
-}
-
-/// The largest working set that fits in [`GUARD_PERCENT`] of the memory available now (from
-/// /proc/meminfo), so that a build that would run out of memory stops cleanly with an
-/// element-limit status (and a checkpoint) instead of being killed, and leaves the rest of
-/// the memory to the machine. The factor 5 of headroom covers pair buffers and the
-/// minimal-set pass: the K_{6,6} build peaked at 197 MiB with 227,730 members, 4.9 times the
-/// plain member size. `None` where the figure is unknown.
-fn memory_guard(width: usize) -> Option<usize> {
-    guard_of(&std::fs::read_to_string("/proc/meminfo").ok()?, width)
-}
-
-/// [`memory_guard`] for the text of /proc/meminfo.
-fn guard_of(meminfo: &str, width: usize) -> Option<usize> {
-    let kib: u64 = meminfo
-        .lines()
-        .find(|l| l.starts_with("MemAvailable:"))?
-        .split_whitespace()
-        .nth(1)?
-        .parse()
-        .ok()?;
-    let usable = kib.saturating_mul(1024) / 100 * GUARD_PERCENT;
-    Some(members_in(usable, width))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -216,27 +185,18 @@ mod tests {
     }
 
     #[test]
-    fn the_memory_cap_counts_members_with_headroom() {
-        // 10 variables: 80 bytes a member, five times over (the guard's headroom).
-        assert_eq!(members_in(400 * 1000, 10), 1000);
+    fn the_flags_set_the_element_cap() {
         let args = LimitArgs {
             max_memory: Some(400 * 1000),
             ..LimitArgs::default()
         };
+        // 10 variables: 80 bytes a member, five times over (the guard's headroom).
         assert_eq!(args.element_cap(10), Some(1000));
         let both = LimitArgs {
             max_elements: Some(7),
             ..args
         };
         assert_eq!(both.element_cap(10), Some(7), "--max-elements wins");
-    }
-
-    #[test]
-    fn the_default_guard_leaves_a_quarter_of_the_memory_available() {
-        let meminfo = "MemTotal:        8000000 kB\nMemAvailable:    4000000 kB\n";
-        // 75% of 4,000,000 KiB, over 5 x 80 bytes a member (10 variables).
-        assert_eq!(guard_of(meminfo, 10), Some(3_000_000 * 1024 / 400));
-        assert_eq!(guard_of("MemTotal: 8000000 kB\n", 10), None);
     }
 
     #[test]

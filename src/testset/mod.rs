@@ -6,6 +6,7 @@ mod build;
 mod deepen;
 mod estimate;
 mod library;
+mod limits;
 mod network;
 mod saved;
 mod serve;
@@ -20,6 +21,7 @@ pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
 pub use library::{
     CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
 };
+pub use limits::{members_in, memory_guard, BuildLimits, GUARD_PERCENT};
 pub use network::{cycles_entry, cycles_key, enumerate_cycles, CYCLES_METHOD};
 pub use serve::{by_cycles, serve, Engine, Served, Source};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
