@@ -40,11 +40,6 @@ pub fn status_line(outcome: &Outcome) -> String {
     }
 }
 
-/// Fails when an independent re-check refutes what the solve claims.
-pub fn ensure_holds(recheck: Option<&Recheck>) -> anyhow::Result<()> {
-    Ok(recheck.map_or(Ok(()), Recheck::confirm)?)
-}
-
 /// The evidence behind `outcome` in words: what was re-checked and why it proves the claim.
 pub fn certificate_line(outcome: &Outcome, recheck: Option<&Recheck>, model: &Model) -> String {
     let checked = recheck.map_or(0, |r| r.moves_checked);

@@ -6,12 +6,12 @@ use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::solve::{Numbers, Verdict};
-use kernstep::trace::{recheck_with_bound, BoundDoc, CoverageDoc, Decimal, Outcome, Recheck};
+use kernstep::trace::{certify, BoundDoc, Certified, CoverageDoc, Decimal, Outcome, Recheck};
 use serde::Serialize;
 
 use kernstep::testset::{Served, Source};
 
-use super::explain::{certificate_line, count_moves, ensure_holds, status_line, wrap};
+use super::explain::{certificate_line, count_moves, status_line, wrap};
 use super::instance::{cancelled, Instance, InstanceArgs, SOLVE_SCHEMA};
 use super::table::{write_pairs, write_table};
 
@@ -89,22 +89,23 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
         instance.start(),
         &cancelled,
     )?;
-    let numbers = Numbers::of(&instance.model);
-    let bound = instance.prepared.bound(numbers, &verdict, None)?;
-    let outcome = Outcome::of_bounded(
-        &verdict,
-        bound.as_ref(),
+    let Certified {
+        verdict,
+        bound,
+        recheck: checked,
+        answer,
+    } = certify(
+        &instance.prepared,
+        &instance.model.matrix,
+        Numbers::of(&instance.model),
+        verdict,
+        None,
+    )?;
+    let outcome = Outcome::of_answer(
+        &answer,
         &instance.model.variable_names,
         &instance.model.row_names,
     );
-    let checked = recheck_with_bound(
-        &instance.model.matrix,
-        numbers,
-        instance.prepared.checker(),
-        &verdict,
-        bound.as_ref(),
-    )?;
-    ensure_holds(checked.as_ref())?;
     let report = Report {
         verdict: &verdict,
         outcome: &outcome,

@@ -23,7 +23,7 @@ use crate::error::Error;
 use crate::model::Model;
 use crate::network::FlowOutcome;
 use crate::solve::{Numbers, ParsedLine, Prepared, Variant, Verdict, WarmStart};
-use crate::trace::recheck_with_bound;
+use crate::trace::certify;
 
 /// How to re-optimise the days.
 #[derive(Clone, Copy, Debug, Default)]
@@ -205,15 +205,7 @@ impl Run<'_> {
         verdict: Verdict,
         prices: Option<&Multipliers>,
     ) -> Result<(Verdict, Option<DualBound>), Error> {
-        let bound = self.prepared.bound(numbers, &verdict, prices)?;
-        let check = recheck_with_bound(
-            &self.model.matrix,
-            numbers,
-            self.prepared.checker(),
-            &verdict,
-            bound.as_ref(),
-        )?;
-        check.map_or(Ok(()), |c| c.confirm())?;
-        Ok((verdict, bound))
+        let certified = certify(self.prepared, &self.model.matrix, numbers, verdict, prices)?;
+        Ok((certified.verdict, certified.bound))
     }
 }

@@ -12,9 +12,10 @@ use augment::{Options, Phase, TraceStep};
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
+use super::certified::{certify, Certified};
 use super::decimal::Decimal;
 use super::outcome::{sign_number, CoverageDoc, Outcome};
-use super::recheck::{recheck_with_bound, Recheck};
+use super::recheck::Recheck;
 use crate::error::{Error, Result};
 use crate::model::{ConvexCosts, Model, Pieces};
 use crate::network::Step;
@@ -119,14 +120,12 @@ pub fn record(
     cancel: &dyn Fn() -> bool,
 ) -> Result<TraceDocument> {
     let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
-    let bound = prepared.bound(Numbers::of(model), &verdict, None)?;
-    let checked = recheck_with_bound(
-        &model.matrix,
-        Numbers::of(model),
-        prepared.checker(),
-        &verdict,
-        bound.as_ref(),
-    )?;
+    let Certified {
+        verdict,
+        bound,
+        recheck,
+        answer,
+    } = certify(prepared, &model.matrix, Numbers::of(model), verdict, None)?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
         schema: TRACE_SCHEMA.to_string(),
@@ -153,17 +152,12 @@ pub fn record(
         x: None,
         objective: None,
         violation: None,
-        outcome: Outcome::of_bounded(
-            &verdict,
-            bound.as_ref(),
-            &model.variable_names,
-            &model.row_names,
-        ),
+        outcome: Outcome::of_answer(&answer, &model.variable_names, &model.row_names),
         bound: verdict
             .optimum()
             .zip(bound.as_ref())
             .map(|((cost, _), b)| BoundDoc::of(b, cost)),
-        recheck: checked,
+        recheck,
         seconds: 0.0,
     };
     // The options above ask for a trace, so the solution carries one.

@@ -4,6 +4,7 @@
 //! Everything here is data; the binary renders it as words, tables, JSON or plots.
 
 mod bound;
+mod certified;
 mod decimal;
 mod document;
 mod outcome;
@@ -11,6 +12,7 @@ mod recheck;
 mod sparse;
 
 pub use bound::BoundDoc;
+pub use certified::{certify, Certified};
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
