@@ -38,7 +38,7 @@ pub enum Error {
     /// The instance's box is wider than the box the test set was truncated to, so the set is
     /// no test set for it (`variable` is the column index).
     #[error(
-        "variable {variable}: its range ({}) is wider than the box the test set was truncated to (width {limit}), so the set is no test set here; build the complete set (without --box)",
+        "variable {variable}: its range ({}) is wider than the box the test set was truncated to (width {limit}), so the set is no test set here; build the complete set (one without a box)",
         range_text(*width)
     )]
     BeyondSetBox {
