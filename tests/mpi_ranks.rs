@@ -170,18 +170,41 @@ fn a_rank_that_dies_stores_nothing_and_the_build_completes_later() {
         cache,
     ];
     let mut job = mpirun(2, &args).spawn().unwrap();
-    std::thread::sleep(Duration::from_millis(1200));
+    // Wait until the build is under way: both ranks run and one holds the key's lock.
+    let pattern = format!("kernstep build {model}");
+    let started = std::time::Instant::now();
+    loop {
+        let ranks = Command::new("pgrep")
+            .args(["-c", "-f", &pattern])
+            .output()
+            .unwrap();
+        let running: usize = String::from_utf8_lossy(&ranks.stdout)
+            .trim()
+            .parse()
+            .unwrap_or(0);
+        let locked = std::fs::read_dir(cache).is_ok_and(|d| {
+            d.filter_map(|e| e.ok())
+                .any(|e| e.path().extension().is_some_and(|x| x == "lock"))
+        });
+        if running >= 2 && locked {
+            break;
+        }
+        assert!(
+            started.elapsed() < Duration::from_secs(60) && job.try_wait().unwrap().is_none(),
+            "the build never got under way (or ended before the kill)"
+        );
+        std::thread::sleep(Duration::from_millis(20));
+    }
     // Kill one rank outright (not through MPI): the job must end, with an error status.
     let killed = Command::new("pkill")
-        .args(["-9", "-n", "-f", &format!("kernstep build {model}")])
+        .args(["-9", "-n", "-f", &pattern])
         .status()
         .unwrap();
+    assert!(
+        killed.success(),
+        "no rank was killed: the test proves nothing"
+    );
     let status = job.wait().unwrap();
-    if !killed.success() {
-        // The build finished before the kill: nothing to test on this machine.
-        assert!(status.success());
-        return;
-    }
     assert!(!status.success(), "a job that lost a rank must not succeed");
     let entries = std::fs::read_dir(cache)
         .map(|d| {
