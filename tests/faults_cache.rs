@@ -1,14 +1,14 @@
-//! Every cache fault in one suite, on real test sets, through the library and the binary:
-//! truncated, padded and bit-flipped entries, a foreign format version, an entry renamed to
-//! another key's name, damaged and foreign checkpoints, concurrent builders (threads and
-//! processes), a writer SIGKILLed mid-write, and an unusable cache directory.
+//! Every cache fault, one family per test, on real test sets, through the library and the
+//! binary: truncated and padded entries, bit-flipped entries, a foreign format version and an
+//! entry renamed to another key's name, damaged and foreign checkpoints, concurrent builders
+//! (threads, and processes), a writer SIGKILLed mid-write, and an unusable cache directory.
 //!
 //! Each case counts as detected only if every layer handles it: the library refuses the file
 //! with a damage error naming it and never hands it back, `kernstep cache verify` exits 2
-//! naming it, and `kernstep build` replaces it with a sound entry. The suite prints the count
-//! of cases tried and detected and requires all of them.
+//! naming it, and `kernstep build` replaces it with a sound entry. Each test prints the count
+//! of its cases tried and detected and requires all of them.
 //!
-//! The SIGKILL case re-runs this test binary as a child writer (`--exact` with an environment
+//! The SIGKILL test re-runs this test binary as a child writer (`--exact` with an environment
 //! variable naming its role), as the cache crate's own concurrency tests do.
 //!
 //! Focused tests follow (issue 21): forged and copied-in entries, a foreign directory, prune
@@ -34,7 +34,7 @@ mod cli_support;
 use cli_support::{examples, kernstep, run_concurrently, text, transport_model};
 
 const WRITER_ENV: &str = "KERNSTEP_FAULTS_WRITER_DIR";
-const SUITE: &str = "every_cache_fault_is_detected_and_handled";
+const WRITER_TEST: &str = "a_writer_killed_mid_write_leaves_a_whole_entry";
 
 /// Cases tried, and the names of those not handled.
 struct Tally {
@@ -43,6 +43,28 @@ struct Tally {
 }
 
 impl Tally {
+    fn new() -> Self {
+        Tally {
+            tried: 0,
+            missed: Vec::new(),
+        }
+    }
+
+    /// Prints the count and requires at least `at_least` cases, every one handled.
+    fn require(self, family: &str, at_least: usize) {
+        let detected = self.tried - self.missed.len();
+        eprintln!(
+            "{family}: {detected} of {} cases detected and handled",
+            self.tried
+        );
+        assert!(
+            self.tried >= at_least,
+            "{family}: only {} cases",
+            self.tried
+        );
+        assert!(self.missed.is_empty(), "{family}: {:#?}", self.missed);
+    }
+
     fn record(&mut self, name: &str, handled: Result<(), String>) {
         self.tried += 1;
         if let Err(why) = handled {
@@ -459,7 +481,7 @@ fn writer_killed_mid_write(attempt: usize, tally: &mut Tally) {
     let store = Store::open(dir.path()).unwrap();
     let entry = store.entry_path(synthetic_key().digest());
     let mut child = Command::new(env::current_exe().unwrap())
-        .args(["--exact", SUITE, "--nocapture", "--test-threads=1"])
+        .args(["--exact", WRITER_TEST, "--nocapture", "--test-threads=1"])
         .env(WRITER_ENV, dir.path())
         .stdin(Stdio::null())
         .stdout(Stdio::null())
@@ -595,40 +617,72 @@ fn work_without_the_cache(target: &Target, base: &Path, bad: &Path, tally: &mut 
 }
 
 #[test]
-fn every_cache_fault_is_detected_and_handled() {
+fn truncated_and_padded_entries_are_refused_and_rebuilt() {
+    let mut tally = Tally::new();
+    truncations_and_padding(&Fixture::new(), &mut tally);
+    tally.require("truncated and padded entries", 14);
+}
+
+#[test]
+fn bit_flipped_entries_are_refused_and_rebuilt() {
+    let mut tally = Tally::new();
+    byte_flips(&Fixture::new(), &mut tally);
+    tally.require("bit flips", 40);
+}
+
+#[test]
+fn foreign_versions_and_renamed_entries_are_refused() {
+    let mut tally = Tally::new();
+    foreign_version_and_renamed(&Fixture::new(), &mut tally);
+    tally.require("foreign version and renamed entries", 5);
+}
+
+#[test]
+fn damaged_and_foreign_checkpoints_are_handled() {
+    let mut tally = Tally::new();
+    checkpoints(&Fixture::new(), &mut tally);
+    tally.require("checkpoints", 3);
+}
+
+/// The 4 x 6 transportation model: its Graver basis takes a noticeable moment to build.
+fn wide_model(dir: &Path) -> Target {
+    Target::new(transport_model(dir, 4, 6))
+}
+
+#[test]
+fn builders_in_threads_store_one_entry() {
+    let models = tempfile::tempdir().unwrap();
+    let mut tally = Tally::new();
+    concurrent_threads(&Arc::new(wide_model(models.path())), &mut tally);
+    tally.require("concurrent threads", 1);
+}
+
+#[test]
+fn builders_in_processes_store_one_entry() {
+    let models = tempfile::tempdir().unwrap();
+    let mut tally = Tally::new();
+    concurrent_processes(&wide_model(models.path()), &mut tally);
+    tally.require("concurrent processes", 1);
+}
+
+#[test]
+fn a_writer_killed_mid_write_leaves_a_whole_entry() {
     if let Ok(dir) = env::var(WRITER_ENV) {
         run_writer(&dir);
         return;
     }
-    let mut tally = Tally {
-        tried: 0,
-        missed: Vec::new(),
-    };
-    let fixture = Fixture::new();
-    truncations_and_padding(&fixture, &mut tally);
-    byte_flips(&fixture, &mut tally);
-    foreign_version_and_renamed(&fixture, &mut tally);
-    checkpoints(&fixture, &mut tally);
-    let models = tempfile::tempdir().unwrap();
-    // The 4 x 6 transportation model: its Graver basis takes a noticeable moment to build.
-    let wide = Arc::new(Target::new(transport_model(models.path(), 4, 6)));
-    concurrent_threads(&wide, &mut tally);
-    concurrent_processes(&wide, &mut tally);
+    let mut tally = Tally::new();
     for attempt in 0..3 {
         writer_killed_mid_write(attempt, &mut tally);
     }
-    unusable_directory(&fixture.targets[0], &mut tally);
+    tally.require("writers killed mid-write", 3);
+}
 
-    let detected = tally.tried - tally.missed.len();
-    eprintln!(
-        "cache faults: {detected} of {} cases detected and handled",
-        tally.tried
-    );
-    for miss in &tally.missed {
-        eprintln!("  missed: {miss}");
-    }
-    assert!(tally.tried >= 50);
-    assert!(tally.missed.is_empty(), "{:#?}", tally.missed);
+#[test]
+fn an_unusable_cache_directory_is_reported() {
+    let mut tally = Tally::new();
+    unusable_directory(&Fixture::new().targets[0], &mut tally);
+    tally.require("unusable directory", 4);
 }
 
 // Issue 21: a cache that keeps its own and cannot be fooled. Focused cases, one test each.
