@@ -29,11 +29,7 @@ struct Case {
 
 /// Supplies then demands of the `p x q` transportation problem.
 fn transport(p: usize, q: usize) -> Vec<Vec<i64>> {
-    let mut rows: Vec<Vec<i64>> = (0..p)
-        .map(|i| (0..p * q).map(|j| i64::from(j / q == i)).collect())
-        .collect();
-    rows.extend((0..q).map(|k| (0..p * q).map(|j| i64::from(j % q == k)).collect()));
-    rows
+    kernstep::IntMatrix::transportation(p, q).to_rows()
 }
 
 /// Line sums of `3 x 3 x 3` tables: every cell set with two indices fixed.

@@ -20,14 +20,7 @@ struct Case {
 }
 
 fn transport(r: usize, s: usize) -> IntMatrix {
-    let mut a = IntMatrix::zeros(r + s, r * s);
-    for i in 0..r {
-        for k in 0..s {
-            a.set(i, i * s + k, 1);
-            a.set(r + k, i * s + k, 1);
-        }
-    }
-    a
+    IntMatrix::transportation(r, s)
 }
 
 fn three_way(p: usize, q: usize, s: usize) -> IntMatrix {

@@ -64,6 +64,21 @@ impl IntMatrix {
         })
     }
 
+    /// The constraint matrix of the `p x q` transportation problem: `p` supply rows, then `q`
+    /// demand rows, one column per (source, sink) pair in row-major order (column `i q + k`
+    /// has `1` in rows `i` and `p + k`). A network matrix: its Graver basis is the set of
+    /// signed cycles of the complete bipartite graph `K_{p,q}`.
+    pub fn transportation(p: usize, q: usize) -> Self {
+        let mut a = Self::zeros(p + q, p * q);
+        for i in 0..p {
+            for k in 0..q {
+                a.set(i, i * q + k, 1);
+                a.set(p + k, i * q + k, 1);
+            }
+        }
+        a
+    }
+
     /// The `rows x cols` zero matrix.
     pub fn zeros(rows: usize, cols: usize) -> Self {
         Self {
@@ -231,6 +246,21 @@ impl IntMatrix {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_2_x_3_transportation_matrix_by_hand() {
+        let rows = IntMatrix::transportation(2, 3).to_rows();
+        assert_eq!(
+            rows,
+            [
+                [1, 1, 1, 0, 0, 0],
+                [0, 0, 0, 1, 1, 1],
+                [1, 0, 0, 1, 0, 0],
+                [0, 1, 0, 0, 1, 0],
+                [0, 0, 1, 0, 0, 1],
+            ]
+        );
+    }
 
     #[test]
     fn ragged_rows_are_rejected() {

@@ -47,15 +47,7 @@ fn elements(o: &Obtained) -> Vec<Vec<i64>> {
 
 /// The 3 x 3 transportation matrix (supplies, then demands).
 fn transport() -> Vec<Vec<i64>> {
-    let a = IntMatrix::zeros(6, 9);
-    let mut a = a;
-    for i in 0..3 {
-        for k in 0..3 {
-            a.set(i, i * 3 + k, 1);
-            a.set(3 + k, i * 3 + k, 1);
-        }
-    }
-    a.to_rows()
+    IntMatrix::transportation(3, 3).to_rows()
 }
 
 #[test]

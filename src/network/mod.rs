@@ -66,13 +66,6 @@ pub(crate) mod examples {
     /// Two depots (supplies 3 and 2) and three shops (demands 1, 2, 2), `x_ij` row-major: the
     /// example of the `augment` crate's documentation, optimum 8.
     pub(crate) fn transport() -> IntMatrix {
-        IntMatrix::from_rows(&[
-            vec![1, 1, 1, 0, 0, 0],
-            vec![0, 0, 0, 1, 1, 1],
-            vec![1, 0, 0, 1, 0, 0],
-            vec![0, 1, 0, 0, 1, 0],
-            vec![0, 0, 1, 0, 0, 1],
-        ])
-        .unwrap()
+        IntMatrix::transportation(2, 3)
     }
 }

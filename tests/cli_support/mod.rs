@@ -69,21 +69,7 @@ pub fn expect(cache: &Path, args: &[&str], code: i32) -> String {
 
 /// Writes the `p x q` transportation model (supplies, then demands; invented zero plan).
 pub fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
-    let mut rows = Vec::new();
-    for i in 0..p {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j / q == i))
-                .collect::<Vec<_>>(),
-        );
-    }
-    for k in 0..q {
-        rows.push(
-            (0..p * q)
-                .map(|j| i64::from(j % q == k))
-                .collect::<Vec<_>>(),
-        );
-    }
+    let rows = kernstep::IntMatrix::transportation(p, q).to_rows();
     let doc = serde_json::json!({
         "matrix": rows,
         "rhs": vec![0; p + q],

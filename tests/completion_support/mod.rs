@@ -8,14 +8,7 @@ use kernstep::IntMatrix;
 /// transportation matrix): variable `(i, k)` has `+1` in supply row `i` and `+1` in demand row
 /// `r + k`.
 pub fn transport(r: usize, s: usize) -> IntMatrix {
-    let mut a = IntMatrix::zeros(r + s, r * s);
-    for i in 0..r {
-        for k in 0..s {
-            a.set(i, i * s + k, 1);
-            a.set(r + k, i * s + k, 1);
-        }
-    }
-    a
+    IntMatrix::transportation(r, s)
 }
 
 /// The one-row matrix `(1 2 ... n)`.
