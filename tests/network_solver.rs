@@ -10,7 +10,7 @@ use augment::{Coverage, InfeasibleReason, Options, Status};
 use kernstep::completion::Request;
 use kernstep::model::{Model, ModelKind};
 use kernstep::network::{
-    certificate, Arc, Cut, FlowNumbers, FlowOptions, FlowOutcome, FlowSolution, Infeasibility,
+    certificate, ArcEnds, Cut, FlowNumbers, FlowOptions, FlowOutcome, FlowSolution, Infeasibility,
     Network, NotNetwork, Warm,
 };
 use kernstep::scenario::Scenario;
@@ -62,7 +62,7 @@ fn the_lanes_scenario_is_a_network_with_depots_signed_plus_and_zones_minus() {
         } else {
             assert_eq!(
                 *arc,
-                Arc {
+                ArcEnds {
                     tail: j - lanes,
                     head: net.root()
                 },

@@ -16,7 +16,7 @@
 
 use std::fmt;
 
-use super::graph::{Arc, Network};
+use super::graph::{ArcEnds, Network};
 use crate::matrix::IntMatrix;
 
 /// Why a matrix is no network matrix; each names the first offending column in column order.
@@ -232,7 +232,7 @@ impl Network {
                         head = row;
                     }
                 }
-                Arc { tail, head }
+                ArcEnds { tail, head }
             })
             .collect();
         Ok(Network::new(rows, arcs, signs))
@@ -259,8 +259,8 @@ mod tests {
         ]);
         let net = Network::detect(&a).unwrap();
         assert_eq!(net.row_signs(), &[1, 1, -1, -1]);
-        assert_eq!(net.arcs()[0], Arc { tail: 0, head: 2 });
-        assert_eq!(net.arcs()[3], Arc { tail: 1, head: 4 });
+        assert_eq!(net.arcs()[0], ArcEnds { tail: 0, head: 2 });
+        assert_eq!(net.arcs()[3], ArcEnds { tail: 1, head: 4 });
         assert!(net.arcs()[4].is_loop());
         assert_eq!(net.root(), 4);
     }

@@ -13,16 +13,17 @@
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-/// One arc of the network, by node index (the root is [`Network::root`]).
+/// The two ends of one arc of the network, by node index (the root is [`Network::root`]);
+/// named apart from `std::sync::Arc`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct Arc {
+pub struct ArcEnds {
     /// The node the arc leaves: its column has `+1` there after the row scaling.
     pub tail: usize,
     /// The node the arc enters: `-1` there after the row scaling.
     pub head: usize,
 }
 
-impl Arc {
+impl ArcEnds {
     /// True for a zero column: a loop at the root.
     pub fn is_loop(&self) -> bool {
         self.tail == self.head
@@ -33,7 +34,7 @@ impl Arc {
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Network {
     rows: usize,
-    arcs: Vec<Arc>,
+    arcs: Vec<ArcEnds>,
     row_signs: Vec<i64>,
     incidence: Incidence,
     forest: Forest,
@@ -60,7 +61,7 @@ pub(super) struct Forest {
 impl Network {
     /// Assembles the network of `arcs` over `rows` rows (node `rows` is the root) with the
     /// given row signs; the caller guarantees that every arc's ends are nodes.
-    pub(super) fn new(rows: usize, arcs: Vec<Arc>, row_signs: Vec<i64>) -> Self {
+    pub(super) fn new(rows: usize, arcs: Vec<ArcEnds>, row_signs: Vec<i64>) -> Self {
         let incidence = Incidence::new(rows + 1, &arcs);
         let forest = Forest::new(rows, &incidence);
         Self {
@@ -88,7 +89,7 @@ impl Network {
     }
 
     /// The arcs, one per column.
-    pub fn arcs(&self) -> &[Arc] {
+    pub fn arcs(&self) -> &[ArcEnds] {
         &self.arcs
     }
 
@@ -138,7 +139,7 @@ impl Network {
 }
 
 impl Incidence {
-    fn new(nodes: usize, arcs: &[Arc]) -> Self {
+    fn new(nodes: usize, arcs: &[ArcEnds]) -> Self {
         let mut degree = vec![0usize; nodes + 1];
         for arc in arcs.iter().filter(|a| !a.is_loop()) {
             degree[arc.tail + 1] += 1;

@@ -54,7 +54,7 @@ mod start;
 mod unbounded;
 
 pub use detect::NotNetwork;
-pub use graph::{Arc, Network};
+pub use graph::{ArcEnds, Network};
 pub use input::{FlowNumbers, FlowOptions, Warm};
 pub use outcome::{Cut, Cycle, CycleArc, FlowOutcome, FlowSolution, Infeasibility, Step};
 
