@@ -198,6 +198,9 @@ struct Row {
     /// Why a build stopped (`cancelled`, `time_limit`, `element_limit`).
     #[serde(skip)]
     stop: Option<StopReason>,
+    /// Whether the build failed (an error, told in `status`).
+    #[serde(skip)]
+    failed: bool,
 }
 
 /// A saved state in the JSON summary.
@@ -290,7 +293,7 @@ pub(super) fn run_with(
         render(&mut out, &rows)?;
     }
     out.flush()?;
-    let failed = rows.iter().any(|r| r.status.starts_with("failed"));
+    let failed = rows.iter().any(|r| r.failed);
     let stopped = rows.iter().any(|r| r.stop.is_some());
     let signalled = rows
         .iter()
@@ -345,10 +348,14 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
         seconds: 0.0,
         status: String::new(),
         stop: None,
+        failed: false,
     };
     match try_build(args, path, &mut row, share) {
         Ok(status) => row.status = status,
-        Err(e) => row.status = format!("failed: {}", render_chain(&overflow_named(e, path))),
+        Err(e) => {
+            row.failed = true;
+            row.status = format!("failed: {}", render_chain(&overflow_named(e, path)));
+        }
     }
     row.seconds = start.elapsed().as_secs_f64();
     row
