@@ -227,6 +227,13 @@ fn out_writes_the_set_the_cache_holds() {
         serde_json::to_value(&entry.elements).unwrap()
     );
     assert_eq!(file["key"], serde_json::to_value(&entry.key).unwrap());
+    // The library reads the file back, every field checked, to the stored set.
+    let document = std::fs::read_to_string(&out).unwrap();
+    let read = kernstep::testset::read_set_document(&document, path_str(&out)).unwrap();
+    assert_eq!(
+        (read.key, read.elements),
+        (entry.key.clone(), entry.elements.clone())
+    );
     assert_eq!(file["metadata"]["rank"], entry.metadata.rank);
 
     let two = kernstep(

@@ -14,8 +14,8 @@ use kernstep::model::Model;
 use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
 use kernstep::testset::{
-    build, deepen, entry_key, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd, NormLimit,
-    Obtained, SavedState, SetAside,
+    build, deepen, entry_key, set_document, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
+    NormLimit, Obtained, SavedState, SetAside,
 };
 use serde::Serialize;
 
@@ -25,7 +25,6 @@ use super::common::{
 };
 use super::limits::LimitArgs;
 use super::progress::{BuildProgress, ProgressArg};
-use super::setfile::set_document;
 use super::table::write_table;
 
 /// Arguments of `build`.
@@ -702,6 +701,6 @@ fn budgeted(
 /// Writes the set's document (see [`set_document`]) next to `path`, then renames it into
 /// place (never half-written).
 fn write_set_file(path: &Path, built: &BuiltSet) -> anyhow::Result<()> {
-    let doc = set_document(&built.key, &built.metadata, &built.set.elements)?;
+    let doc = set_document(&built.key, &built.metadata, &built.set.elements);
     write_atomically(path, doc.as_bytes())
 }

@@ -13,12 +13,11 @@ use ::cache::{
 };
 use clap::{Args, Subcommand, ValueEnum};
 use kernstep::matrix::IntMatrix;
-use kernstep::testset::{enumerate_cycles, BuildOutcome, CheckpointInfo, SetLibrary};
+use kernstep::testset::{enumerate_cycles, set_document, BuildOutcome, CheckpointInfo, SetLibrary};
 use serde::Serialize;
 
 use super::common::CacheArgs;
 use super::limits::LimitArgs;
-use super::setfile::set_document;
 use super::table::{write_pairs, write_table};
 
 /// Hex digits of a digest shown in tables (any unique prefix is accepted back as `KEY`).
@@ -578,12 +577,12 @@ fn export(
             ),
         };
         let ExportFormat::Json = format;
-        out.write_all(set_document(&built.key, &built.metadata, &built.set.elements)?.as_bytes())?;
+        out.write_all(set_document(&built.key, &built.metadata, &built.set.elements).as_bytes())?;
         return Ok(ExitCode::SUCCESS);
     }
     match format {
         ExportFormat::Json => {
-            out.write_all(set_document(&entry.key, &entry.metadata, &entry.elements)?.as_bytes())?;
+            out.write_all(set_document(&entry.key, &entry.metadata, &entry.elements).as_bytes())?;
         }
     }
     Ok(ExitCode::SUCCESS)

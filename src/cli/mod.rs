@@ -17,7 +17,6 @@ mod plot;
 mod progress;
 #[cfg(feature = "mpi")]
 mod ranked;
-mod setfile;
 mod solve;
 mod table;
 mod trace;

@@ -4,6 +4,7 @@
 
 mod build;
 mod deepen;
+mod document;
 mod estimate;
 mod library;
 mod limits;
@@ -17,6 +18,7 @@ pub use build::{
     build, default_graver_keys, entry_key, from_data, method_name, to_data, BuildOutcome, BuiltSet,
 };
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
+pub use document::{read_set_document, set_document, SetDocument, SET_FORMAT, SET_VERSION};
 pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
 pub use library::{
     CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
