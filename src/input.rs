@@ -29,12 +29,18 @@ pub fn read_text(path: &Path) -> Result<String> {
     };
     let found = fs::metadata(path).map_err(io)?;
     if !found.is_file() {
-        return Err(refuse(format!("is {}, not a regular file", kind(&found))));
+        return Err(refuse(format!(
+            "is {}, not a regular file",
+            cache::file_type_name(found.file_type())
+        )));
     }
     let file = File::open(path).map_err(io)?;
     let opened = file.metadata().map_err(io)?;
     if !opened.is_file() {
-        return Err(refuse(format!("is {}, not a regular file", kind(&opened))));
+        return Err(refuse(format!(
+            "is {}, not a regular file",
+            cache::file_type_name(opened.file_type())
+        )));
     }
     if opened.len() > MAX_INPUT_BYTES {
         return Err(refuse(format!(
@@ -57,27 +63,4 @@ pub fn read_text(path: &Path) -> Result<String> {
             e.utf8_error().valid_up_to()
         ))
     })
-}
-
-/// What a non-regular file is, in words.
-fn kind(meta: &fs::Metadata) -> &'static str {
-    let kind = meta.file_type();
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::FileTypeExt;
-        if kind.is_fifo() {
-            return "a FIFO";
-        }
-        if kind.is_char_device() || kind.is_block_device() {
-            return "a device";
-        }
-        if kind.is_socket() {
-            return "a socket";
-        }
-    }
-    if kind.is_dir() {
-        "a directory"
-    } else {
-        "not a regular file"
-    }
 }

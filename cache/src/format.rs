@@ -33,6 +33,7 @@
 //! file, and the entry is not used. The magic's first byte is non-ASCII and its tail holds CR
 //! LF and SUB, so text-mode transfers are detected.
 
+use std::fs::File;
 use std::io::Read;
 use std::path::Path;
 
@@ -167,13 +168,34 @@ pub(crate) fn checked_body<'a>(
 /// Reads the whole entry file at `path` (`Ok(None)` if absent): a regular file whose header
 /// is checked, and whose length is compared with the header's, before the rest is read.
 pub(crate) fn read_entry_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError> {
+    let Some(mut opened) = open_entry(path)? else {
+        return Ok(None);
+    };
+    let rest = opened.file_len - HEADER_LEN as u64;
+    opened
+        .header_bytes
+        .extend(read_exactly(&mut opened.file, rest, path)?);
+    Ok(Some(opened.header_bytes))
+}
+
+/// An entry file opened with its header read and checked against the file's length.
+struct OpenedEntry {
+    file: File,
+    file_len: u64,
+    header: Header,
+    header_bytes: Vec<u8>,
+}
+
+/// Opens the regular file at `path` (`Ok(None)` if absent), reads and parses its header and
+/// checks that the file is as long as the header says, before anything else is read.
+fn open_entry(path: &Path) -> Result<Option<OpenedEntry>, CacheError> {
     let Some((mut file, file_len)) = open_regular(path, WHAT)? else {
         return Ok(None);
     };
-    let mut bytes = vec![0u8; HEADER_LEN];
-    let got = read_up_to(&mut file, &mut bytes, path)?;
-    bytes.truncate(got);
-    let header = parse_header(&bytes, path)?;
+    let mut header_bytes = vec![0u8; HEADER_LEN];
+    let got = read_up_to(&mut file, &mut header_bytes, path)?;
+    header_bytes.truncate(got);
+    let header = parse_header(&header_bytes, path)?;
     let expected = total_len(&header, path)?;
     if expected != file_len {
         return Err(CacheError::LengthMismatch {
@@ -182,8 +204,12 @@ pub(crate) fn read_entry_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError
             actual: file_len,
         });
     }
-    bytes.extend(read_exactly(&mut file, expected - HEADER_LEN as u64, path)?);
-    Ok(Some(bytes))
+    Ok(Some(OpenedEntry {
+        file,
+        file_len,
+        header,
+        header_bytes,
+    }))
 }
 
 /// Checks and decodes a whole entry file whose name says it holds `named`, and tells whether
@@ -223,25 +249,18 @@ pub(crate) fn decode_entry(
 /// Reads header, key and metadata of the file at `path` (no checksum: for listings and
 /// for choosing candidates, which are fully checked before use).
 pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheError> {
-    let (mut file, file_len) = open_regular(path, WHAT)?.ok_or_else(|| {
+    let OpenedEntry {
+        mut file,
+        file_len,
+        header,
+        ..
+    } = open_entry(path)?.ok_or_else(|| {
         CacheError::io(
             "open",
             path,
             std::io::Error::from(std::io::ErrorKind::NotFound),
         )
     })?;
-    let mut head = vec![0u8; HEADER_LEN];
-    let got = read_up_to(&mut file, &mut head, path)?;
-    head.truncate(got);
-    let header = parse_header(&head, path)?;
-    let expected = total_len(&header, path)?;
-    if expected != file_len {
-        return Err(CacheError::LengthMismatch {
-            path: path.to_owned(),
-            expected,
-            actual: file_len,
-        });
-    }
     let mut sections = vec![0u8; header.key_len + header.meta_len];
     file.read_exact(&mut sections)
         .map_err(|e| CacheError::io("read", path, e))?;

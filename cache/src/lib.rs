@@ -91,5 +91,6 @@ pub use lock::{BuildGuard, BuildLock, LockHolder, LockWait, LOCK_SUFFIX};
 pub use maintenance::{ExportedEntry, FileSummary, PruneReport, Verified};
 pub use metadata::{Completeness, SetMetadata};
 pub use owned::{classify, FileKind, MARKER_NAME, SET_ASIDE_SUFFIX};
+pub use safe_read::file_type_name;
 pub use seal::{Provenance, SECRET_NAME};
 pub use store::{EntrySummary, Store, StoredSet, ENTRY_SUFFIX};

@@ -11,8 +11,9 @@ use std::path::Path;
 
 use crate::error::CacheError;
 
-/// What a non-regular file is, in words for an error message.
-pub(crate) fn file_type_name(kind: fs::FileType) -> &'static str {
+/// What a non-regular file is, in words for an error message (also for the root crate's
+/// input files).
+pub fn file_type_name(kind: fs::FileType) -> &'static str {
     #[cfg(unix)]
     {
         use std::os::unix::fs::FileTypeExt;
