@@ -94,6 +94,7 @@ pub mod bound;
 pub mod certify;
 pub mod completion;
 pub mod error;
+pub mod formats;
 pub mod input;
 pub mod lattice;
 pub mod matrix;

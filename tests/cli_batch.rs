@@ -682,3 +682,48 @@ fn a_partial_set_never_calls_a_day_infeasible_without_a_proof() {
     }
     assert!(unknown_but_feasible >= 5, "{unknown_but_feasible}");
 }
+
+/// What `batch` writes, the library's readers read back: the JSON Lines and the CSV results
+/// of one run agree day by day, and the tally rebuilt from them equals the summary printed.
+#[test]
+fn the_results_files_read_back_with_the_library_readers() {
+    use kernstep::formats::batch::{read_csv, read_jsonl, Tally};
+    let cache = tempfile::tempdir().unwrap();
+    let scenario = scenarios().join("vell_valley.toml");
+    let days = scenarios().join("vell_valley_days.jsonl");
+    let out = cache.path().join("results.jsonl");
+    let csv = cache.path().join("results.csv");
+    let run = |file: &Path, format: &str| {
+        let (summary, _) = expect(
+            cache.path(),
+            &[
+                "batch",
+                scenario.to_str().unwrap(),
+                days.to_str().unwrap(),
+                "--build",
+                "--json",
+                "--format",
+                format,
+                "--out",
+                file.to_str().unwrap(),
+            ],
+            1, // one day of the scenario is infeasible on purpose
+        );
+        serde_json::from_str::<Value>(&summary).unwrap()
+    };
+    let summary = run(&out, "jsonl");
+    run(&csv, "csv");
+    let jsonl = read_jsonl(std::fs::read(&out).unwrap().as_slice(), "results.jsonl").unwrap();
+    let table = read_csv(std::fs::read(&csv).unwrap().as_slice(), "results.csv").unwrap();
+    assert_eq!(jsonl.len(), 30);
+    for (a, b) in jsonl.iter().zip(&table) {
+        assert_eq!(
+            (&a.day, a.line, a.status, a.objective, a.steps, &a.plan),
+            (&b.day, b.line, b.status, b.objective, b.steps, &b.plan)
+        );
+    }
+    let tally = serde_json::to_value(Tally::of(&jsonl)).unwrap();
+    for key in ["days", "optimal", "infeasible", "errors", "total_objective"] {
+        assert_eq!(tally[key], summary[key], "{key}");
+    }
+}

@@ -13,10 +13,7 @@ use signal_hook::consts::{SIGINT, SIGTERM};
 
 use super::limits::LimitArgs;
 
-/// What the plans leave out: one line of the `demo` and `batch` summaries (after `caution: `),
-/// and their `caution` field in JSON.
-pub const CAUTION: &str =
-    "plans must also meet vehicle limits, working-time rules and local regulations (not checked)";
+pub use kernstep::formats::CAUTION;
 
 /// The cache directory option of every verb that reads or writes test sets.
 #[derive(Debug, Clone, Args)]

@@ -9,6 +9,7 @@ use std::time::Instant;
 
 use anyhow::Context;
 use clap::Args;
+use kernstep::formats::batch::{DayRecord, DayStatus, Tally};
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
 use kernstep::solve::Prepared;
@@ -16,7 +17,7 @@ use serde::Serialize;
 
 use kernstep::testset::{Served, Source};
 
-use super::batch::{answer, solve_days, steps, DayStatus, Tally};
+use super::batch::solve_days;
 use super::common::{
     graver_for, graver_uncached, interrupted, render_chain, write_atomically, CacheArgs, EngineArg,
     CAUTION,
@@ -66,8 +67,12 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     let set_seconds = started.elapsed().as_secs_f64();
     let prepared = set.prepare(&model.matrix)?;
     let results = solve_days(&prepared, &model, days, false, None, Path::new(DAYS_PATH))?;
-    let tally = Tally::of(&results);
-    let highlight = highlight_day(&results);
+    let records: Vec<DayRecord> = results
+        .iter()
+        .map(|r| DayRecord::of(r, &model.variable_names))
+        .collect();
+    let tally = Tally::of(&records);
+    let highlight = highlight_day(&records);
     let trace_files = match highlight {
         Some(index) => Some(write_highlight(
             &scenario,
@@ -85,7 +90,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         moves: set.set.elements.len(),
         set: source_word(&set.source),
         set_seconds,
-        days: results.iter().map(DayRow::of).collect(),
+        days: records.iter().map(DayRow::of).collect(),
         tally: &tally,
         trace: trace_files
             .as_ref()
@@ -136,12 +141,12 @@ fn source_word(source: &Source) -> String {
 }
 
 /// The optimal day with the most augmenting steps (the first of equals).
-fn highlight_day(results: &[DayResult]) -> Option<usize> {
-    results
+fn highlight_day(records: &[DayRecord]) -> Option<usize> {
+    records
         .iter()
         .enumerate()
-        .filter(|(_, r)| DayStatus::of(r) == DayStatus::Optimal)
-        .max_by_key(|(i, r)| (steps(r).unwrap_or(0), std::cmp::Reverse(*i)))
+        .filter(|(_, r)| r.status == DayStatus::Optimal)
+        .max_by_key(|(i, r)| (r.steps.unwrap_or(0), std::cmp::Reverse(*i)))
         .map(|(i, _)| i)
 }
 
@@ -196,13 +201,16 @@ struct DayRow {
 }
 
 impl DayRow {
-    fn of(r: &DayResult) -> DayRow {
+    fn of(r: &DayRecord) -> DayRow {
         DayRow {
-            day: r.id.clone().unwrap_or_else(|| format!("line {}", r.line)),
-            status: DayStatus::of(r).word(),
-            objective: answer(r).map(|(o, _)| o),
-            steps: steps(r),
-            ms: r.elapsed.as_secs_f64() * 1000.0,
+            day: r
+                .day
+                .as_deref()
+                .map_or_else(|| format!("line {}", r.line), String::from),
+            status: r.status.word(),
+            objective: r.objective,
+            steps: r.steps,
+            ms: r.seconds * 1000.0,
         }
     }
 }

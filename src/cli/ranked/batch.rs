@@ -8,15 +8,14 @@
 use std::process::ExitCode;
 use std::time::Instant;
 
+use kernstep::formats::batch::{DayRecord, RunSummary, Tally};
 use kernstep::scenario::DayResult;
 use kernstep::solve::ParsedLine;
-
 use kernstep::testset::Served;
 
 use super::Ranks;
-use crate::cli::batch::{
-    emit, report_failures, write_records, write_results, BatchArgs, Summary, Tally,
-};
+use crate::cli::batch::{emit, report_failures, write_records, write_results, BatchArgs};
+use crate::cli::common::capped_threads;
 
 /// This rank's block of `days`: `[r n / N, (r + 1) n / N)`.
 pub fn block(days: Vec<ParsedLine>, ranks: Ranks) -> Vec<ParsedLine> {
@@ -38,21 +37,24 @@ pub fn finish(
     ranks: Ranks,
 ) -> anyhow::Result<ExitCode> {
     report_failures(results);
+    let records: Vec<DayRecord> = results.iter().map(|r| DayRecord::of(r, names)).collect();
     let mut body = Vec::new();
     if ranks.rank == 0 {
-        write_results(&mut body, args.format, results, names)?;
+        write_results(&mut body, args.format, &records, names)?;
     } else {
-        write_records(&mut body, args.format, results, names)?;
+        write_records(&mut body, args.format, &records, names)?;
     }
     let gathered = ranks.gather_bytes(&body)?;
-    let mine = serde_json::to_string(&Tally::of(results))?;
+    let mine = serde_json::to_string(&Tally::of(&records))?;
     let mut tally = Tally::default();
     for text in ranks.all_gather_text(&mine)? {
         tally.absorb(serde_json::from_str(&text)?);
     }
+    let code = tally.exit_code();
     if let Some(all) = gathered {
-        let summary = Summary::new(&tally, set, args.threads, started.elapsed());
+        let wall = started.elapsed().as_secs_f64();
+        let summary = RunSummary::new(tally, set, args.threads.map(capped_threads), wall);
         emit(args, &all, &summary)?;
     }
-    Ok(tally.exit_code())
+    Ok(ExitCode::from(code))
 }
