@@ -40,7 +40,7 @@ fn a_budget_that_suffices_stores_the_complete_set_of_a_plain_build() {
     // K_{3,3} has 9 cycles of length 4 and 6 of length 6 (counting formula: C(3,2)^2 and
     // 3! 2! / 2), its Graver basis (Sturmfels 1996, chapter 5).
     assert_eq!(row["elements"], 15);
-    let levels = row["levels"].as_array().unwrap();
+    let levels = row["budget"]["levels"].as_array().unwrap();
     let last = levels.last().unwrap().clone();
     assert_eq!(last["elements"], 15);
     // Transport tables have only even norms, so the limits are even, up to the circuit
@@ -93,7 +93,7 @@ fn a_capped_budget_keeps_a_partial_set_whose_plan_the_bound_proves() {
         "--json",
     ];
     let built = json(cache.path(), &args, 0);
-    assert_eq!(built[0]["norm_limit"], 4);
+    assert_eq!(built[0]["budget"]["norm_limit"], 4);
     assert_eq!(built[0]["elements"], 9, "the nine 4-cycles");
     assert!(built[0]["status"].as_str().unwrap().contains("partial"));
     let solved = json(

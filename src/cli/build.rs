@@ -8,20 +8,21 @@ use std::time::{Duration, Instant};
 
 use cache::SetKind;
 use clap::{Args, ValueEnum};
+#[cfg(feature = "mpi")]
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
-use kernstep::completion::{Control, Method, Progress, Sign, StopReason, WorkShare};
+use kernstep::completion::{Method, Progress, Sign, StopReason, WorkShare};
 use kernstep::model::Model;
-use kernstep::network::Network;
 use kernstep::scenario::PlanInput;
+#[cfg(feature = "mpi")]
+use kernstep::testset::{build, entry_key, BuildOutcome};
 use kernstep::testset::{
-    build, deepen, entry_key, set_document, BoxPolicy, BuildOutcome, BuildSpec, BuiltSet, LevelEnd,
-    NormLimit, Obtained, SavedState, SetAside,
+    BoxPolicy, BudgetRecord, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit,
+    SetAside, StateRecord,
 };
 use serde::Serialize;
 
 use super::common::{
-    model_paths, overflow_named, render_chain, signal_status, with_threads, write_atomically,
-    CacheArgs, EngineArg,
+    model_paths, overflow_named, render_chain, signal_status, with_threads, CacheArgs, EngineArg,
 };
 use super::limits::LimitArgs;
 use super::progress::{BuildProgress, ProgressArg};
@@ -170,68 +171,37 @@ fn parse_signs(pattern: &str, n: usize) -> anyhow::Result<Vec<Sign>> {
     Ok(signs)
 }
 
-/// One line of the summary.
+/// One line of the summary: the library's report, worded.
 #[derive(Debug, Serialize)]
 struct Row {
     model: String,
-    key: Option<String>,
-    kind: Option<SetKind>,
-    elements: Option<usize>,
-    /// The norm limit a budgeted build reached.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    norm_limit: Option<u64>,
-    /// The levels of a budgeted build.
-    #[serde(skip_serializing_if = "Vec::is_empty")]
-    levels: Vec<LevelRow>,
-    /// The saved state a build resumed from.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    resumed: Option<StateDoc>,
-    /// The saved state a stopped build left for the next run.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    kept: Option<StateDoc>,
+    #[serde(flatten)]
+    report: Option<JobReport>,
     /// The command that resumes a stopped build.
     #[serde(skip_serializing_if = "Option::is_none")]
     resume_command: Option<String>,
     seconds: f64,
     status: String,
-    /// Why a build stopped (`cancelled`, `time_limit`, `element_limit`).
-    #[serde(skip)]
-    stop: Option<StopReason>,
     /// Whether the build failed (an error, told in `status`).
     #[serde(skip)]
     failed: bool,
 }
 
-/// A saved state in the JSON summary.
-#[derive(Debug, Serialize)]
-struct StateDoc {
-    stage: usize,
-    stages: usize,
-    mid_stage: bool,
-    /// A decimal string: counts of moves can pass 2^53 in principle.
-    moves: String,
-    work_seconds: f64,
-}
-
-impl StateDoc {
-    fn of(state: &SavedState) -> Self {
-        Self {
-            stage: state.stage,
-            stages: state.stages,
-            mid_stage: state.mid_stage,
-            moves: state.moves.to_string(),
-            work_seconds: state.work.as_secs_f64(),
+impl Row {
+    /// What stopped the build, as far as the exit code goes: the job's stop, or a
+    /// cancellation that ended a budgeted deepening after a level was kept.
+    fn stop(&self) -> Option<StopReason> {
+        let report = self.report.as_ref()?;
+        match report.status {
+            JobStatus::Stopped { reason } => Some(reason),
+            _ => report
+                .budget
+                .as_ref()
+                .and_then(BudgetRecord::stopped_level)
+                .and_then(|l| l.stopped)
+                .filter(|r| *r == StopReason::Cancelled),
         }
     }
-}
-
-/// One level of a budgeted build in the JSON summary.
-#[derive(Debug, Serialize)]
-struct LevelRow {
-    norm_limit: u64,
-    elements: Option<usize>,
-    seconds: f64,
-    stopped: Option<String>,
 }
 
 impl BuildArgs {
@@ -255,6 +225,22 @@ impl BuildArgs {
                 MethodArg::Lift => Method::ProjectAndLift,
                 MethodArg::Pottier => Method::Pottier,
             },
+        })
+    }
+
+    /// The library's job for `model`, putting the set in `destination`.
+    fn job<'a>(&self, model: &Model, destination: Destination<'a>) -> anyhow::Result<Job<'a>> {
+        if self.engine == EngineArg::Cycles && self.out.is_some() {
+            anyhow::bail!(
+                "--engine cycles stores the implicit entry in the cache, which --out cannot write; leave --engine out (or pass --engine moves) to write the enumerated cycles"
+            );
+        }
+        Ok(Job {
+            spec: self.spec(model)?,
+            engine: self.engine.engine(),
+            budget: self.budget,
+            rebuild: self.rebuild,
+            destination,
         })
     }
 }
@@ -293,10 +279,10 @@ pub(super) fn run_with(
     }
     out.flush()?;
     let failed = rows.iter().any(|r| r.failed);
-    let stopped = rows.iter().any(|r| r.stop.is_some());
+    let stopped = rows.iter().any(|r| r.stop().is_some());
     let signalled = rows
         .iter()
-        .any(|r| r.stop == Some(StopReason::Cancelled))
+        .any(|r| r.stop() == Some(StopReason::Cancelled))
         .then(signal_status)
         .flatten();
     Ok(match (failed, signalled, stopped) {
@@ -313,12 +299,17 @@ fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
         .map(|r| {
             vec![
                 r.model.clone(),
-                r.key
-                    .as_deref()
+                r.report
+                    .as_ref()
+                    .and_then(|r| r.key.as_deref())
                     .map_or("-".into(), |k| k[..12.min(k.len())].to_string()),
-                r.kind
-                    .map_or("-".into(), |k| format!("{k:?}").to_lowercase()),
-                r.elements.map_or("-".into(), |e| e.to_string()),
+                r.report
+                    .as_ref()
+                    .map_or("-".into(), |r| format!("{:?}", r.kind).to_lowercase()),
+                r.report
+                    .as_ref()
+                    .and_then(|r| r.elements)
+                    .map_or("-".into(), |e| e.to_string()),
                 format!("{:.2}", r.seconds),
                 r.status.clone(),
             ]
@@ -336,21 +327,21 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     let start = Instant::now();
     let mut row = Row {
         model: path.display().to_string(),
-        key: None,
-        kind: None,
-        elements: None,
-        norm_limit: None,
-        levels: Vec::new(),
-        resumed: None,
-        kept: None,
+        report: None,
         resume_command: None,
         seconds: 0.0,
         status: String::new(),
-        stop: None,
         failed: false,
     };
-    match try_build(args, path, &mut row, share) {
-        Ok(status) => row.status = status,
+    match run_job(args, path, share) {
+        Ok((report, width)) => {
+            warn_set_aside(report.set_aside.as_ref());
+            row.status = status_text(args, &report, width);
+            if let (JobStatus::Stopped { .. }, Some(_)) = (report.status, &report.kept) {
+                row.resume_command = Some(command_line());
+            }
+            row.report = Some(report);
+        }
         Err(e) => {
             row.failed = true;
             row.status = format!("failed: {}", render_chain(&overflow_named(e, path)));
@@ -360,142 +351,107 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     row
 }
 
-/// The network of `model` when its set is to be the implicit one (see `--engine`). A set
-/// written to a file (`--out`) is always enumerated: a file cannot hold the implicit set.
-fn implicit_network(args: &BuildArgs, model: &Model) -> anyhow::Result<Option<Network>> {
-    let default_request = args.kind == KindArg::Graver
-        && args.signs.is_none()
-        && matches!(args.norm_limit, NormLimit::Auto | NormLimit::Unlimited)
-        && args.bounds == BoxArg::None
-        && args.method == MethodArg::Lift;
-    match args.engine {
-        EngineArg::Cycles if args.out.is_some() => anyhow::bail!(
-            "--engine cycles stores the implicit entry in the cache, which --out cannot write; leave --engine out (or pass --engine moves) to write the enumerated cycles"
-        ),
-        EngineArg::Moves => Ok(None),
-        EngineArg::Auto if args.out.is_some() => Ok(None),
-        EngineArg::Auto if !default_request || !model.convex.is_empty() => Ok(None),
-        EngineArg::Auto => Ok(Network::detect(&model.matrix).ok()),
-        EngineArg::Cycles if !default_request => anyhow::bail!(
-            "--engine cycles stores the whole Graver basis of a network; it takes no --kind, --signs, --norm-limit N, --box or --method"
-        ),
-        EngineArg::Cycles if !model.convex.is_empty() => anyhow::bail!(
-            "--engine cycles: the model has convex costs, which the network solver does not take"
-        ),
-        EngineArg::Cycles => Network::detect(&model.matrix)
-            .map(Some)
-            .map_err(|why| anyhow::anyhow!("--engine cycles: not a network matrix: {why}")),
-    }
-}
-
-/// Stores the implicit entry of a network matrix.
-fn build_cycles(
-    args: &BuildArgs,
-    model: &Model,
-    network: &Network,
-    row: &mut Row,
-) -> anyhow::Result<String> {
-    row.kind = Some(SetKind::Cycles);
-    row.elements = Some(0);
-    let library = args.cache.open()?;
-    Ok(
-        match library.obtain_cycles(&model.matrix, network, args.rebuild)? {
-            Obtained::Reused(stored) => {
-                row.key = Some(stored.digest.to_hex());
-                "present".to_string()
-            }
-            Obtained::Built {
-                built, replaced, ..
-            } => {
-                row.key = Some(built.key.digest().to_hex());
-                let mut status =
-                    "built (implicit: the network's cycles, nothing enumerated)".to_string();
-                if let Some(damage) = replaced {
-                    status.push_str(&format!(" (replaced a damaged entry: {damage})"));
-                }
-                status
-            }
-            Obtained::Stopped { reason, .. } => stopped(row, reason, None),
-        },
-    )
-}
-
-fn try_build(
+/// Runs the library's job for the model at `path`; the report and the model's width.
+fn run_job(
     args: &BuildArgs,
     path: &Path,
-    row: &mut Row,
     share: Option<&dyn WorkShare>,
-) -> anyhow::Result<String> {
+) -> anyhow::Result<(JobReport, usize)> {
     let model = PlanInput::load(path)?.into_model();
-    if let Some(network) = implicit_network(args, &model)? {
-        return build_cycles(args, &model, &network, row);
-    }
-    let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
-    let spec = args.spec(&model)?.resolve(&model, &analysis)?;
-    row.kind = Some(spec.kind);
+    let library = match &args.out {
+        Some(_) => None,
+        None => Some(args.cache.open()?.checkpoint_every(args.checkpoint_every)),
+    };
+    let destination = match (&args.out, &library) {
+        (Some(out), _) => Destination::File(out),
+        (None, Some(library)) => Destination::Cache(library),
+        (None, None) => unreachable!("a cache is open without --out"),
+    };
+    let job = args.job(&model, destination)?;
     let bar = BuildProgress::new(args.progress, path);
     let report = |p: &Progress| bar.report(p);
     let mut control = args.limits.control(model.variables())?.progress(&report);
     if let Some(share) = share {
         control = control.shared(share);
     }
-    if let Some(budget) = args.budget {
-        let status = budgeted(args, &model, &analysis, control.time_limit(budget), row);
-        bar.finish();
-        return status;
-    }
-    let status = if let Some(out) = &args.out {
-        row.key = Some(entry_key(&model.matrix, &spec).digest().to_hex());
-        match build(&model.matrix, &analysis, &spec, &control, None)? {
-            BuildOutcome::Built(built) => {
-                write_set_file(out, &built)?;
-                row.elements = Some(built.set.elements.len());
-                format!("written to {}", out.display())
-            }
-            BuildOutcome::Stopped(reason) => stopped(row, reason, None),
-        }
-    } else {
-        let library = args.cache.open()?.checkpoint_every(args.checkpoint_every);
-        match library.obtain(&model.matrix, &analysis, &spec, &control, args.rebuild)? {
-            Obtained::Reused(stored) => {
-                row.key = Some(stored.digest.to_hex());
-                row.elements = Some(stored.data.len());
-                "present".to_string()
-            }
-            Obtained::Built {
-                built,
-                replaced,
-                resumed,
-                set_aside,
-            } => {
-                warn_set_aside(set_aside.as_ref());
-                row.key = Some(built.key.digest().to_hex());
-                row.elements = Some(built.set.elements.len());
-                let mut status = "built".to_string();
-                if built.key != entry_key(&model.matrix, &spec) {
-                    status.push_str(" (complete: the truncation cut nothing)");
-                }
-                if let Some(state) = resumed {
-                    status.push_str(&format!(" (resumed from {})", describe(&state)));
-                    row.resumed = Some(StateDoc::of(&state));
-                }
-                if let Some(damage) = replaced {
-                    status.push_str(&format!(" (replaced a damaged entry: {damage})"));
-                }
-                status
-            }
-            Obtained::Stopped {
-                reason,
-                kept,
-                set_aside,
-            } => {
-                warn_set_aside(set_aside.as_ref());
-                stopped(row, reason, kept)
-            }
-        }
-    };
+    let outcome = job.run(&model, control);
     bar.finish();
-    Ok(status)
+    Ok((outcome?, model.variables()))
+}
+
+/// The report in words: what was done, and for a stop why, what was kept and how to go on.
+fn status_text(args: &BuildArgs, report: &JobReport, width: usize) -> String {
+    let mut status = match (report.status, &report.written_to) {
+        (JobStatus::Stopped { reason }, _) => return stopped_text(args, report, reason, width),
+        (JobStatus::Present, _) if args.budget.is_some() => {
+            "present (the whole request; no deepening needed)".to_string()
+        }
+        (JobStatus::Present, _) => "present".to_string(),
+        (_, Some(path)) => format!("written to {}", path.display()),
+        _ if report.implicit() => {
+            "built (implicit: the network's cycles, nothing enumerated)".to_string()
+        }
+        _ => "built".to_string(),
+    };
+    if report.cut_nothing {
+        status.push_str(" (complete: the truncation cut nothing)");
+    }
+    if let Some(state) = &report.resumed {
+        status.push_str(&format!(" (resumed from {})", describe(state)));
+    }
+    if let Some(damage) = &report.replaced {
+        status.push_str(&format!(" (replaced a damaged entry: {damage})"));
+    }
+    if let Some(budget) = &report.budget {
+        status.push_str(&budget_text(args, budget, width));
+    }
+    status
+}
+
+/// What a budgeted build reached, after the status word.
+fn budget_text(args: &BuildArgs, budget: &BudgetRecord, width: usize) -> String {
+    let limit = budget.norm_limit.unwrap_or_default();
+    let mut text = match (budget.complete, budget.proven_bound) {
+        (false, bound) => format!(
+            " within the budget: norm limit {limit} ({}; partial)",
+            bound.map_or("no finite proven bound".to_string(), |b| format!(
+                "proven bound {b}"
+            ))
+        ),
+        (true, Some(bound)) if limit >= bound => {
+            format!(" within the budget: complete (norm limit {limit} reached the proven bound)")
+        }
+        (true, _) => format!(" within the budget: complete (norm limit {limit} cut nothing)"),
+    };
+    if let Some(level) = budget.stopped_level() {
+        let reason = level.stopped.expect("a stopped level has a reason");
+        text.push_str(&format!(
+            "; norm limit {} stopped ({}) after {:.1} s",
+            level.norm_limit,
+            args.limits.named(reason, width),
+            level.seconds
+        ));
+    }
+    text
+}
+
+/// A stopped build in words: why, what was kept, and how to go on.
+fn stopped_text(args: &BuildArgs, report: &JobReport, reason: StopReason, width: usize) -> String {
+    let why = args.limits.named(reason, width);
+    if let Some(level) = report.budget.as_ref().and_then(BudgetRecord::stopped_level) {
+        return format!(
+            "stopped: {why} at norm limit {}, the first level; nothing stored",
+            level.norm_limit
+        );
+    }
+    match &report.kept {
+        None => format!("stopped: {why}; nothing kept"),
+        Some(state) => format!(
+            "stopped: {why}; kept {}; resume with: {}",
+            describe(state),
+            command_line()
+        ),
+    }
 }
 
 /// Names on stderr a checkpoint that could not be resumed and was moved aside.
@@ -510,36 +466,12 @@ pub(super) fn warn_set_aside(set_aside: Option<&SetAside>) {
     }
 }
 
-/// Records a stop in `row` and returns its status: why, what was kept, and how to go on.
-fn stopped(row: &mut Row, reason: StopReason, kept: Option<SavedState>) -> String {
-    row.stop = Some(reason);
-    let why = match reason {
-        StopReason::Cancelled => "interrupted",
-        StopReason::TimeLimit => "time limit reached",
-        StopReason::ElementLimit => "element or memory limit reached",
-    };
-    let Some(state) = kept else {
-        return format!("stopped: {why}; nothing kept");
-    };
-    row.kept = Some(StateDoc::of(&state));
-    let command = command_line();
-    let status = format!(
-        "stopped: {why}; kept {}; resume with: {command}",
-        describe(&state)
-    );
-    row.resume_command = Some(command);
-    status
-}
-
 /// A saved state in words.
-pub(super) fn describe(state: &SavedState) -> String {
+pub(super) fn describe(state: &StateRecord) -> String {
     let within = if state.mid_stage { " (mid-stage)" } else { "" };
     format!(
         "stage {}/{}{within}, {} moves, {:.0} s of work",
-        state.stage,
-        state.stages,
-        state.moves,
-        state.work.as_secs_f64()
+        state.stage, state.stages, state.moves, state.work_seconds
     )
 }
 
@@ -567,7 +499,12 @@ fn command_line() -> String {
 #[cfg(feature = "mpi")]
 pub(super) fn would_complete(args: &BuildArgs, path: &Path) -> anyhow::Result<bool> {
     let model = PlanInput::load(path)?.into_model();
-    if implicit_network(args, &model)?.is_some() {
+    let library = args.cache.open()?;
+    let destination = match &args.out {
+        Some(out) => Destination::File(out),
+        None => Destination::Cache(&library),
+    };
+    if args.job(&model, destination)?.network(&model)?.is_some() {
         return Ok(false);
     }
     if args.out.is_some() || args.rebuild {
@@ -575,8 +512,7 @@ pub(super) fn would_complete(args: &BuildArgs, path: &Path) -> anyhow::Result<bo
     }
     let analysis = MatrixAnalysis::of(&model.matrix, &AnalysisOptions::new());
     let spec = args.spec(&model)?.resolve(&model, &analysis)?;
-    let key = entry_key(&model.matrix, &spec);
-    Ok(args.cache.open()?.find(&key)?.is_none())
+    Ok(library.find(&entry_key(&model.matrix, &spec))?.is_none())
 }
 
 /// The part of a shared build that a rank other than the leader runs: the same completion
@@ -603,104 +539,4 @@ pub(super) fn follow(
         BuildOutcome::Built(_) => ExitCode::SUCCESS,
         BuildOutcome::Stopped(_) => ExitCode::from(1),
     })
-}
-
-/// Deepens the norm limit within the budget of `control` and stores (or writes) the last
-/// level that finished.
-fn budgeted(
-    args: &BuildArgs,
-    model: &Model,
-    analysis: &MatrixAnalysis,
-    control: Control<'_>,
-    row: &mut Row,
-) -> anyhow::Result<String> {
-    let spec = args.spec(model)?;
-    let library = match &args.out {
-        Some(_) => None,
-        None => Some(args.cache.open()?),
-    };
-    let complete = spec.resolve(model, analysis)?;
-    if let (Some(library), false) = (&library, args.rebuild) {
-        if let Some(stored) = library.find(&entry_key(&model.matrix, &complete))? {
-            row.key = Some(stored.digest.to_hex());
-            row.elements = Some(stored.data.len());
-            return Ok("present (the whole request; no deepening needed)".to_string());
-        }
-    }
-    let deepened = deepen(model, analysis, &spec, &control, &mut |_| {})?;
-    row.levels = deepened
-        .levels
-        .iter()
-        .map(|l| LevelRow {
-            norm_limit: l.limit,
-            elements: match l.end {
-                LevelEnd::Built { elements } => Some(elements),
-                LevelEnd::Stopped(_) => None,
-            },
-            seconds: l.elapsed.as_secs_f64(),
-            stopped: match l.end {
-                LevelEnd::Stopped(reason) => Some(format!("{reason:?}")),
-                LevelEnd::Built { .. } => None,
-            },
-        })
-        .collect();
-    let stopped = deepened.levels.last().and_then(|l| match l.end {
-        LevelEnd::Stopped(reason) => Some((l.limit, reason, l.elapsed)),
-        LevelEnd::Built { .. } => None,
-    });
-    let Some(built) = deepened.kept.as_deref() else {
-        let (limit, reason, _) = stopped.expect("a deepening without a kept level stopped");
-        return Ok(format!(
-            "stopped: {reason:?} at norm limit {limit}, the first level; nothing stored"
-        ));
-    };
-    let limit = deepened.limit_reached().unwrap_or_default();
-    row.key = Some(built.key.digest().to_hex());
-    row.elements = Some(built.set.elements.len());
-    row.norm_limit = Some(limit);
-    let mut status = match &args.out {
-        Some(out) => {
-            write_set_file(out, built)?;
-            format!("written to {}", out.display())
-        }
-        None => {
-            let library = library.expect("a cache is open without --out");
-            match library.keep(built)? {
-                Some(damage) => format!("built (replaced a damaged entry: {damage})"),
-                None => "built".to_string(),
-            }
-        }
-    };
-    let proven = match deepened.proven_bound {
-        u64::MAX => "no finite proven bound".to_string(),
-        bound => format!("proven bound {bound}"),
-    };
-    match built.metadata.completeness {
-        cache::Completeness::NormTruncated { .. } => status.push_str(&format!(
-            " within the budget: norm limit {limit} ({proven}; partial)"
-        )),
-        _ if limit >= deepened.proven_bound => status.push_str(&format!(
-            " within the budget: complete (norm limit {limit} reached the proven bound)"
-        )),
-        _ => status.push_str(&format!(
-            " within the budget: complete (norm limit {limit} cut nothing)"
-        )),
-    }
-    if let Some((next, reason, elapsed)) = stopped {
-        if reason == StopReason::Cancelled {
-            row.stop = Some(reason);
-        }
-        status.push_str(&format!(
-            "; norm limit {next} stopped on {reason:?} after {:.1} s",
-            elapsed.as_secs_f64()
-        ));
-    }
-    Ok(status)
-}
-
-/// Writes the set's document (see [`set_document`]) next to `path`, then renames it into
-/// place (never half-written).
-fn write_set_file(path: &Path, built: &BuiltSet) -> anyhow::Result<()> {
-    let doc = set_document(&built.key, &built.metadata, &built.set.elements);
-    write_atomically(path, doc.as_bytes())
 }

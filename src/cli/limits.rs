@@ -103,7 +103,7 @@ impl LimitArgs {
             reason,
             limit: self.named(reason, width),
             command,
-            kept: kept.map(|state| super::build::describe(&state)),
+            kept: kept.map(|state| super::build::describe(&(&state).into())),
         }
     }
 }

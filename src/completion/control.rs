@@ -11,6 +11,7 @@ use crate::error::{Error, Result};
 
 /// Why a completion stopped before finishing.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum StopReason {
     /// The working set grew past the element limit.
     ElementLimit,

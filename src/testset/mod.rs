@@ -6,6 +6,7 @@ mod build;
 mod deepen;
 mod document;
 mod estimate;
+mod job;
 mod library;
 mod limits;
 mod network;
@@ -20,6 +21,7 @@ pub use build::{
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
 pub use document::{read_set_document, set_document, SetDocument, SET_FORMAT, SET_VERSION};
 pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
+pub use job::{BudgetRecord, Destination, Job, JobReport, JobStatus, LevelRecord, StateRecord};
 pub use library::{
     CheckpointFacts, CheckpointInfo, Obtained, SavedState, SetAside, SetLibrary, CHECKPOINT_EVERY,
 };
