@@ -79,12 +79,7 @@ impl RepairScan<'_> {
         if !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }
-        let (indices, values) = self.moves.support(index);
-        let dir = Direction {
-            indices,
-            values,
-            sign: sign.factor(),
-        };
+        let dir = Direction::of(self.moves, index, sign);
         if self.rule == Rule::GraverBest {
             let bar = match best.map(|b| b.step) {
                 Some(Step::Finite { gain, .. }) => Some(floor.map_or(gain, |f| f.max(gain))),

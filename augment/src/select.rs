@@ -62,14 +62,9 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
     pub(crate) fn first_ray(&self, problem: &Problem) -> Result<Option<Candidate>> {
         for index in 0..self.moves.len() {
             for sign in Sign::BOTH {
-                let (indices, values) = self.moves.support(index);
-                let dir = Direction {
-                    indices,
-                    values,
-                    sign: sign.factor(),
-                };
+                let dir = Direction::of(self.moves, index, sign);
                 let mut free = true;
-                for k in 0..indices.len() {
+                for k in 0..dir.indices.len() {
                     let (i, d) = dir.entry(k)?;
                     free &= problem.unbounded_towards(i, d);
                 }

@@ -61,12 +61,7 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
         if !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }
-        let (indices, values) = self.moves.support(index);
-        let dir = Direction {
-            indices,
-            values,
-            sign: sign.factor(),
-        };
+        let dir = Direction::of(self.moves, index, sign);
         let room = room(self.bounds, self.search.x, &dir)?;
         Ok(match self.search.best(&dir, room, None)? {
             Step::Useless => None,
