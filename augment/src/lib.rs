@@ -40,6 +40,7 @@
 #![deny(missing_docs)]
 
 mod certify;
+mod choice;
 mod error;
 mod fitting;
 mod linear;
@@ -52,18 +53,19 @@ mod recurrence;
 mod repair;
 mod search;
 mod select;
+mod separable;
 mod slopes;
 mod solution;
 mod solve;
 mod sweep;
 
 pub use certify::{certify, violation_decrease, Certificate, Checker, Decrease};
+pub use choice::Rule;
 pub use error::{AugmentError, Result};
 pub use fitting::Fitting;
 pub use moves::{Coverage, MoveSet, Sign};
 pub use objective::{Objective, Term};
 pub use options::Options;
 pub use problem::Problem;
-pub use select::Rule;
 pub use solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 pub use solve::{solve, solve_fitted, solve_with_cancel};

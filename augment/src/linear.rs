@@ -11,12 +11,12 @@
 //! coordinate whose gap in that direction is at most `k` (for `k` = 1, 2, 4, 8), its room is at
 //! most `k`, and `|c.g| * k` at most the best gain rules it out before its support is read.
 
+use crate::choice::{Candidate, Rule};
 use crate::error::{overflow, Result};
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::problem::Problem;
 use crate::search::Step;
-use crate::select::{Candidate, Rule};
 use crate::slopes::Slopes;
 use crate::sweep::Evaluate;
 

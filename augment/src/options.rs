@@ -2,7 +2,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::select::Rule;
+use crate::choice::Rule;
 
 /// Settings of a solve; build with [`Options::default`] and the setters.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]

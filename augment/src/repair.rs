@@ -12,13 +12,13 @@
 //! step lowers the violation at all (the line search's own first test). The selection is
 //! exactly what evaluating every move would give.
 
+use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Sign};
 use crate::problem::{Problem, Violation};
 use crate::search::{Direction, LineSearch, Step};
-use crate::select::{Candidate, Rule};
-use crate::sweep::{keep_better, Evaluate};
+use crate::sweep::Evaluate;
 
 /// What a phase-I scan needs.
 pub(crate) struct RepairScan<'a> {
@@ -49,48 +49,12 @@ impl Evaluate for RepairScan<'_> {
         self.rule
     }
 
+    /// The rule's choice among the two signs of move `index`; under Graver-best a sign whose
+    /// reach does not beat the `floor` or the other sign's gain is dismissed unsearched.
     fn evaluate(&self, index: usize, floor: Option<i128>) -> Result<Option<Candidate>> {
-        let mut best: Option<Candidate> = None;
-        for sign in Sign::BOTH {
-            if !self.filter.admits(self.moves, index, sign) {
-                continue;
-            }
-            let (indices, values) = self.moves.support(index);
-            let dir = Direction {
-                indices,
-                values,
-                sign: sign.factor(),
-            };
-            if self.rule == Rule::GraverBest {
-                let bar = match best.map(|b| b.step) {
-                    Some(Step::Finite { gain, .. }) => Some(floor.map_or(gain, |f| f.max(gain))),
-                    _ => floor,
-                };
-                if bar.is_some_and(|bar| self.reach(&dir) <= bar) {
-                    continue;
-                }
-            }
-            // The line search's first test (does one step lower the violation?) in one plain
-            // pass; most candidates fail it when many coordinates lie outside the box.
-            if self.first_step_gain(&dir).is_some_and(|gain| gain <= 0) {
-                continue;
-            }
-            let search = LineSearch {
-                f: &self.function,
-                x: self.x,
-                powers_of_two: self.powers_of_two,
-            };
-            let step = search.best(&dir, None, None)?;
-            if step == Step::Useless {
-                continue;
-            }
-            let found = Candidate { index, sign, step };
-            if self.rule == Rule::FirstImproving {
-                return Ok(Some(found));
-            }
-            best = keep_better(self.rule, self.moves, best, Some(found));
-        }
-        Ok(best)
+        choose_sign(self.rule, self.moves, |sign, best| {
+            self.evaluate_sign(index, sign, floor, best)
+        })
     }
 
     fn candidates(&self, start: usize, len: usize) -> u64 {
@@ -103,6 +67,44 @@ impl Evaluate for RepairScan<'_> {
 }
 
 impl RepairScan<'_> {
+    /// The best step along move `index` in direction `sign`, if it improves and, under
+    /// Graver-best, its reach beats both the `floor` and the gain of `best`.
+    fn evaluate_sign(
+        &self,
+        index: usize,
+        sign: Sign,
+        floor: Option<i128>,
+        best: Option<Candidate>,
+    ) -> Result<Option<Candidate>> {
+        if !self.filter.admits(self.moves, index, sign) {
+            return Ok(None);
+        }
+        let dir = Direction::of(self.moves, index, sign);
+        if self.rule == Rule::GraverBest {
+            let bar = match best.map(|b| b.step) {
+                Some(Step::Finite { gain, .. }) => Some(floor.map_or(gain, |f| f.max(gain))),
+                _ => floor,
+            };
+            if bar.is_some_and(|bar| self.reach(&dir) <= bar) {
+                return Ok(None);
+            }
+        }
+        // The line search's first test (does one step lower the violation?) in one plain
+        // pass; most candidates fail it when many coordinates lie outside the box.
+        if self.first_step_gain(&dir).is_some_and(|gain| gain <= 0) {
+            return Ok(None);
+        }
+        let search = LineSearch {
+            f: &self.function,
+            x: self.x,
+            powers_of_two: self.powers_of_two,
+        };
+        Ok(match search.best(&dir, None, None)? {
+            Step::Useless => None,
+            step => Some(Candidate { index, sign, step }),
+        })
+    }
+
     /// `V(x) - V(x + dir)`, or `None` when a coordinate would overflow (the line search then
     /// reports it).
     fn first_step_gain(&self, dir: &Direction) -> Option<i128> {

@@ -7,6 +7,7 @@
 //! `O(log t)` evaluations, each touching only the support of the move.
 
 use crate::error::{overflow, Result};
+use crate::moves::{MoveSet, Sign};
 use crate::objective::{Recession, Separable};
 
 /// A signed move in sparse form.
@@ -20,7 +21,17 @@ pub(crate) struct Direction<'a> {
     pub sign: i64,
 }
 
-impl Direction<'_> {
+impl<'a> Direction<'a> {
+    /// Move `index` of `moves` applied with `sign`.
+    pub(crate) fn of(moves: &'a MoveSet, index: usize, sign: Sign) -> Self {
+        let (indices, values) = moves.support(index);
+        Direction {
+            indices,
+            values,
+            sign: sign.factor(),
+        }
+    }
+
     /// Entry `k` of the signed move, with its variable.
     pub(crate) fn entry(&self, k: usize) -> Result<(usize, i64)> {
         let d = self.values[k]

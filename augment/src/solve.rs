@@ -7,6 +7,7 @@
 
 use std::time::Instant;
 
+use crate::choice::{Candidate, Rule};
 use crate::error::{overflow, AugmentError, Result};
 use crate::fitting::Fitting;
 use crate::marks::Filter;
@@ -17,7 +18,7 @@ use crate::problem::Problem;
 use crate::recurrence::{Recurrence, WATCH_AFTER};
 use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
-use crate::select::{Candidate, Rule, Scan};
+use crate::select::Scan;
 use crate::slopes::Slopes;
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 use crate::sweep;

@@ -1,20 +1,22 @@
-//! One pass over every move for the selection rule's choice, sequentially or in parallel.
+//! One pass over every move for the selection rule's choice, sequentially or in parallel: the
+//! only selection loop of the crate, used by every scan (phase I in `repair.rs`, phase II in
+//! `linear.rs` for a linear objective and in `separable.rs` for any other).
 //!
-//! The specialised scans (linear phase II in `linear.rs`, phase I in `repair.rs`) only say
-//! which moves are worth a look (64 at a time, as a bit mask) and how one move is evaluated;
-//! this driver owns the order. Ties go to the lowest move index
-//! (and, inside a move, to `+`), a ray beats every finite step, and the parallel pass splits
-//! the moves into chunks whose winners are combined in index order, so both passes return the
-//! same candidate. Under Graver-best, the best gain found so far is handed to the next
-//! evaluation as a floor (a move that cannot beat it may be dropped early), and a candidate
-//! reaching the scan's ceiling (a gain nothing can exceed) ends its chunk.
+//! A scan only says which moves are worth a look (64 at a time, as a bit mask) and how one
+//! move is evaluated; this driver owns the order. Candidates are offered to
+//! [`keep_better`] in index order, so ties go to the lowest move index (and, inside a move,
+//! to `+`) and a ray beats every finite step; the parallel pass splits the moves into chunks
+//! whose winners are combined in index order, so both passes return the same candidate. Under
+//! Graver-best, the best gain found so far is handed to the next evaluation as a floor (a move
+//! that cannot beat it may be dropped early), and a candidate reaching the scan's ceiling (a
+//! gain nothing can exceed) ends its chunk.
 
 use rayon::prelude::*;
 
+use crate::choice::{keep_better, Candidate, Rule};
 use crate::error::Result;
 use crate::moves::MoveSet;
 use crate::search::Step;
-use crate::select::{ratio_cmp, Candidate, Rule};
 
 /// Moves per parallel chunk (a multiple of 64, the moves of one candidate mask).
 const CHUNK: usize = 256;
@@ -47,20 +49,22 @@ pub(crate) fn select<E: Evaluate>(scan: &E, parallel: bool) -> Result<Option<Can
         .into_par_iter()
         .map(|c| select_in(scan, c * CHUNK..((c + 1) * CHUNK).min(count)))
         .collect();
+    let (rule, ceiling) = (scan.rule(), ceiling(scan));
     let mut best = None;
     for found in chunks {
-        let found = found?;
-        if scan.rule() == Rule::FirstImproving && found.is_some() {
-            return Ok(found);
+        best = keep_better(rule, scan.moves(), best, found?);
+        // Stop where the sequential pass stops, so an error in a later chunk is not reported.
+        if best.is_some_and(|b| ends_pass(rule, ceiling, &b)) {
+            return Ok(best);
         }
-        best = keep_better(scan.rule(), scan.moves(), best, found);
     }
     Ok(best)
 }
 
+/// The rule's choice among the moves of `range`, in index order: the sequential pass, and the
+/// pass over one chunk of the parallel one.
 fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Option<Candidate>> {
-    let rule = scan.rule();
-    let ceiling = scan.ceiling().filter(|_| rule == Rule::GraverBest);
+    let (rule, ceiling) = (scan.rule(), ceiling(scan));
     let mut best: Option<Candidate> = None;
     for start in range.clone().step_by(64) {
         let mut mask = scan.candidates(start, (range.end - start).min(64));
@@ -74,15 +78,8 @@ fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Opt
             let Some(found) = scan.evaluate(index, floor)? else {
                 continue;
             };
-            let last = match found.step {
-                Step::Ray => true,
-                Step::Finite { gain, .. } => {
-                    rule == Rule::FirstImproving || ceiling.is_some_and(|c| gain >= c)
-                }
-                Step::Useless => false,
-            };
             best = keep_better(rule, scan.moves(), best, Some(found));
-            if last {
+            if ends_pass(rule, ceiling, &found) {
                 return Ok(best);
             }
         }
@@ -90,25 +87,19 @@ fn select_in<E: Evaluate>(scan: &E, range: std::ops::Range<usize>) -> Result<Opt
     Ok(best)
 }
 
-/// `current` unless `challenger` is strictly better under `rule` (a ray beats every finite
-/// step; equal keys keep `current`).
-pub(crate) fn keep_better(
-    rule: Rule,
-    moves: &MoveSet,
-    current: Option<Candidate>,
-    challenger: Option<Candidate>,
-) -> Option<Candidate> {
-    let (Some(a), Some(b)) = (current, challenger) else {
-        return current.or(challenger);
-    };
-    let better = match (a.step, b.step) {
-        (Step::Ray, _) => false,
-        (_, Step::Ray) => true,
-        (Step::Finite { gain: ga, .. }, Step::Finite { gain: gb, .. }) => match rule {
-            Rule::Steepest => ratio_cmp(gb, moves.norm(b.index), ga, moves.norm(a.index)).is_gt(),
-            Rule::GraverBest | Rule::FirstImproving => gb > ga,
-        },
-        _ => false,
-    };
-    Some(if better { b } else { a })
+/// The scan's ceiling where the rule uses it (Graver-best only).
+fn ceiling<E: Evaluate>(scan: &E) -> Option<i128> {
+    scan.ceiling().filter(|_| scan.rule() == Rule::GraverBest)
+}
+
+/// True when no later move can replace `found` under `rule`: it is a ray, the rule takes the
+/// first improving step, or its gain reaches the `ceiling`.
+fn ends_pass(rule: Rule, ceiling: Option<i128>, found: &Candidate) -> bool {
+    match found.step {
+        Step::Ray => true,
+        Step::Finite { gain, .. } => {
+            rule == Rule::FirstImproving || ceiling.is_some_and(|c| gain >= c)
+        }
+        Step::Useless => false,
+    }
 }

@@ -105,6 +105,27 @@ fn problem(inst: &Instance, objective: Objective) -> Problem {
     .expect("matching lengths")
 }
 
+/// A case with a code per variable for [`opened`].
+fn case_with_free() -> impl Strategy<Value = ((Instance, Objective), Vec<u8>)> {
+    case().prop_flat_map(|c| {
+        let n = c.0.x0.len();
+        (Just(c), prop::collection::vec(0u8..6, n))
+    })
+}
+
+/// The problem of `inst` with some bounds removed, so that rays occur too: per variable, code
+/// 0 removes the lower bound, 1 the upper bound, anything else keeps both.
+fn opened(inst: &Instance, objective: Objective, free: &[u8]) -> Problem {
+    let n = inst.x0.len();
+    let lower = (0..n)
+        .map(|i| (free[i] != 0).then_some(inst.lower[i]))
+        .collect();
+    let upper = (0..n)
+        .map(|i| (free[i] != 1).then_some(inst.upper[i]))
+        .collect();
+    Problem::new(objective, lower, upper).unwrap()
+}
+
 /// Everything but the wall-clock time.
 fn comparable(s: &Solution) -> Solution {
     Solution {
@@ -151,6 +172,36 @@ fn padded_solutions(
     )
 }
 
+/// The sequential solve, after checking that the parallel one returns exactly the same.
+fn sequential_equals_parallel(
+    problem: &Problem,
+    moves: &MoveSet,
+    x0: &[i64],
+    options: &Options,
+) -> Result<Solution, TestCaseError> {
+    let sequential = solve(problem, moves, x0, options).unwrap();
+    let parallel = solve(problem, moves, x0, &options.parallel(true)).unwrap();
+    prop_assert_eq!(comparable(&sequential), comparable(&parallel));
+    Ok(sequential)
+}
+
+/// Moves in the long sets: more than three chunks of the parallel scan (256 moves each).
+const LONG: usize = 800;
+
+/// `count` moves cycling through `rows`, each round scaled by the next of 1, 2, 3: the same
+/// steps and their multiples at indices far apart (empty when `rows` is).
+fn repeated(rows: &[Vec<i64>], count: usize) -> Vec<Vec<i64>> {
+    if rows.is_empty() {
+        return Vec::new();
+    }
+    (0..count)
+        .map(|k| {
+            let factor = 1 + (k / rows.len()) as i64 % 3;
+            rows[k % rows.len()].iter().map(|v| v * factor).collect()
+        })
+        .collect()
+}
+
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(96))]
 
@@ -183,19 +234,26 @@ proptest! {
     }
 
     /// Every rule, with and without power-of-two steps, reaches the same optimal value, and the
-    /// parallel scan returns exactly the sequential solution, trace included.
+    /// parallel scan returns exactly the sequential solution, trace included, for linear and
+    /// separable objectives: over the basis, and over a long set (the basis repeated with
+    /// multiples, so that equal and rival moves fall into different parallel chunks) in the box
+    /// and with some bounds removed (rays).
     #[test]
-    fn rules_agree_and_parallel_equals_sequential((inst, objective) in case()) {
+    fn rules_agree_and_parallel_equals_sequential(((inst, objective), free) in case_with_free()) {
         let n = inst.x0.len();
-        let moves = MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap();
+        let rows = graver(&inst.a, n, inst.bound);
+        let moves = MoveSet::from_rows(n, &rows, Coverage::Complete).unwrap();
+        let long = MoveSet::from_rows(n, &repeated(&rows, LONG), Coverage::Complete).unwrap();
+        let open = opened(&inst, objective.clone(), &free);
         let problem = problem(&inst, objective);
         let reference = solve(&problem, &moves, &inst.x0, &Options::default()).unwrap();
         for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
             for powers in [false, true] {
                 let options = Options::default().rule(rule).powers_of_two(powers).trace(true);
-                let sequential = solve(&problem, &moves, &inst.x0, &options).unwrap();
-                let parallel = solve(&problem, &moves, &inst.x0, &options.parallel(true)).unwrap();
-                prop_assert_eq!(comparable(&sequential), comparable(&parallel));
+                for (problem, set) in [(&problem, &long), (&open, &long), (&open, &moves)] {
+                    sequential_equals_parallel(problem, set, &inst.x0, &options)?;
+                }
+                let sequential = sequential_equals_parallel(&problem, &moves, &inst.x0, &options)?;
                 prop_assert_eq!(sequential.objective.is_some(), reference.objective.is_some());
                 if reference.status == Status::Optimal {
                     prop_assert_eq!(sequential.objective, reference.objective);
@@ -225,17 +283,11 @@ proptest! {
     /// with some bounds removed so that rays occur too.
     #[test]
     fn the_moves_that_fit_the_box_give_the_same_solution(
-        ((inst, objective), free) in case().prop_flat_map(|c| {
-            let n = c.0.x0.len();
-            (Just(c), prop::collection::vec(0u8..6, n))
-        })
+        ((inst, objective), free) in case_with_free()
     ) {
         let n = inst.x0.len();
         let set = Arc::new(MoveSet::from_rows(n, &graver(&inst.a, n, inst.bound), Coverage::Complete).unwrap());
-        // 0: lower removed, 1: upper removed, otherwise kept.
-        let lower = (0..n).map(|i| (free[i] != 0).then_some(inst.lower[i])).collect();
-        let upper = (0..n).map(|i| (free[i] != 1).then_some(inst.upper[i])).collect();
-        let problem = Problem::new(objective, lower, upper).unwrap();
+        let problem = opened(&inst, objective, &free);
         let fitting = Fitting::new(set.clone(), &problem).unwrap();
         for rule in [Rule::GraverBest, Rule::FirstImproving, Rule::Steepest] {
             let options = Options::default().rule(rule).trace(true);
