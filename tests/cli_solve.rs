@@ -816,3 +816,39 @@ fn a_partial_set_reports_a_ray_that_no_single_move_gives() {
         "found after {steps} steps, not at the step limit"
     );
 }
+
+/// `solve --json` is the library's solve document: the binary's output reads back as
+/// `trace::SolveDocument` and equals what `trace::solve_document` gives with the set
+/// `testset::serve` picks from the same cache (times aside), on the invented depot plan
+/// with convex store costs (a cross-check of two code paths; the optimum's own references
+/// are the HiGHS fixtures above).
+#[test]
+fn the_solve_document_is_the_library_call() {
+    use kernstep::model::{Model, ModelKind};
+    use kernstep::testset::{serve, Engine, SetLibrary};
+    use kernstep::trace::{solve_document, SolveContext, SolveDocument};
+    let cache = tempfile::tempdir().unwrap();
+    let path = example("depot_stores.toml");
+    let dir = cache.path().to_str().unwrap();
+    kernstep(&["build", &path, "--cache-dir", dir]);
+    let out = kernstep(&["solve", &path, "--json", "--cache-dir", dir]);
+    let mut printed: SolveDocument = serde_json::from_slice(&out.stdout).unwrap();
+    let text = std::fs::read_to_string(&path).unwrap();
+    let model = Model::from_str(&text, ModelKind::Toml, &path).unwrap();
+    let library = SetLibrary::open(Some(cache.path())).unwrap();
+    let served = serve(&model, Some(&library), Engine::Auto, None).unwrap();
+    let prepared = served.prepare(&model.matrix).unwrap();
+    let context = SolveContext {
+        model: &path,
+        variant: None,
+        warm: None,
+        base: None,
+        set: &served,
+    };
+    let options = augment::Options::default();
+    let mut called = solve_document(&prepared, &model, &options, context, &|| false).unwrap();
+    printed.seconds = 0.0;
+    called.seconds = 0.0;
+    assert_eq!(printed, called);
+    assert_eq!(printed.set.source, "cache");
+}

@@ -11,18 +11,14 @@ use kernstep::input::read_text;
 use kernstep::model::Model;
 use kernstep::scenario::PlanInput;
 use kernstep::solve::{parse_lines, Prepared, Variant, WarmStart};
-use kernstep::trace::TRACE_SCHEMA;
+use kernstep::trace::SolveContext;
 use kernstep::Error;
-use serde::Deserialize;
 
 use kernstep::testset::Served;
 
 use super::common::{graver_for, interrupted, CacheArgs, EngineArg};
 use super::days::pick_day;
 use super::limits::LimitArgs;
-
-/// The `schema` value of `solve --json` documents.
-pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
 
 /// Which instance to solve, and how.
 #[derive(Debug, Args)]
@@ -83,6 +79,17 @@ impl Instance {
     /// The start the solve takes: `--warm-start`, else the base optimum, else none (cold).
     pub fn start(&self) -> Option<&WarmStart> {
         self.warm.as_ref().or(self.base.as_ref())
+    }
+
+    /// The instance as a solve document names it.
+    pub fn context(&self) -> SolveContext<'_> {
+        SolveContext {
+            model: &self.path,
+            variant: self.variant.as_deref(),
+            warm: self.warm.as_ref(),
+            base: self.base.as_ref(),
+            set: &self.set,
+        }
     }
 }
 
@@ -232,37 +239,9 @@ fn read_variant(spec: &str, id: Option<&str>) -> anyhow::Result<(Variant, String
     }
 }
 
-/// The fields of a previous `solve --json` or `trace --json` document that a warm start uses.
-#[derive(Deserialize)]
-struct PreviousPlan {
-    schema: String,
-    rhs: Vec<i64>,
-    x: Option<Vec<i64>>,
-}
-
-/// The plan of a previous solve document, checked against `model` (`A x = rhs`).
+/// The plan of a previous solve document at `path`, checked against `model`.
 fn read_warm_start(path: &Path, model: &Model) -> anyhow::Result<WarmStart> {
     let origin = path.display().to_string();
     let text = read_text(path).with_context(|| format!("reading the warm start {origin}"))?;
-    let previous: PreviousPlan = serde_json::from_str(&text).map_err(|e| Error::Input {
-        file: origin.clone(),
-        field: "document".to_string(),
-        message: format!("{e}; expected the output of `kernstep solve --json`"),
-    })?;
-    if previous.schema != SOLVE_SCHEMA && previous.schema != TRACE_SCHEMA {
-        anyhow::bail!(
-            "{origin}: schema: {:?} is neither {SOLVE_SCHEMA:?} nor {TRACE_SCHEMA:?}",
-            previous.schema
-        );
-    }
-    let Some(x) = previous.x else {
-        anyhow::bail!("{origin}: x: the previous solve has no plan to start from");
-    };
-    let warm = WarmStart {
-        rhs: previous.rhs,
-        x,
-        potentials: None,
-    };
-    warm.check(&model.matrix, &origin)?;
-    Ok(warm)
+    Ok(kernstep::trace::read_warm_start(&text, &origin, model)?)
 }

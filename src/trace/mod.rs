@@ -9,6 +9,7 @@ mod decimal;
 mod document;
 mod outcome;
 mod recheck;
+mod solve_doc;
 mod sparse;
 
 pub use bound::BoundDoc;
@@ -17,4 +18,8 @@ pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
 pub use recheck::{recheck, recheck_with_bound, Claim, Defect, Recheck, SignedMove};
+pub use solve_doc::{
+    read_warm_start, solve_document, SetRecord, SolveContext, SolveDocument, StepCounts,
+    SOLVE_SCHEMA,
+};
 pub use sparse::{named_entries, NamedEntry};

@@ -1,0 +1,215 @@
+//! The document of one certified solve (`solve --json`), its writer and its reader, and the
+//! warm start read back from it (or from a trace document).
+
+use serde::{Deserialize, Serialize};
+
+use super::bound::BoundDoc;
+use super::certified::{certify, Certified};
+use super::decimal::Decimal;
+use super::document::TRACE_SCHEMA;
+use super::outcome::{CoverageDoc, Outcome};
+use super::recheck::Recheck;
+use crate::error::{Error, Result};
+use crate::model::Model;
+use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
+use crate::testset::{Served, Source};
+
+/// The `schema` value of solve documents.
+pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
+
+/// Augmenting steps per phase.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct StepCounts {
+    /// Steps of phase I (towards the box).
+    pub feasibility: u64,
+    /// Steps of phase II (down the cost).
+    pub cost: u64,
+}
+
+/// Where the moves of a solve came from.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct SetRecord {
+    /// `cache`, `built` or `network`.
+    pub source: String,
+    /// The cache entry's digest in hex, for a cached set.
+    pub digest: Option<String>,
+    /// Moves in the set (0 for a network's implicit cycles).
+    pub moves: usize,
+}
+
+impl SetRecord {
+    /// The record of `served`.
+    pub fn of(served: &Served) -> Self {
+        let (source, digest) = match &served.source {
+            Source::Cached(d) => ("cache", Some(d.clone())),
+            Source::Built => ("built", None),
+            Source::Network => ("network", None),
+        };
+        SetRecord {
+            source: source.to_string(),
+            digest,
+            moves: served.set.elements.len(),
+        }
+    }
+}
+
+/// Which instance a solve document is about, as the caller named it.
+#[derive(Clone, Copy, Debug)]
+pub struct SolveContext<'a> {
+    /// The model or scenario file.
+    pub model: &'a str,
+    /// The variant's id (a scenario's day), when one was applied.
+    pub variant: Option<&'a str>,
+    /// The start given by the caller (a previous plan), if any.
+    pub warm: Option<&'a WarmStart>,
+    /// Where the solve starts when no previous plan is given (a network variant starts from
+    /// the optimum of the model's own numbers), if anywhere but cold.
+    pub base: Option<&'a WarmStart>,
+    /// The set that serves the solve.
+    pub set: &'a Served,
+}
+
+/// One certified solve: the outcome, the plan and its cost, the dual bound of a partial
+/// set's plan and the independent re-check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[non_exhaustive]
+pub struct SolveDocument {
+    /// Always [`SOLVE_SCHEMA`].
+    pub schema: String,
+    /// The model or scenario file.
+    pub model: String,
+    /// The variant's id, when one was applied.
+    pub variant: Option<String>,
+    /// Whether the solve started from a previous plan.
+    pub warm_start: bool,
+    /// How the solve ended.
+    pub status: Outcome,
+    /// The dual bound of a partial set's plan.
+    pub bound: Option<BoundDoc>,
+    /// The cost at `x`, once inside the box.
+    pub objective: Option<Decimal>,
+    /// The total bound violation at `x`.
+    pub violation: Option<Decimal>,
+    /// The point reached (`null` without an integer solution).
+    pub x: Option<Vec<i64>>,
+    /// The instance's right-hand side.
+    pub rhs: Vec<i64>,
+    /// Variable names, one per column.
+    pub variables: Vec<String>,
+    /// Steps per phase.
+    pub steps: StepCounts,
+    /// Wall-clock seconds of the augmentation.
+    pub seconds: f64,
+    /// What the set guarantees.
+    pub coverage: CoverageDoc,
+    /// Where the moves came from.
+    pub set: SetRecord,
+    /// The independent re-check of the outcome's claim, when it makes one.
+    pub recheck: Option<Recheck>,
+}
+
+/// Solves `model` with `prepared` from the context's start, certifies the verdict
+/// ([`certify`]) and records the document.
+pub fn solve_document(
+    prepared: &Prepared,
+    model: &Model,
+    options: &augment::Options,
+    context: SolveContext<'_>,
+    cancel: &dyn Fn() -> bool,
+) -> Result<SolveDocument> {
+    let start = context.warm.or(context.base);
+    let verdict = prepared.solve(model, options, start, cancel)?;
+    let Certified {
+        verdict,
+        bound,
+        recheck,
+        answer,
+    } = certify(prepared, &model.matrix, Numbers::of(model), verdict, None)?;
+    let (x, objective, violation) = reached(model, &verdict)?;
+    let (feasibility, cost) = verdict.steps();
+    Ok(SolveDocument {
+        schema: SOLVE_SCHEMA.to_string(),
+        model: context.model.to_string(),
+        variant: context.variant.map(String::from),
+        warm_start: context.warm.is_some(),
+        status: Outcome::of_answer(&answer, &model.variable_names, &model.row_names),
+        bound: verdict
+            .optimum()
+            .zip(bound.as_ref())
+            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+        objective: objective.map(Decimal),
+        violation: violation.map(Decimal),
+        x,
+        rhs: model.rhs.clone(),
+        variables: model.variable_names.clone(),
+        steps: StepCounts { feasibility, cost },
+        seconds: verdict.elapsed().as_secs_f64(),
+        coverage: context.set.coverage.into(),
+        set: SetRecord::of(context.set),
+        recheck,
+    })
+}
+
+/// The point `verdict` reached with its cost (once inside the box) and violation, evaluated
+/// on the instance's own numbers.
+type Reached = (Option<Vec<i64>>, Option<i128>, Option<i128>);
+
+fn reached(model: &Model, verdict: &Verdict) -> Result<Reached> {
+    let Some(x) = verdict.point() else {
+        return Ok((None, None, None));
+    };
+    let problem = Numbers::of(model).problem()?;
+    let violation = problem.violation(x)?;
+    let objective = match verdict {
+        Verdict::Solved(s) => s.objective,
+        _ if violation == 0 => Some(problem.objective().value(x)?),
+        _ => None,
+    };
+    Ok((Some(x.to_vec()), objective, Some(violation)))
+}
+
+/// The fields of a solve or trace document that a warm start uses.
+#[derive(Deserialize)]
+struct PreviousPlan {
+    schema: String,
+    rhs: Vec<i64>,
+    x: Option<Vec<i64>>,
+}
+
+/// The plan of a previous solve (or trace) document `text`, checked against `model`
+/// (`A x = rhs`); `origin` names the document in errors.
+pub fn read_warm_start(text: &str, origin: &str, model: &Model) -> Result<WarmStart> {
+    let bad = |field: &str, message: String| Error::Input {
+        file: origin.to_string(),
+        field: field.to_string(),
+        message,
+    };
+    let previous: PreviousPlan = serde_json::from_str(text).map_err(|e| {
+        bad(
+            "document",
+            format!("{e}; expected the output of `kernstep solve --json`"),
+        )
+    })?;
+    if previous.schema != SOLVE_SCHEMA && previous.schema != TRACE_SCHEMA {
+        return Err(bad(
+            "schema",
+            format!(
+                "{:?} is neither {SOLVE_SCHEMA:?} nor {TRACE_SCHEMA:?}",
+                previous.schema
+            ),
+        ));
+    }
+    let Some(x) = previous.x else {
+        return Err(bad(
+            "x",
+            "the previous solve has no plan to start from".to_string(),
+        ));
+    };
+    let warm = WarmStart {
+        rhs: previous.rhs,
+        x,
+        potentials: None,
+    };
+    warm.check(&model.matrix, origin)?;
+    Ok(warm)
+}
