@@ -382,7 +382,7 @@ fn variants_file_picks_by_id_and_reports_missing_ids() {
     ]);
     assert_eq!(out.status.code(), Some(2));
     assert!(
-        stderr(&out).contains("no variant has id \"sun\""),
+        stderr(&out).contains("id \"sun\": no variant has it"),
         "{}",
         stderr(&out)
     );
@@ -687,7 +687,7 @@ fn scenario_day_errors_name_the_file_the_line_and_the_day() {
     expect_error(
         &unknown,
         &[&format!(
-            "{csv}: no day named \"2026-04-01\" (days: 2026-03-02, "
+            "{csv}: day \"2026-04-01\": not in the file (days: 2026-03-02, "
         )],
     );
     let jsonl = dir.path().join("days.jsonl");

@@ -191,3 +191,29 @@ fn days_keep_the_scenario_surcharges() {
     // Column a->y (1) at 4 units: 8 * 4 + 3 * (4 - 2) = 38 by hand; every other column is 0.
     assert_eq!(problem.objective().value(&[0, 4, 0, 0, 0]).unwrap(), 38);
 }
+
+/// Picking a variant of a model's variants file: by id, the first by default, a missing id
+/// named with the first bad line (a bad line spoils only itself; common practice for line
+/// files).
+#[test]
+fn a_variant_is_picked_by_id_and_a_missing_one_is_named() {
+    use kernstep::scenario::pick_variant;
+    let text = "{\"id\":\"mon\",\"rhs\":[7,5,6]}\n{\"id\":\"tue\",\"rhs\":[oops]}\n\
+                {\"id\":\"wed\",\"rhs\":[8,5,6]}\n";
+    assert_eq!(pick_variant(text, "v.jsonl", None).unwrap().id, "mon");
+    assert_eq!(
+        pick_variant(text, "v.jsonl", Some("wed")).unwrap().id,
+        "wed"
+    );
+    let e = pick_variant(text, "v.jsonl", Some("sun"))
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.starts_with(
+            "v.jsonl: id \"sun\": no readable variant has it; the first bad line: v.jsonl: line 2"
+        ),
+        "{e}"
+    );
+    let e = pick_variant("\n", "v.jsonl", None).unwrap_err().to_string();
+    assert_eq!(e, "v.jsonl: file: holds no variant");
+}

@@ -17,11 +17,10 @@ use anyhow::Context;
 use clap::{Args, ValueEnum};
 use kernstep::formats::batch::{self, DayRecord, RunSummary, Tally};
 use kernstep::model::Model;
-use kernstep::scenario::{replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
+use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared};
 
 use super::common::{capped_threads, graver_for, interrupted, with_threads, CacheArgs, EngineArg};
-use super::days::read_days;
 use super::limits::LimitArgs;
 use super::table::write_pairs;
 

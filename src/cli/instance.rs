@@ -9,15 +9,14 @@ use augment::{Options, Rule};
 use clap::{Args, ValueEnum};
 use kernstep::input::read_text;
 use kernstep::model::Model;
-use kernstep::scenario::PlanInput;
-use kernstep::solve::{parse_lines, Prepared, Variant, WarmStart};
+use kernstep::scenario::{pick_day, pick_variant, PlanInput};
+use kernstep::solve::{Prepared, Variant, WarmStart};
 use kernstep::trace::SolveContext;
 use kernstep::Error;
 
 use kernstep::testset::Served;
 
 use super::common::{graver_for, interrupted, CacheArgs, EngineArg};
-use super::days::pick_day;
 use super::limits::LimitArgs;
 
 /// Which instance to solve, and how.
@@ -220,23 +219,7 @@ fn read_variant(spec: &str, id: Option<&str>) -> anyhow::Result<(Variant, String
     let text =
         read_text(path).with_context(|| format!("reading the variants file {}", path.display()))?;
     let origin = path.display().to_string();
-    let mut unreadable = None;
-    for (_, parsed) in parse_lines(&text, &origin) {
-        match parsed {
-            Ok(v) if id.is_none_or(|id| id == v.id) => return Ok((v, origin)),
-            Ok(_) => {}
-            Err(e) if id.is_none() => return Err(e.into()),
-            Err(e) => unreadable = unreadable.or(Some(e)),
-        }
-    }
-    match (id, unreadable) {
-        (Some(id), Some(e)) => {
-            Err(anyhow::Error::new(e)
-                .context(format!("{origin}: no readable variant has id {id:?}")))
-        }
-        (Some(id), None) => anyhow::bail!("{origin}: no variant has id {id:?}"),
-        (None, _) => anyhow::bail!("{origin}: the file holds no variant"),
-    }
+    Ok((pick_variant(&text, &origin, id)?, origin))
 }
 
 /// The plan of a previous solve document at `path`, checked against `model`.

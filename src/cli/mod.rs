@@ -8,7 +8,6 @@ mod batch;
 mod build;
 mod cache;
 mod common;
-mod days;
 mod demo;
 mod explain;
 mod instance;

@@ -33,6 +33,7 @@
 mod compile;
 mod day_record;
 mod days;
+mod days_file;
 mod file;
 mod reader;
 mod replan;
@@ -43,6 +44,7 @@ use crate::error::{Error, Result};
 use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
+pub use days_file::{pick_day, pick_variant, read_days};
 pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
 
 /// Which model a scenario compiles into.
