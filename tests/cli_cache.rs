@@ -324,3 +324,33 @@ fn bad_ages_and_missing_keys_are_usage_errors() {
         assert!(!text(&out.stderr).is_empty(), "{args:?}");
     }
 }
+
+/// The `cache` documents are the library's: `list`, `show`, `verify` and `prune --json`
+/// read back as `testset::Listing`, `EntryRecord`, `VerifyRecord` and `PruneRecord` and
+/// equal what the library calls give on the same cache; `export` prints the library's
+/// set document.
+#[test]
+fn the_cache_documents_are_the_library_calls() {
+    use kernstep::testset::{EntryRecord, Listing, PruneRecord, SetLibrary, VerifyRecord};
+    let (dir, keys) = filled();
+    let library = SetLibrary::open(Some(dir.path())).unwrap();
+    let listing: Listing =
+        serde_json::from_value(json(dir.path(), &["cache", "list", "--json"])).unwrap();
+    assert_eq!(listing, library.listing().unwrap());
+    assert_eq!(listing.entries.len(), keys.len());
+    let shown: EntryRecord =
+        serde_json::from_value(json(dir.path(), &["cache", "show", &keys[0], "--json"])).unwrap();
+    assert_eq!(shown, library.entry_record(&keys[0]).unwrap());
+    let verified: Vec<VerifyRecord> =
+        serde_json::from_value(json(dir.path(), &["cache", "verify", "--json"])).unwrap();
+    assert_eq!(verified, library.verify_records(None).unwrap());
+    assert!(verified.iter().all(|v| v.ok && !v.foreign));
+    let exported = expect(dir.path(), &["cache", "export", &keys[0]], 0);
+    assert_eq!(exported, library.export_document(&keys[0], None).unwrap());
+    let pruned: PruneRecord = serde_json::from_value(json(
+        dir.path(),
+        &["cache", "prune", "--older-than", "30d", "--json"],
+    ))
+    .unwrap();
+    assert!(pruned.removed.is_empty() && pruned.unreadable.is_empty());
+}

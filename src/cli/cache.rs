@@ -7,17 +7,14 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
-use ::cache::{
-    Completeness, Digest, EntryKey, EntrySummary, FileSummary, Provenance, PruneReport, SetKind,
-    SetMetadata, Sign, Store, StoredSet, Truncation,
-};
+use ::cache::{Completeness, Digest, EntrySummary, SetKind, Sign, Store, Truncation};
+use anyhow::Context;
 use clap::{Args, Subcommand, ValueEnum};
-use kernstep::matrix::IntMatrix;
-use kernstep::testset::{enumerate_cycles, set_document, BuildOutcome, CheckpointInfo, SetLibrary};
-use serde::Serialize;
+use kernstep::testset::{
+    CheckpointRecord, CheckpointState, EntryRecord, Listing, PruneRecord, SetLibrary, VerifyRecord,
+};
 
-use super::common::CacheArgs;
-use super::limits::LimitArgs;
+use super::common::{interrupted, CacheArgs};
 use super::table::{write_pairs, write_table};
 
 /// Hex digits of a digest shown in tables (any unique prefix is accepted back as `KEY`).
@@ -114,81 +111,58 @@ fn parse_age(text: &str) -> Result<Duration, String> {
 /// Runs one `cache` sub-verb.
 pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
     let library = args.cache.open()?;
-    let store = library.store();
     let mut out = io::stdout().lock();
+    let json = args.json;
     let code = match &args.action {
-        Action::List => list(&library, args.json, &mut out)?,
-        Action::Show { key } => show(store, key, args.json, &mut out)?,
-        Action::Verify { key, .. } => verify(&library, key.as_deref(), args.json, &mut out)?,
-        Action::Remove { key } => remove(store, key, args.json, &mut out)?,
-        Action::Prune { older_than } => prune(store, *older_than, args.json, &mut out)?,
-        Action::Export { key, format } => export(store, key, *format, &mut out)?,
+        Action::List => list(&library.listing()?, json, &mut out)?,
+        Action::Show { key } => show(&library.entry_record(key)?, json, &mut out)?,
+        Action::Verify { key, .. } => {
+            verify(&library.verify_records(key.as_deref())?, json, &mut out)?
+        }
+        Action::Remove { key } => remove(library.store(), key, json, &mut out)?,
+        Action::Prune { older_than } => prune(&library.prune(*older_than)?, json, &mut out)?,
+        Action::Export { key, format } => export(&library, key, *format, &mut out)?,
     };
     out.flush()?;
     Ok(code)
 }
 
-fn list(library: &SetLibrary, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
-    let store = library.store();
-    let mut entries = Vec::new();
-    let mut unreadable = Vec::new();
-    for item in store.list()? {
-        match item {
-            Ok(summary) => entries.push(summary),
-            Err(e) => unreadable.push(e.to_string()),
-        }
-    }
-    let checkpoints: Vec<CheckpointDoc> = library
-        .checkpoints()?
-        .iter()
-        .map(CheckpointDoc::of)
-        .collect();
-    let locks = store.list_locks()?;
+fn list(listing: &Listing, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        #[derive(Serialize)]
-        struct Listing<'a> {
-            entries: &'a [EntrySummary],
-            checkpoints: &'a [CheckpointDoc],
-            locks: &'a [FileSummary],
-            unreadable: &'a [String],
-        }
-        let doc = Listing {
-            entries: &entries,
-            checkpoints: &checkpoints,
-            locks: &locks,
-            unreadable: &unreadable,
-        };
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        writeln!(out, "{}", serde_json::to_string_pretty(listing)?)?;
     } else {
         let now = now_unix();
-        let rows: Vec<Vec<String>> = entries.iter().map(|s| summary_row(s, now)).collect();
-        write_table(
-            out,
-            &[
-                "key",
-                "kind",
-                "width",
-                "elements",
-                "encoding",
-                "bytes",
-                "truncation",
-                "complete",
-                "age",
-            ],
-            &rows,
-        )?;
-        if !checkpoints.is_empty() {
+        let rows: Vec<Vec<String>> = listing
+            .entries
+            .iter()
+            .map(|s| summary_row(s, now))
+            .collect();
+        let head = [
+            "key",
+            "kind",
+            "width",
+            "elements",
+            "encoding",
+            "bytes",
+            "truncation",
+            "complete",
+            "age",
+        ];
+        write_table(out, &head, &rows)?;
+        if !listing.checkpoints.is_empty() {
             writeln!(out, "\ncheckpoints")?;
-            let rows: Vec<Vec<String>> = checkpoints.iter().map(|c| c.row(now)).collect();
-            write_table(
-                out,
-                &["key", "lifted", "moves", "work", "bytes", "age", "state"],
-                &rows,
-            )?;
+            let rows: Vec<Vec<String>> = listing
+                .checkpoints
+                .iter()
+                .map(|c| checkpoint_row(c, now))
+                .collect();
+            let head = ["key", "lifted", "moves", "work", "bytes", "age", "state"];
+            write_table(out, &head, &rows)?;
         }
-        if !locks.is_empty() {
+        if !listing.locks.is_empty() {
             writeln!(out, "\nlocks")?;
-            let rows: Vec<Vec<String>> = locks
+            let rows: Vec<Vec<String>> = listing
+                .locks
                 .iter()
                 .map(|l| {
                     vec![
@@ -201,65 +175,38 @@ fn list(library: &SetLibrary, json: bool, out: &mut impl Write) -> anyhow::Resul
             write_table(out, &["key", "age", "state"], &rows)?;
         }
     }
-    for problem in &unreadable {
-        eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
-    }
+    warn_unreadable(&listing.unreadable);
     Ok(ExitCode::SUCCESS)
 }
 
-/// One checkpoint in `list`.
-#[derive(Serialize)]
-struct CheckpointDoc {
-    #[serde(flatten)]
-    file: FileSummary,
-    /// Set aside as unusable (`<key>.kckpt.bad`).
-    set_aside: bool,
-    /// Components lifted so far and the number of components, when readable.
-    lifted: Option<usize>,
-    components: Option<usize>,
-    mid_stage: Option<bool>,
-    moves: Option<usize>,
-    work_seconds: Option<f64>,
+/// Each entry whose head could not be read, on stderr.
+fn warn_unreadable(unreadable: &[String]) {
+    for problem in unreadable {
+        eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
+    }
 }
 
-impl CheckpointDoc {
-    fn of(info: &CheckpointInfo) -> Self {
-        let s = info.state.as_ref();
-        Self {
-            file: info.file.clone(),
-            set_aside: info.set_aside,
-            lifted: s.map(|s| s.lifted),
-            components: s.map(|s| s.width),
-            mid_stage: s.map(|s| s.mid_stage),
-            moves: s.map(|s| s.moves),
-            work_seconds: s.map(|s| s.work.as_secs_f64()),
-        }
-    }
-
-    fn row(&self, now: u64) -> Vec<String> {
-        let state = if self.set_aside {
-            "set aside"
-        } else if self.file.held {
-            "building"
-        } else if self.moves.is_none() {
-            "unreadable"
-        } else {
-            "stopped"
-        };
-        let lifted = match (self.lifted, self.components, self.mid_stage) {
-            (Some(k), Some(n), Some(mid)) => format!("{k}/{n}{}", if mid { "+" } else { "" }),
-            _ => "-".into(),
-        };
-        vec![
-            short_key(self.file.digest),
-            lifted,
-            self.moves.map_or("-".into(), |m| m.to_string()),
-            self.work_seconds.map_or("-".into(), |w| age_text(w as u64)),
-            self.file.size_bytes.to_string(),
-            age_text(now.saturating_sub(self.file.modified_unix)),
-            state.to_string(),
-        ]
-    }
+/// One checkpoint's row of the listing.
+fn checkpoint_row(c: &CheckpointRecord, now: u64) -> Vec<String> {
+    let state = match c.state {
+        CheckpointState::SetAside => "set aside",
+        CheckpointState::Building => "building",
+        CheckpointState::Unreadable => "unreadable",
+        CheckpointState::Stopped => "stopped",
+    };
+    let lifted = match (c.lifted, c.components, c.mid_stage) {
+        (Some(k), Some(n), Some(mid)) => format!("{k}/{n}{}", if mid { "+" } else { "" }),
+        _ => "-".into(),
+    };
+    vec![
+        short_key(c.file.digest),
+        lifted,
+        c.moves.map_or("-".into(), |m| m.to_string()),
+        c.work_seconds.map_or("-".into(), |w| age_text(w as u64)),
+        c.file.size_bytes.to_string(),
+        age_text(now.saturating_sub(c.file.modified_unix)),
+        state.to_string(),
+    ]
 }
 
 fn short_key(digest: Digest) -> String {
@@ -327,52 +274,27 @@ fn now_unix() -> u64 {
         .map_or(0, |d| d.as_secs())
 }
 
-/// The `show --json` document.
-#[derive(Serialize)]
-struct Shown<'a> {
-    digest: Digest,
-    path: String,
-    key: &'a EntryKey,
-    metadata: &'a SetMetadata,
-    elements: usize,
-    width: usize,
-    encoding: ::cache::ElementEncoding,
-    size_bytes: u64,
-}
-
-fn show(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
-    let set = store.load_digest(key)?;
-    let path = store.entry_path(set.digest).display().to_string();
+fn show(entry: &EntryRecord, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        let doc = Shown {
-            digest: set.digest,
-            path,
-            key: &set.key,
-            metadata: &set.metadata,
-            elements: set.data.len(),
-            width: set.data.width(),
-            encoding: set.encoding,
-            size_bytes: set.size_bytes,
-        };
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        writeln!(out, "{}", serde_json::to_string_pretty(entry)?)?;
     } else {
-        write_pairs(out, &shown_pairs(&set, path))?;
+        write_pairs(out, &shown_pairs(entry))?;
     }
     Ok(ExitCode::SUCCESS)
 }
 
-fn shown_pairs(set: &StoredSet, path: String) -> Vec<(String, String)> {
+fn shown_pairs(set: &EntryRecord) -> Vec<(String, String)> {
     let m = &set.metadata;
     let rows = m.matrix.len();
     let cols = m.matrix.first().map_or(set.key.width(), Vec::len);
-    let per_element = match set.data.len() {
+    let per_element = match set.elements {
         0 => "-".to_string(),
         n => format!("{:.2}", set.size_bytes as f64 / n as f64),
     };
     let pair = |label: &str, value: String| (label.to_string(), value);
     vec![
         pair("key", set.digest.to_hex()),
-        pair("file", path),
+        pair("file", set.path.clone()),
         pair("kind", kind_name(set.key.kind).to_string()),
         pair("signs", sign_pattern(&set.key.signs)),
         pair("truncation", truncation_text(&set.key.truncation)),
@@ -392,8 +314,8 @@ fn shown_pairs(set: &StoredSet, path: String) -> Vec<(String, String)> {
         pair("build seconds", format!("{:.2}", m.build_seconds)),
         pair("built by", format!("kernstep {}", m.kernstep_version)),
         pair("age", age_text(now_unix().saturating_sub(m.created_unix))),
-        pair("elements", set.data.len().to_string()),
-        pair("width", set.data.width().to_string()),
+        pair("elements", set.elements.to_string()),
+        pair("width", set.width.to_string()),
         pair("encoding", format!("{:?}", set.encoding).to_lowercase()),
         pair("bytes", set.size_bytes.to_string()),
         pair("bytes per element", per_element),
@@ -412,47 +334,9 @@ fn sign_pattern(signs: &[Sign]) -> String {
         .collect()
 }
 
-/// One line of `verify`.
-#[derive(Serialize)]
-struct Checked {
-    digest: Digest,
-    path: String,
-    ok: bool,
-    /// Not sealed by this cache (copied in or edited); with `ok`, its content is valid.
-    foreign: bool,
-    elements: Option<u64>,
-    problem: Option<String>,
-}
-
-fn verify(
-    library: &SetLibrary,
-    key: Option<&str>,
-    json: bool,
-    out: &mut impl Write,
-) -> anyhow::Result<ExitCode> {
-    let store = library.store();
-    let digests = match key {
-        Some(prefix) => vec![store.resolve(prefix)?],
-        None => store.entry_digests()?,
-    };
-    let checked: Vec<Checked> = digests
-        .into_iter()
-        .map(|digest| {
-            let outcome = library.verify_entry(digest);
-            Checked {
-                digest,
-                path: store.entry_path(digest).display().to_string(),
-                ok: outcome.is_ok(),
-                foreign: outcome
-                    .as_ref()
-                    .is_ok_and(|(_, p)| *p == Provenance::Foreign),
-                elements: outcome.as_ref().ok().map(|(s, _)| s.elements),
-                problem: outcome.err().map(|e| e.to_string()),
-            }
-        })
-        .collect();
+fn verify(checked: &[VerifyRecord], json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&checked)?)?;
+        writeln!(out, "{}", serde_json::to_string_pretty(checked)?)?;
     } else {
         let rows: Vec<Vec<String>> = checked
             .iter()
@@ -493,98 +377,58 @@ fn remove(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow:
     Ok(ExitCode::SUCCESS)
 }
 
-fn prune(
-    store: &Store,
-    older_than: Duration,
-    json: bool,
-    out: &mut impl Write,
-) -> anyhow::Result<ExitCode> {
-    let report: PruneReport = store.prune(older_than)?;
-    let unreadable: Vec<String> = report.unreadable.iter().map(ToString::to_string).collect();
+fn prune(report: &PruneRecord, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        let doc = serde_json::json!({
-            "removed": report.removed,
-            "checkpoints_removed": report.checkpoints_removed,
-            "set_aside_removed": report.set_aside_removed,
-            "locks_removed": report.locks_removed,
-            "temp_files_removed": report.temp_files_removed,
-            "busy": report.busy,
-            "unreadable": unreadable,
-        });
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        writeln!(out, "{}", serde_json::to_string_pretty(report)?)?;
     } else {
         let short = |ds: &[Digest]| match ds {
             [] => "-".to_string(),
             _ => ds
                 .iter()
-                .map(|d| d.to_hex()[..SHORT_KEY].to_string())
+                .map(|d| short_key(*d))
                 .collect::<Vec<_>>()
                 .join(" "),
         };
-        let pairs = vec![
+        let pairs = [
+            ("entries removed", report.removed.len().to_string()),
+            ("removed keys", short(&report.removed)),
             (
-                "entries removed".to_string(),
-                report.removed.len().to_string(),
-            ),
-            ("removed keys".to_string(), short(&report.removed)),
-            (
-                "checkpoints removed".to_string(),
+                "checkpoints removed",
                 report.checkpoints_removed.len().to_string(),
             ),
             (
-                "set-aside checkpoints removed".to_string(),
+                "set-aside checkpoints removed",
                 report.set_aside_removed.to_string(),
             ),
+            ("unused locks removed", report.locks_removed.to_string()),
             (
-                "unused locks removed".to_string(),
-                report.locks_removed.to_string(),
-            ),
-            (
-                "temporary files removed".to_string(),
+                "temporary files removed",
                 report.temp_files_removed.to_string(),
             ),
-            ("busy (left alone)".to_string(), short(&report.busy)),
+            ("busy (left alone)", short(&report.busy)),
             (
-                "unreadable (left alone)".to_string(),
-                unreadable.len().to_string(),
+                "unreadable (left alone)",
+                report.unreadable.len().to_string(),
             ),
-        ];
+        ]
+        .map(|(label, value)| (label.to_string(), value));
         write_pairs(out, &pairs)?;
     }
-    for problem in &unreadable {
-        eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
-    }
+    warn_unreadable(&report.unreadable);
     Ok(ExitCode::SUCCESS)
 }
 
 fn export(
-    store: &Store,
+    library: &SetLibrary,
     key: &str,
     format: ExportFormat,
     out: &mut impl Write,
 ) -> anyhow::Result<ExitCode> {
-    let entry = store.export(key)?;
-    if entry.key.kind == SetKind::Cycles {
-        // Its elements are implicit (the network's cycles): enumerate them, so the file holds
-        // the Graver basis as `build --out` writes it.
-        let a = IntMatrix::from_rows(&entry.metadata.matrix)?;
-        let limits = LimitArgs::default();
-        let built = match enumerate_cycles(&a, &limits.control(a.cols())?)? {
-            BuildOutcome::Built(built) => built,
-            BuildOutcome::Stopped(reason) => anyhow::bail!(
-                "enumerating the cycles of entry {key} stopped: {}",
-                limits.named(reason, a.cols())
-            ),
-        };
-        let ExportFormat::Json = format;
-        out.write_all(set_document(&built.key, &built.metadata, &built.set.elements).as_bytes())?;
-        return Ok(ExitCode::SUCCESS);
-    }
-    match format {
-        ExportFormat::Json => {
-            out.write_all(set_document(&entry.key, &entry.metadata, &entry.elements).as_bytes())?;
-        }
-    }
+    let ExportFormat::Json = format;
+    let document = library
+        .export_document(key, Some(interrupted()))
+        .with_context(|| format!("exporting entry {key}"))?;
+    out.write_all(document.as_bytes())?;
     Ok(ExitCode::SUCCESS)
 }
 
