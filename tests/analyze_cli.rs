@@ -239,3 +239,20 @@ fn network_matrices_are_reported() {
         "{text}"
     );
 }
+
+/// `analyze --json` is the library's report: for every example model the printed document
+/// equals `formats::analysis::analyze` serialised (the same code path seen from outside).
+#[test]
+fn the_printed_report_is_the_library_report() {
+    use kernstep::analysis::AnalysisOptions;
+    use kernstep::formats::analysis::analyze;
+    use kernstep::scenario::PlanInput;
+    for path in examples() {
+        let file = path.to_str().unwrap();
+        let out = kernstep(&["analyze", file, "--json"]);
+        let printed: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let model = PlanInput::load(&path).unwrap().into_model();
+        let report = analyze(&model, file, &AnalysisOptions::new(), None).unwrap();
+        assert_eq!(printed, serde_json::to_value(&report).unwrap(), "{file}");
+    }
+}

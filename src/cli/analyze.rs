@@ -1,178 +1,41 @@
 //! `kernstep analyze MODEL`: the figures of the model's constraint matrix.
 
+use kernstep::analysis::{AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition};
+use kernstep::formats::analysis::{analyze, EstimateRecord, Probe};
+use kernstep::model::Model;
+use kernstep::scenario::PlanInput;
+use kernstep::testset::Range;
 use std::io::{self, Write};
 use std::process::ExitCode;
-use std::time::Duration;
-
-use kernstep::analysis::{
-    norm_step, AnalysisOptions, Decision, Delta, MatrixAnalysis, RankCondition,
-};
-use kernstep::completion::Control;
-use kernstep::model::Model;
-use kernstep::network::Network;
-use kernstep::scenario::PlanInput;
-use kernstep::testset::{estimate, BuildEstimate, Range};
-use serde::Serialize;
 
 use super::args::AnalyzeArgs;
 use super::common::interrupted;
 use super::table::write_pairs;
 
-/// The `--json` document.
-#[derive(Serialize)]
-struct Report<'a> {
-    model: String,
-    norm_limit: u64,
-    network: NetworkReport,
-    analysis: &'a MatrixAnalysis,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    build_estimate: Option<EstimateDoc>,
-}
-
-/// `build_estimate` in the `--json` document.
-#[derive(Serialize)]
-struct EstimateDoc {
-    /// 2 when every kernel vector has even ℓ1 norm (odd limits hold nothing more), else 1.
-    norm_step: u64,
-    /// `complete`, or `norm<=N` with `--up-to N`.
-    set: String,
-    /// Whether the probe finished the build: the figures are then measured.
-    measured: bool,
-    /// The estimate of the complete set (absent when the probe finished too little to
-    /// extrapolate from, or with `--up-to`).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    complete: Option<FiguresDoc>,
-    /// The estimate of the set up to the `--up-to` norm.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    up_to_norm: Option<FiguresDoc>,
-    stages: usize,
-    probe: Vec<kernstep::testset::StageMark>,
-}
-
-/// Elements (a decimal string) and seconds, with their low and high ends.
-#[derive(Serialize)]
-struct FiguresDoc {
-    elements: String,
-    seconds: f64,
-    low: EndDoc,
-    high: EndDoc,
-}
-
-/// One end of an estimate's range.
-#[derive(Serialize)]
-struct EndDoc {
-    elements: String,
-    seconds: f64,
-}
-
-impl FiguresDoc {
-    fn of(e: &BuildEstimate) -> Self {
-        let count = |x: f64| format!("{:.0}", x.round());
-        let end = |elements: f64, seconds: f64| EndDoc {
-            elements: count(elements),
-            seconds,
-        };
-        Self {
-            elements: count(e.elements.value),
-            seconds: e.seconds.value,
-            low: end(e.elements.low, e.seconds.low),
-            high: end(e.elements.high, e.seconds.high),
-        }
-    }
-}
-
-/// The probe's outcome: an estimate, or a probe too short to extrapolate from.
-struct Probed {
-    norm_step: u64,
-    up_to: Option<u64>,
-    estimate: Option<BuildEstimate>,
-    stages: usize,
-}
-
-impl Probed {
-    fn doc(&self) -> EstimateDoc {
-        let figures = self.estimate.as_ref().map(FiguresDoc::of);
-        let truncated = self.estimate.as_ref().map_or(self.up_to, |e| e.norm_limit);
-        let (complete, up_to_norm) = match truncated {
-            None => (figures, None),
-            Some(_) => (None, figures),
-        };
-        EstimateDoc {
-            norm_step: self.norm_step,
-            set: truncated.map_or("complete".into(), |n| format!("norm<={n}")),
-            measured: self.estimate.as_ref().is_some_and(|e| e.measured),
-            complete,
-            up_to_norm,
-            stages: self.stages,
-            probe: self
-                .estimate
-                .as_ref()
-                .map(|e| e.probe.clone())
-                .unwrap_or_default(),
-        }
-    }
-}
-
-/// Whether the matrix is a network matrix, and if not, what stands in the way.
-#[derive(Serialize)]
-struct NetworkReport {
-    /// Some scaling of rows by -1 leaves every column with at most one +1 and one -1.
-    network: bool,
-    /// With `network`: rows scaled by +1 and by -1; else the first obstacle, in words.
-    detail: String,
-}
-
-impl NetworkReport {
-    fn of(model: &Model) -> Self {
-        match Network::detect(&model.matrix) {
-            Ok(network) => {
-                let plus = network.row_signs().iter().filter(|&&s| s > 0).count();
-                NetworkReport {
-                    network: true,
-                    detail: format!(
-                        "rows +1: {plus}, -1: {}; the Graver basis is its cycles (nothing to enumerate)",
-                        network.row_signs().len() - plus
-                    ),
-                }
-            }
-            Err(why) => NetworkReport {
-                network: false,
-                detail: why.to_string(),
-            },
-        }
-    }
-}
-
 /// Loads the model, analyses its matrix and prints the figures.
 pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
     let model = PlanInput::load(&args.model)?.into_model();
     let options = AnalysisOptions::new().subdet_limit(args.subdet_limit);
-    let analysis = MatrixAnalysis::of(&model.matrix, &options);
-    let network = NetworkReport::of(&model);
-    let estimate = match args.estimate {
-        Some(probe) => Some(build_estimate(&model, &analysis, probe, args.up_to)?),
-        None => None,
-    };
+    let probe = args.estimate.map(|time| Probe {
+        time,
+        up_to: args.up_to,
+        cancel: Some(interrupted()),
+    });
+    let file = args.model.display().to_string();
+    let report = analyze(&model, &file, &options, probe)?;
     let mut out = io::stdout().lock();
     if args.json {
-        let report = Report {
-            model: args.model.display().to_string(),
-            norm_limit: analysis.norm_limit(),
-            network,
-            analysis: &analysis,
-            build_estimate: estimate.as_ref().map(Probed::doc),
-        };
-        let text = serde_json::to_string_pretty(&report)?;
-        writeln!(out, "{text}")?;
+        writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
     } else {
-        let mut rows = table_rows(&args.model.display().to_string(), &model, &analysis);
+        let mut rows = table_rows(&file, &model, &report.analysis);
+        let network = &report.network;
         let verdict = if network.network { "yes" } else { "no" };
         rows.push((
             "network matrix".to_string(),
             format!("{verdict}: {}", network.detail),
         ));
         write_pairs(&mut out, &rows)?;
-        if let Some(probed) = &estimate {
+        if let Some(probed) = &report.build_estimate {
             writeln!(out)?;
             write_estimate(&mut out, probed)?;
         }
@@ -181,24 +44,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// Runs the build of the Graver basis (up to `up_to`, else complete) for up to `probe`, then
-/// measures or extrapolates its size and time.
-fn build_estimate(
-    model: &Model,
-    analysis: &MatrixAnalysis,
-    probe: Duration,
-    up_to: Option<u64>,
-) -> anyhow::Result<Probed> {
-    let control = Control::new().time_limit(probe).cancel_flag(interrupted());
-    Ok(Probed {
-        norm_step: norm_step(&model.matrix)?,
-        up_to,
-        estimate: estimate(model, analysis, up_to, &control)?,
-        stages: analysis.rank + 1,
-    })
-}
-
-fn write_estimate(out: &mut impl Write, probed: &Probed) -> io::Result<()> {
+fn write_estimate(out: &mut impl Write, probed: &EstimateRecord) -> io::Result<()> {
     let set = probed
         .up_to
         .map_or("the complete Graver basis".to_string(), |n| {

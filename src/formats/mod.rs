@@ -5,6 +5,7 @@
 //! where. The set document is [`crate::testset::set_document`], the trace document
 //! [`crate::trace::TraceDoc`].
 
+pub mod analysis;
 pub mod batch;
 
 /// The caution every plan report carries: plans affect people, and the tool checks only the
