@@ -13,6 +13,7 @@ use kernstep::formats::batch::{DayRecord, DayStatus, Tally};
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
 use kernstep::solve::Prepared;
+use kernstep::trace::step_plot;
 use serde::Serialize;
 
 use kernstep::testset::{Served, Source};
@@ -23,7 +24,6 @@ use super::common::{
     CAUTION,
 };
 use super::limits::{BuildStopped, LimitArgs};
-use super::plot::write_step_plot;
 use super::table::write_table;
 
 /// Where the embedded scenario lives in the source tree (for messages).
@@ -186,7 +186,7 @@ fn write_highlight(
         scenario.title.as_deref().unwrap_or("demo"),
         doc.steps.len()
     );
-    write_step_plot(&svg, &doc.steps, &title)?;
+    write_atomically(&svg, step_plot(&doc.steps, &title)?.as_bytes())?;
     Ok((json, svg))
 }
 

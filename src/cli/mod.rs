@@ -12,7 +12,6 @@ mod demo;
 mod explain;
 mod instance;
 mod limits;
-mod plot;
 mod progress;
 #[cfg(feature = "mpi")]
 mod ranked;

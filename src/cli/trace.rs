@@ -7,11 +7,11 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
-use kernstep::trace::{record, StepPhase, StepRecord, TraceDocument};
+use kernstep::trace::{record, step_plot, StepPhase, StepRecord, TraceDocument};
 
+use super::common::write_atomically;
 use super::explain::{certificate_line, status_line, terms, wrap, wrap_units};
 use super::instance::{cancelled, Instance, InstanceArgs};
-use super::plot::write_step_plot;
 use super::solve::{bound_text, exit_code, set_text};
 
 /// Output width of the human trace.
@@ -45,7 +45,10 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
         &cancelled,
     )?;
     if let Some(path) = &args.svg {
-        write_step_plot(path, &doc.steps, &plot_title(&instance))?;
+        write_atomically(
+            path,
+            step_plot(&doc.steps, &plot_title(&instance))?.as_bytes(),
+        )?;
     }
     let mut out = io::stdout().lock();
     if args.json {

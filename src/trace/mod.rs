@@ -8,6 +8,8 @@ mod certified;
 mod decimal;
 mod document;
 mod outcome;
+#[cfg(feature = "plot")]
+mod plot;
 mod recheck;
 mod solve_doc;
 mod sparse;
@@ -17,6 +19,8 @@ pub use certified::{certify, Certified};
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use outcome::{sign_number, CoverageDoc, Outcome};
+#[cfg(feature = "plot")]
+pub use plot::step_plot;
 pub use recheck::{recheck, recheck_with_bound, Claim, Defect, Recheck, SignedMove};
 pub use solve_doc::{
     read_warm_start, solve_document, SetRecord, SolveContext, SolveDocument, StepCounts,

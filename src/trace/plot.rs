@@ -3,12 +3,11 @@
 //! integers, so their ticks are integers chosen here (distinct, at most a handful per axis).
 
 use std::ops::Range;
-use std::path::Path;
 
-use kernstep::trace::{StepPhase, StepRecord};
 use plotters::prelude::*;
 
-use super::common::write_atomically;
+use super::document::{StepPhase, StepRecord};
+use crate::error::{Error, Result};
 
 /// Size of the picture in pixels.
 const SIZE: (u32, u32) = (900, 560);
@@ -27,14 +26,8 @@ struct Series {
     points: Vec<(i64, i128)>,
 }
 
-/// Draws the steps of a trace as an SVG and writes it to `path` atomically (a temporary file
-/// beside it, then a rename); `title` heads the picture.
-pub fn write_step_plot(path: &Path, steps: &[StepRecord], title: &str) -> anyhow::Result<()> {
-    write_atomically(path, render(steps, title)?.as_bytes())
-}
-
-/// The SVG text of the plot.
-fn render(steps: &[StepRecord], title: &str) -> anyhow::Result<String> {
+/// The SVG picture of the steps of a trace, headed by `title`.
+pub fn step_plot(steps: &[StepRecord], title: &str) -> Result<String> {
     let panels: Vec<Series> = [
         series(steps, StepPhase::Feasibility),
         series(steps, StepPhase::Cost),
@@ -87,7 +80,7 @@ fn draw_panel<DB: DrawingBackend>(
     area: &DrawingArea<DB, plotters::coord::Shift>,
     panel: &Series,
     steps: i64,
-) -> anyhow::Result<()>
+) -> Result<()>
 where
     DB::ErrorType: 'static,
 {
@@ -175,10 +168,8 @@ fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
     }
 }
 
-fn draw_error<E: std::error::Error + Send + Sync + 'static>(
-    e: DrawingAreaErrorKind<E>,
-) -> anyhow::Error {
-    anyhow::anyhow!("drawing the plot: {e}")
+fn draw_error<E: std::error::Error + Send + Sync + 'static>(e: DrawingAreaErrorKind<E>) -> Error {
+    Error::Unsupported(format!("drawing the plot: {e}"))
 }
 
 #[cfg(test)]
