@@ -6,9 +6,11 @@ use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::testset::{Served, Source};
-use kernstep::trace::{solve_document, BoundDoc, CoverageDoc, Outcome, SolveDocument, StepCounts};
+use kernstep::trace::{
+    certificate_words, solve_document, BoundDoc, CoverageDoc, Outcome, SolveDocument, StepCounts,
+};
 
-use super::explain::{certificate_line, count_moves, status_line, wrap};
+use super::explain::{count_moves, wrap};
 use super::instance::{cancelled, Instance, InstanceArgs};
 use super::table::{write_pairs, write_table};
 
@@ -95,7 +97,7 @@ fn write_summary(
         "cold (integer solution of A x = b)"
     };
     rows.push(("start".to_string(), start.to_string()));
-    rows.push(("status".to_string(), status_line(&doc.status)));
+    rows.push(("status".to_string(), doc.status.to_string()));
     if doc.x.is_some() {
         match (doc.objective, doc.violation) {
             (Some(objective), _) => {
@@ -127,7 +129,7 @@ fn write_summary(
     }
     writeln!(out)?;
     for line in wrap(
-        &certificate_line(&doc.status, doc.recheck.as_ref(), &instance.model),
+        &certificate_words(&doc.status, doc.recheck.as_ref(), &instance.model),
         WIDTH,
         2,
     ) {

@@ -7,10 +7,12 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
-use kernstep::trace::{record, step_plot, StepPhase, StepRecord, TraceDocument};
+use kernstep::trace::{
+    certificate_words, record, step_plot, terms, StepPhase, StepRecord, TraceDocument,
+};
 
 use super::common::write_atomically;
-use super::explain::{certificate_line, status_line, terms, wrap, wrap_units};
+use super::explain::{wrap, wrap_units};
 use super::instance::{cancelled, Instance, InstanceArgs};
 use super::solve::{bound_text, exit_code, set_text};
 
@@ -88,13 +90,13 @@ fn write_trace(out: &mut impl Write, instance: &Instance, doc: &TraceDocument) -
     if let Some(x) = &doc.x {
         write_point(out, "final point", x, doc)?;
     }
-    writeln!(out, "status: {}", status_line(&doc.outcome))?;
+    writeln!(out, "status: {}", doc.outcome)?;
     let time = format!("{:.3} ms", doc.seconds * 1e3);
     writeln!(out, "steps: {} in {time}", doc.steps.len())?;
     if let Some(bound) = &doc.bound {
         writeln!(out, "dual bound: {}", bound_text(bound))?;
     }
-    let words = certificate_line(&doc.outcome, doc.recheck.as_ref(), &instance.model);
+    let words = certificate_words(&doc.outcome, doc.recheck.as_ref(), &instance.model);
     write_wrapped(out, &words, 2)
 }
 

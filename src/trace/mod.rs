@@ -13,6 +13,7 @@ mod plot;
 mod recheck;
 mod solve_doc;
 mod sparse;
+mod words;
 
 pub use bound::BoundDoc;
 pub use certified::{certify, Certified};
@@ -27,3 +28,4 @@ pub use solve_doc::{
     SOLVE_SCHEMA,
 };
 pub use sparse::{named_entries, NamedEntry};
+pub use words::{certificate_words, terms};
