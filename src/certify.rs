@@ -20,6 +20,7 @@ use crate::solve::Verdict;
 
 /// What proves a plan optimal.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Claim {
     /// A test set for the instance (complete, or box-truncated inside its box) has no
     /// improving move at the plan.
@@ -32,6 +33,7 @@ pub enum Claim {
 
 /// What proves that an instance has no plan.
 #[derive(Clone, Debug, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Proof {
     /// `A x = b` has no integer solution: `y^T A` is integral and `y^T b` is not.
     NoIntegerSolution {
@@ -71,6 +73,7 @@ pub struct Ray {
 
 /// The limit that ended a solve before it could prove anything.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Limit {
     /// The step limit.
     Steps,
@@ -80,6 +83,7 @@ pub enum Limit {
 
 /// How one solve ended, and what backs it.
 #[derive(Clone, Debug, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Answer {
     /// The plan is optimal; `claim` proves it.
     Optimal {

@@ -10,6 +10,7 @@ pub type Result<T> = std::result::Result<T, Error>;
 
 /// Everything that can go wrong in the library, with the context needed to act on it.
 #[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
 pub enum Error {
     /// An input value is invalid; `field` names where (for example `matrix[2][5]`).
     #[error("{file}: {field}: {message}")]

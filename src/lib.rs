@@ -47,14 +47,14 @@
 //! // Prepared once per matrix; then any variant of the numbers is solved with it.
 //! let coverage = coverage_of(&built.metadata.completeness);
 //! let prepared = Prepared::new(&model.matrix, &built.set, coverage)?;
-//! let options = augment::Options::default();
+//! let options = kernstep::augment::Options::default();
 //! let Verdict::Solved(plan) = prepared.solve(&model, &options, None, &|| false)? else {
 //!     unreachable!("the rows have integer solutions");
 //! };
 //!
 //! // By hand: with x_1 = t the rows give x = (t, 7 - t, 5 - t, t - 1), feasible for
 //! // 1 <= t <= 5, at cost 64 - 4t; the optimum is t = 5: 4*5 + 6*2 + 5*0 + 3*4 = 44.
-//! assert_eq!(plan.status, augment::Status::Optimal);
+//! assert_eq!(plan.status, kernstep::augment::Status::Optimal);
 //! assert_eq!(plan.x, [5, 2, 0, 4]);
 //! assert_eq!(plan.objective, Some(44));
 //! # Ok::<(), kernstep::Error>(())
@@ -79,7 +79,7 @@
 //! let library = SetLibrary::open(Some(dir.path()))?;
 //! let served = serve(&model, Some(&library), Engine::Auto, Some(&Control::new()))?;
 //! let prepared = served.prepare(&model.matrix)?;
-//! let options = augment::Options::default();
+//! let options = kernstep::augment::Options::default();
 //! let verdict = prepared.solve(&model, &options, None, &|| false)?;
 //! let bound = prepared.bound(Numbers::of(&model), &verdict, None)?;
 //! let answer = judge(&verdict, bound.as_ref());
@@ -105,5 +105,15 @@ pub mod solve;
 pub mod testset;
 pub mod trace;
 
+/// The augmentation loop (options, statuses, move sets), so that a library user needs only
+/// this crate.
+pub use augment;
+/// The on-disk store of test sets.
+pub use cache;
+pub use certify::{judge, Answer, Claim};
 pub use error::{Error, Result};
 pub use matrix::IntMatrix;
+pub use model::Model;
+pub use solve::{Numbers, Prepared, Verdict};
+pub use testset::{serve, Engine, Job, JobReport, Served, SetLibrary};
+pub use trace::{solve_document, Outcome, SolveDocument};

@@ -290,7 +290,7 @@ fn partial_sets_claim_only_what_highs_confirms() {
                     Answer::Unknown { .. } => {
                         unknown_but_feasible += usize::from(want == "optimal");
                     }
-                    Answer::Stopped(limit) => panic!("{id} norm {norm}: stopped by {limit:?}"),
+                    other => panic!("{id} norm {norm}: {other:?}"),
                 }
                 let rows: Vec<String> =
                     (0..fixture.matrix.len()).map(|r| format!("r{r}")).collect();

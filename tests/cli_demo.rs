@@ -83,7 +83,7 @@ fn the_second_run_loads_the_set_and_days_can_be_limited() {
         traces.to_str().unwrap(),
     ];
     let first = json_report(&demo(&cache, &args));
-    assert_eq!(first["set"], "built");
+    assert_eq!(first["set"], "built for this run");
     let second = json_report(&demo(&cache, &args));
     assert!(second["set"]
         .as_str()

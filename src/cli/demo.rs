@@ -16,7 +16,7 @@ use kernstep::solve::Prepared;
 use kernstep::trace::step_plot;
 use serde::Serialize;
 
-use kernstep::testset::{Served, Source};
+use kernstep::testset::Served;
 
 use super::batch::solve_days;
 use super::common::{
@@ -88,7 +88,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         variables: model.variables(),
         rows: model.constraints(),
         moves: set.set.elements.len(),
-        set: source_word(&set.source),
+        set: set.source.to_string(),
         set_seconds,
         days: records.iter().map(DayRow::of).collect(),
         tally: &tally,
@@ -126,17 +126,6 @@ fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::R
             );
             graver_uncached(model, input, cache, limits)
         }
-    }
-}
-
-fn source_word(source: &Source) -> String {
-    match source {
-        Source::Cached(digest) => format!(
-            "loaded from the cache ({})",
-            &digest[..12.min(digest.len())]
-        ),
-        Source::Built => "built".to_string(),
-        Source::Network => "the network's cycles".to_string(),
     }
 }
 

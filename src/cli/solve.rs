@@ -61,22 +61,19 @@ pub fn exit_code(outcome: &Outcome) -> ExitCode {
 /// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`, or the implicit set of a
 /// network.
 pub fn set_text(set: &Served) -> String {
-    let source = match &set.source {
-        Source::Cached(digest) => format!("cache entry {}", &digest[..digest.len().min(12)]),
-        Source::Built => "built for this run".to_string(),
-        Source::Network => {
-            return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
-                .to_string()
-        }
-    };
+    if set.source == Source::Network {
+        return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
+            .to_string();
+    }
     let coverage = match CoverageDoc::from(set.coverage) {
         CoverageDoc::Complete => "complete Graver basis".to_string(),
         CoverageDoc::BoxValid => "Graver basis truncated to the build's box".to_string(),
         CoverageDoc::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
     };
     format!(
-        "{}, {coverage}, {source}",
-        count_moves(set.set.elements.len())
+        "{}, {coverage}, {}",
+        count_moves(set.set.elements.len()),
+        set.source
     )
 }
 

@@ -37,6 +37,7 @@ pub enum Engine {
 
 /// Where a served set came from.
 #[derive(Clone, Debug, PartialEq, Eq)]
+#[non_exhaustive]
 pub enum Source {
     /// A cache entry, named by its digest in hex.
     Cached(String),
@@ -46,8 +47,24 @@ pub enum Source {
     Network,
 }
 
+impl std::fmt::Display for Source {
+    /// `loaded from the cache (1a2b3c4d5e6f)`, `built for this run` or `the network's cycles`.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Source::Cached(digest) => write!(
+                f,
+                "loaded from the cache ({})",
+                &digest[..digest.len().min(12)]
+            ),
+            Source::Built => f.write_str("built for this run"),
+            Source::Network => f.write_str("the network's cycles"),
+        }
+    }
+}
+
 /// A test set ready to serve the solves of one model.
 #[derive(Clone, Debug)]
+#[non_exhaustive]
 pub struct Served {
     /// The moves (empty for a network, whose cycles are implicit).
     pub set: MoveSet,

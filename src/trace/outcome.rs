@@ -15,6 +15,7 @@ use crate::solve::Verdict;
 /// The outcome of one solve.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(tag = "tag", rename_all = "snake_case")]
+#[non_exhaustive]
 pub enum Outcome {
     /// No move improves and the set is a test set for the instance: the plan is optimal.
     Optimal,
