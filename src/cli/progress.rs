@@ -9,8 +9,7 @@ use std::time::{Duration, Instant};
 use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::completion::Progress;
-use kernstep::testset::{extrapolate, StageMark};
-use serde::Serialize;
+use kernstep::formats::progress::ProgressWatch;
 
 /// Longest silence of a build whose stderr is not a terminal.
 pub const LINE_EVERY: Duration = Duration::from_secs(30);
@@ -30,22 +29,6 @@ pub enum ProgressArg {
     None,
 }
 
-/// One progress record of `--progress json`.
-#[derive(Serialize)]
-struct ProgressLine<'a> {
-    schema: &'static str,
-    model: &'a str,
-    stage: usize,
-    stages: usize,
-    norm_level: u64,
-    moves: usize,
-    moves_per_second: f64,
-    elapsed_seconds: f64,
-    /// Seconds left, extrapolated from the stages finished (absent until two have grown).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    eta_seconds: Option<f64>,
-}
-
 /// The reporter of one model's build.
 pub struct BuildProgress {
     mode: ProgressArg,
@@ -54,32 +37,7 @@ pub struct BuildProgress {
     /// When the last line was written (none yet: `None`).
     last_line: Mutex<Option<Instant>>,
     /// The stages seen to end, for the time left.
-    stages: Mutex<Stages>,
-}
-
-/// The ends of stages seen in the reports: the last report of each stage.
-#[derive(Default)]
-struct Stages {
-    marks: Vec<StageMark>,
-    current: Option<StageMark>,
-}
-
-impl Stages {
-    /// Takes a report; returns the seconds left, extrapolated as `analyze --estimate` does.
-    fn eta(&mut self, p: &Progress) -> Option<f64> {
-        let seconds = p.elapsed.as_secs_f64();
-        if let Some(current) = self.current.filter(|c| c.stage != p.stage) {
-            self.marks.push(current);
-        }
-        self.current = Some(StageMark {
-            stage: p.stage,
-            // Members count both signs of a move.
-            elements: p.elements / 2,
-            seconds,
-        });
-        let (_, total) = extrapolate(&self.marks, p.stages.saturating_sub(1), seconds)?;
-        Some((total.value - seconds).max(0.0))
-    }
+    watch: ProgressWatch,
 }
 
 impl BuildProgress {
@@ -109,52 +67,31 @@ impl BuildProgress {
             model,
             bar,
             last_line: Mutex::new(None),
-            stages: Mutex::new(Stages::default()),
+            watch: ProgressWatch::default(),
         }
     }
 
     /// Shows a snapshot of the running completion.
     pub fn report(&self, p: &Progress) {
-        let seconds = p.elapsed.as_secs_f64();
-        let rate = if seconds > 0.0 {
-            p.elements as f64 / seconds
-        } else {
-            0.0
-        };
-        let eta = self.stages.lock().ok().and_then(|mut s| s.eta(p));
-        let left = eta.map_or(String::new(), |s| {
+        let record = self.watch.record(&self.model, p);
+        let left = record.eta_seconds.map_or(String::new(), |s| {
             format!(", about {} left", duration_text(s))
         });
         let text = format!(
             "stage {}/{}, norm level {}, {} moves, {:.0} moves/s{left}",
-            p.stage, p.stages, p.level, p.elements, rate
+            p.stage, p.stages, p.level, p.elements, record.moves_per_second
         );
         match self.mode {
             ProgressArg::Bar => self.bar.set_message(text),
-            ProgressArg::Lines => {
-                if self.line_due() {
-                    self.line(&format!("{text}, {:.0} s", seconds));
+            ProgressArg::Lines if self.line_due() => {
+                self.line(&format!("{text}, {:.0} s", record.elapsed_seconds));
+            }
+            ProgressArg::Json if self.line_due() => {
+                if let Ok(json) = serde_json::to_string(&record) {
+                    self.write(&json);
                 }
             }
-            ProgressArg::Json => {
-                if self.line_due() {
-                    let record = ProgressLine {
-                        schema: "kernstep.progress/1",
-                        model: &self.model,
-                        stage: p.stage,
-                        stages: p.stages,
-                        norm_level: p.level,
-                        moves: p.elements,
-                        moves_per_second: rate,
-                        elapsed_seconds: seconds,
-                        eta_seconds: eta,
-                    };
-                    if let Ok(json) = serde_json::to_string(&record) {
-                        self.write(&json);
-                    }
-                }
-            }
-            ProgressArg::Auto | ProgressArg::None => {}
+            _ => {}
         }
     }
 
@@ -199,31 +136,8 @@ fn duration_text(seconds: f64) -> String {
 mod tests {
     use super::*;
 
-    fn report(stage: usize, members: usize, seconds: f64) -> Progress {
-        Progress {
-            stage,
-            stages: 10,
-            level: 4,
-            elements: members,
-            elapsed: Duration::from_secs_f64(seconds),
-        }
-    }
-
     #[test]
-    fn the_time_left_comes_once_stages_have_grown() {
-        let mut stages = Stages::default();
-        // Stage ends (each a stage's last report): 100, 300 and 600 moves (members / 2).
-        assert_eq!(stages.eta(&report(5, 200, 1.0)), None);
-        assert_eq!(stages.eta(&report(6, 600, 2.0)), None);
-        // Stage 6 grew: a first guess (the default decay of the growth).
-        assert!(stages.eta(&report(7, 1200, 6.0)).is_some());
-        let left = stages
-            .eta(&report(8, 1300, 7.0))
-            .expect("two growing stages ended");
-        // Stage 7 took 4 s; stages 8 and 9 grow by 1/2 and 1/4 (the growth halves) with a
-        // quadratic time: 4 * 1.5^2 = 9 s and 9 * 1.25^2 = 14.06 s after second 6, so
-        // 22.06 s are left at second 7 (by hand).
-        assert!((left - (6.0 + 9.0 + 14.0625 - 7.0)).abs() < 1e-6, "{left}");
+    fn durations_show_their_largest_units() {
         assert_eq!(duration_text(75.0), "75 s");
         assert_eq!(duration_text(725.0), "12 min");
         assert_eq!(duration_text(12_000.0), "3 h 20 min");
