@@ -3,7 +3,7 @@
 //! A document's writer and reader live side by side so that what one writes the other reads
 //! back unchanged (round trips are tested); the command line only chooses which to write and
 //! where. The set document is [`crate::testset::set_document`], the trace document
-//! [`crate::trace::TraceDoc`].
+//! [`crate::trace::TraceDocument`].
 
 pub mod batch;
 
