@@ -2,6 +2,9 @@
 //! brute force over small random models and against the optima HiGHS recorded for the solve
 //! fixtures; valid for any multipliers; and a forged bound is refused by the re-check.
 
+mod proptest_cases;
+use proptest_cases::Class;
+
 use augment::{Coverage, Options, Status};
 use kernstep::bound::{prove, BoundInstance, DualBound, Multipliers};
 use kernstep::certify::{judge, Answer};
@@ -98,7 +101,7 @@ fn rational(value: &BigRational) -> f64 {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(200))]
+    #![proptest_config(proptest_cases::config(Class::SmallExact))]
 
     /// Weak duality: any multipliers bound the brute-force optimum from below, and so does the
     /// best bound found from the LP relaxation; a perturbed multiplier stays valid and is no

@@ -2,6 +2,9 @@
 //! with random sign patterns and truncations.
 
 mod completion_support;
+mod proptest_cases;
+
+use proptest_cases::Class;
 
 use completion_support::*;
 use kernstep::completion::{
@@ -65,7 +68,7 @@ fn oracle_bound(a: &IntMatrix) -> i64 {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(48))]
+    #![proptest_config(proptest_cases::config(Class::Completion))]
 
     #[test]
     fn both_methods_equal_brute_force(

@@ -1,6 +1,9 @@
 //! The batch result documents read back what they wrote: JSON Lines and CSV records, the
 //! tally rebuilt from a results file, and the errors of a damaged file.
 
+mod proptest_cases;
+use proptest_cases::Class;
+
 use std::borrow::Cow;
 
 use kernstep::formats::batch::{
@@ -67,7 +70,7 @@ fn blank(line: usize, status: DayStatus) -> DayRecord<'static> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(300))]
+    #![proptest_config(proptest_cases::config(Class::RoundTrips))]
 
     /// JSON Lines: every field back as written.
     #[test]

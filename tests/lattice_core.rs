@@ -1,6 +1,9 @@
 //! Properties of the exact lattice core against simple, independent oracles: brute-force
 //! search in a box, determinants of minors, ranks of stacked matrices.
 
+mod proptest_cases;
+use proptest_cases::Class;
+
 use itertools::Itertools;
 use kernstep::lattice::{
     det, rank, reduced_kernel_basis, to_i64_vec, HermiteForm, IntegerSolution, RowSpaceKey,
@@ -95,7 +98,7 @@ fn box_points(n: usize, r: i64) -> impl Iterator<Item = Vec<i64>> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(200))]
+    #![proptest_config(proptest_cases::config(Class::SmallExact))]
 
     #[test]
     fn kernel_bases_span_exactly_the_integer_kernel(a in small_matrix(4, 6, 4)) {

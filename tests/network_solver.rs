@@ -3,6 +3,9 @@
 //! checks, and warm starts.
 
 mod completion_support;
+mod proptest_cases;
+
+use proptest_cases::Class;
 
 use std::path::Path;
 
@@ -155,7 +158,7 @@ fn digraph(
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(200))]
+    #![proptest_config(proptest_cases::config(Class::SmallExact))]
 
     /// Scaling rows by -1 and negating columns keeps a network matrix a network matrix, and
     /// the detected signs and arcs reproduce the scaled matrix.
@@ -266,7 +269,7 @@ fn instance(a: IntMatrix) -> impl Strategy<Value = Instance> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(48))]
+    #![proptest_config(proptest_cases::config(Class::Completion))]
 
     /// On small network matrices the cycle solver and the test-set solver over the library's
     /// own Graver basis agree on the status and the optimum of every instance, and every

@@ -3,6 +3,9 @@
 //! values near the documented limits (`|a| <= 2^31 - 1` in the matrix, `2^62` elsewhere) give a
 //! correct answer or an overflow error, never a panic or a wrong answer.
 
+mod proptest_cases;
+use proptest_cases::Class;
+
 use std::path::Path;
 
 use augment::{Coverage, Options, Status};
@@ -148,7 +151,7 @@ fn json_model() -> impl Strategy<Value = String> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(1500))]
+    #![proptest_config(proptest_cases::config(Class::RandomText))]
 
     #[test]
     fn model_json_from_random_text(text in ".{0,200}") {
@@ -261,7 +264,7 @@ fn mps_line() -> impl Strategy<Value = String> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(3000))]
+    #![proptest_config(proptest_cases::config(Class::FormatWords))]
 
     #[test]
     fn mps_from_format_words(lines in prop::collection::vec(mps_line(), 0..25)) {
@@ -289,7 +292,7 @@ fn variant_line() -> impl Strategy<Value = String> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(2000))]
+    #![proptest_config(proptest_cases::config(Class::VariantLines))]
 
     #[test]
     fn variants_parse_and_apply(lines in prop::collection::vec(variant_line(), 0..6)) {
@@ -365,7 +368,7 @@ fn damage() -> impl Strategy<Value = Damage> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(600))]
+    #![proptest_config(proptest_cases::config(Class::Checks))]
 
     #[test]
     fn damaged_cache_files_give_typed_errors(damages in prop::collection::vec(damage(), 1..4)) {
@@ -447,7 +450,7 @@ fn is_two_column_basis(set: &[Vec<i64>], a: i64, b: i64) -> bool {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(200))]
+    #![proptest_config(proptest_cases::config(Class::SmallExact))]
 
     #[test]
     fn graver_of_two_columns(a in -100_000i64..100_000, b in 1i64..100_000) {

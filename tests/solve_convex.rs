@@ -4,6 +4,9 @@
 //! the enumerated one, and every answer must pass the independent re-check.
 
 mod completion_support;
+mod proptest_cases;
+
+use proptest_cases::Class;
 
 use augment::{Coverage, Options, Status};
 use completion_support::graver;
@@ -152,7 +155,7 @@ impl Case {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(300))]
+    #![proptest_config(proptest_cases::config(Class::RoundTrips))]
 
     #[test]
     fn convex_optima_equal_brute_force(case in case()) {

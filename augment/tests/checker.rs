@@ -2,6 +2,10 @@
 //! both signs on whole vectors (the definition of the test-set property, Murota, Saito,
 //! Weismantel 2004): both find the same first improving (or violation-lowering) signed move.
 
+#[path = "../../tests/proptest_cases/mod.rs"]
+mod proptest_cases;
+use proptest_cases::Class;
+
 use augment::{Certificate, Checker, Coverage, Decrease, MoveSet, Objective, Problem, Sign, Term};
 use proptest::prelude::*;
 
@@ -126,7 +130,7 @@ fn decrease_oracle(problem: &Problem, moves: &[Vec<i64>], x: &[i64]) -> Option<D
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(600))]
+    #![proptest_config(proptest_cases::config(Class::Checks))]
 
     #[test]
     fn checker_agrees_with_the_dense_oracle(case in case()) {

@@ -2,6 +2,10 @@
 //! kernel enumeration, the optimum from enumerating the box.
 
 mod common;
+#[path = "../../tests/proptest_cases/mod.rs"]
+mod proptest_cases;
+
+use proptest_cases::Class;
 
 use std::sync::Arc;
 
@@ -203,7 +207,7 @@ fn repeated(rows: &[Vec<i64>], count: usize) -> Vec<Vec<i64>> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(96))]
+    #![proptest_config(proptest_cases::config(Class::Augmentation))]
 
     /// Graver-best with the complete basis matches the enumerated optimum, or proves the box
     /// empty exactly when enumeration finds no point; an optimum is certified and in the fibre.
@@ -334,7 +338,7 @@ proptest! {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(64))]
+    #![proptest_config(proptest_cases::config(Class::WideAugmentation))]
 
     /// With some bounds removed, every rule agrees on whether the problem is unbounded, and a
     /// reported ray is a kernel vector along which the point stays feasible and the linear

@@ -8,6 +8,10 @@
 //! first (the greedy rule for a single knapsack-free equality, common practice); the block is
 //! infeasible exactly when `b > u_a + u_b + u_c`.
 
+#[path = "../../tests/proptest_cases/mod.rs"]
+mod proptest_cases;
+use proptest_cases::Class;
+
 use augment::{
     certify, solve, Certificate, Coverage, MoveSet, Objective, Options, Problem, Status,
 };
@@ -43,7 +47,7 @@ fn greedy(cost: &[i64], upper: &[i64], b: i64) -> Option<i64> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(64))]
+    #![proptest_config(proptest_cases::config(Class::WideAugmentation))]
 
     #[test]
     fn block_optima_match_the_greedy_oracle_beyond_64_variables(

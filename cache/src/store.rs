@@ -93,6 +93,15 @@ impl StoredSet {
     }
 }
 
+/// What [`Store::write_locked`] does with an entry already stored under the key.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Existing {
+    /// Refuse with [`CacheError::AlreadyExists`].
+    Refuse,
+    /// Replace it atomically.
+    Replace,
+}
+
 impl Store {
     /// Opens (creating if needed) the store in `dir` and checks that it is writable by
     /// creating and removing a probe file; otherwise [`CacheError::DirUnusable`]. Writes the
@@ -203,12 +212,7 @@ impl Store {
         data: &TestSetData,
         metadata: &SetMetadata,
     ) -> Result<EntrySummary, CacheError> {
-        let _lock = self.lock_key(key.digest())?;
-        let path = self.entry_path(key.digest());
-        if path.exists() {
-            return Err(CacheError::AlreadyExists { path });
-        }
-        self.write_entry(key, data, metadata)
+        self.write_locked(key, data, metadata, Existing::Refuse)
     }
 
     /// Stores an entry, atomically replacing any existing one (valid or damaged). Waits for a
@@ -219,7 +223,23 @@ impl Store {
         data: &TestSetData,
         metadata: &SetMetadata,
     ) -> Result<EntrySummary, CacheError> {
+        self.write_locked(key, data, metadata, Existing::Replace)
+    }
+
+    /// [`Store::insert`] and [`Store::replace`]: under the key's lock (waiting for a builder
+    /// that holds it), refuses or replaces an existing entry, then writes the new one.
+    fn write_locked(
+        &self,
+        key: &EntryKey,
+        data: &TestSetData,
+        metadata: &SetMetadata,
+        existing: Existing,
+    ) -> Result<EntrySummary, CacheError> {
         let _lock = self.lock_key(key.digest())?;
+        let path = self.entry_path(key.digest());
+        if existing == Existing::Refuse && path.exists() {
+            return Err(CacheError::AlreadyExists { path });
+        }
         self.write_entry(key, data, metadata)
     }
 

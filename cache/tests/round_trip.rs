@@ -1,6 +1,10 @@
 //! Store/load round trips, width classes, listing, prefixes, export, covering, pruning.
 
 mod fixtures;
+#[path = "../../tests/proptest_cases/mod.rs"]
+mod proptest_cases;
+
+use proptest_cases::Class;
 
 use std::time::Duration;
 
@@ -63,7 +67,7 @@ fn empty_set_round_trips() {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(48))]
+    #![proptest_config(proptest_cases::config(Class::Completion))]
     #[test]
     fn random_sets_round_trip(
         width in 1usize..9,

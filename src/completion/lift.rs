@@ -114,80 +114,16 @@ pub(crate) fn lift(
     control: &Control<'_>,
     at: Option<StagePoint>,
 ) -> Run<Lifted> {
-    let width = start.first().map_or(0, |o| o.rep.len());
-    let mut comps = stage.old.to_vec();
-    comps.push(stage.new);
-    let mut lifting = Lifting {
-        stage,
-        width,
-        set: WorkingSet::new(width, comps.clone()),
-        masks: Vec::new(),
-        norms: Vec::new(),
-        pos: Groups::new(),
-        neg: Groups::new(),
-        saved_at: Mutex::new(Instant::now()),
-    };
-    for orbit in &start {
-        lifting.add(&orbit.rep, orbit.symmetric);
-    }
-    drop(start);
-    let mut point = at.unwrap_or(StagePoint::Pairs {
+    let comps = lifted_comps(stage);
+    let mut lifting = Lifting::new(start, stage, comps.clone());
+    let point = at.unwrap_or(StagePoint::Pairs {
         from: 1,
         tasks_done: 0,
         sums: Vec::new(),
     });
-    let end = loop {
-        point = match point {
-            StagePoint::Pairs {
-                from,
-                tasks_done,
-                sums,
-            } => {
-                let Some(level) = lifting.next_level(from) else {
-                    break StagePoint::Pairs {
-                        from,
-                        tasks_done,
-                        sums,
-                    };
-                };
-                let sums = match lifting.level_sums(level, tasks_done, sums, control)? {
-                    Ok(sums) => sums,
-                    Err(stop) => return Ok(Err(stop)),
-                };
-                let first_new = lifting.set.len() as u32;
-                lifting.merge(sums)?;
-                StagePoint::CatchUp {
-                    level,
-                    first_new,
-                    members_done: 0,
-                    sums: Vec::new(),
-                }
-            }
-            StagePoint::CatchUp {
-                level,
-                first_new,
-                members_done,
-                sums,
-            } => {
-                let caught_up = lifting.catch_up(level, first_new, members_done, sums, control)?;
-                if let Err(stop) = caught_up {
-                    return Ok(Err(stop));
-                }
-                let next = StagePoint::Pairs {
-                    from: level + 1,
-                    tasks_done: 0,
-                    sums: Vec::new(),
-                };
-                let (n, m) = stage.number;
-                let local = control.checkpoint(n, m, level, lifting.set.len());
-                if let (_, Some(stop)) = control.exchange(width, Vec::new(), local)? {
-                    lifting.save(&next, control);
-                    return Ok(Err(stop));
-                }
-                lifting.save_if_due(|| next.clone(), control);
-                next
-            }
-        };
+    let end = match lifting.all_levels(point, control)? {
+        Ok(end) => end,
+        Err(stop) => return Ok(Err(stop)),
     };
     let exact = stage.check_cuts
         && match lifting.cut_pairs_vanish(control)? {
@@ -200,7 +136,131 @@ pub(crate) fn lift(
     Ok(Ok(lifting.finish(&comps, exact)))
 }
 
+/// The components of `T = S ∪ {j}`, in the order the working set keeps them.
+fn lifted_comps(stage: &Stage<'_>) -> Vec<usize> {
+    let mut comps = stage.old.to_vec();
+    comps.push(stage.new);
+    comps
+}
+
+/// What one step of a stage leads to: the next point, or the end of the pairs.
+enum Step {
+    /// Continue from this point.
+    Next(StagePoint),
+    /// No norm level has pairs left; the stage's state at its end.
+    Done(StagePoint),
+}
+
+impl<'a> Lifting<'a> {
+    /// The working set of a stage over `comps` (`T`), holding the members of `start`.
+    fn new(start: Vec<Orbit>, stage: &'a Stage<'a>, comps: Vec<usize>) -> Self {
+        let width = start.first().map_or(0, |o| o.rep.len());
+        let mut lifting = Lifting {
+            stage,
+            width,
+            set: WorkingSet::new(width, comps),
+            masks: Vec::new(),
+            norms: Vec::new(),
+            pos: Groups::new(),
+            neg: Groups::new(),
+            saved_at: Mutex::new(Instant::now()),
+        };
+        for orbit in &start {
+            lifting.add(&orbit.rep, orbit.symmetric);
+        }
+        lifting
+    }
+}
+
 impl Lifting<'_> {
+    /// Processes norm levels from `point` on until no level has pairs left; returns the state
+    /// at the end (to save if the cut check stops), or why it stopped.
+    fn all_levels(&mut self, mut point: StagePoint, control: &Control<'_>) -> Run<StagePoint> {
+        loop {
+            let step = match point {
+                StagePoint::Pairs {
+                    from,
+                    tasks_done,
+                    sums,
+                } => self.pairs_step(from, tasks_done, sums, control)?,
+                StagePoint::CatchUp {
+                    level,
+                    first_new,
+                    members_done,
+                    sums,
+                } => self
+                    .catch_up_step(level, first_new, members_done, sums, control)?
+                    .map(Step::Next),
+            };
+            point = match step {
+                Ok(Step::Next(next)) => next,
+                Ok(Step::Done(end)) => return Ok(Ok(end)),
+                Err(stop) => return Ok(Err(stop)),
+            };
+        }
+    }
+
+    /// Reduces the pairs of the next norm level from `from` on (resuming after `tasks_done`
+    /// tasks with their remainders `sums`) and merges the remainders; the members they added
+    /// then need their own pairs up to that level (the catch-up).
+    fn pairs_step(
+        &mut self,
+        from: u64,
+        tasks_done: usize,
+        sums: Vec<Vec<i64>>,
+        control: &Control<'_>,
+    ) -> Run<Step> {
+        let Some(level) = self.next_level(from) else {
+            return Ok(Ok(Step::Done(StagePoint::Pairs {
+                from,
+                tasks_done,
+                sums,
+            })));
+        };
+        let sums = match self.level_sums(level, tasks_done, sums, control)? {
+            Ok(sums) => sums,
+            Err(stop) => return Ok(Err(stop)),
+        };
+        let first_new = self.set.len() as u32;
+        self.merge(sums)?;
+        Ok(Ok(Step::Next(StagePoint::CatchUp {
+            level,
+            first_new,
+            members_done: 0,
+            sums: Vec::new(),
+        })))
+    }
+
+    /// Finishes norm level `level` by the catch-up of the members from `first_new` on, then
+    /// reports the level done (exchanging stops with processes that share the work) and saves
+    /// when a save is due; the next point is the following level.
+    fn catch_up_step(
+        &mut self,
+        level: u64,
+        first_new: u32,
+        members_done: usize,
+        sums: Vec<Vec<i64>>,
+        control: &Control<'_>,
+    ) -> Run<StagePoint> {
+        let caught_up = self.catch_up(level, first_new, members_done, sums, control)?;
+        if let Err(stop) = caught_up {
+            return Ok(Err(stop));
+        }
+        let next = StagePoint::Pairs {
+            from: level + 1,
+            tasks_done: 0,
+            sums: Vec::new(),
+        };
+        let (n, m) = self.stage.number;
+        let local = control.checkpoint(n, m, level, self.set.len());
+        if let (_, Some(stop)) = control.exchange(self.width, Vec::new(), local)? {
+            self.save(&next, control);
+            return Ok(Err(stop));
+        }
+        self.save_if_due(|| next.clone(), control);
+        Ok(Ok(next))
+    }
+
     fn add(&mut self, rep: &[Entry], symmetric: bool) {
         let (a, b) = self.set.add(rep, symmetric);
         for id in std::iter::once(a).chain(b) {

@@ -81,21 +81,8 @@ impl Search {
     ) -> Result<Reach> {
         // A limit beyond `i64` cannot be reached without an overflow error first.
         let limit = limit.and_then(|l| i64::try_from(l).ok());
-        self.epoch = self.epoch.wrapping_add(1);
-        if self.epoch == 0 {
-            self.reached.fill(0);
-            self.settled_in.fill(0);
-            self.epoch = 1;
-        }
-        let epoch = self.epoch;
-        self.settled.clear();
-        self.heap.clear();
-        self.level.clear();
-        self.distance[source] = 0;
-        self.reached[source] = epoch;
-        self.heap.push(Reverse((0, source)));
+        let epoch = self.begin(source);
         let incidence = state.net.incidence();
-        let (flow, cost, potential) = (&state.flow, state.cost, &state.potential);
         while let Some((d, v)) = self
             .level
             .pop()
@@ -113,48 +100,86 @@ impl Search {
             if v == target {
                 return Ok(Reach::Found(d));
             }
-            let from = i128::from(potential[v]);
+            let from = i128::from(state.potential[v]);
             for &(j, w, v_is_tail) in incidence.of(v) {
                 if j == excluded || self.settled_in[w] == epoch {
                     continue;
                 }
-                // Raising arc (v, w) costs c_j - pi_v + pi_w, lowering arc (w, v) costs
-                // -(c_j - pi_w + pi_v): the same with the cost's sign flipped.
-                let (open, c) = if v_is_tail {
-                    (
-                        state.upper[j].is_none_or(|u| flow[j] < u),
-                        i128::from(cost[j]),
-                    )
-                } else {
-                    (
-                        state.lower[j].is_none_or(|l| flow[j] > l),
-                        -i128::from(cost[j]),
-                    )
-                };
-                if !open {
-                    continue;
-                }
-                let length = (c + i128::from(potential[w]) - from).max(0);
-                let candidate = i64::try_from(length)
-                    .ok()
-                    .and_then(|length| d.checked_add(length))
-                    .ok_or_else(|| Error::Overflow("network search: path length".into()))?;
-                if self.reached[w] != epoch || candidate < self.distance[w] {
-                    self.reached[w] = epoch;
-                    self.distance[w] = candidate;
-                    self.via[w] = CycleArc {
-                        arc: j,
-                        forward: v_is_tail,
-                    };
-                    if candidate == d {
-                        self.level.push(w);
-                    } else {
-                        self.heap.push(Reverse((candidate, w)));
-                    }
-                }
+                self.relax(state, d, from, (j, w, v_is_tail))?;
             }
         }
         Ok(Reach::Exhausted)
+    }
+
+    /// Starts a new search from `source`: a new epoch (so no per-node reset is needed, except
+    /// when the counter wraps), empty buffers, `source` reached at distance 0. Returns the
+    /// epoch.
+    fn begin(&mut self, source: usize) -> u32 {
+        self.epoch = self.epoch.wrapping_add(1);
+        if self.epoch == 0 {
+            self.reached.fill(0);
+            self.settled_in.fill(0);
+            self.epoch = 1;
+        }
+        let epoch = self.epoch;
+        self.settled.clear();
+        self.heap.clear();
+        self.level.clear();
+        self.distance[source] = 0;
+        self.reached[source] = epoch;
+        self.heap.push(Reverse((0, source)));
+        epoch
+    }
+
+    /// Relaxes one incident arc of the node just settled at distance `d` with potential
+    /// `from`: `(j, w, v_is_tail)` is the arc, the other end and whether the settled node is
+    /// the tail. If the residual move is open and shortens the way to `w`, `w` is (re)reached
+    /// through it, onto the stack when at distance `d` and the heap otherwise. Kept apart from
+    /// the search loop for readability; inlined since it runs once per arc scanned.
+    #[inline]
+    fn relax(
+        &mut self,
+        state: &Residual<'_>,
+        d: i64,
+        from: i128,
+        (j, w, v_is_tail): (usize, usize, bool),
+    ) -> Result<()> {
+        let (flow, cost) = (&state.flow, state.cost);
+        // Raising arc (v, w) costs c_j - pi_v + pi_w, lowering arc (w, v) costs
+        // -(c_j - pi_w + pi_v): the same with the cost's sign flipped.
+        let (open, c) = if v_is_tail {
+            (
+                state.upper[j].is_none_or(|u| flow[j] < u),
+                i128::from(cost[j]),
+            )
+        } else {
+            (
+                state.lower[j].is_none_or(|l| flow[j] > l),
+                -i128::from(cost[j]),
+            )
+        };
+        if !open {
+            return Ok(());
+        }
+        let length = (c + i128::from(state.potential[w]) - from).max(0);
+        let candidate = i64::try_from(length)
+            .ok()
+            .and_then(|length| d.checked_add(length))
+            .ok_or_else(|| Error::Overflow("network search: path length".into()))?;
+        if self.reached[w] != self.epoch || candidate < self.distance[w] {
+            self.reached[w] = self.epoch;
+            self.distance[w] = candidate;
+            self.via[w] = CycleArc {
+                arc: j,
+                forward: v_is_tail,
+            };
+            if candidate == d {
+                self.level.push(w);
+            } else {
+                self.heap.push(Reverse((candidate, w)));
+            }
+        }
+        Ok(())
     }
 
     /// The nodes the last search settled.

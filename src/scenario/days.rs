@@ -40,30 +40,21 @@ pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<Par
                 file: origin,
                 prefix: format!("line {number}: "),
             };
-            let day = day_line(scenario, &names, &r, line, number, &mut seen)
-                .map(|(day, changes)| numbers_with(&mut working, &changes, &day));
+            // The quick reading serves valid lines of the simple shape; any other line goes
+            // to the careful one, which words the error.
+            let day = match quick_changes(scenario, &names, &r, line) {
+                Some((day, changed)) => {
+                    remember_day(&r, &mut seen, day, number).map(|()| (day.to_string(), changed))
+                }
+                None => careful_line(scenario, &names, &r, line, number, &mut seen),
+            };
+            let day = day.map(|(day, changes)| numbers_with(&mut working, &changes, &day));
             (number, day)
         })
         .collect()
 }
 
-/// The name and the checked changes of one JSON line.
-fn day_line(
-    scenario: &Scenario,
-    names: &Names,
-    r: &Reader,
-    line: &str,
-    number: usize,
-    seen: &mut FxHashMap<String, usize>,
-) -> Result<(String, Vec<Change>)> {
-    if let Some((day, changed)) = quick_changes(scenario, names, r, line) {
-        remember_day(r, seen, day, number)?;
-        return Ok((day.to_string(), changed));
-    }
-    careful_line(scenario, names, r, line, number, seen)
-}
-
-/// [`day_line`] for any line, with a message for every error.
+/// The name and the checked changes of any JSON line, with a message for every error.
 fn careful_line(
     scenario: &Scenario,
     names: &Names,

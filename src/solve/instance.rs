@@ -48,6 +48,19 @@ pub(super) struct MoveEngine {
     fittings: Arc<Fittings>,
 }
 
+/// How one instance is to be solved, whichever engine answers it: the solver's options, the
+/// plan to start from if any, and the check for a cancellation. [`super::Prepared::solve_numbers`]
+/// hands the same to either engine.
+#[derive(Clone, Copy)]
+pub(super) struct Attempt<'a> {
+    /// The solver's options (step limit, trace; the selection rule for moves).
+    pub options: &'a Options,
+    /// A previous plan to start from.
+    pub warm: Option<&'a WarmStart>,
+    /// Whether to stop now.
+    pub cancel: &'a dyn Fn() -> bool,
+}
+
 /// A previous plan to start from.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct WarmStart {
@@ -256,12 +269,10 @@ impl MoveEngine {
     pub(super) fn solve_numbers(
         &self,
         numbers: Numbers<'_>,
-        options: &Options,
-        warm: Option<&WarmStart>,
-        cancel: &dyn Fn() -> bool,
+        attempt: Attempt<'_>,
     ) -> Result<Verdict> {
         self.check_box(&numbers)?;
-        let start = match self.start_point(numbers.rhs, warm)? {
+        let start = match self.start_point(numbers.rhs, attempt.warm)? {
             Ok(x) => x,
             Err(certificate) => return Ok(Verdict::NoIntegerSolution(certificate)),
         };
@@ -270,7 +281,7 @@ impl MoveEngine {
         let mut cold = start;
         self.rounding
             .towards_box(&mut cold, numbers.rhs, lower, upper)?;
-        let start = match warm {
+        let start = match attempt.warm {
             None => cold,
             // Yesterday's plan sits on many bounds, and the point of today's numbers nearest
             // to it often lies just outside some of them; the cold start is kept when it is
@@ -287,8 +298,16 @@ impl MoveEngine {
             }
         };
         let solution = match self.fittings.for_box(&self.moves, &problem)? {
-            Some(fitting) => augment::solve_fitted(&problem, &fitting, &start, options, cancel)?,
-            None => augment::solve_with_cancel(&problem, &self.moves, &start, options, cancel)?,
+            Some(fitting) => {
+                augment::solve_fitted(&problem, &fitting, &start, attempt.options, attempt.cancel)?
+            }
+            None => augment::solve_with_cancel(
+                &problem,
+                &self.moves,
+                &start,
+                attempt.options,
+                attempt.cancel,
+            )?,
         };
         Ok(Verdict::Solved(solution))
     }

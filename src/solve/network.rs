@@ -4,9 +4,7 @@
 
 use std::time::Instant;
 
-use augment::Options;
-
-use super::instance::{FlowAnswer, Verdict, WarmStart};
+use super::instance::{Attempt, FlowAnswer, Verdict};
 use super::variant::Numbers;
 use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
@@ -36,29 +34,27 @@ impl NetworkEngine {
     pub(super) fn solve_numbers(
         &self,
         numbers: Numbers<'_>,
-        options: &Options,
-        warm: Option<&WarmStart>,
-        cancel: &dyn Fn() -> bool,
+        attempt: Attempt<'_>,
     ) -> Result<Verdict> {
         if !numbers.convex.is_empty() {
             return Err(Error::Unsupported(
                 "the network solver takes linear costs only; a model with convex costs is solved with its enumerated Graver basis".into(),
             ));
         }
-        if let Some(w) = warm {
+        if let Some(w) = attempt.warm {
             w.check(&self.matrix, "warm start")?;
         }
         let started = Instant::now();
-        let warm = warm.map(|w| Warm {
+        let warm = attempt.warm.map(|w| Warm {
             flow: &w.x,
             potentials: w.potentials.as_deref(),
         });
         let flow_options = FlowOptions::default()
-            .max_steps(options.step_limit())
-            .trace(options.records_trace());
-        let solution = self
-            .network
-            .solve(numbers.linear_flow(), warm, &flow_options, cancel)?;
+            .max_steps(attempt.options.step_limit())
+            .trace(attempt.options.records_trace());
+        let solution =
+            self.network
+                .solve(numbers.linear_flow(), warm, &flow_options, attempt.cancel)?;
         Ok(Verdict::Flow(FlowAnswer {
             solution,
             elapsed: started.elapsed(),

@@ -6,7 +6,7 @@ use std::sync::Arc;
 
 use augment::{Coverage, Options, Status};
 
-use super::instance::{MoveEngine, Verdict, WarmStart};
+use super::instance::{Attempt, MoveEngine, Verdict, WarmStart};
 use super::network::NetworkEngine;
 use super::variant::Numbers;
 use crate::bound::{prove, DualBound, Multipliers};
@@ -161,9 +161,14 @@ impl Prepared {
         warm: Option<&WarmStart>,
         cancel: &dyn Fn() -> bool,
     ) -> Result<Verdict> {
+        let attempt = Attempt {
+            options,
+            warm,
+            cancel,
+        };
         match &self.engine {
-            Engine::Moves(engine) => engine.solve_numbers(numbers, options, warm, cancel),
-            Engine::Network(engine) => engine.solve_numbers(numbers, options, warm, cancel),
+            Engine::Moves(engine) => engine.solve_numbers(numbers, attempt),
+            Engine::Network(engine) => engine.solve_numbers(numbers, attempt),
         }
     }
 }

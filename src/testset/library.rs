@@ -325,29 +325,14 @@ impl SetLibrary {
             Err(problem) => (None, self.set_aside(&key, problem)?),
         };
         let (width, rank) = (a.cols(), analysis.rank);
-        let earlier = resume.as_ref().map_or(0.0, |r| r.work_seconds);
-        let started = Instant::now();
-        let last_saved = Mutex::new(None);
-        let save_failed = Mutex::new(None);
-        let save = |state: &Checkpoint| {
-            let work = earlier + started.elapsed().as_secs_f64();
-            match self.save_checkpoint(&key, &request, state, work) {
-                Ok(()) => {
-                    let work = Duration::from_secs_f64(work);
-                    let saved = SavedState::of(state, width, rank, work);
-                    last_saved.lock().map(|mut slot| *slot = Some(saved)).ok();
-                }
-                Err(e) => {
-                    save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
-                }
-            }
-        };
-        let control = control.on_save(&save, self.checkpoint_every);
-        let from = resume.as_ref().map(|r| &r.state);
-        let outcome = build(a, analysis, spec, &control, from)?;
-        if let Some(e) = save_failed.into_inner().ok().flatten() {
-            return Err(e);
-        }
+        let (outcome, last_saved) = self.build_saving(
+            a,
+            analysis,
+            spec,
+            (&key, &request),
+            resume.as_ref(),
+            control,
+        )?;
         let resumed = resume.map(|r| {
             SavedState::of(
                 &r.state,
@@ -359,7 +344,7 @@ impl SetLibrary {
         match outcome {
             BuildOutcome::Stopped(reason) => Ok(Obtained::Stopped {
                 reason,
-                kept: last_saved.into_inner().ok().flatten().or(resumed),
+                kept: last_saved.or(resumed),
                 set_aside,
             }),
             BuildOutcome::Built(built) => {
@@ -380,6 +365,45 @@ impl SetLibrary {
                 })
             }
         }
+    }
+
+    /// Runs the build of `spec` (from `resume` when given), saving a checkpoint of it under
+    /// `key` with `request` whenever `control` calls for one. Returns the outcome and the
+    /// last state saved, if any (what a stopped build keeps). The error of a failed save is
+    /// returned once the build has ended.
+    fn build_saving(
+        &self,
+        a: &IntMatrix,
+        analysis: &MatrixAnalysis,
+        spec: &ResolvedSpec,
+        (key, request): (&EntryKey, &RequestRecord),
+        resume: Option<&Saved>,
+        control: &Control<'_>,
+    ) -> Result<(BuildOutcome, Option<SavedState>)> {
+        let (width, rank) = (a.cols(), analysis.rank);
+        let earlier = resume.map_or(0.0, |r| r.work_seconds);
+        let started = Instant::now();
+        let last_saved = Mutex::new(None);
+        let save_failed = Mutex::new(None);
+        let save = |state: &Checkpoint| {
+            let work = earlier + started.elapsed().as_secs_f64();
+            match self.save_checkpoint(key, request, state, work) {
+                Ok(()) => {
+                    let work = Duration::from_secs_f64(work);
+                    let saved = SavedState::of(state, width, rank, work);
+                    last_saved.lock().map(|mut slot| *slot = Some(saved)).ok();
+                }
+                Err(e) => {
+                    save_failed.lock().map(|mut slot| *slot = Some(e)).ok();
+                }
+            }
+        };
+        let control = control.on_save(&save, self.checkpoint_every);
+        let outcome = build(a, analysis, spec, &control, resume.map(|r| &r.state))?;
+        if let Some(e) = save_failed.into_inner().ok().flatten() {
+            return Err(e);
+        }
+        Ok((outcome, last_saved.into_inner().ok().flatten()))
     }
 
     /// Stores `built` (a set built outside [`SetLibrary::obtain`], such as the kept level of a

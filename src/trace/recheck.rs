@@ -425,6 +425,18 @@ mod tests {
         (model, moves.unwrap())
     }
 
+    /// The re-check of `verdict` for the lane plan `model` with its `moves`, which gives one.
+    fn recheck_lanes(model: &Model, moves: &augment::MoveSet, verdict: &Verdict) -> Recheck {
+        recheck(
+            &model.matrix,
+            Numbers::of(model),
+            Some(&Checker::new(moves)),
+            verdict,
+        )
+        .unwrap()
+        .unwrap()
+    }
+
     fn claimed(status: Status, x: Vec<i64>) -> Verdict {
         Verdict::Solved(Solution {
             status,
@@ -442,21 +454,9 @@ mod tests {
     fn optimality_holds_at_the_optimum_and_fails_one_move_short() {
         let (model, moves) = lanes("[5, null, 4, null]");
         // By hand: with x_1 = t the cost is 64 - 4t and t <= 5, so (5, 2, 0, 4) is optimal.
-        let good = recheck(
-            &model.matrix,
-            Numbers::of(&model),
-            Some(&Checker::new(&moves)),
-            &claimed(Status::Optimal, vec![5, 2, 0, 4]),
-        );
-        let good = good.unwrap().unwrap();
+        let good = recheck_lanes(&model, &moves, &claimed(Status::Optimal, vec![5, 2, 0, 4]));
         assert!(good.holds && good.claim == Claim::NoImprovingMove && good.moves_checked == 1);
-        let bad = recheck(
-            &model.matrix,
-            Numbers::of(&model),
-            Some(&Checker::new(&moves)),
-            &claimed(Status::Optimal, vec![4, 3, 1, 3]),
-        );
-        let bad = bad.unwrap().unwrap();
+        let bad = recheck_lanes(&model, &moves, &claimed(Status::Optimal, vec![4, 3, 1, 3]));
         assert!(!bad.holds);
         let expected = SignedMove {
             move_index: 0,
@@ -471,13 +471,7 @@ mod tests {
         let (model, moves) = lanes("[5, null, 4, null]");
         // (5, 2, 0, 3) lies in the box and no move improves it, but row 3 sums to 5, not 6.
         let verdict = claimed(Status::Optimal, vec![5, 2, 0, 3]);
-        let check = recheck(
-            &model.matrix,
-            Numbers::of(&model),
-            Some(&Checker::new(&moves)),
-            &verdict,
-        );
-        let check = check.unwrap().unwrap();
+        let check = recheck_lanes(&model, &moves, &verdict);
         assert!(!check.holds);
         let defect = Defect::OffFibre {
             row: 2,
@@ -496,13 +490,7 @@ mod tests {
         let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
         for status in [Status::Unbounded(ray), Status::Infeasible(reason)] {
             let verdict = claimed(status, vec![5, 2, 0, 3]);
-            let check = recheck(
-                &model.matrix,
-                Numbers::of(&model),
-                Some(&Checker::new(&moves)),
-                &verdict,
-            );
-            assert!(!check.unwrap().unwrap().holds);
+            assert!(!recheck_lanes(&model, &moves, &verdict).holds);
         }
     }
 
@@ -511,13 +499,7 @@ mod tests {
         let (model, moves) = lanes("[5, null, 4, null]");
         // (6, 1, -1, 5) meets every row but lies above the upper bound of x_1 (and below x_3's).
         let verdict = claimed(Status::Optimal, vec![6, 1, -1, 5]);
-        let check = recheck(
-            &model.matrix,
-            Numbers::of(&model),
-            Some(&Checker::new(&moves)),
-            &verdict,
-        );
-        let check = check.unwrap().unwrap();
+        let check = recheck_lanes(&model, &moves, &verdict);
         assert_eq!(check.defect, Some(Defect::OutsideBox { variable: 0 }));
         assert!(check.confirm().is_err());
     }
@@ -528,14 +510,7 @@ mod tests {
         let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
         // (5, 2, 0, 4) violates by 4 + 1 + 3 = 8; minus the move, (4, 3, 1, 3) by 3 + 2 + 2 = 7.
         let verdict = claimed(Status::Infeasible(reason), vec![5, 2, 0, 4]);
-        let check = recheck(
-            &model.matrix,
-            Numbers::of(&model),
-            Some(&Checker::new(&moves)),
-            &verdict,
-        )
-        .unwrap()
-        .unwrap();
+        let check = recheck_lanes(&model, &moves, &verdict);
         assert_eq!(check.claim, Claim::NoViolationDecrease);
         assert!(!check.holds);
         assert_eq!(check.counterexample.map(|c| c.sign), Some(-1));
@@ -552,15 +527,7 @@ mod tests {
             let (mut model, moves) = lanes(upper);
             model.lower = vec![None; 4];
             let verdict = claimed(Status::Unbounded(ray.clone()), vec![5, 2, 0, 4]);
-            recheck(
-                &model.matrix,
-                Numbers::of(&model),
-                Some(&Checker::new(&moves)),
-                &verdict,
-            )
-            .unwrap()
-            .unwrap()
-            .holds
+            recheck_lanes(&model, &moves, &verdict).holds
         };
         // c.d = 4 - 6 - 5 + 3 = -4 < 0.
         assert!(unbounded("[null, null, null, null]"));
