@@ -326,12 +326,13 @@ fn bad_ages_and_missing_keys_are_usage_errors() {
 }
 
 /// The `cache` documents are the library's: `list`, `show`, `verify` and `prune --json`
-/// read back as `testset::Listing`, `EntryRecord`, `VerifyRecord` and `PruneRecord` and
+/// read back as `testset::Listing`, `EntryRecord`, `VerifyRecord` and `PruneReport` and
 /// equal what the library calls give on the same cache; `export` prints the library's
 /// set document.
 #[test]
 fn the_cache_documents_are_the_library_calls() {
-    use kernstep::testset::{EntryRecord, Listing, PruneRecord, SetLibrary, VerifyRecord};
+    use kernstep::cache::PruneReport;
+    use kernstep::testset::{EntryRecord, Listing, SetLibrary, VerifyRecord};
     let (dir, keys) = filled();
     let library = SetLibrary::open(Some(dir.path())).unwrap();
     let listing: Listing =
@@ -347,7 +348,7 @@ fn the_cache_documents_are_the_library_calls() {
     assert!(verified.iter().all(|v| v.ok && !v.foreign));
     let exported = expect(dir.path(), &["cache", "export", &keys[0]], 0);
     assert_eq!(exported, library.export_document(&keys[0], None).unwrap());
-    let pruned: PruneRecord = serde_json::from_value(json(
+    let pruned: PruneReport = serde_json::from_value(json(
         dir.path(),
         &["cache", "prune", "--older-than", "30d", "--json"],
     ))

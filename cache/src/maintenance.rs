@@ -46,7 +46,7 @@ pub struct Verified {
 }
 
 /// What [`Store::prune`] did.
-#[derive(Debug, Default)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct PruneReport {
     /// Entries removed for their age.
     pub removed: Vec<Digest>,
@@ -61,7 +61,7 @@ pub struct PruneReport {
     /// Keys whose old files were left alone because a builder held their lock.
     pub busy: Vec<Digest>,
     /// Entries whose age could not be read (damaged); left for `verify` and `remove`.
-    pub unreadable: Vec<CacheError>,
+    pub unreadable: Vec<String>,
 }
 
 /// A checkpoint or lock file, as listed.
@@ -205,7 +205,7 @@ impl Store {
                 FileKind::Entry(digest) => match read_head(&path, digest) {
                     Ok(head) => head.metadata.created_unix < cutoff_unix,
                     Err(e) => {
-                        report.unreadable.push(e);
+                        report.unreadable.push(e.to_string());
                         false
                     }
                 },

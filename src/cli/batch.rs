@@ -20,8 +20,7 @@ use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared};
 
-use super::common::{capped_threads, graver_for, interrupted, with_threads, CacheArgs, EngineArg};
-use super::limits::LimitArgs;
+use super::common::{capped_threads, interrupted, with_threads, ServeArgs};
 use super::table::write_pairs;
 
 /// Arguments of `batch`.
@@ -38,22 +37,14 @@ pub struct BatchArgs {
     /// Warm-start each day from the previous day's plan (the days then run one after another).
     #[arg(long)]
     pub chain: bool,
-    /// Build the test set when the cache has none, instead of stopping.
-    #[arg(long)]
-    pub build: bool,
     #[command(flatten)]
-    pub limits: LimitArgs,
-    /// Which test set serves the days.
-    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
-    pub engine: EngineArg,
+    pub serving: ServeArgs,
     /// Write the results to FILE instead of stdout (the summary then goes to stdout).
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
     /// Layout of the results.
     #[arg(long, value_enum, default_value_t = Format::Jsonl)]
     pub format: Format,
-    #[command(flatten)]
-    pub cache: CacheArgs,
     /// Print the summary as JSON.
     #[arg(long)]
     pub json: bool,
@@ -75,14 +66,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();
-    let set = graver_for(
-        model,
-        &args.input,
-        &args.cache,
-        args.build,
-        args.engine,
-        &args.limits,
-    )?;
+    let set = args.serving.served(model, &args.input)?;
     let started = Instant::now();
     let prepared = set.prepare(&model.matrix)?;
     #[cfg(feature = "mpi")]

@@ -7,11 +7,11 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
-use ::cache::{Completeness, Digest, EntrySummary, SetKind, Sign, Store, Truncation};
+use ::cache::{Completeness, Digest, EntrySummary, PruneReport, SetKind, Sign, Store, Truncation};
 use anyhow::Context;
 use clap::{Args, Subcommand, ValueEnum};
 use kernstep::testset::{
-    CheckpointRecord, CheckpointState, EntryRecord, Listing, PruneRecord, SetLibrary, VerifyRecord,
+    CheckpointRecord, CheckpointState, EntryRecord, Listing, SetLibrary, VerifyRecord,
 };
 
 use super::common::{interrupted, CacheArgs};
@@ -377,7 +377,7 @@ fn remove(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow:
     Ok(ExitCode::SUCCESS)
 }
 
-fn prune(report: &PruneRecord, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
+fn prune(report: &PruneReport, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
         writeln!(out, "{}", serde_json::to_string_pretty(report)?)?;
     } else {

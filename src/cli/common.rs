@@ -179,6 +179,37 @@ fn is_model_file(p: &Path) -> bool {
         .is_some_and(|e| e.eq_ignore_ascii_case("json") || e.eq_ignore_ascii_case("toml"))
 }
 
+/// Where a solving verb gets its test set: the cache, a build on a miss (within limits), and
+/// the engine.
+#[derive(Debug, Args)]
+pub struct ServeArgs {
+    /// Build the test set (and store it in the cache) when the cache has none, instead of
+    /// stopping.
+    #[arg(long)]
+    pub build: bool,
+    #[command(flatten)]
+    pub limits: LimitArgs,
+    /// Which test set serves the solves.
+    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
+    pub engine: EngineArg,
+    #[command(flatten)]
+    pub cache: CacheArgs,
+}
+
+impl ServeArgs {
+    /// The test set that serves `model`, read from `input` (see [`graver_for`]).
+    pub fn served(&self, model: &Model, input: &Path) -> anyhow::Result<Served> {
+        graver_for(
+            model,
+            input,
+            &self.cache,
+            self.build,
+            self.engine,
+            &self.limits,
+        )
+    }
+}
+
 /// `--engine`: which test set serves the solves.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum EngineArg {

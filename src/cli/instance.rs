@@ -16,8 +16,7 @@ use kernstep::Error;
 
 use kernstep::testset::Served;
 
-use super::common::{graver_for, interrupted, CacheArgs, EngineArg};
-use super::limits::LimitArgs;
+use super::common::{interrupted, ServeArgs};
 
 /// Which instance to solve, and how.
 #[derive(Debug, Args)]
@@ -51,16 +50,8 @@ pub struct InstanceArgs {
     /// Stop (exit 1) after N steps over both phases.
     #[arg(long, value_name = "N", default_value_t = Options::default().step_limit())]
     pub max_steps: u64,
-    /// Build the Graver basis (and store it in the cache) when the cache has none.
-    #[arg(long)]
-    pub build: bool,
     #[command(flatten)]
-    pub limits: LimitArgs,
-    /// Which test set serves the solve.
-    #[arg(long, value_enum, default_value_t = EngineArg::Auto)]
-    pub engine: EngineArg,
-    #[command(flatten)]
-    pub cache: CacheArgs,
+    pub serving: ServeArgs,
 }
 
 /// `--strategy`.
@@ -130,14 +121,7 @@ impl InstanceArgs {
             .as_deref()
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
-        let set = graver_for(
-            &model,
-            &self.model,
-            &self.cache,
-            self.build,
-            self.engine,
-            &self.limits,
-        )?;
+        let set = self.serving.served(&model, &self.model)?;
         let prepared = set.prepare(&model.matrix)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,

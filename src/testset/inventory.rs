@@ -1,6 +1,7 @@
 //! What a cache holds, as documents: the listing of entries, checkpoints and locks, one entry
-//! in full, the verification of entries, a prune's report, and an entry exported as the set
-//! document (an implicit network entry as its enumerated cycles).
+//! in full, the verification of entries, and an entry exported as the set document (an
+//! implicit network entry as its enumerated cycles); a prune reports with
+//! [`cache::PruneReport`].
 
 use std::sync::atomic::AtomicBool;
 use std::time::Duration;
@@ -132,39 +133,6 @@ pub struct VerifyRecord {
     pub problem: Option<String>,
 }
 
-/// What a prune removed and left alone.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct PruneRecord {
-    /// Entries removed for their age.
-    pub removed: Vec<Digest>,
-    /// Checkpoints removed for their age.
-    pub checkpoints_removed: Vec<Digest>,
-    /// Set-aside checkpoints removed.
-    pub set_aside_removed: usize,
-    /// Unused lock files removed.
-    pub locks_removed: usize,
-    /// Leftover temporary files removed.
-    pub temp_files_removed: usize,
-    /// Keys left alone because a build held their lock.
-    pub busy: Vec<Digest>,
-    /// Entries whose age could not be read, with why; left for verify and remove.
-    pub unreadable: Vec<String>,
-}
-
-impl From<PruneReport> for PruneRecord {
-    fn from(report: PruneReport) -> Self {
-        PruneRecord {
-            removed: report.removed,
-            checkpoints_removed: report.checkpoints_removed,
-            set_aside_removed: report.set_aside_removed,
-            locks_removed: report.locks_removed,
-            temp_files_removed: report.temp_files_removed,
-            busy: report.busy,
-            unreadable: report.unreadable.iter().map(ToString::to_string).collect(),
-        }
-    }
-}
-
 impl SetLibrary {
     /// The entries, checkpoints and locks of the cache.
     pub fn listing(&self) -> Result<Listing> {
@@ -230,8 +198,8 @@ impl SetLibrary {
     }
 
     /// Removes what is older than `age` (see [`cache::Store::prune`]).
-    pub fn prune(&self, age: Duration) -> Result<PruneRecord> {
-        Ok(self.store().prune(age)?.into())
+    pub fn prune(&self, age: Duration) -> Result<PruneReport> {
+        Ok(self.store().prune(age)?)
     }
 
     /// The set document of the entry matching `prefix`. An implicit network entry holds no
