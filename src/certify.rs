@@ -10,7 +10,7 @@
 //! above zero, or a network cut. A partial set that finds no feasible start proves nothing:
 //! that is `unknown`, never `infeasible`.
 
-use augment::{InfeasibleReason, Sign, Status};
+use augment::{InfeasibleReason, Orientation, Status};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 
@@ -66,7 +66,7 @@ pub struct Ray {
     /// ray that no single move gives (the difference of two points of the descent).
     pub move_index: Option<usize>,
     /// The sign in which the move is applied.
-    pub sign: Sign,
+    pub sign: Orientation,
     /// The signed direction.
     pub direction: Vec<i64>,
 }
@@ -208,7 +208,7 @@ fn of_flow(outcome: &FlowOutcome) -> Answer {
         }),
         FlowOutcome::Unbounded { cycle, flow } => Answer::Unbounded(Ray {
             move_index: None,
-            sign: Sign::Plus,
+            sign: Orientation::Plus,
             direction: cycle.vector(flow.len()),
         }),
         FlowOutcome::StepLimit { .. } => Answer::Stopped(Limit::Steps),

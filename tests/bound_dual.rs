@@ -159,7 +159,7 @@ fn partial(
     let mut set = completion_support::run(&model.matrix, &Request::graver(model.variables()));
     set.elements
         .retain(|g| g.iter().map(|v| v.unsigned_abs()).sum::<u64>() <= norm);
-    let prepared = Prepared::new(&model.matrix, &set, Coverage::NormTruncated(norm)).unwrap();
+    let prepared = Prepared::new(&model.matrix, &set, Coverage::NormTruncated { norm }).unwrap();
     let verdict = prepared
         .solve(&model, &Options::default(), None, &|| false)
         .unwrap();

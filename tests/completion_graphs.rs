@@ -13,7 +13,7 @@ mod completion_support;
 use std::path::Path;
 
 use completion_support::*;
-use kernstep::completion::{Method, MoveSet};
+use kernstep::completion::{ElementSet, Method};
 use kernstep::IntMatrix;
 use serde::Deserialize;
 
@@ -96,7 +96,7 @@ fn fixtures_are_incidence_matrices_with_networkx_cycles() {
     }
 }
 
-fn assert_cycles(f: &Fixture, set: &MoveSet, method: Method) {
+fn assert_cycles(f: &Fixture, set: &ElementSet, method: Method) {
     assert_eq!(set.width, f.arcs.len(), "{}: width", f.name);
     // Reference: networkx simple_cycles (scripts/graph_cycles_reference.py); Graver basis =
     // signed cycles for a digraph incidence matrix (Sturmfels 1996, Prop. 8.11).
@@ -124,7 +124,7 @@ fn pottier_finds_the_networkx_cycles() {
     }
 }
 
-fn graver_on_threads(a: &IntMatrix, threads: usize) -> MoveSet {
+fn graver_on_threads(a: &IntMatrix, threads: usize) -> ElementSet {
     rayon::ThreadPoolBuilder::new()
         .num_threads(threads)
         .build()

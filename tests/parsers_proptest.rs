@@ -512,7 +512,7 @@ proptest! {
                     .then(|| i128::from(c1) * i128::from(x1) + i128::from(c2) * x2)
             })
             .min();
-        let set = kernstep::completion::MoveSet { width: 2, elements: vec![vec![1, -a]] };
+        let set = kernstep::completion::ElementSet { width: 2, elements: vec![vec![1, -a]] };
         let solved = Prepared::new(&model.matrix, &set, Coverage::Complete)
             .and_then(|p| p.solve(&model, &Options::default(), None, &|| false));
         match solved {

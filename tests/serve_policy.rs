@@ -46,7 +46,7 @@ fn the_complete_set_comes_before_a_box_and_a_box_before_a_norm() {
         },
     );
     let by_norm = serve(&model, Some(&library), Engine::Auto, None).unwrap();
-    assert_eq!(by_norm.coverage, Coverage::NormTruncated(2));
+    assert_eq!(by_norm.coverage, Coverage::NormTruncated { norm: 2 });
     assert!(matches!(by_norm.source, Source::Cached(_)));
 
     store(

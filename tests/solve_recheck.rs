@@ -2,7 +2,7 @@
 //! the matrix (here: a "move" outside the kernel) never yields a certified day.
 
 use augment::Coverage;
-use kernstep::completion::MoveSet;
+use kernstep::completion::ElementSet;
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{replan, DayOutcome, ReplanSettings};
 use kernstep::solve::{parse_lines, Prepared, Verdict};
@@ -30,7 +30,7 @@ fn days() -> Vec<kernstep::solve::ParsedLine> {
 
 fn run(set: Vec<Vec<i64>>, chain: bool) -> Vec<kernstep::scenario::DayResult> {
     let model = lane_plan();
-    let set = MoveSet {
+    let set = ElementSet {
         width: 4,
         elements: set,
     };

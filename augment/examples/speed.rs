@@ -59,7 +59,7 @@ impl Lcg {
 }
 
 fn main() -> Result<(), augment::AugmentError> {
-    let moves = MoveSet::from_rows(LANES, &moves(), Coverage::NormTruncated(6))?;
+    let moves = MoveSet::from_rows(LANES, &moves(), Coverage::NormTruncated { norm: 6 })?;
     let mut rng = Lcg(7);
     let variants = 2000;
     let (mut total, mut steps, mut worst) = (Duration::ZERO, 0u64, Duration::ZERO);

@@ -17,7 +17,7 @@
 use serde::{Deserialize, Serialize};
 
 use crate::error::{overflow, AugmentError, Result};
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::problem::Problem;
 
@@ -35,8 +35,8 @@ pub enum Certificate {
     Improving {
         /// Index of the move in the set.
         move_index: usize,
-        /// Sign in which the move improves.
-        sign: Sign,
+        /// Orientation in which the move improves.
+        sign: Orientation,
         /// `f(x) - f(x + sign * g)`, positive.
         gain: i128,
     },
@@ -47,8 +47,8 @@ pub enum Certificate {
 pub struct Decrease {
     /// Index of the move in the set.
     pub move_index: usize,
-    /// Sign in which the move is applied.
-    pub sign: Sign,
+    /// Orientation in which the move is applied.
+    pub sign: Orientation,
     /// `v(x) - v(x + sign * g)`, positive.
     pub amount: i128,
 }
@@ -175,7 +175,7 @@ impl Checker {
         self.check_width(problem, x)?;
         for move_index in 0..self.len() {
             let (indices, values) = self.support(move_index);
-            for sign in Sign::BOTH {
+            for sign in Orientation::BOTH {
                 let mut amount = 0i128;
                 for (&i, &v) in indices.iter().zip(values) {
                     let after = stepped(x[i], v, sign)?;
@@ -258,7 +258,7 @@ fn meets(a: &[u64], b: &[u64]) -> bool {
 }
 
 /// `x_i + sign * v`, with overflow reported.
-fn stepped(xi: i64, v: i64, sign: Sign) -> Result<i64> {
+fn stepped(xi: i64, v: i64, sign: Orientation) -> Result<i64> {
     v.checked_mul(sign.factor())
         .and_then(|d| xi.checked_add(d))
         .ok_or(overflow("adding a move to the point"))
@@ -270,7 +270,7 @@ fn stays_in_box(
     problem: &Problem,
     x: &[i64],
     (indices, values): (&[usize], &[i64]),
-    sign: Sign,
+    sign: Orientation,
 ) -> bool {
     let (lower, upper) = (problem.lower(), problem.upper());
     indices.iter().zip(values).all(|(&i, &v)| {
@@ -290,7 +290,7 @@ fn linear_gain(
     values: &[i64],
     (plus, minus): (bool, bool),
     narrow: bool,
-) -> Result<Option<(Sign, i128)>> {
+) -> Result<Option<(Orientation, i128)>> {
     let rate = if narrow {
         // |c_i| * ||g||_1 fits in i64 for every move, so no partial sum can overflow.
         i128::from(
@@ -310,8 +310,8 @@ fn linear_gain(
             .ok_or(overflow("computing the cost rate of a move"))?
     };
     let (sign, gain) = match rate.signum() {
-        -1 if plus => (Sign::Plus, -rate),
-        1 if minus => (Sign::Minus, rate),
+        -1 if plus => (Orientation::Plus, -rate),
+        1 if minus => (Orientation::Minus, rate),
         _ => return Ok(None),
     };
     Ok(stays_in_box(problem, x, (indices, values), sign).then_some((sign, gain)))
@@ -325,9 +325,9 @@ fn separable_gain(
     indices: &[usize],
     values: &[i64],
     (plus, minus): (bool, bool),
-) -> Result<Option<(Sign, i128)>> {
+) -> Result<Option<(Orientation, i128)>> {
     let objective = problem.objective();
-    for (sign, open) in [(Sign::Plus, plus), (Sign::Minus, minus)] {
+    for (sign, open) in [(Orientation::Plus, plus), (Orientation::Minus, minus)] {
         if !open || !stays_in_box(problem, x, (indices, values), sign) {
             continue;
         }

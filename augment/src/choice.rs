@@ -10,7 +10,7 @@ use std::cmp::Ordering;
 use serde::{Deserialize, Serialize};
 
 use crate::error::Result;
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::search::Step;
 
 /// How the next augmenting step is chosen.
@@ -32,8 +32,8 @@ pub enum Rule {
 pub(crate) struct Candidate {
     /// Index of the move in the set.
     pub index: usize,
-    /// Sign in which the move is applied.
-    pub sign: Sign,
+    /// Orientation in which the move is applied.
+    pub sign: Orientation,
     /// `Step::Finite` or `Step::Ray`, never `Step::Useless`.
     pub step: Step,
 }
@@ -68,10 +68,10 @@ pub(crate) fn keep_better(
 pub(crate) fn choose_sign(
     rule: Rule,
     moves: &MoveSet,
-    mut each: impl FnMut(Sign, Option<Candidate>) -> Result<Option<Candidate>>,
+    mut each: impl FnMut(Orientation, Option<Candidate>) -> Result<Option<Candidate>>,
 ) -> Result<Option<Candidate>> {
     let mut best = None;
-    for sign in Sign::BOTH {
+    for sign in Orientation::BOTH {
         let Some(found) = each(sign, best)? else {
             continue;
         };

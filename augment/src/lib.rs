@@ -63,7 +63,7 @@ pub use certify::{certify, violation_decrease, Certificate, Checker, Decrease};
 pub use choice::Rule;
 pub use error::{AugmentError, Result};
 pub use fitting::Fitting;
-pub use moves::{Coverage, MoveSet, Sign};
+pub use moves::{Coverage, MoveSet, Orientation};
 pub use objective::{Objective, Term};
 pub use options::Options;
 pub use problem::Problem;

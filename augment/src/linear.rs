@@ -14,7 +14,7 @@
 use crate::choice::{Candidate, Rule};
 use crate::error::{overflow, Result};
 use crate::marks::Filter;
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
 use crate::search::Step;
 use crate::slopes::Slopes;
@@ -176,8 +176,8 @@ impl Evaluate for LinearScan<'_> {
         let slope = self.slopes.get(index);
         let sign = match slope {
             0 => return Ok(None),
-            s if s < 0 => Sign::Plus,
-            _ => Sign::Minus,
+            s if s < 0 => Orientation::Plus,
+            _ => Orientation::Minus,
         };
         let rate = slope.unsigned_abs();
         let floor = floor.map(i128::unsigned_abs);
@@ -188,7 +188,7 @@ impl Evaluate for LinearScan<'_> {
         }
         let room = match self.moves.bound_steps(index) {
             Some(entries) => {
-                let flip = usize::from(sign == Sign::Minus);
+                let flip = usize::from(sign == Orientation::Minus);
                 let steps = entries
                     .iter()
                     .map(|&e| ((e >> 8) as usize ^ flip, u64::from(e & 0xff)));
@@ -198,7 +198,7 @@ impl Evaluate for LinearScan<'_> {
                 let (indices, values) = self.moves.support(index);
                 // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
                 let steps = indices.iter().zip(values).map(|(&i, &v)| {
-                    let down = (v < 0) == (sign == Sign::Plus);
+                    let down = (v < 0) == (sign == Orientation::Plus);
                     (2 * i + usize::from(down), v.unsigned_abs())
                 });
                 self.room(steps, rate, floor)

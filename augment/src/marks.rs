@@ -11,7 +11,7 @@
 //! point, one machine word per 64 coordinates. The filter only skips moves the full evaluation
 //! would reject, so every scan selects exactly what it selected without it.
 
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
 use crate::slopes::Improving;
 
@@ -58,7 +58,7 @@ impl Filter {
 
     /// False when move `index` applied with `sign` certainly does not improve.
     #[inline]
-    pub(crate) fn admits(&self, moves: &MoveSet, index: usize, sign: Sign) -> bool {
+    pub(crate) fn admits(&self, moves: &MoveSet, index: usize, sign: Orientation) -> bool {
         let (raised, lowered) = moves.pattern(index, sign);
         if let ([r], [l], [mr], [ml]) = (raised, lowered, &self.raising[..], &self.lowering[..]) {
             return ((r & mr) | (l & ml) != 0) != self.blocking;
@@ -180,10 +180,16 @@ mod tests {
         let moves = MoveSet::from_rows(3, &[vec![1, -1, 0]], Coverage::Complete).unwrap();
         let p = problem(vec![Some(0); 3], vec![Some(5); 3]);
         let filter = Filter::blocking(&p, &[2, 0, 5], moves.words());
-        assert!(!filter.admits(&moves, 0, Sign::Plus), "lowers x_1 = 0");
-        assert!(filter.admits(&moves, 0, Sign::Minus));
+        assert!(
+            !filter.admits(&moves, 0, Orientation::Plus),
+            "lowers x_1 = 0"
+        );
+        assert!(filter.admits(&moves, 0, Orientation::Minus));
         let filter = Filter::blocking(&p, &[5, 3, 3], moves.words());
-        assert!(!filter.admits(&moves, 0, Sign::Plus), "raises x_0 = 5");
+        assert!(
+            !filter.admits(&moves, 0, Orientation::Plus),
+            "raises x_0 = 5"
+        );
     }
 
     #[test]
@@ -192,9 +198,15 @@ mod tests {
             MoveSet::from_rows(3, &[vec![1, -1, 0], vec![0, 1, 1]], Coverage::Complete).unwrap();
         let p = problem(vec![Some(0); 3], vec![Some(5); 3]);
         let filter = Filter::repairing(&p, &[-1, 2, 2], moves.words());
-        assert!(filter.admits(&moves, 0, Sign::Plus), "raises x_0 = -1");
-        assert!(!filter.admits(&moves, 0, Sign::Minus));
-        assert!(!filter.admits(&moves, 1, Sign::Plus) && !filter.admits(&moves, 1, Sign::Minus));
+        assert!(
+            filter.admits(&moves, 0, Orientation::Plus),
+            "raises x_0 = -1"
+        );
+        assert!(!filter.admits(&moves, 0, Orientation::Minus));
+        assert!(
+            !filter.admits(&moves, 1, Orientation::Plus)
+                && !filter.admits(&moves, 1, Orientation::Minus)
+        );
     }
 
     #[test]
@@ -234,12 +246,14 @@ mod tests {
                     let block = Filter::blocking(&p, &x, moves.words());
                     let free = block.free_entries(&signed, moves.words(), 0, moves.len());
                     for index in 0..moves.len() {
-                        let admitted = block.admits(&moves, index, Sign::Plus);
+                        let admitted = block.admits(&moves, index, Orientation::Plus);
                         assert_eq!(free >> index & 1 == 1, admitted, "{x:?} move {index}");
                     }
                 }
                 for index in 0..moves.len() {
-                    let admitted = Sign::BOTH.iter().any(|&s| repair.admits(&moves, index, s));
+                    let admitted = Orientation::BOTH
+                        .iter()
+                        .any(|&s| repair.admits(&moves, index, s));
                     assert_eq!(kept >> index & 1 == 1, admitted, "{x:?} move {index}");
                 }
             }
@@ -270,7 +284,7 @@ mod tests {
         x[129] = 0;
         let p = problem(vec![Some(0); 130], vec![None; 130]);
         let filter = Filter::blocking(&p, &x, moves.words());
-        assert!(!filter.admits(&moves, 0, Sign::Plus));
-        assert!(filter.admits(&moves, 0, Sign::Minus));
+        assert!(!filter.admits(&moves, 0, Orientation::Plus));
+        assert!(filter.admits(&moves, 0, Orientation::Minus));
     }
 }

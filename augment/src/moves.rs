@@ -14,8 +14,10 @@ use serde::{Deserialize, Serialize};
 
 use crate::error::{overflow, AugmentError, Result};
 
-/// What the caller knows about the completeness of its move set.
+/// What the caller knows about the completeness of its move set (serialised as the reports
+/// show it: `{"tag": "norm_truncated", "norm": 6}`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(tag = "tag", rename_all = "snake_case")]
 pub enum Coverage {
     /// The full Graver basis (or a superset of it within the lattice): a test set for every
     /// right-hand side, bound and separable convex objective.
@@ -25,27 +27,31 @@ pub enum Coverage {
     BoxValid,
     /// Every Graver element of l1 norm at most `N` is present: a point without an improving
     /// move is only optimal among moves up to that norm.
-    NormTruncated(u64),
+    NormTruncated {
+        /// The ℓ1 norm limit.
+        norm: u64,
+    },
 }
 
-/// The two directions in which a stored move is tried; `Plus` is tried first.
+/// Which way a stored move is applied: as stored (`Plus`, tried first) or negated (`Minus`).
+/// (A variable's sign restriction is `cache::Sign`, a different thing.)
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
-pub enum Sign {
+pub enum Orientation {
     /// The move as stored.
     Plus,
     /// The negated move.
     Minus,
 }
 
-impl Sign {
+impl Orientation {
     /// Both signs in tie-breaking order.
-    pub const BOTH: [Sign; 2] = [Sign::Plus, Sign::Minus];
+    pub const BOTH: [Orientation; 2] = [Orientation::Plus, Orientation::Minus];
 
     /// `+1` or `-1`.
     pub const fn factor(self) -> i64 {
         match self {
-            Sign::Plus => 1,
-            Sign::Minus => -1,
+            Orientation::Plus => 1,
+            Orientation::Minus => -1,
         }
     }
 }
@@ -224,12 +230,12 @@ impl MoveSet {
 
     /// Bit masks of the coordinates that move `index` raises and lowers when applied with
     /// `sign` (bit `i % 64` of word `i / 64` stands for coordinate `i`).
-    pub(crate) fn pattern(&self, index: usize, sign: Sign) -> (&[u64], &[u64]) {
+    pub(crate) fn pattern(&self, index: usize, sign: Orientation) -> (&[u64], &[u64]) {
         let range = index * self.words..(index + 1) * self.words;
         let (pos, neg) = (&self.positive[range.clone()], &self.negative[range]);
         match sign {
-            Sign::Plus => (pos, neg),
-            Sign::Minus => (neg, pos),
+            Orientation::Plus => (pos, neg),
+            Orientation::Minus => (neg, pos),
         }
     }
 

@@ -15,7 +15,7 @@
 use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
 use crate::marks::Filter;
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::problem::{Problem, Violation};
 use crate::search::{Direction, LineSearch, Step};
 use crate::sweep::Evaluate;
@@ -72,7 +72,7 @@ impl RepairScan<'_> {
     fn evaluate_sign(
         &self,
         index: usize,
-        sign: Sign,
+        sign: Orientation,
         floor: Option<i128>,
         best: Option<Candidate>,
     ) -> Result<Option<Candidate>> {

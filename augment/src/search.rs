@@ -7,7 +7,7 @@
 //! `O(log t)` evaluations, each touching only the support of the move.
 
 use crate::error::{overflow, Result};
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::objective::{Recession, Separable};
 
 /// A signed move in sparse form.
@@ -23,7 +23,7 @@ pub(crate) struct Direction<'a> {
 
 impl<'a> Direction<'a> {
     /// Move `index` of `moves` applied with `sign`.
-    pub(crate) fn of(moves: &'a MoveSet, index: usize, sign: Sign) -> Self {
+    pub(crate) fn of(moves: &'a MoveSet, index: usize, sign: Orientation) -> Self {
         let (indices, values) = moves.support(index);
         Direction {
             indices,

@@ -6,7 +6,7 @@ use crate::choice::{Candidate, Rule};
 use crate::error::Result;
 use crate::linear::LinearScan;
 use crate::marks::Filter;
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
@@ -61,7 +61,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
     /// point settles unboundedness for every rule.
     pub(crate) fn first_ray(&self, problem: &Problem) -> Result<Option<Candidate>> {
         for index in 0..self.moves.len() {
-            for sign in Sign::BOTH {
+            for sign in Orientation::BOTH {
                 let dir = Direction::of(self.moves, index, sign);
                 let mut free = true;
                 for k in 0..dir.indices.len() {

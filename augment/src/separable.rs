@@ -8,7 +8,7 @@
 use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
 use crate::marks::Filter;
-use crate::moves::{MoveSet, Sign};
+use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
@@ -57,7 +57,7 @@ impl<F: Separable + ?Sized> Evaluate for SeparableScan<'_, F> {
 
 impl<F: Separable + ?Sized> SeparableScan<'_, F> {
     /// The best step along move `index` in direction `sign`, if it improves.
-    fn evaluate_sign(&self, index: usize, sign: Sign) -> Result<Option<Candidate>> {
+    fn evaluate_sign(&self, index: usize, sign: Orientation) -> Result<Option<Candidate>> {
         if !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }

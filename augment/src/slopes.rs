@@ -210,7 +210,7 @@ fn checked_rate(costs: &[i64], moves: &MoveSet, index: usize) -> Result<i128> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::moves::{Coverage, Sign};
+    use crate::moves::{Coverage, Orientation};
 
     fn dot(row: &[i64], costs: &[i64]) -> i128 {
         row.iter()
@@ -258,7 +258,7 @@ mod tests {
 
     /// The masks of each move applied with its given sign (full masks for `None`), in the
     /// layout of the set's width, built entry by entry from [`MoveSet::pattern`].
-    fn masks(moves: &MoveSet, signs: &[Option<Sign>]) -> Improving {
+    fn masks(moves: &MoveSet, signs: &[Option<Orientation>]) -> Improving {
         let full = vec![u64::MAX; moves.words()];
         let (mut raised, mut lowered) = (Vec::new(), Vec::new());
         for (index, sign) in signs.iter().enumerate() {
@@ -299,12 +299,16 @@ mod tests {
             costs[width - 1] = -2;
             // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            let expected = masks(&moves, &[Some(Sign::Minus), None, None]);
+            let expected = masks(&moves, &[Some(Orientation::Minus), None, None]);
             assert_eq!(slopes.improving(), &expected, "width {width}");
             costs[1] = 1;
             // Rates 3, -1 and -1: move 0 improves in `-`, the others in `+`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            let signs = [Some(Sign::Minus), Some(Sign::Plus), Some(Sign::Plus)];
+            let signs = [
+                Some(Orientation::Minus),
+                Some(Orientation::Plus),
+                Some(Orientation::Plus),
+            ];
             assert_eq!(slopes.improving(), &masks(&moves, &signs), "width {width}");
         }
     }

@@ -5,7 +5,7 @@ use std::time::Duration;
 
 use serde::{Deserialize, Serialize};
 
-use crate::moves::Sign;
+use crate::moves::Orientation;
 
 /// Why a problem has no feasible point (or none was found).
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
@@ -54,8 +54,8 @@ pub struct Ray {
     /// Index of the move in the set; `None` for a ray that no single move gives, found as the
     /// difference of two points of the descent (see `recurrence.rs`).
     pub move_index: Option<usize>,
-    /// Sign in which the move is applied.
-    pub sign: Sign,
+    /// Orientation in which the move is applied.
+    pub sign: Orientation,
     /// The signed move itself.
     pub direction: Vec<i64>,
 }
@@ -93,8 +93,8 @@ pub struct TraceStep {
     pub phase: Phase,
     /// Index of the move in the set.
     pub move_index: usize,
-    /// Sign in which the move was applied.
-    pub sign: Sign,
+    /// Orientation in which the move was applied.
+    pub sign: Orientation,
     /// Number of times the move was applied.
     pub length: i64,
     /// Violation (phase I) or objective (phase II) before the step.

@@ -188,12 +188,12 @@ impl<'a> Run<'a> {
                 Outcome::Stopped(status) => status,
                 Outcome::Stationary(_) => match self.optimality.coverage() {
                     Coverage::Complete | Coverage::BoxValid => Status::Optimal,
-                    Coverage::NormTruncated(norm) => Status::OptimalForMovesUpTo(norm),
+                    Coverage::NormTruncated { norm } => Status::OptimalForMovesUpTo(norm),
                 },
                 Outcome::Ray(found) => Status::Unbounded(self.ray(&found)),
                 Outcome::Recurred(direction) => Status::Unbounded(Ray {
                     move_index: None,
-                    sign: crate::moves::Sign::Plus,
+                    sign: crate::moves::Orientation::Plus,
                     direction,
                 }),
             },
@@ -325,7 +325,7 @@ impl<'a> Run<'a> {
             Coverage::Complete => InfeasibleReason::NoLatticePointInBox {
                 min_violation: violation,
             },
-            Coverage::BoxValid | Coverage::NormTruncated(_) => {
+            Coverage::BoxValid | Coverage::NormTruncated { .. } => {
                 InfeasibleReason::Unproven { violation }
             }
         }

@@ -6,7 +6,9 @@
 mod proptest_cases;
 use proptest_cases::Class;
 
-use augment::{Certificate, Checker, Coverage, Decrease, MoveSet, Objective, Problem, Sign, Term};
+use augment::{
+    Certificate, Checker, Coverage, Decrease, MoveSet, Objective, Orientation, Problem, Term,
+};
 use proptest::prelude::*;
 
 /// Random moves (any integer vectors: the checks do not need a kernel), a box with some
@@ -82,7 +84,7 @@ impl Case {
     }
 }
 
-fn shifted(x: &[i64], g: &[i64], sign: Sign) -> Vec<i64> {
+fn shifted(x: &[i64], g: &[i64], sign: Orientation) -> Vec<i64> {
     x.iter()
         .zip(g)
         .map(|(a, b)| a + sign.factor() * b)
@@ -96,7 +98,7 @@ fn certify_oracle(problem: &Problem, moves: &[Vec<i64>], x: &[i64]) -> Certifica
     }
     let base = problem.objective().value(x).unwrap();
     for (move_index, g) in moves.iter().enumerate() {
-        for sign in Sign::BOTH {
+        for sign in Orientation::BOTH {
             let y = shifted(x, g, sign);
             let gain = base - problem.objective().value(&y).unwrap();
             if problem.in_box(&y) && gain > 0 {
@@ -115,7 +117,7 @@ fn certify_oracle(problem: &Problem, moves: &[Vec<i64>], x: &[i64]) -> Certifica
 fn decrease_oracle(problem: &Problem, moves: &[Vec<i64>], x: &[i64]) -> Option<Decrease> {
     let base = problem.violation(x).unwrap();
     for (move_index, g) in moves.iter().enumerate() {
-        for sign in Sign::BOTH {
+        for sign in Orientation::BOTH {
             let amount = base - problem.violation(&shifted(x, g, sign)).unwrap();
             if amount > 0 {
                 return Some(Decrease {

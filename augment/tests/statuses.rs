@@ -3,8 +3,8 @@
 use std::cell::Cell;
 
 use augment::{
-    solve, solve_with_cancel, Coverage, InfeasibleReason, MoveSet, Objective, Options, Problem,
-    Ray, Sign, Status, Term,
+    solve, solve_with_cancel, Coverage, InfeasibleReason, MoveSet, Objective, Options, Orientation,
+    Problem, Ray, Status, Term,
 };
 
 /// `x1 - x2 = b`: the Graver basis is the single move (1, 1).
@@ -32,7 +32,7 @@ fn free_direction_with_negative_cost_is_an_unbounded_ray() {
         solution.status,
         Status::Unbounded(Ray {
             move_index: Some(0),
-            sign: Sign::Plus,
+            sign: Orientation::Plus,
             direction: vec![1, 1]
         })
     );
@@ -79,7 +79,7 @@ fn convex_terms_with_negative_recession_are_unbounded_and_quadratic_ones_are_not
     assert!(matches!(
         solution.status,
         Status::Unbounded(Ray {
-            sign: Sign::Plus,
+            sign: Orientation::Plus,
             ..
         })
     ));
@@ -173,7 +173,7 @@ fn truncated_set_reports_optimality_up_to_its_norm() {
     .unwrap();
     let solution = solve(
         &problem,
-        &sum_moves(Coverage::NormTruncated(2)),
+        &sum_moves(Coverage::NormTruncated { norm: 2 }),
         &[1, 4],
         &Options::default(),
     )

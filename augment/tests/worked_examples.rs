@@ -3,8 +3,8 @@
 mod common;
 
 use augment::{
-    certify, solve, Certificate, Coverage, MoveSet, Objective, Options, Phase, Problem, Sign,
-    Status, Term, TraceStep,
+    certify, solve, Certificate, Coverage, MoveSet, Objective, Options, Orientation, Phase,
+    Problem, Status, Term, TraceStep,
 };
 
 /// Node-arc incidence of two depots (supplies) and three shops (demands); variable `x_ij`
@@ -63,7 +63,7 @@ fn transport_plan_improves_in_one_graver_best_step() {
         certify(&problem, &moves, &start).unwrap(),
         Certificate::Improving {
             move_index: 2,
-            sign: Sign::Plus,
+            sign: Orientation::Plus,
             gain: 6
         }
     );
@@ -76,7 +76,7 @@ fn transport_plan_improves_in_one_graver_best_step() {
         vec![TraceStep {
             phase: Phase::Optimality,
             move_index: 2,
-            sign: Sign::Plus,
+            sign: Orientation::Plus,
             length: 1,
             before: 14,
             after: 8,
@@ -118,7 +118,7 @@ fn infeasible_start_is_repaired_in_phase_one() {
             trace[0].sign,
             trace[0].length
         ),
-        (Phase::Feasibility, 0, Sign::Minus, 2)
+        (Phase::Feasibility, 0, Orientation::Minus, 2)
     );
     assert_eq!((trace[0].before, trace[0].after), (2, 0));
 }

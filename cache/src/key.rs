@@ -57,6 +57,13 @@ pub struct Truncation {
     pub bounds: Option<Vec<u64>>,
 }
 
+impl Truncation {
+    /// True if nothing is truncated.
+    pub fn is_none(&self) -> bool {
+        self.norm_limit.is_none() && self.bounds.is_none()
+    }
+}
+
 /// Everything a test set depends on; equal keys mean interchangeable sets.
 #[derive(Clone, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 pub struct EntryKey {

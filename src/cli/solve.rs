@@ -4,10 +4,11 @@
 use std::io::{self, Write};
 use std::process::ExitCode;
 
+use augment::Coverage;
 use clap::Args;
 use kernstep::testset::{Served, Source};
 use kernstep::trace::{
-    certificate_words, solve_document, BoundDoc, CoverageDoc, Outcome, SolveDocument, StepCounts,
+    certificate_words, solve_document, BoundDoc, Outcome, SolveDocument, StepCounts,
 };
 
 use super::explain::{count_moves, wrap};
@@ -65,10 +66,10 @@ pub fn set_text(set: &Served) -> String {
         return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
             .to_string();
     }
-    let coverage = match CoverageDoc::from(set.coverage) {
-        CoverageDoc::Complete => "complete Graver basis".to_string(),
-        CoverageDoc::BoxValid => "Graver basis truncated to the build's box".to_string(),
-        CoverageDoc::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
+    let coverage = match set.coverage {
+        Coverage::Complete => "complete Graver basis".to_string(),
+        Coverage::BoxValid => "Graver basis truncated to the build's box".to_string(),
+        Coverage::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
     };
     format!(
         "{}, {coverage}, {}",

@@ -40,7 +40,7 @@ use rayon::prelude::*;
 
 use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
 use super::control::{Control, StopReason};
-use super::limits::Truncation;
+use super::limits::{admits, Truncation};
 use super::reducer::SignMask;
 use super::store::{add_into, norm_on, to_entries, Entry};
 use super::working::{Orbit, WorkingSet};
@@ -552,7 +552,7 @@ impl Lifting<'_> {
         let t = self.stage.truncation;
         let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
         if !exact {
-            let kept = self.set.orbits_where(|v| signed(v) && t.admits(v, comps));
+            let kept = self.set.orbits_where(|v| signed(v) && admits(t, v, comps));
             return Lifted {
                 orbits: minimal(kept, comps),
                 exact: false,
@@ -565,7 +565,7 @@ impl Lifting<'_> {
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()
-            .filter(|o| t.admits(&o.rep, comps))
+            .filter(|o| admits(t, &o.rep, comps))
             .collect();
         Lifted {
             exact: orbits.len() == total,

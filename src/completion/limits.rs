@@ -1,4 +1,5 @@
-//! Truncation of a test set: by an l1 norm limit and by a box `|g_i| <= box_i`.
+//! Truncation of a test set ([`cache::Truncation`], the one recorded in cache keys): by an l1
+//! norm limit and by a box `|g_i| <= box_i`.
 //!
 //! Project-and-lift may prune with these limits at every stage without losing any element of
 //! the truncated answer: an element `e` that is needed for a final element `g` satisfies
@@ -7,29 +8,15 @@
 
 use super::store::Entry;
 
-/// Limits on the elements that a completion must return.
-#[derive(Clone, Debug, Default, PartialEq, Eq)]
-pub struct Truncation {
-    /// Keep only elements whose l1 norm is at most this (default: none).
-    pub norm_limit: Option<u64>,
-    /// Keep only elements with `|g_i| <= box[i]` for every `i` (default: none).
-    pub bounds: Option<Vec<u64>>,
-}
+pub use cache::Truncation;
 
-impl Truncation {
-    /// True if nothing is truncated.
-    pub fn is_none(&self) -> bool {
-        self.norm_limit.is_none() && self.bounds.is_none()
-    }
-
-    /// Whether `v` stays within the limits on the components `comps`.
-    pub(crate) fn admits(&self, v: &[Entry], comps: &[usize]) -> bool {
-        let norm: u64 = comps.iter().map(|&c| u64::from(v[c].unsigned_abs())).sum();
-        self.norm_limit.is_none_or(|n| norm <= n)
-            && self.bounds.as_ref().is_none_or(|b| {
-                comps
-                    .iter()
-                    .all(|&c| u64::from(v[c].unsigned_abs()) <= b[c])
-            })
-    }
+/// Whether `v` stays within the limits of `t` on the components `comps`.
+pub(crate) fn admits(t: &Truncation, v: &[Entry], comps: &[usize]) -> bool {
+    let norm: u64 = comps.iter().map(|&c| u64::from(v[c].unsigned_abs())).sum();
+    t.norm_limit.is_none_or(|n| norm <= n)
+        && t.bounds.as_ref().is_none_or(|b| {
+            comps
+                .iter()
+                .all(|&c| u64::from(v[c].unsigned_abs()) <= b[c])
+        })
 }

@@ -26,6 +26,7 @@ use serde::{Deserialize, Serialize};
 
 pub use checkpoint::{Checkpoint, InStage, StagePoint};
 pub use control::{Control, Progress, StopReason, WorkShare};
+use limits::admits;
 pub use limits::Truncation;
 
 use crate::error::{Error, Result};
@@ -34,24 +35,15 @@ use crate::matrix::IntMatrix;
 use store::{to_entries, Entry};
 use working::Orbit;
 
-/// The sign allowed for one variable in the moves.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-pub enum Sign {
-    /// Either sign.
-    Free,
-    /// `>= 0`.
-    NonNegative,
-    /// `<= 0`.
-    NonPositive,
-}
+/// The sign allowed for one variable in the moves (the one recorded in cache keys).
+pub use cache::Sign;
 
-impl Sign {
-    fn code(self) -> i8 {
-        match self {
-            Sign::Free => 0,
-            Sign::NonNegative => 1,
-            Sign::NonPositive => -1,
-        }
+/// `1` for `>= 0`, `-1` for `<= 0`, `0` for free.
+fn sign_code(sign: Sign) -> i8 {
+    match sign {
+        Sign::Free => 0,
+        Sign::NonNegative => 1,
+        Sign::NonPositive => -1,
     }
 }
 
@@ -99,9 +91,11 @@ impl Request {
     }
 }
 
-/// The elements found by a finished completion, in canonical order and sign.
+/// The elements of a test set as plain vectors (found by a finished completion, in canonical
+/// order and sign, or read from the cache); the solver's validated form is
+/// [`augment::MoveSet`].
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct MoveSet {
+pub struct ElementSet {
     /// Number of variables.
     pub width: usize,
     /// The elements.
@@ -124,7 +118,7 @@ pub enum Cut {
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Completion {
     /// Finished: the set asked for, and whether its truncation cut anything.
-    Finished(MoveSet, Cut),
+    Finished(ElementSet, Cut),
     /// Stopped early by a limit or a cancellation; no partial set is returned.
     Stopped(StopReason),
 }
@@ -162,7 +156,7 @@ pub fn complete(
             reducer::MASK_WORDS * 64
         )));
     }
-    let signs: Vec<i8> = request.signs.iter().map(|s| s.code()).collect();
+    let signs: Vec<i8> = request.signs.iter().map(|&s| sign_code(s)).collect();
     let entries: Vec<Vec<Entry>> = basis.iter().map(|b| to_entries(b)).collect::<Result<_>>()?;
     let orbits = match request.method {
         Method::ProjectAndLift => by_lifting(basis, &entries, &signs, request, control, resume)?,
@@ -340,14 +334,14 @@ fn restrict(
     let total = minimal.len();
     let within: Vec<Orbit> = minimal
         .into_iter()
-        .filter(|o| t.admits(&o.rep, comps))
+        .filter(|o| admits(t, &o.rep, comps))
         .collect();
     let exact = within.len() == total;
     (within, exact)
 }
 
 /// Orients and sorts the final orbits.
-fn canonical(width: usize, orbits: Vec<Orbit>) -> MoveSet {
+fn canonical(width: usize, orbits: Vec<Orbit>) -> ElementSet {
     let mut elements: Vec<Vec<i64>> = orbits
         .into_iter()
         .map(|o| {
@@ -363,5 +357,5 @@ fn canonical(width: usize, orbits: Vec<Orbit>) -> MoveSet {
         let nb: u64 = b.iter().map(|x| x.unsigned_abs()).sum();
         na.cmp(&nb).then_with(|| b.cmp(a))
     });
-    MoveSet { width, elements }
+    ElementSet { width, elements }
 }

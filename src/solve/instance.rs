@@ -22,7 +22,7 @@ use cache::Completeness;
 use super::fittings::Fittings;
 use super::rounding::Rounding;
 use super::variant::Numbers;
-use crate::completion::MoveSet;
+use crate::completion::ElementSet;
 use crate::error::{Error, Result};
 use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution, QuickSolver};
 use crate::matrix::IntMatrix;
@@ -210,13 +210,13 @@ pub fn coverage_of(completeness: &Completeness) -> Coverage {
     match completeness {
         Completeness::Complete => Coverage::Complete,
         Completeness::BoxTruncated => Coverage::BoxValid,
-        Completeness::NormTruncated { limit } => Coverage::NormTruncated(*limit),
+        Completeness::NormTruncated { limit } => Coverage::NormTruncated { norm: *limit },
     }
 }
 
 impl MoveEngine {
     /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
-    pub(super) fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
+    pub(super) fn new(a: &IntMatrix, set: &ElementSet, coverage: Coverage) -> Result<Self> {
         if set.width != a.cols() {
             return Err(Error::Dimension(format!(
                 "test set has width {}, the matrix {} columns",

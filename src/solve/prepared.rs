@@ -10,7 +10,7 @@ use super::instance::{Attempt, MoveEngine, Verdict, WarmStart};
 use super::network::NetworkEngine;
 use super::variant::Numbers;
 use crate::bound::{prove, DualBound, Multipliers};
-use crate::completion::MoveSet;
+use crate::completion::ElementSet;
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 use crate::model::Model;
@@ -30,7 +30,7 @@ enum Engine {
 
 impl Prepared {
     /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
-    pub fn new(a: &IntMatrix, set: &MoveSet, coverage: Coverage) -> Result<Self> {
+    pub fn new(a: &IntMatrix, set: &ElementSet, coverage: Coverage) -> Result<Self> {
         let engine = MoveEngine::new(a, set, coverage)?;
         Ok(Self {
             engine: Engine::Moves(Box::new(engine)),
@@ -134,7 +134,7 @@ impl Prepared {
         let Engine::Moves(engine) = &self.engine else {
             return None;
         };
-        if !matches!(engine.moves().coverage(), Coverage::NormTruncated(_)) {
+        if !matches!(engine.moves().coverage(), Coverage::NormTruncated { .. }) {
             return None;
         }
         let instance = Numbers::of(model).bound_instance(&model.matrix);

@@ -7,7 +7,7 @@ use cache::{Completeness, EntryKey, SetMetadata, TestSetData};
 use super::spec::{model_box, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
 use crate::completion::{
-    complete_kernel, Checkpoint, Completion, Control, Cut, Method, MoveSet, Request, Sign,
+    complete_kernel, Checkpoint, Completion, Control, Cut, ElementSet, Method, Request,
 };
 use crate::error::Result;
 use crate::lattice::RowSpaceKey;
@@ -22,7 +22,7 @@ pub struct BuiltSet {
     /// Build facts.
     pub metadata: SetMetadata,
     /// The moves.
-    pub set: MoveSet,
+    pub set: ElementSet,
 }
 
 /// How a build ended.
@@ -42,11 +42,8 @@ pub fn entry_key(a: &IntMatrix, spec: &ResolvedSpec) -> EntryKey {
     EntryKey {
         row_space: RowSpaceKey::of(a).canonical_text(),
         kind: spec.kind,
-        signs: spec.signs.iter().map(|&s| cache_sign(s)).collect(),
-        truncation: cache::Truncation {
-            norm_limit: spec.key_truncation.norm_limit,
-            bounds: spec.key_truncation.bounds.clone(),
-        },
+        signs: spec.signs.clone(),
+        truncation: spec.key_truncation.clone(),
     }
 }
 
@@ -121,13 +118,13 @@ pub fn build(
 }
 
 /// The stored form of a set.
-pub fn to_data(set: &MoveSet) -> Result<TestSetData> {
+pub fn to_data(set: &ElementSet) -> Result<TestSetData> {
     Ok(TestSetData::new(set.width, set.elements.concat())?)
 }
 
 /// The in-memory form of a stored set.
-pub fn from_data(data: &TestSetData) -> MoveSet {
-    MoveSet {
+pub fn from_data(data: &TestSetData) -> ElementSet {
+    ElementSet {
         width: data.width(),
         elements: data.rows().map(<[i64]>::to_vec).collect(),
     }
@@ -138,13 +135,5 @@ pub fn method_name(method: Method) -> &'static str {
     match method {
         Method::ProjectAndLift => "project-and-lift",
         Method::Pottier => "pottier",
-    }
-}
-
-fn cache_sign(s: Sign) -> cache::Sign {
-    match s {
-        Sign::Free => cache::Sign::Free,
-        Sign::NonNegative => cache::Sign::NonNegative,
-        Sign::NonPositive => cache::Sign::NonPositive,
     }
 }

@@ -15,7 +15,7 @@ use cache::{Completeness, EntryKey, SetKind, SetMetadata, Truncation};
 use super::build::{build, BuildOutcome, BuiltSet};
 use super::spec::BuildSpec;
 use crate::analysis::{AnalysisOptions, ColumnClasses, MatrixAnalysis};
-use crate::completion::{Control, MoveSet};
+use crate::completion::{Control, ElementSet};
 use crate::error::Result;
 use crate::lattice::RowSpaceKey;
 use crate::matrix::IntMatrix;
@@ -67,7 +67,7 @@ pub fn cycles_entry(a: &IntMatrix, network: &Network) -> BuiltSet {
     BuiltSet {
         key: cycles_key(a),
         metadata,
-        set: MoveSet {
+        set: ElementSet {
             width: a.cols(),
             elements: Vec::new(),
         },

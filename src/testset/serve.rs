@@ -16,7 +16,7 @@ use super::build::{build, default_graver_keys, from_data, BuildOutcome, BuiltSet
 use super::library::{Obtained, SetAside, SetLibrary};
 use super::spec::BuildSpec;
 use crate::analysis::{AnalysisOptions, MatrixAnalysis};
-use crate::completion::{Control, MoveSet};
+use crate::completion::{Control, ElementSet};
 use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::network::Network;
@@ -67,7 +67,7 @@ impl std::fmt::Display for Source {
 #[non_exhaustive]
 pub struct Served {
     /// The moves (empty for a network, whose cycles are implicit).
-    pub set: MoveSet,
+    pub set: ElementSet,
     /// What the set guarantees.
     pub coverage: Coverage,
     /// Where it came from.
@@ -92,7 +92,7 @@ impl Served {
 
     fn network(model: &Model, network: Network) -> Self {
         Served {
-            set: MoveSet {
+            set: ElementSet {
                 width: model.variables(),
                 elements: Vec::new(),
             },

@@ -8,13 +8,14 @@
 
 use std::collections::BTreeMap;
 
+use augment::Coverage;
 use augment::{Options, Phase, TraceStep};
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
 use super::certified::{certify, Certified};
 use super::decimal::Decimal;
-use super::outcome::{sign_number, CoverageDoc, Outcome};
+use super::outcome::{sign_number, Outcome};
 use super::recheck::Recheck;
 use crate::error::{Error, Result};
 use crate::model::{ConvexCosts, Model, Pieces};
@@ -88,7 +89,7 @@ pub struct TraceDocument {
     /// set (its cycles) is implicit.
     pub moves: Option<usize>,
     /// What the set guarantees.
-    pub coverage: CoverageDoc,
+    pub coverage: Coverage,
     /// The solver's integer start point, with `A x = b` (recovered exactly from the final point
     /// and the steps); `null` when there is none.
     pub start: Option<Vec<i64>>,
@@ -146,7 +147,7 @@ pub fn record(
         lower: model.lower.clone(),
         upper: model.upper.clone(),
         moves: moves.map(augment::MoveSet::len),
-        coverage: moves.map_or(CoverageDoc::Complete, |m| m.coverage().into()),
+        coverage: moves.map_or(Coverage::Complete, augment::MoveSet::coverage),
         start: None,
         steps: Vec::new(),
         x: None,

@@ -19,7 +19,7 @@ pub use bound::BoundDoc;
 pub use certified::{certify, Certified};
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
-pub use outcome::{sign_number, CoverageDoc, Outcome};
+pub use outcome::{sign_number, Outcome};
 #[cfg(feature = "plot")]
 pub use plot::step_plot;
 pub use recheck::{recheck, recheck_with_bound, Claim, Defect, Recheck, SignedMove};

@@ -4,7 +4,7 @@
 //! fields are its details; large values are decimal strings ([`Decimal`]). Variables are
 //! named, so a reader needs no second file to understand a verdict.
 
-use augment::{Coverage, Sign};
+use augment::Orientation;
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
@@ -132,36 +132,11 @@ impl Outcome {
     }
 }
 
-/// `1` for [`Sign::Plus`], `-1` for [`Sign::Minus`].
-pub fn sign_number(sign: Sign) -> i8 {
+/// `1` for [`Orientation::Plus`], `-1` for [`Orientation::Minus`].
+pub fn sign_number(sign: Orientation) -> i8 {
     match sign {
-        Sign::Plus => 1,
-        Sign::Minus => -1,
-    }
-}
-
-/// What a move set guarantees, in the tagged form of the `--json` documents.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(tag = "tag", rename_all = "snake_case")]
-pub enum CoverageDoc {
-    /// The whole Graver basis: a test set for every instance.
-    Complete,
-    /// Every Graver element that fits the build's box: a test set inside that box.
-    BoxValid,
-    /// Every Graver element of ℓ1 norm up to `norm`.
-    NormTruncated {
-        /// The ℓ1 norm limit.
-        norm: u64,
-    },
-}
-
-impl From<Coverage> for CoverageDoc {
-    fn from(coverage: Coverage) -> Self {
-        match coverage {
-            Coverage::Complete => CoverageDoc::Complete,
-            Coverage::BoxValid => CoverageDoc::BoxValid,
-            Coverage::NormTruncated(norm) => CoverageDoc::NormTruncated { norm },
-        }
+        Orientation::Plus => 1,
+        Orientation::Minus => -1,
     }
 }
 

@@ -484,7 +484,7 @@ mod tests {
         // The same point claimed as the start of a ray, or as a minimum violation.
         let ray = Ray {
             move_index: Some(0),
-            sign: augment::Sign::Plus,
+            sign: augment::Orientation::Plus,
             direction: vec![1, -1, -1, 1],
         };
         let reason = InfeasibleReason::NoLatticePointInBox { min_violation: 1 };
@@ -520,7 +520,7 @@ mod tests {
     fn a_ray_must_avoid_finite_bounds() {
         let ray = Ray {
             move_index: Some(0),
-            sign: augment::Sign::Plus,
+            sign: augment::Orientation::Plus,
             direction: vec![1, -1, -1, 1],
         };
         let unbounded = |upper: &str| {

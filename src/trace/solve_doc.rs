@@ -1,13 +1,14 @@
 //! The document of one certified solve (`solve --json`), its writer and its reader, and the
 //! warm start read back from it (or from a trace document).
 
+use augment::Coverage;
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
 use super::certified::{certify, Certified};
 use super::decimal::Decimal;
 use super::document::TRACE_SCHEMA;
-use super::outcome::{CoverageDoc, Outcome};
+use super::outcome::Outcome;
 use super::recheck::Recheck;
 use crate::error::{Error, Result};
 use crate::model::Model;
@@ -101,7 +102,7 @@ pub struct SolveDocument {
     /// Wall-clock seconds of the augmentation.
     pub seconds: f64,
     /// What the set guarantees.
-    pub coverage: CoverageDoc,
+    pub coverage: Coverage,
     /// Where the moves came from.
     pub set: SetRecord,
     /// The independent re-check of the outcome's claim, when it makes one.
@@ -144,7 +145,7 @@ pub fn solve_document(
         variables: model.variable_names.clone(),
         steps: StepCounts { feasibility, cost },
         seconds: verdict.elapsed().as_secs_f64(),
-        coverage: context.set.coverage.into(),
+        coverage: context.set.coverage,
         set: SetRecord::of(context.set),
         recheck,
     })

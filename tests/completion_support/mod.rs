@@ -1,7 +1,9 @@
 //! Matrices and oracles shared by the completion tests.
 #![allow(dead_code)] // each test binary uses its own part of this shared module
 
-use kernstep::completion::{complete_kernel, Completion, Control, Method, MoveSet, Request, Sign};
+use kernstep::completion::{
+    complete_kernel, Completion, Control, ElementSet, Method, Request, Sign,
+};
 use kernstep::IntMatrix;
 
 /// Node-arc incidence matrix of the complete bipartite digraph `K_{r,s}` (the `r x s`
@@ -22,7 +24,7 @@ pub fn matrix(rows: &[&[i64]]) -> IntMatrix {
 }
 
 /// Runs a completion to the end and returns the set.
-pub fn run(a: &IntMatrix, request: &Request) -> MoveSet {
+pub fn run(a: &IntMatrix, request: &Request) -> ElementSet {
     match complete_kernel(a, request, &Control::new(), None).unwrap() {
         Completion::Finished(set, _) => set,
         Completion::Stopped(reason) => panic!("completion stopped: {reason:?}"),
@@ -30,7 +32,7 @@ pub fn run(a: &IntMatrix, request: &Request) -> MoveSet {
 }
 
 /// The Graver basis by the given method.
-pub fn graver(a: &IntMatrix, method: Method) -> MoveSet {
+pub fn graver(a: &IntMatrix, method: Method) -> ElementSet {
     let mut request = Request::graver(a.cols());
     request.method = method;
     run(a, &request)
@@ -98,7 +100,7 @@ pub fn brute_force_minimal(a: &IntMatrix, signs: &[Sign], bound: i64) -> Vec<Vec
 }
 
 /// The elements of a set, sorted, for comparison with an oracle.
-pub fn sorted(set: &MoveSet) -> Vec<Vec<i64>> {
+pub fn sorted(set: &ElementSet) -> Vec<Vec<i64>> {
     let mut e = set.elements.clone();
     e.sort();
     e
@@ -106,7 +108,7 @@ pub fn sorted(set: &MoveSet) -> Vec<Vec<i64>> {
 
 /// Checks the invariants every returned element must satisfy: in the kernel, within the signs,
 /// primitive, and no other element ⊑ it.
-pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &MoveSet) {
+pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &ElementSet) {
     for g in &set.elements {
         assert!(
             a.mul_vec(g).unwrap().iter().all(|&v| v == 0),
