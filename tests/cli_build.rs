@@ -717,3 +717,40 @@ fn out_with_a_bare_file_name_writes_into_the_working_directory() {
         .collect();
     assert_eq!(names, ["cubic_set.json"]);
 }
+
+/// A `build --json` row carries the library's job report: the same model built by the binary
+/// into one cache and by `testset::Job` into another gives the same report, once built and
+/// once present (times and the paths of the caches aside).
+#[test]
+fn a_build_row_is_the_library_job_report() {
+    use kernstep::completion::Control;
+    use kernstep::scenario::PlanInput;
+    use kernstep::testset::{BuildSpec, Destination, Engine, Job, JobReport, SetLibrary};
+    let models = tempfile::tempdir().unwrap();
+    let model_path = transport_model(models.path(), 3, 3);
+    let model = PlanInput::load(&model_path).unwrap().into_model();
+    let binary = tempfile::tempdir().unwrap();
+    let library_dir = tempfile::tempdir().unwrap();
+    let library = SetLibrary::open(Some(library_dir.path())).unwrap();
+    for round in ["built", "present"] {
+        let args = [
+            "build",
+            path_str(&model_path),
+            "--engine",
+            "moves",
+            "--json",
+        ];
+        let rows = json(binary.path(), &args, 0);
+        let printed: JobReport = serde_json::from_value(rows[0].clone()).unwrap();
+        let job = Job {
+            spec: BuildSpec::default(),
+            engine: Engine::Moves,
+            budget: None,
+            rebuild: false,
+            destination: Destination::Cache(&library),
+        };
+        let called = job.run(&model, Control::new()).unwrap();
+        assert_eq!(printed, called, "{round}");
+        assert_eq!(rows[0]["state"], round);
+    }
+}

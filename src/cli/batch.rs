@@ -6,21 +6,19 @@
 //! a day failed, else 1 if a day was infeasible, unbounded, hit the step limit or was not
 //! solved because of Ctrl-C, else 0.
 
-use std::fs::File;
-use std::io::{self, BufWriter, Write};
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::atomic::Ordering;
 use std::time::Instant;
 
-use anyhow::Context;
 use clap::{Args, ValueEnum};
 use kernstep::formats::batch::{self, DayRecord, RunSummary, Tally};
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared};
 
-use super::common::{capped_threads, interrupted, with_threads, ServeArgs};
+use super::common::{capped_threads, interrupted, with_threads, write_atomically, ServeArgs};
 use super::table::write_pairs;
 
 /// Arguments of `batch`.
@@ -90,17 +88,12 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     Ok(ExitCode::from(code))
 }
 
-/// Writes the rendered results to `--out` (the summary then to stdout) or to stdout (the
-/// summary then to stderr).
+/// Writes the rendered results to `--out` with the one atomic writer (the summary then to
+/// stdout) or to stdout (the summary then to stderr).
 pub(super) fn emit(args: &BatchArgs, body: &[u8], summary: &RunSummary) -> anyhow::Result<()> {
     match &args.out {
         Some(path) => {
-            let file =
-                File::create(path).with_context(|| format!("creating {}", path.display()))?;
-            let mut out = BufWriter::new(file);
-            out.write_all(body)
-                .and_then(|()| out.flush())
-                .with_context(|| format!("writing {}", path.display()))?;
+            write_atomically(path, body)?;
             write_summary(&mut io::stdout().lock(), summary, args.json)?;
         }
         None => {
