@@ -754,3 +754,44 @@ fn a_build_row_is_the_library_job_report() {
         assert_eq!(rows[0]["state"], round);
     }
 }
+
+/// A `--signs` pattern may start with `-` (a variable `<= 0`): it is read as the flag's value,
+/// not as another option, and reaches the pattern's own check.
+#[test]
+fn a_sign_pattern_may_start_with_a_minus() {
+    let cache_dir = tempfile::tempdir().unwrap();
+    let models = tempfile::tempdir().unwrap();
+    let model = transport_model(models.path(), 2, 2);
+    let out = kernstep(
+        cache_dir.path(),
+        &[
+            "build",
+            path_str(&model),
+            "--kind",
+            "hilbert",
+            "--signs",
+            "-+",
+            "--json",
+        ],
+    );
+    let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let status = rows[0]["status"].as_str().unwrap();
+    assert!(
+        status.contains("--signs has 2 characters, the model has 4 variables"),
+        "{status}"
+    );
+    let fits = json(
+        cache_dir.path(),
+        &[
+            "build",
+            path_str(&model),
+            "--kind",
+            "hilbert",
+            "--signs",
+            "-++-",
+            "--json",
+        ],
+        0,
+    );
+    assert_eq!(fits[0]["state"], "built", "{fits}");
+}

@@ -313,7 +313,7 @@ fn prune_removes_old_entries_only() {
 fn bad_ages_and_missing_keys_are_usage_errors() {
     let dir = tempfile::tempdir().unwrap();
     for args in [
-        &["cache", "prune", "--older-than", "3w"][..],
+        &["cache", "prune", "--older-than", "3q"][..],
         &["cache", "prune", "--older-than", "h"],
         &["cache", "show"],
         &["cache", "verify", "abc", "--all"],

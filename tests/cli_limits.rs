@@ -68,7 +68,7 @@ fn trace_batch_and_demo_stop_on_their_limits() {
     stopped(
         cache.path(),
         &["trace", path_str(&model), "--build", "--max-memory", "1K"],
-        "--max-memory 1024 bytes reached",
+        "--max-memory 1000 bytes reached",
     );
     let scenario = scenarios().join("vell_valley.toml");
     let days = scenarios().join("vell_valley_days.jsonl");

@@ -189,7 +189,7 @@ fn bad_budgets_and_sizes_are_named() {
     let cache = tempfile::tempdir().unwrap();
     for (flag, value) in [
         ("--budget", "soon"),
-        ("--budget", "5d"),
+        ("--budget", "5q"),
         ("--max-memory", "lots"),
     ] {
         let out = kernstep(cache.path(), &["build", &transport(), flag, value]);

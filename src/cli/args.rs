@@ -54,7 +54,7 @@ pub struct AnalyzeArgs {
     pub subdet_limit: u64,
     /// Estimate the size and time of a build: build the first norm levels for up to this
     /// long (`5s`, `1m`), then extrapolate the levels up to the proven bound (or N).
-    #[arg(long, value_name = "PROBE", value_parser = super::build::parse_duration)]
+    #[arg(long, value_name = "PROBE", value_parser = super::parse::duration)]
     pub estimate: Option<std::time::Duration>,
     /// With --estimate: the last norm limit to project (default: the proven bound).
     #[arg(long, value_name = "N", requires = "estimate")]

@@ -25,6 +25,7 @@ use super::common::{
     model_paths, overflow_named, render_chain, signal_status, with_threads, CacheArgs, EngineArg,
 };
 use super::limits::LimitArgs;
+use super::parse;
 use super::progress::{BuildProgress, ProgressArg};
 use super::table::write_table;
 
@@ -39,7 +40,7 @@ pub struct BuildArgs {
     pub kind: KindArg,
     /// Sign of each variable in the moves, one character per variable: `+` (>= 0), `-`
     /// (<= 0) or `f` (free). Default: all free for graver, all `+` for hilbert.
-    #[arg(long, value_name = "PATTERN")]
+    #[arg(long, value_name = "PATTERN", allow_hyphen_values = true)]
     pub signs: Option<String>,
     /// l1 norm limit: `auto` (the smallest proven bound; loses nothing), `none`, or a number
     /// (below the proven bound the set is partial and recorded as such).
@@ -59,14 +60,14 @@ pub struct BuildArgs {
     /// keep the largest level that finishes in the budget (and under the memory cap), stored
     /// as norm-truncated; the proven bound reached gives the complete set. With
     /// `--norm-limit N` the deepening stops at N.
-    #[arg(long, value_name = "DURATION", value_parser = parse_duration)]
+    #[arg(long, value_name = "DURATION", value_parser = parse::duration)]
     pub budget: Option<Duration>,
     #[command(flatten)]
     pub limits: LimitArgs,
     /// Save the build's state at least this often (`60s`, `5m`), inside stages too, so that an
     /// interrupted build (Ctrl-C, SIGTERM, a limit, a crash) loses at most this much work;
     /// running the same command again resumes.
-    #[arg(long, value_name = "DURATION", value_parser = parse_duration,
+    #[arg(long, value_name = "DURATION", value_parser = parse::duration,
           default_value = "60s")]
     pub checkpoint_every: Duration,
     /// Progress on stderr: `auto` (a bar on a terminal, otherwise a line at most every 30 s),
@@ -116,27 +117,6 @@ pub enum MethodArg {
     Lift,
     /// Pottier's completion (baseline).
     Pottier,
-}
-
-/// `90`, `90s`, `40m` or `8h`.
-pub(super) fn parse_duration(text: &str) -> Result<Duration, String> {
-    let (number, unit) = match text.char_indices().last() {
-        Some((i, c)) if c.is_ascii_alphabetic() => (&text[..i], c),
-        _ => (text, 's'),
-    };
-    let scale = match unit {
-        's' => 1.0,
-        'm' => 60.0,
-        'h' => 3600.0,
-        other => return Err(format!("unknown unit {other:?}; use s, m or h (e.g. 40m)")),
-    };
-    number
-        .trim()
-        .parse::<f64>()
-        .ok()
-        .and_then(|n| Duration::try_from_secs_f64(n * scale).ok())
-        .filter(|d| !d.is_zero())
-        .ok_or_else(|| format!("expected a positive duration such as 90s, 40m or 8h, got {text:?}"))
 }
 
 fn parse_norm_limit(text: &str) -> Result<NormLimit, String> {
@@ -370,7 +350,7 @@ fn run_job(
     let job = args.job(&model, destination)?;
     let bar = BuildProgress::new(args.progress, path);
     let report = |p: &Progress| bar.report(p);
-    let mut control = args.limits.control(model.variables())?.progress(&report);
+    let mut control = args.limits.control(model.variables()).progress(&report);
     if let Some(share) = share {
         control = control.shared(share);
     }
@@ -531,7 +511,7 @@ pub(super) fn follow(
         Some(_) => None,
         None => args.cache.open()?.resume_point(&model.matrix, &spec)?,
     };
-    let control = args.limits.control(model.variables())?.shared(share);
+    let control = args.limits.control(model.variables()).shared(share);
     let outcome = with_threads(args.threads, || {
         build(&model.matrix, &analysis, &spec, &control, resume.as_ref())
     })??;

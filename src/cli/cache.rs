@@ -66,7 +66,7 @@ pub enum Action {
     /// only in a directory kernstep marked as its cache.
     Prune {
         /// Age such as `30d`, `12h`, `90m` or `3600s`.
-        #[arg(long, value_name = "AGE", default_value = "30d", value_parser = parse_age)]
+        #[arg(long, value_name = "AGE", default_value = "30d", value_parser = super::parse::age)]
         older_than: Duration,
     },
     /// Print one stored set as the JSON document `build --out` writes (key, metadata, elements).
@@ -84,28 +84,6 @@ pub enum Action {
 pub enum ExportFormat {
     /// One JSON document, the one `build --out` writes.
     Json,
-}
-
-/// Parses an age: a whole number followed by `d`, `h`, `m` or `s`.
-fn parse_age(text: &str) -> Result<Duration, String> {
-    let bad = || format!("expected an age like 30d, 12h, 90m or 3600s, got {text:?}");
-    let unit_at = text.len().checked_sub(1).ok_or_else(bad)?;
-    let (number, unit) = text.split_at(unit_at);
-    let per_unit: u64 = match unit {
-        "d" => 86_400,
-        "h" => 3_600,
-        "m" => 60,
-        "s" => 1,
-        _ => return Err(bad()),
-    };
-    if number.is_empty() || !number.bytes().all(|b| b.is_ascii_digit()) {
-        return Err(bad());
-    }
-    let count: u64 = number.parse().map_err(|_| bad())?;
-    let seconds = count
-        .checked_mul(per_unit)
-        .ok_or_else(|| format!("the age {text:?} overflows 64-bit seconds"))?;
-    Ok(Duration::from_secs(seconds))
 }
 
 /// Runs one `cache` sub-verb.
@@ -435,24 +413,6 @@ fn export(
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn ages_in_every_unit() {
-        assert_eq!(parse_age("30d"), Ok(Duration::from_secs(30 * 86_400)));
-        assert_eq!(parse_age("12h"), Ok(Duration::from_secs(12 * 3_600)));
-        assert_eq!(parse_age("90m"), Ok(Duration::from_secs(90 * 60)));
-        assert_eq!(parse_age("3600s"), Ok(Duration::from_secs(3_600)));
-        assert_eq!(parse_age("0s"), Ok(Duration::ZERO));
-    }
-
-    #[test]
-    fn bad_ages_are_refused() {
-        for text in ["", "d", "30", "30w", "-1d", "1.5h", "+3h", "3 h"] {
-            assert!(parse_age(text).is_err(), "{text:?}");
-        }
-        let overflow = parse_age(&format!("{}d", u64::MAX / 86_400 + 1)).unwrap_err();
-        assert!(overflow.contains("overflows"), "{overflow}");
-    }
 
     #[test]
     fn ages_are_shown_in_the_largest_whole_unit() {

@@ -283,9 +283,7 @@ pub fn graver_for(
                 }
                 Err(e) => return Err(e),
             };
-            let control = build_on_miss
-                .then(|| limits.control(model.variables()))
-                .transpose()?;
+            let control = build_on_miss.then(|| limits.control(model.variables()));
             serve(model, library.as_ref(), engine.engine(), control.as_ref())
         }
         Err(e) => Err(e),
@@ -303,7 +301,7 @@ pub fn graver_uncached(
     cache: &CacheArgs,
     limits: &LimitArgs,
 ) -> anyhow::Result<Served> {
-    let control = limits.control(model.variables())?;
+    let control = limits.control(model.variables());
     serve(model, None, Engine::Moves, Some(&control))
         .map_err(|e| serve_error(e, model, input, cache, EngineArg::Auto, limits))
 }

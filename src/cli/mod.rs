@@ -12,6 +12,7 @@ mod demo;
 mod explain;
 mod instance;
 mod limits;
+mod parse;
 mod progress;
 #[cfg(feature = "mpi")]
 mod ranked;
