@@ -217,3 +217,40 @@ fn a_variant_is_picked_by_id_and_a_missing_one_is_named() {
     let e = pick_variant("\n", "v.jsonl", None).unwrap_err().to_string();
     assert_eq!(e, "v.jsonl: file: holds no variant");
 }
+
+/// The days CSV is read by the `csv` crate (RFC 4180): a leading byte-order mark (as
+/// spreadsheet programs write it) and quoted cells read as the plain file does; a quote left
+/// open is named with its line.
+#[test]
+fn csv_days_take_a_byte_order_mark_and_quoted_cells() {
+    let plain = "day,field,name,value\nmon,demand,x,3\ntue,cost,a->y,7\n";
+    let dressed = "\u{feff}day,field,name,value\r\n\"mon\",demand,\"x\",\"3\"\r\n\
+                   tue,\"cost\",\"a->y\", 7 \r\n";
+    let a = parse_csv(&lanes(), plain, "d.csv");
+    let b = parse_csv(&lanes(), dressed, "d.csv");
+    assert_eq!(a.len(), 2);
+    for k in 0..2 {
+        assert_eq!(a[k].0, b[k].0);
+        assert_eq!(ok(&a, k), ok(&b, k));
+    }
+    let open = parse_csv(
+        &lanes(),
+        "day,field,name,value\nmon,demand,\"x,3\n",
+        "d.csv",
+    );
+    assert!(
+        err(&open, 0).starts_with("d.csv: line 2"),
+        "{}",
+        err(&open, 0)
+    );
+    // Comments, blank lines and CRLF breaks keep every line number (counted by hand).
+    let spaced = "day,field,name,value\r\n# note\r\n\r\nmon,demand,x,3\r\n\r\n\
+                  # two\r\ntue,cost,a->y,ten\r\n";
+    let lines = parse_csv(&lanes(), spaced, "d.csv");
+    assert_eq!(lines[0].0, 4);
+    assert!(
+        err(&lines, 1).starts_with("d.csv: line 7: cost.a->y"),
+        "{}",
+        err(&lines, 1)
+    );
+}

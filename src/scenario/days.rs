@@ -286,8 +286,9 @@ fn what(kind: super::ScenarioKind, field: Field) -> &'static str {
 /// names the day of an entry whose reading failed.
 pub fn day_named(row: &str, csv: bool) -> Option<String> {
     if csv {
-        let day = row.split(',').next()?.trim();
-        return (!day.is_empty()).then(|| day.to_string());
+        let (_, cells) = csv_rows(row).next()?;
+        let day = cells.ok()?.get(0)?.to_string();
+        return (!day.is_empty()).then_some(day);
     }
     let value: Value = serde_json::from_str(row).ok()?;
     value.get("day")?.as_str().map(str::to_string)
@@ -302,23 +303,24 @@ struct CsvDay {
 /// Parses CSV daily changes (`day,field,name,value`); one entry per day, numbered by the line
 /// the day first appears on, plus one entry per row too malformed to belong to a day.
 pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLine> {
-    let mut rows = text
-        .lines()
-        .enumerate()
-        .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
+    let mut rows = csv_rows(text).filter(|(_, cells)| !is_blank(cells));
     let header_error = match rows.next() {
-        Some((_, h)) if is_header(h) => None,
-        Some((i, _)) => Some((
-            i + 1,
-            "the first line must be the header day,field,name,value",
+        Some((_, Ok(h))) if is_header(&h) => None,
+        Some((line, Err(e))) => Some((line, format!("not CSV: {e}"))),
+        Some((line, _)) => Some((
+            line,
+            "the first line must be the header day,field,name,value".to_string(),
         )),
-        None => Some((1, "no header; the first line must be day,field,name,value")),
+        None => Some((
+            1,
+            "no header; the first line must be day,field,name,value".into(),
+        )),
     };
     if let Some((line, message)) = header_error {
         let error = Error::Input {
             file: origin.to_string(),
             field: format!("line {line}"),
-            message: message.to_string(),
+            message,
         };
         return vec![(line, Err(error))];
     }
@@ -326,27 +328,33 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
     let mut order: Vec<(String, CsvDay)> = Vec::new();
     let mut position: FxHashMap<String, usize> = FxHashMap::default();
     let mut out_of_day: Vec<ParsedLine> = Vec::new();
-    for (i, line) in rows {
+    for (line, cells) in rows {
         let r = Reader {
             file: origin,
-            prefix: format!("line {}: ", i + 1),
+            prefix: format!("line {line}: "),
         };
-        let cells: Vec<&str> = line.split(',').map(str::trim).collect();
-        let [day, field, name, value] = cells[..] else {
+        let cells = match cells {
+            Ok(cells) => cells,
+            Err(e) => {
+                out_of_day.push((line, Err(r.error("", format!("not CSV: {e}")))));
+                continue;
+            }
+        };
+        let [day, field, name, value] = cells.iter().collect::<Vec<_>>()[..] else {
             let message = format!(
                 "expected 4 cells (day,field,name,value), found {}",
                 cells.len()
             );
-            out_of_day.push((i + 1, Err(r.error("", message))));
+            out_of_day.push((line, Err(r.error("", message))));
             continue;
         };
         if day.is_empty() {
-            out_of_day.push((i + 1, Err(r.error("day", "a day needs a name"))));
+            out_of_day.push((line, Err(r.error("day", "a day needs a name"))));
             continue;
         }
         let k = *position.entry(day.to_string()).or_insert_with(|| {
             let fresh = CsvDay {
-                line: i + 1,
+                line,
                 result: Ok(Vec::new()),
             };
             order.push((day.to_string(), fresh));
@@ -373,11 +381,47 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
     out
 }
 
-fn is_header(line: &str) -> bool {
-    let cells: Vec<String> = line
-        .split(',')
-        .map(|c| c.trim().to_ascii_lowercase())
-        .collect();
+/// A CSV record, or why the text is not CSV there.
+type CsvRow = std::result::Result<csv::StringRecord, csv::Error>;
+
+/// The records of CSV `text` with the line each starts on, read by the `csv` crate (RFC 4180
+/// quoting, a leading byte-order mark ignored, cells trimmed, any number of cells per row).
+fn csv_rows(text: &str) -> impl Iterator<Item = (usize, CsvRow)> + '_ {
+    csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(text.as_bytes())
+        .into_records()
+        .map(move |record| {
+            let position = match &record {
+                Ok(r) => r.position(),
+                Err(e) => e.position(),
+            };
+            (position.map_or(1, |p| line_at(text, p.byte())), record)
+        })
+}
+
+/// The line of the record that starts at byte `at`: the reader places a record after blank
+/// lines or a `\r\n` at the line break before it, so breaks at `at` are passed over.
+fn line_at(text: &str, at: u64) -> usize {
+    let bytes = text.as_bytes();
+    let mut k = usize::try_from(at).unwrap_or(bytes.len()).min(bytes.len());
+    while k < bytes.len() && matches!(bytes[k], b'\n' | b'\r') {
+        k += 1;
+    }
+    bytes[..k].iter().filter(|&&b| b == b'\n').count() + 1
+}
+
+/// A row to pass over: a blank line, or a comment (its first cell starts with `#`).
+fn is_blank(cells: &CsvRow) -> bool {
+    cells.as_ref().is_ok_and(|c| {
+        c.iter().all(str::is_empty) || c.get(0).is_some_and(|first| first.starts_with('#'))
+    })
+}
+
+fn is_header(cells: &csv::StringRecord) -> bool {
+    let cells: Vec<String> = cells.iter().map(str::to_ascii_lowercase).collect();
     cells == ["day", "field", "name", "value"]
 }
 
