@@ -14,6 +14,7 @@ use std::time::Instant;
 
 use clap::{Args, ValueEnum};
 use kernstep::formats::batch::{self, DayRecord, RunSummary, Tally};
+use kernstep::input::is_stdin;
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared};
@@ -24,10 +25,12 @@ use super::table::write_pairs;
 /// Arguments of `batch`.
 #[derive(Debug, Args)]
 pub struct BatchArgs {
-    /// A scenario file, or a model file (.json, .toml or .mps).
+    /// A scenario file, or a model file (.json, .toml or .mps; .gz compressed too; `-` reads
+    /// standard input).
     pub input: PathBuf,
     /// The days: JSON Lines of changes by name (or of numeric variants for a model file), or
-    /// CSV rows `day,field,name,value` (.csv, scenarios only).
+    /// CSV rows `day,field,name,value` (.csv, scenarios only); .gz compressed too; `-` reads
+    /// standard input.
     pub days: PathBuf,
     /// Worker threads for the days (default: one per core).
     #[arg(long, value_name = "N")]
@@ -61,6 +64,9 @@ pub enum Format {
 pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     // Install the Ctrl-C handler before any work, so that an early Ctrl-C is also clean.
     interrupted();
+    if is_stdin(&args.input) && is_stdin(&args.days) {
+        anyhow::bail!("standard input (-) holds one file: the input or the days, not both");
+    }
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();

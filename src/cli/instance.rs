@@ -21,7 +21,8 @@ use super::common::{interrupted, ServeArgs};
 /// Which instance to solve, and how.
 #[derive(Debug, Args)]
 pub struct InstanceArgs {
-    /// The model file (.json, .toml or .mps), or a transport scenario file (.json or .toml).
+    /// The model file (.json, .toml or .mps), or a transport scenario file (.json or .toml);
+    /// .gz compressed too; `-` reads standard input.
     pub model: PathBuf,
     /// For a model file, a variant: inline JSON such as `{"id":"mon","rhs":[...]}`, or a JSON
     /// Lines file of variants (then --variant-id picks one; default the first). For a

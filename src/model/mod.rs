@@ -47,6 +47,40 @@ pub enum ModelKind {
 }
 
 impl ModelKind {
+    /// The text at `path` (see [`crate::input::read_text`]) and its syntax: from the
+    /// extension (under a `.gz`), or for standard input from the text ([`ModelKind::sniff`]);
+    /// `unknown` says what to do about an extension that names none.
+    pub fn read(path: &Path, unknown: &str) -> Result<(String, ModelKind)> {
+        if crate::input::is_stdin(path) {
+            let text = crate::input::read_text(path)?;
+            let kind = ModelKind::sniff(&text);
+            return Ok((text, kind));
+        }
+        let kind =
+            ModelKind::from_path(crate::input::syntax_path(path)).ok_or_else(|| Error::Input {
+                file: path.display().to_string(),
+                field: "file name".to_string(),
+                message: unknown.to_string(),
+            })?;
+        Ok((crate::input::read_text(path)?, kind))
+    }
+
+    /// The syntax of a model text with no file name: JSON when it opens with `{`, MPS when a
+    /// line starts with the `ROWS` section, else TOML.
+    pub fn sniff(text: &str) -> ModelKind {
+        let text = text.trim_start_matches('\u{feff}').trim_start();
+        if text.starts_with('{') {
+            ModelKind::Json
+        } else if text
+            .lines()
+            .any(|l| l.trim_end().eq_ignore_ascii_case("ROWS"))
+        {
+            ModelKind::Mps
+        } else {
+            ModelKind::Toml
+        }
+    }
+
     /// The kind named by a file's extension (case-insensitive), if it is a known one.
     pub fn from_path(path: &Path) -> Option<Self> {
         let ext = path.extension()?.to_str()?.to_ascii_lowercase();
@@ -106,12 +140,10 @@ impl Model {
     /// the syntax.
     pub fn load(path: &Path) -> Result<Model> {
         let origin = path.display().to_string();
-        let kind = ModelKind::from_path(path).ok_or_else(|| Error::Input {
-            file: origin.clone(),
-            field: "file name".to_string(),
-            message: "unknown model file type; use a .json, .toml or .mps extension".to_string(),
-        })?;
-        let text = crate::input::read_text(path)?;
+        let (text, kind) = ModelKind::read(
+            path,
+            "unknown model file type; use a .json, .toml or .mps extension (.gz compressed too)",
+        )?;
         Model::from_str(&text, kind, &origin)
     }
 

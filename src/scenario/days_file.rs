@@ -6,7 +6,7 @@ use std::path::Path;
 use super::days::{day_named, parse_csv, parse_day_lines};
 use super::{PlanInput, Scenario};
 use crate::error::{Error, Result};
-use crate::input::read_text;
+use crate::input::{is_stdin, read_text, syntax_path};
 use crate::solve::{parse_lines, ParsedLine, Variant};
 
 /// At most this many day names are listed when a day is not found.
@@ -19,7 +19,7 @@ pub fn read_days(input: &PlanInput, path: &Path) -> Result<Vec<ParsedLine>> {
     let origin = path.display().to_string();
     match input {
         PlanInput::Scenario(s, _) => Ok(scenario_days(s, &text, path)),
-        PlanInput::Model(_) if is_csv(path) => Err(Error::Input {
+        PlanInput::Model(_) if is_csv(path, &text) => Err(Error::Input {
             file: origin,
             field: "file".to_string(),
             message: "CSV days name scenario fields; for a model file write JSON Lines variants"
@@ -53,7 +53,7 @@ pub fn pick_day(scenario: &Scenario, path: &Path, day: Option<&str>) -> Result<V
             // is numbered 1, past its last line).
             Err(e) => match rows
                 .get(line - 1)
-                .and_then(|row| day_named(row, is_csv(path)))
+                .and_then(|row| day_named(row, is_csv(path, &text)))
             {
                 Some(name) if name == day => bad_day = bad_day.or(Some(e)),
                 Some(name) => {
@@ -138,15 +138,24 @@ impl Shown {
 /// A scenario's days from the text of `path`: CSV rows for a `.csv` file, else JSON Lines.
 fn scenario_days(scenario: &Scenario, text: &str, path: &Path) -> Vec<ParsedLine> {
     let origin = path.display().to_string();
-    if is_csv(path) {
+    if is_csv(path, text) {
         parse_csv(scenario, text, &origin)
     } else {
         parse_day_lines(scenario, text, &origin)
     }
 }
 
-fn is_csv(path: &Path) -> bool {
-    path.extension()
+/// Whether the days at `path` are CSV: a `.csv` name (under a `.gz`), or for standard input
+/// a text that does not open with a JSON object.
+fn is_csv(path: &Path, text: &str) -> bool {
+    if is_stdin(path) {
+        return !text
+            .trim_start_matches('\u{feff}')
+            .trim_start()
+            .starts_with('{');
+    }
+    syntax_path(path)
+        .extension()
         .and_then(|e| e.to_str())
         .is_some_and(|e| e.eq_ignore_ascii_case("csv"))
 }

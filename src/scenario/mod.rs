@@ -40,7 +40,7 @@ mod replan;
 
 use std::path::Path;
 
-use crate::error::{Error, Result};
+use crate::error::Result;
 use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
@@ -282,12 +282,9 @@ impl PlanInput {
 
 fn read_input(path: &Path) -> Result<(String, ModelKind, String)> {
     let origin = path.display().to_string();
-    let kind = ModelKind::from_path(path).ok_or_else(|| Error::Input {
-        file: origin.clone(),
-        field: "file name".to_string(),
-        message: "unknown model file type; use a .json, .toml or .mps extension (scenarios: .json or .toml)"
-            .to_string(),
-    })?;
-    let text = crate::input::read_text(path)?;
+    let (text, kind) = ModelKind::read(
+        path,
+        "unknown model file type; use a .json, .toml or .mps extension, .gz compressed too (scenarios: .json or .toml)",
+    )?;
     Ok((text, kind, origin))
 }
