@@ -117,3 +117,128 @@ fn open_regular(path: &Path) -> Result<File> {
     }
     Ok(file)
 }
+
+/// Refuses a name or id holding a control character (a line break, a tab, NUL, ...): names
+/// are written into reports, tables and files line by line, where such a character could
+/// pass for the start of another record.
+pub fn printable(name: &str) -> std::result::Result<(), String> {
+    match name.char_indices().find(|(_, c)| c.is_control()) {
+        Some((at, c)) => Err(format!(
+            "{name:?} holds the control character U+{:04X} at byte {at}; names must be printable",
+            u32::from(c)
+        )),
+        None => Ok(()),
+    }
+}
+
+/// Parses JSON `text` as a tree, refusing an object that names a key twice (`serde_json`
+/// keeps the last silently); the error carries the line and column like any other.
+pub fn parse_json(text: &str) -> serde_json::Result<serde_json::Value> {
+    let mut deserializer = serde_json::Deserializer::from_str(text);
+    let StrictValue(value) = serde::Deserialize::deserialize(&mut deserializer)?;
+    deserializer.end()?;
+    Ok(value)
+}
+
+/// A JSON tree read with unique keys.
+struct StrictValue(serde_json::Value);
+
+impl<'de> serde::Deserialize<'de> for StrictValue {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> std::result::Result<Self, D::Error> {
+        d.deserialize_any(StrictVisitor).map(StrictValue)
+    }
+}
+
+struct StrictVisitor;
+
+impl<'de> serde::de::Visitor<'de> for StrictVisitor {
+    type Value = serde_json::Value;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+        f.write_str("a JSON value")
+    }
+
+    fn visit_map<A: serde::de::MapAccess<'de>>(
+        self,
+        mut map: A,
+    ) -> std::result::Result<Self::Value, A::Error> {
+        let mut object = serde_json::Map::new();
+        while let Some(key) = map.next_key::<String>()? {
+            if object.contains_key(&key) {
+                return Err(serde::de::Error::custom(format!(
+                    "the key {key:?} appears twice in one object"
+                )));
+            }
+            let StrictValue(value) = map.next_value()?;
+            object.insert(key, value);
+        }
+        Ok(serde_json::Value::Object(object))
+    }
+
+    fn visit_seq<A: serde::de::SeqAccess<'de>>(
+        self,
+        mut seq: A,
+    ) -> std::result::Result<Self::Value, A::Error> {
+        let mut items = Vec::new();
+        while let Some(StrictValue(value)) = seq.next_element()? {
+            items.push(value);
+        }
+        Ok(serde_json::Value::Array(items))
+    }
+
+    fn visit_bool<E>(self, v: bool) -> std::result::Result<Self::Value, E> {
+        Ok(v.into())
+    }
+
+    fn visit_i64<E>(self, v: i64) -> std::result::Result<Self::Value, E> {
+        Ok(v.into())
+    }
+
+    fn visit_u64<E>(self, v: u64) -> std::result::Result<Self::Value, E> {
+        Ok(v.into())
+    }
+
+    fn visit_f64<E>(self, v: f64) -> std::result::Result<Self::Value, E> {
+        Ok(serde_json::Number::from_f64(v).map_or(serde_json::Value::Null, Into::into))
+    }
+
+    fn visit_str<E>(self, v: &str) -> std::result::Result<Self::Value, E> {
+        Ok(v.into())
+    }
+
+    fn visit_string<E>(self, v: String) -> std::result::Result<Self::Value, E> {
+        Ok(v.into())
+    }
+
+    fn visit_unit<E>(self) -> std::result::Result<Self::Value, E> {
+        Ok(serde_json::Value::Null)
+    }
+
+    fn visit_none<E>(self) -> std::result::Result<Self::Value, E> {
+        Ok(serde_json::Value::Null)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_with_control_characters_are_refused() {
+        assert!(printable("north->harbour/dairy").is_ok());
+        assert!(printable("Grüße, 北").is_ok());
+        for bad in ["a\nb", "tab\t", "nul\0", "bell\u{7}", "del\u{7f}"] {
+            let e = printable(bad).unwrap_err();
+            assert!(e.contains("control character"), "{e}");
+        }
+    }
+
+    #[test]
+    fn a_key_named_twice_is_refused_with_its_line() {
+        let e = parse_json("{\"a\": 1,\n \"b\": {\"c\": 2, \"c\": 3}}").unwrap_err();
+        assert!(e.to_string().contains("\"c\" appears twice"), "{e}");
+        assert_eq!(e.line(), 2);
+        let v = parse_json("{\"a\": [1, {\"b\": null}], \"c\": -2.5}").unwrap();
+        assert_eq!(v, serde_json::json!({"a": [1, {"b": null}], "c": -2.5}));
+    }
+}

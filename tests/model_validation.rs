@@ -151,7 +151,7 @@ fn unknown_extension_and_missing_file() {
     let err = Model::load(std::path::Path::new("plan.csv")).unwrap_err();
     assert_eq!(
         err.to_string(),
-        "plan.csv: file name: unknown model file type; use a .json, .toml or .mps extension"
+        "plan.csv: file name: unknown model file type; use a .json, .toml or .mps extension (.gz compressed too)"
     );
     let err = Model::load(std::path::Path::new("surely/not/here.toml")).unwrap_err();
     assert!(

@@ -44,7 +44,7 @@ impl Node {
 
 /// Parses JSON text; syntax errors name the line and column.
 pub(crate) fn parse_json(text: &str, origin: &str) -> Result<Node> {
-    let value: serde_json::Value = serde_json::from_str(text).map_err(|e| Error::Input {
+    let value = crate::input::parse_json(text).map_err(|e| Error::Input {
         file: origin.to_string(),
         field: format!("line {}, column {}", e.line(), e.column()),
         message: format!("invalid JSON: {}", json_message(&e)),

@@ -271,6 +271,7 @@ impl Checker<'_> {
             if name.trim().is_empty() {
                 return Err(self.error(here, "is empty; names must contain a visible character"));
             }
+            crate::input::printable(name).map_err(|why| self.error(here.clone(), why))?;
             if let Some(first) = seen.insert(name.as_str(), i) {
                 return Err(self.error(here, format!("{name:?} repeats {field}[{first}]")));
             }

@@ -3,8 +3,9 @@
 //! A batch reads thousands of day lines, and a `serde_json::Value` per line costs an
 //! allocation per key and per number. [`DayRecord`] borrows the day's name and every key
 //! from the line and keeps the values as plain integers, in input order. It reads only lines
-//! of the simplest shape: a JSON object whose keys and names need no unescaping, each key at
-//! most once, `day` a string and every other key a table of names to integers or `null`.
+//! of the simplest shape: a JSON object whose keys and names need no unescaping, each key (and
+//! each name in a table) at most once, `day` a string and every other key a table of names to
+//! integers or `null`.
 //! Anything else fails, and the caller reads the line again the careful way, which also gives
 //! the messages; so this reading never decides what is valid, only how fast a valid line goes.
 
@@ -84,6 +85,9 @@ impl<'de> Visitor<'de> for EntriesVisitor {
     fn visit_map<M: MapAccess<'de>>(self, mut map: M) -> Result<Self::Value, M::Error> {
         let mut entries = Vec::with_capacity(map.size_hint().unwrap_or(4));
         while let Some(name) = map.next_key::<&'de str>()? {
+            if entries.iter().any(|(n, _)| *n == name) {
+                return Err(M::Error::custom("name given twice"));
+            }
             entries.push((name, map.next_value()?));
         }
         Ok(Table(entries))
@@ -113,6 +117,7 @@ mod tests {
         for line in [
             r#"{"day": "d1", "day": "d2"}"#,
             r#"{"day": "d1", "cost": {"a": 1}, "cost": {"a": 2}}"#,
+            r#"{"day": "d1", "cost": {"a": 1, "a": 2}}"#,
             r#"{"day": 7}"#,
             r#"{"day": "d1", "cost": {"a": 1.5}}"#,
             r#"{"day": "d1", "cost": {"a": "1"}}"#,

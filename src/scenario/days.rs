@@ -63,7 +63,7 @@ fn careful_line(
     number: usize,
     seen: &mut FxHashMap<String, usize>,
 ) -> Result<(String, Vec<Change>)> {
-    let value: Value = serde_json::from_str(line).map_err(|e| {
+    let value: Value = crate::input::parse_json(line).map_err(|e| {
         r.error(
             "",
             format!("not valid JSON: {}", strip_position(&e.to_string())),
@@ -236,6 +236,7 @@ fn remember_day(
     if day.trim().is_empty() {
         return Err(r.error("day", "a day needs a name"));
     }
+    crate::input::printable(day).map_err(|why| r.error("day", why))?;
     match seen.insert(day.to_string(), number) {
         Some(first) => {
             seen.insert(day.to_string(), first);

@@ -13,19 +13,30 @@ use crate::solve::{parse_lines, ParsedLine, Variant};
 const NAMES_SHOWN: usize = 8;
 
 /// Every day of the days file at `path` for `input`: for a scenario CSV rows (`.csv`) or
-/// JSON Lines of changes by name, for a model file JSON Lines of numeric variants.
+/// JSON Lines of changes by name, for a model file JSON Lines of numeric variants. A file
+/// without a single day is an error.
 pub fn read_days(input: &PlanInput, path: &Path) -> Result<Vec<ParsedLine>> {
     let text = read_text(path)?;
     let origin = path.display().to_string();
+    let days = every_day(input, path, &text)?;
+    if days.is_empty() {
+        return Err(missing(&origin, "file", "holds no day".to_string()));
+    }
+    Ok(days)
+}
+
+/// The entries of the days `text` read from `path`.
+fn every_day(input: &PlanInput, path: &Path, text: &str) -> Result<Vec<ParsedLine>> {
+    let origin = path.display().to_string();
     match input {
-        PlanInput::Scenario(s, _) => Ok(scenario_days(s, &text, path)),
-        PlanInput::Model(_) if is_csv(path, &text) => Err(Error::Input {
+        PlanInput::Scenario(s, _) => Ok(scenario_days(s, text, path)),
+        PlanInput::Model(_) if is_csv(path, text) => Err(Error::Input {
             file: origin,
             field: "file".to_string(),
             message: "CSV days name scenario fields; for a model file write JSON Lines variants"
                 .to_string(),
         }),
-        PlanInput::Model(_) => Ok(parse_lines(&text, &origin)),
+        PlanInput::Model(_) => Ok(parse_lines(text, &origin)),
     }
 }
 

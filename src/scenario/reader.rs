@@ -9,7 +9,7 @@ use crate::model::{ModelKind, VALUE_LIMIT};
 /// Parses JSON or TOML text into one tree; TOML tables become JSON objects.
 pub(crate) fn parse_tree(text: &str, kind: ModelKind, origin: &str) -> Result<Value> {
     match kind {
-        ModelKind::Json => serde_json::from_str(text).map_err(|e| Error::Input {
+        ModelKind::Json => crate::input::parse_json(text).map_err(|e| Error::Input {
             file: origin.to_string(),
             field: format!("line {}", e.line()),
             message: format!("not valid JSON: {}", strip_position(&e.to_string())),

@@ -5,6 +5,8 @@
 //! line; an omitted field means "as in the model", `null` inside `lower`/`upper` is an
 //! infinite bound. Blank lines are skipped. Every error names the file, the line and the field.
 
+use std::collections::HashMap;
+
 use augment::Problem;
 use serde::Deserialize;
 
@@ -34,17 +36,34 @@ pub struct Variant {
 pub type ParsedLine = (usize, std::result::Result<Variant, Error>);
 
 /// Parses JSON Lines text; each non-blank line gives its 1-based number and a variant or an
-/// error, so that one bad line does not stop the others.
+/// error, so that one bad line does not stop the others. An id must be printable and may be
+/// given once: a line repeating an earlier id is refused.
 pub fn parse_lines(text: &str, origin: &str) -> Vec<ParsedLine> {
+    let mut seen: HashMap<String, usize> = HashMap::new();
     text.lines()
         .enumerate()
         .filter(|(_, l)| !l.trim().is_empty())
         .map(|(i, line)| {
-            let parsed = serde_json::from_str::<Variant>(line).map_err(|e| Error::Input {
+            let bad = |message: String| Error::Input {
                 file: origin.to_string(),
                 field: format!("line {}", i + 1),
-                message: e.to_string(),
-            });
+                message,
+            };
+            let parsed = serde_json::from_str::<Variant>(line)
+                .map_err(|e| bad(e.to_string()))
+                .and_then(|v| {
+                    crate::input::printable(&v.id).map_err(|why| bad(format!("id: {why}")))?;
+                    match seen.get(&v.id) {
+                        Some(first) => Err(bad(format!(
+                            "id: {:?} is already given on line {first}",
+                            v.id
+                        ))),
+                        None => {
+                            seen.insert(v.id.clone(), i + 1);
+                            Ok(v)
+                        }
+                    }
+                });
             (i + 1, parsed)
         })
         .collect()
