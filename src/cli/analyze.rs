@@ -125,8 +125,8 @@ fn published_text(a: &MatrixAnalysis) -> String {
         return "no published value for this Δ".to_string();
     };
     let verdict = match a.within_published_column_number {
-        Some(true) => "within",
-        _ => "exceeds",
+        Some(true) => "the matrix's h is within it",
+        _ => "the matrix's h exceeds it",
     };
     let rank_note = match p.condition {
         RankCondition::EveryRank => "",
