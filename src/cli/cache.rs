@@ -4,6 +4,7 @@
 //! `KEY` is a key digest or any unique prefix of one (hexadecimal, either case).
 
 use std::io::{self, Write};
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
@@ -77,6 +78,12 @@ pub enum Action {
         #[arg(long, value_enum, default_value_t = ExportFormat::Json)]
         format: ExportFormat,
     },
+    /// Store the set in FILE (a document `build --out` or `cache export` wrote) after checking
+    /// it in full, as a foreign entry is checked; replaces an entry under the same key.
+    Import {
+        /// The set document (`-` reads standard input; .gz compressed too).
+        file: PathBuf,
+    },
 }
 
 /// `cache export --format`.
@@ -100,6 +107,7 @@ pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
         Action::Remove { key } => remove(library.store(), key, json, &mut out)?,
         Action::Prune { older_than } => prune(&library.prune(*older_than)?, json, &mut out)?,
         Action::Export { key, format } => export(&library, key, *format, &mut out)?,
+        Action::Import { file } => import(&library, file, json, &mut out)?,
     };
     out.flush()?;
     Ok(code)
@@ -407,6 +415,34 @@ fn export(
         .export_document(key, Some(interrupted()))
         .with_context(|| format!("exporting entry {key}"))?;
     out.write_all(document.as_bytes())?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn import(
+    library: &SetLibrary,
+    file: &Path,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<ExitCode> {
+    let imported = library.import(file)?;
+    if json {
+        let doc = serde_json::json!({
+            "imported": imported.digest,
+            "elements": imported.elements,
+            "replaced": imported.replaced,
+        });
+        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+    } else {
+        writeln!(
+            out,
+            "imported {} ({} elements){}",
+            imported.digest,
+            imported.elements,
+            imported
+                .replaced
+                .map_or_else(String::new, |d| format!(", replacing a damaged entry: {d}"))
+        )?;
+    }
     Ok(ExitCode::SUCCESS)
 }
 

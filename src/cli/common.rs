@@ -8,7 +8,7 @@ use std::sync::{Arc, OnceLock};
 use anyhow::Context;
 use clap::{Args, ValueEnum};
 use kernstep::model::Model;
-use kernstep::testset::{by_cycles, serve, Engine, Served, SetLibrary};
+use kernstep::testset::{by_cycles, serve, serve_file, Engine, Served, SetLibrary};
 use signal_hook::consts::{SIGINT, SIGTERM};
 
 use super::limits::LimitArgs;
@@ -183,6 +183,10 @@ fn is_model_file(p: &Path) -> bool {
 /// the engine.
 #[derive(Debug, Args)]
 pub struct ServeArgs {
+    /// Use the set in FILE (a document `build --out` or `cache export` wrote), checked in full
+    /// against the model, instead of the cache.
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["build", "engine"])]
+    pub set: Option<PathBuf>,
     /// Build the test set (and store it in the cache) when the cache has none, instead of
     /// stopping.
     #[arg(long)]
@@ -197,8 +201,12 @@ pub struct ServeArgs {
 }
 
 impl ServeArgs {
-    /// The test set that serves `model`, read from `input` (see [`graver_for`]).
+    /// The test set that serves `model`, read from `input`: the `--set` file, else as
+    /// [`graver_for`] finds it.
     pub fn served(&self, model: &Model, input: &Path) -> anyhow::Result<Served> {
+        if let Some(file) = &self.set {
+            return Ok(serve_file(model, file)?);
+        }
         graver_for(
             model,
             input,

@@ -584,7 +584,8 @@ pub struct RunSummary {
     pub threads: Option<usize>,
     /// Moves in the test set (0 for a network's implicit cycles).
     pub moves: usize,
-    /// Where the set came from: `cached <digest prefix>`, `built for this run` or `network`.
+    /// Where the set came from: `cached <digest prefix>`, `built for this run`, `network` or
+    /// `read from <file>`.
     pub set: String,
     /// What the plans must also respect and the tool does not check.
     pub caution: String,
@@ -602,6 +603,7 @@ impl RunSummary {
                 Source::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 Source::Built => "built for this run".to_string(),
                 Source::Network => "network".to_string(),
+                Source::File(path) => format!("read from {path}"),
             },
             caution: CAUTION.to_string(),
         }

@@ -13,6 +13,7 @@ mod limits;
 mod network;
 mod saved;
 mod serve;
+mod set_file;
 mod spec;
 mod verify;
 
@@ -30,5 +31,6 @@ pub use library::{
 pub use limits::{members_in, memory_guard, BuildLimits, GUARD_PERCENT};
 pub use network::{cycles_entry, cycles_key, enumerate_cycles, CYCLES_METHOD};
 pub use serve::{by_cycles, serve, Engine, Served, Source};
+pub use set_file::{read_set_file, serve_file, Imported};
 pub use spec::{BoxPolicy, BuildSpec, NormLimit, ResolvedSpec};
 pub use verify::verify_content;

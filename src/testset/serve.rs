@@ -45,6 +45,8 @@ pub enum Source {
     Built,
     /// None needed: the matrix is a network, whose cycles are its Graver basis.
     Network,
+    /// A set document read from this file (and checked in full).
+    File(String),
 }
 
 impl std::fmt::Display for Source {
@@ -58,6 +60,7 @@ impl std::fmt::Display for Source {
             ),
             Source::Built => f.write_str("built for this run"),
             Source::Network => f.write_str("the network's cycles"),
+            Source::File(path) => write!(f, "read from {path}"),
         }
     }
 }

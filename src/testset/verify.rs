@@ -24,7 +24,7 @@
 use std::collections::HashSet;
 use std::path::Path;
 
-use cache::{Completeness, SetKind, Sign, StoredSet};
+use cache::{Completeness, EntryKey, SetKind, SetMetadata, Sign, StoredSet, TestSetData};
 use num_bigint::BigInt;
 use num_integer::Integer;
 use num_traits::{One, Signed, Zero};
@@ -34,9 +34,31 @@ use crate::lattice::{HermiteForm, RowSpaceKey};
 use crate::matrix::IntMatrix;
 use crate::network::Network;
 
+/// What is checked: a key, its build facts and the elements.
+struct Content<'a> {
+    key: &'a EntryKey,
+    metadata: &'a SetMetadata,
+    data: &'a TestSetData,
+}
+
 /// Checks the content of `set`, read from `path`, in full (see the module doc); the error
 /// names the file and the field that fails.
 pub fn verify_content(set: &StoredSet, path: &Path) -> Result<()> {
+    verify_parts(&set.key, &set.metadata, &set.data, path)
+}
+
+/// Checks a set given as its parts (a set document read back), as [`verify_content`] does.
+pub fn verify_parts(
+    key: &EntryKey,
+    metadata: &SetMetadata,
+    data: &TestSetData,
+    path: &Path,
+) -> Result<()> {
+    let set = &Content {
+        key,
+        metadata,
+        data,
+    };
     let fail = |field: String, message: String| Error::Input {
         file: path.display().to_string(),
         field,
@@ -101,7 +123,7 @@ fn stored_matrix(rows: &[Vec<i64>], width: usize) -> std::result::Result<IntMatr
 }
 
 /// One element against the matrix and the key.
-fn check_element(a: &IntMatrix, set: &StoredSet, e: &[i64]) -> std::result::Result<(), String> {
+fn check_element(a: &IntMatrix, set: &Content<'_>, e: &[i64]) -> std::result::Result<(), String> {
     if e.iter().all(|&x| x == 0) {
         return Err("is zero".into());
     }
@@ -161,7 +183,7 @@ fn oriented(e: &[i64]) -> Vec<i128> {
 
 /// Whether the elements of `set` (each already checked to lie in `ker(a)`) generate
 /// `ker_Z(a)`.
-fn generates_kernel(a: &IntMatrix, set: &StoredSet) -> bool {
+fn generates_kernel(a: &IntMatrix, set: &Content<'_>) -> bool {
     let basis = echelon_basis(HermiteForm::new(a).kernel_basis());
     let d = basis.len();
     let mut form = Generated::new(d);

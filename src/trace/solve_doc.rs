@@ -30,10 +30,13 @@ pub struct StepCounts {
 /// Where the moves of a solve came from.
 #[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub struct SetRecord {
-    /// `cache`, `built` or `network`.
+    /// `cache`, `built`, `network` or `file`.
     pub source: String,
     /// The cache entry's digest in hex, for a cached set.
     pub digest: Option<String>,
+    /// The set document's file, for a set read from one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub file: Option<String>,
     /// Moves in the set (0 for a network's implicit cycles).
     pub moves: usize,
 }
@@ -41,14 +44,16 @@ pub struct SetRecord {
 impl SetRecord {
     /// The record of `served`.
     pub fn of(served: &Served) -> Self {
-        let (source, digest) = match &served.source {
-            Source::Cached(d) => ("cache", Some(d.clone())),
-            Source::Built => ("built", None),
-            Source::Network => ("network", None),
+        let (source, digest, file) = match &served.source {
+            Source::Cached(d) => ("cache", Some(d.clone()), None),
+            Source::Built => ("built", None, None),
+            Source::Network => ("network", None, None),
+            Source::File(path) => ("file", None, Some(path.clone())),
         };
         SetRecord {
             source: source.to_string(),
             digest,
+            file,
             moves: served.set.elements.len(),
         }
     }
