@@ -9,7 +9,7 @@ use std::process::Stdio;
 use serde_json::Value;
 
 mod cli_support;
-use cli_support::{command, examples, expect, scenarios};
+use cli_support::{command, examples, expect, scenarios, solve_answer};
 
 /// `path` compressed into `dir` under its own name plus `.gz`.
 fn gzipped(path: &Path, dir: &Path) -> String {
@@ -33,16 +33,6 @@ fn piped(cache: &Path, args: &[&str], input: &[u8]) -> (Option<i32>, String) {
     (out.status.code(), String::from_utf8(out.stdout).unwrap())
 }
 
-/// The plan part of a solve document (the file name differs by design).
-fn answer(doc: &str) -> (Value, Value, Value) {
-    let doc: Value = serde_json::from_str(doc).unwrap();
-    (
-        doc["status"].clone(),
-        doc["objective"].clone(),
-        doc["x"].clone(),
-    )
-}
-
 #[test]
 fn compressed_and_piped_models_solve_as_the_plain_file() {
     let cache = tempfile::tempdir().unwrap();
@@ -50,28 +40,28 @@ fn compressed_and_piped_models_solve_as_the_plain_file() {
     let cache_dir = cache.path();
     for name in ["lane_plan.toml", "transport_3x3.json"] {
         let plain = examples().join(name);
-        let want = answer(&expect(
+        let want = solve_answer(&expect(
             cache_dir,
             &["solve", plain.to_str().unwrap(), "--build", "--json"],
             0,
         ));
         let zipped = gzipped(&plain, dir.path());
-        let got = answer(&expect(cache_dir, &["solve", &zipped, "--json"], 0));
+        let got = solve_answer(&expect(cache_dir, &["solve", &zipped, "--json"], 0));
         assert_eq!(got, want, "{name}.gz");
         let text = std::fs::read(&plain).unwrap();
         let (code, out) = piped(cache_dir, &["solve", "-", "--json"], &text);
         assert_eq!(code, Some(0), "{name} on stdin");
-        assert_eq!(answer(&out), want, "{name} on stdin");
+        assert_eq!(solve_answer(&out), want, "{name} on stdin");
     }
     let mps = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/mps/orchard_crates.mps");
-    let want = answer(&expect(
+    let want = solve_answer(&expect(
         cache_dir,
         &["solve", mps.to_str().unwrap(), "--build", "--json"],
         0,
     ));
     let zipped = gzipped(&mps, dir.path());
     assert_eq!(
-        answer(&expect(cache_dir, &["solve", &zipped, "--json"], 0)),
+        solve_answer(&expect(cache_dir, &["solve", &zipped, "--json"], 0)),
         want
     );
     let (_, out) = piped(
@@ -79,7 +69,7 @@ fn compressed_and_piped_models_solve_as_the_plain_file() {
         &["solve", "-", "--json"],
         &std::fs::read(&mps).unwrap(),
     );
-    assert_eq!(answer(&out), want, "MPS on stdin");
+    assert_eq!(solve_answer(&out), want, "MPS on stdin");
 }
 
 #[test]

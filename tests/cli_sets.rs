@@ -8,7 +8,7 @@ use std::path::Path;
 use serde_json::Value;
 
 mod cli_support;
-use cli_support::{examples, expect, kernstep, text, transport_model};
+use cli_support::{examples, expect, kernstep, solve_answer, text, transport_model};
 
 /// The 3 x 3 transport model's Graver basis (its 15 circuits: 9 of length 4 and 6 of length 6,
 /// the cycles of K_{3,3}; Sturmfels 1996, chapter 5) written by `build --out`.
@@ -30,15 +30,6 @@ fn written_set(dir: &Path) -> String {
     file.display().to_string()
 }
 
-fn answer(doc: &str) -> (Value, Value, Value) {
-    let doc: Value = serde_json::from_str(doc).unwrap();
-    (
-        doc["status"].clone(),
-        doc["objective"].clone(),
-        doc["x"].clone(),
-    )
-}
-
 #[test]
 fn a_set_file_serves_solve_trace_and_batch_as_the_cache_does() {
     let cache = tempfile::tempdir().unwrap();
@@ -51,7 +42,7 @@ fn a_set_file_serves_solve_trace_and_batch_as_the_cache_does() {
         0,
     );
     let from_file = expect(cache.path(), &["solve", model, "--set", &set, "--json"], 0);
-    assert_eq!(answer(&from_file), answer(&cached));
+    assert_eq!(solve_answer(&from_file), solve_answer(&cached));
     let doc: Value = serde_json::from_str(&from_file).unwrap();
     assert_eq!(doc["set"]["source"], "file");
     assert_eq!(doc["set"]["file"], set.as_str());

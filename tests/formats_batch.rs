@@ -20,16 +20,7 @@ fn names() -> Vec<String> {
 }
 
 fn status() -> impl Strategy<Value = DayStatus> {
-    prop::sample::select(vec![
-        DayStatus::Optimal,
-        DayStatus::OptimalWithinNorm,
-        DayStatus::Infeasible,
-        DayStatus::Unknown,
-        DayStatus::Unbounded,
-        DayStatus::StepLimit,
-        DayStatus::Interrupted,
-        DayStatus::Error,
-    ])
+    prop::sample::select(DayStatus::ALL.to_vec())
 }
 
 prop_compose! {

@@ -82,25 +82,26 @@ impl DayStatus {
 
     /// The status written as `word`, if any.
     pub fn from_word(word: &str) -> Option<DayStatus> {
-        ALL.into_iter().find(|s| s.word() == word)
+        DayStatus::ALL.into_iter().find(|s| s.word() == word)
     }
+
+    /// Every status, in the order of the summary.
+    pub const ALL: [DayStatus; 8] = [
+        DayStatus::Optimal,
+        DayStatus::OptimalWithinNorm,
+        DayStatus::Infeasible,
+        DayStatus::Unknown,
+        DayStatus::Unbounded,
+        DayStatus::StepLimit,
+        DayStatus::Interrupted,
+        DayStatus::Error,
+    ];
 
     /// True when the day has no proven answer (the run then exits 1).
     pub fn unproven(self) -> bool {
         !matches!(self, DayStatus::Optimal | DayStatus::OptimalWithinNorm)
     }
 }
-
-const ALL: [DayStatus; 8] = [
-    DayStatus::Optimal,
-    DayStatus::OptimalWithinNorm,
-    DayStatus::Infeasible,
-    DayStatus::Unknown,
-    DayStatus::Unbounded,
-    DayStatus::StepLimit,
-    DayStatus::Interrupted,
-    DayStatus::Error,
-];
 
 /// The nonzero entries of a plan by variable name, in model order (a JSON object).
 #[derive(Debug, Clone, PartialEq, Eq, Default)]

@@ -205,3 +205,14 @@ pub fn check_integer_ticks(svg: &str) -> usize {
     }
     axes.len()
 }
+
+/// What a `solve --json` document answers: status, objective and plan (the file names and
+/// times aside).
+pub fn solve_answer(doc: &str) -> (Value, Value, Value) {
+    let doc: Value = serde_json::from_str(doc).unwrap();
+    (
+        doc["status"].clone(),
+        doc["objective"].clone(),
+        doc["x"].clone(),
+    )
+}
