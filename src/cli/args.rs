@@ -38,6 +38,11 @@ pub enum Command {
     Batch(super::batch::BatchArgs),
     /// Run the whole job on a built-in invented scenario: test set, 30 days, table, trace.
     Demo(super::demo::DemoArgs),
+    /// Print the completion script of a shell (for example
+    /// `kernstep completions bash > ~/.local/share/bash-completion/completions/kernstep`).
+    Completions(super::shell::CompletionsArgs),
+    /// Print the manual page (roff; `kernstep manual | man -l -`).
+    Manual,
 }
 
 /// Arguments of `analyze`.

@@ -33,7 +33,7 @@ pub struct BatchArgs {
     /// standard input.
     pub days: PathBuf,
     /// Worker threads for the days (default: one per core).
-    #[arg(long, value_name = "N")]
+    #[arg(long, short = 'j', value_name = "N")]
     pub threads: Option<usize>,
     /// Warm-start each day from the previous day's plan (the days then run one after another).
     #[arg(long)]
@@ -41,7 +41,7 @@ pub struct BatchArgs {
     #[command(flatten)]
     pub serving: ServeArgs,
     /// Write the results to FILE instead of stdout (the summary then goes to stdout).
-    #[arg(long, value_name = "FILE")]
+    #[arg(long, short = 'o', value_name = "FILE")]
     pub out: Option<PathBuf>,
     /// Layout of the results.
     #[arg(long, value_enum, default_value_t = Format::Jsonl)]

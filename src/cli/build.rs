@@ -54,7 +54,7 @@ pub struct BuildArgs {
     #[arg(long, value_enum, default_value_t = MethodArg::Lift)]
     pub method: MethodArg,
     /// Worker threads (default: one per core).
-    #[arg(long, value_name = "N")]
+    #[arg(long, short = 'j', value_name = "N")]
     pub threads: Option<usize>,
     /// Overnight budget (`90s`, `40m`, `8h`): deepen the norm limit one level at a time and
     /// keep the largest level that finishes in the budget (and under the memory cap), stored
@@ -75,7 +75,7 @@ pub struct BuildArgs {
     #[arg(long, value_enum, default_value_t = ProgressArg::Auto)]
     pub progress: ProgressArg,
     /// Write the set of the one model to FILE (JSON) instead of the cache.
-    #[arg(long, value_name = "FILE")]
+    #[arg(long, short = 'o', value_name = "FILE")]
     pub out: Option<PathBuf>,
     /// Rebuild even when a valid entry exists, replacing it.
     #[arg(long)]

@@ -16,6 +16,7 @@ mod parse;
 mod progress;
 #[cfg(feature = "mpi")]
 mod ranked;
+mod shell;
 mod solve;
 mod table;
 mod trace;
@@ -40,6 +41,8 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Trace(a) => trace::run(&a),
         Command::Batch(a) => batch::run(&a),
         Command::Demo(a) => demo::run(&a),
+        Command::Completions(a) => shell::completions(&a),
+        Command::Manual => shell::manual(),
     };
     match outcome {
         Err(err) => match err.downcast_ref::<limits::BuildStopped>() {
