@@ -56,3 +56,24 @@ fn short_flags_act_as_their_long_forms() {
     let doc: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
     assert_eq!(doc["elements"].as_array().unwrap().len(), 15);
 }
+
+/// A directory build takes the MPS files inside too (they were passed over without a word).
+#[test]
+fn a_directory_build_takes_mps_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let models = tempfile::tempdir().unwrap();
+    let mps = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/mps/orchard_crates.mps");
+    std::fs::copy(&mps, models.path().join("orchard_crates.mps")).unwrap();
+    let rows: Value = serde_json::from_str(&expect(
+        dir.path(),
+        &["build", models.path().to_str().unwrap(), "--json"],
+        0,
+    ))
+    .unwrap();
+    assert_eq!(rows.as_array().unwrap().len(), 1);
+    assert!(rows[0]["model"]
+        .as_str()
+        .unwrap()
+        .ends_with("orchard_crates.mps"));
+}

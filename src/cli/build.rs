@@ -32,7 +32,8 @@ use super::table::write_table;
 /// Arguments of `build`.
 #[derive(Debug, Args)]
 pub struct BuildArgs {
-    /// Model files, transport scenario files, or directories of them (every .json and .toml inside).
+    /// Model files, transport scenario files, or directories of them (every .json, .toml and
+    /// .mps file inside, .gz compressed too).
     #[arg(required = true, value_name = "MODEL")]
     pub models: Vec<PathBuf>,
     /// Which set: the Graver basis, or the Hilbert basis of the sign-restricted kernel.

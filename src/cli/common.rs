@@ -7,7 +7,8 @@ use std::sync::{Arc, OnceLock};
 
 use anyhow::Context;
 use clap::{Args, ValueEnum};
-use kernstep::model::Model;
+use kernstep::input::syntax_path;
+use kernstep::model::{Model, ModelKind};
 use kernstep::testset::{by_cycles, serve, serve_file, Engine, Served, SetLibrary};
 use signal_hook::consts::{SIGINT, SIGTERM};
 
@@ -151,7 +152,8 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
 }
 
 /// The model files named on the command line: files as given, directories replaced by the
-/// `.json` and `.toml` files directly inside them, in name order.
+/// `.json`, `.toml` and `.mps` files (also `.gz` compressed) directly inside them, in name
+/// order.
 pub fn model_paths(inputs: &[PathBuf]) -> anyhow::Result<Vec<PathBuf>> {
     let mut out = Vec::new();
     for input in inputs {
@@ -163,7 +165,10 @@ pub fn model_paths(inputs: &[PathBuf]) -> anyhow::Result<Vec<PathBuf>> {
                 .collect();
             found.sort();
             if found.is_empty() {
-                anyhow::bail!("{}: no .json or .toml model files inside", input.display());
+                anyhow::bail!(
+                    "{}: no .json, .toml or .mps model files inside",
+                    input.display()
+                );
             }
             out.extend(found);
         } else {
@@ -173,10 +178,10 @@ pub fn model_paths(inputs: &[PathBuf]) -> anyhow::Result<Vec<PathBuf>> {
     Ok(out)
 }
 
+/// A file a directory build takes: a model or scenario file by its extension (also under
+/// `.gz`).
 fn is_model_file(p: &Path) -> bool {
-    p.extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("json") || e.eq_ignore_ascii_case("toml"))
+    ModelKind::from_path(syntax_path(p)).is_some()
 }
 
 /// Where a solving verb gets its test set: the cache, a build on a miss (within limits), and
