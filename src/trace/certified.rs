@@ -2,12 +2,15 @@
 //! independently, and judge what is proven ([`crate::certify::judge`]). solve, trace and the
 //! re-planning of days all run it, so none derives a status or skips a check.
 
+use super::bound::BoundDoc;
+use super::outcome::Outcome;
 use super::recheck::{recheck_with_bound, Recheck};
 use crate::bound::{DualBound, Multipliers};
 use crate::certify::{judge, Answer};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
-use crate::solve::{Numbers, Prepared, Verdict};
+use crate::model::Model;
+use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// A solve's verdict with its dual bound, its independent re-check and the answer they
 /// certify.
@@ -52,5 +55,45 @@ pub fn certify(
         bound,
         recheck,
         answer,
+    })
+}
+
+/// One certified solve as the reports show it: the verdict, its re-check, the outcome with
+/// variables and rows named, and the dual bound of a partial set's plan.
+pub(crate) struct Reported {
+    /// What the solver returned.
+    pub verdict: Verdict,
+    /// The independent re-check of its claim.
+    pub recheck: Option<Recheck>,
+    /// The certified answer, named.
+    pub outcome: Outcome,
+    /// The dual bound of the plan, when a partial set's plan has one.
+    pub bound: Option<BoundDoc>,
+}
+
+/// Solves `model` with `prepared` from `start` and certifies the verdict ([`certify`]): the
+/// sequence behind the solve and the trace documents.
+pub(crate) fn solve_reported(
+    prepared: &Prepared,
+    model: &Model,
+    options: &augment::Options,
+    start: Option<&WarmStart>,
+    cancel: &dyn Fn() -> bool,
+) -> Result<Reported> {
+    let verdict = prepared.solve(model, options, start, cancel)?;
+    let Certified {
+        verdict,
+        bound,
+        recheck,
+        answer,
+    } = certify(prepared, &model.matrix, Numbers::of(model), verdict, None)?;
+    Ok(Reported {
+        outcome: Outcome::of_answer(&answer, &model.variable_names, &model.row_names),
+        bound: verdict
+            .optimum()
+            .zip(bound.as_ref())
+            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+        verdict,
+        recheck,
     })
 }

@@ -13,7 +13,7 @@ use augment::{Options, Phase, TraceStep};
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
-use super::certified::{certify, Certified};
+use super::certified::{solve_reported, Reported};
 use super::decimal::Decimal;
 use super::outcome::{sign_number, Outcome};
 use super::recheck::Recheck;
@@ -120,13 +120,12 @@ pub fn record(
     warm: Option<&WarmStart>,
     cancel: &dyn Fn() -> bool,
 ) -> Result<TraceDocument> {
-    let verdict = prepared.solve(model, &options.trace(true), warm, cancel)?;
-    let Certified {
+    let Reported {
         verdict,
-        bound,
         recheck,
-        answer,
-    } = certify(prepared, &model.matrix, Numbers::of(model), verdict, None)?;
+        outcome,
+        bound,
+    } = solve_reported(prepared, model, &options.trace(true), warm, cancel)?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
         schema: TRACE_SCHEMA.to_string(),
@@ -153,11 +152,8 @@ pub fn record(
         x: None,
         objective: None,
         violation: None,
-        outcome: Outcome::of_answer(&answer, &model.variable_names, &model.row_names),
-        bound: verdict
-            .optimum()
-            .zip(bound.as_ref())
-            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+        outcome,
+        bound,
         recheck,
         seconds: 0.0,
     };

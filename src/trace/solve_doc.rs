@@ -5,7 +5,7 @@ use augment::Coverage;
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
-use super::certified::{certify, Certified};
+use super::certified::{solve_reported, Reported};
 use super::decimal::Decimal;
 use super::document::TRACE_SCHEMA;
 use super::outcome::Outcome;
@@ -115,7 +115,7 @@ pub struct SolveDocument {
 }
 
 /// Solves `model` with `prepared` from the context's start, certifies the verdict
-/// ([`certify`]) and records the document.
+/// ([`super::certify`]) and records the document.
 pub fn solve_document(
     prepared: &Prepared,
     model: &Model,
@@ -124,13 +124,12 @@ pub fn solve_document(
     cancel: &dyn Fn() -> bool,
 ) -> Result<SolveDocument> {
     let start = context.warm.or(context.base);
-    let verdict = prepared.solve(model, options, start, cancel)?;
-    let Certified {
+    let Reported {
         verdict,
-        bound,
         recheck,
-        answer,
-    } = certify(prepared, &model.matrix, Numbers::of(model), verdict, None)?;
+        outcome,
+        bound,
+    } = solve_reported(prepared, model, options, start, cancel)?;
     let (x, objective, violation) = reached(model, &verdict)?;
     let (feasibility, cost) = verdict.steps();
     Ok(SolveDocument {
@@ -138,11 +137,8 @@ pub fn solve_document(
         model: context.model.to_string(),
         variant: context.variant.map(String::from),
         warm_start: context.warm.is_some(),
-        status: Outcome::of_answer(&answer, &model.variable_names, &model.row_names),
-        bound: verdict
-            .optimum()
-            .zip(bound.as_ref())
-            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+        status: outcome,
+        bound,
         objective: objective.map(Decimal),
         violation: violation.map(Decimal),
         x,
