@@ -51,8 +51,13 @@ pub enum DayStatus {
 impl DayStatus {
     /// The status of `result`.
     pub fn of(result: &DayResult) -> DayStatus {
+        DayStatus::judged(result, result.answer().as_ref())
+    }
+
+    /// The status of `result`, whose certified answer is `answer`.
+    fn judged(result: &DayResult, answer: Option<&Answer>) -> DayStatus {
         match &result.outcome {
-            DayOutcome::Solved(_) => match result.answer() {
+            DayOutcome::Solved(_) => match answer {
                 Some(Answer::Optimal { .. }) => DayStatus::Optimal,
                 Some(Answer::Feasible { .. }) => DayStatus::OptimalWithinNorm,
                 Some(Answer::Infeasible(_)) => DayStatus::Infeasible,
@@ -198,6 +203,8 @@ pub struct DayRecord<'a> {
 impl<'a> DayRecord<'a> {
     /// The record of `result`, its plan named by `names`.
     pub fn of(result: &'a DayResult, names: &'a [String]) -> DayRecord<'a> {
+        // Judged once: the status and the detail both read it.
+        let judged = result.answer();
         let answer = optimum(result);
         let (bound, gap) = answer
             .zip(result.bound.as_ref())
@@ -206,8 +213,8 @@ impl<'a> DayRecord<'a> {
         DayRecord {
             day: result.id.as_deref().map(Cow::Borrowed),
             line: result.line,
-            status: DayStatus::of(result),
-            detail: detail(result),
+            status: DayStatus::judged(result, judged.as_ref()),
+            detail: detail(result, judged.as_ref()),
             objective: answer.map(|(o, _)| o),
             bound,
             gap,
@@ -237,10 +244,11 @@ pub fn steps(result: &DayResult) -> Option<u64> {
     }
 }
 
-/// Why a day has no proven answer, in words (`None` for a proven optimum).
-fn detail(result: &DayResult) -> Option<String> {
+/// Why a day has no proven answer, in words (`None` for a proven optimum); `answer` is the
+/// day's certified answer.
+fn detail(result: &DayResult, answer: Option<&Answer>) -> Option<String> {
     let answer = match &result.outcome {
-        DayOutcome::Solved(_) => result.answer()?,
+        DayOutcome::Solved(_) => answer?,
         DayOutcome::Failed(e) => return Some(e.to_string()),
         DayOutcome::NotRun => return Some("not solved: interrupted before this day".into()),
     };
@@ -253,7 +261,7 @@ fn detail(result: &DayResult) -> Option<String> {
             ),
             None => format!("no improving move of norm <= {norm}; no finite dual bound"),
         },
-        Answer::Infeasible(proof) => infeasible_detail(&proof),
+        Answer::Infeasible(proof) => infeasible_detail(proof),
         Answer::Unknown { violation } => format!(
             "no feasible plan found (violation {violation}); the move set is incomplete, so this is not a proof of infeasibility"
         ),
