@@ -192,8 +192,8 @@ impl Job<'_> {
             self.deepen(model, &analysis, control.time_limit(budget), &mut report)?;
             return Ok(report);
         }
-        let key = entry_key(&model.matrix, &spec);
-        report.key = Some(key.digest().to_hex());
+        let requested = entry_key(&model.matrix, &spec).digest().to_hex();
+        report.key = Some(requested.clone());
         let obtained = match self.destination {
             Destination::File(path) => {
                 match build(&model.matrix, &analysis, &spec, &control, None)? {
@@ -214,7 +214,7 @@ impl Job<'_> {
         };
         report.record(obtained);
         report.cut_nothing =
-            report.status == JobStatus::Built && report.key != Some(key.digest().to_hex());
+            report.status == JobStatus::Built && report.key.as_ref() != Some(&requested);
         Ok(report)
     }
 
@@ -290,10 +290,10 @@ impl Job<'_> {
             report.status = JobStatus::Stopped { reason };
             return Ok(());
         };
-        report.key = Some(built.key.digest().to_hex());
         match self.destination {
             Destination::File(path) => self.write(built, path, report)?,
             Destination::Cache(library) => {
+                report.key = Some(built.key.digest().to_hex());
                 report.elements = Some(built.set.elements.len());
                 report.replaced = library.keep(built)?;
             }
