@@ -103,6 +103,7 @@ pub mod network;
 pub mod scenario;
 pub mod solve;
 pub mod testset;
+pub mod text;
 pub mod trace;
 
 /// The augmentation loop (options, statuses, move sets), so that a library user needs only

@@ -48,6 +48,33 @@ pub enum Sign {
     NonPositive,
 }
 
+impl Sign {
+    /// The character that stands for the sign in a pattern: `f` free, `+` (`>= 0`), `-`
+    /// (`<= 0`).
+    pub fn symbol(self) -> char {
+        match self {
+            Sign::Free => 'f',
+            Sign::NonNegative => '+',
+            Sign::NonPositive => '-',
+        }
+    }
+
+    /// The sign a pattern character stands for (`F` too), or `None`.
+    pub fn from_symbol(c: char) -> Option<Sign> {
+        match c {
+            '+' => Some(Sign::NonNegative),
+            '-' => Some(Sign::NonPositive),
+            'f' | 'F' => Some(Sign::Free),
+            _ => None,
+        }
+    }
+
+    /// The signs as a pattern of [`Sign::symbol`] characters, such as `++f-`.
+    pub fn pattern(signs: &[Sign]) -> String {
+        signs.iter().map(|s| s.symbol()).collect()
+    }
+}
+
 /// Limits the set was truncated to when it was built.
 #[derive(Clone, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
 pub struct Truncation {

@@ -18,9 +18,9 @@ use kernstep::input::is_stdin;
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
 use kernstep::solve::{ParsedLine, Prepared};
+use kernstep::text::summary_text;
 
 use super::common::{capped_threads, interrupted, with_threads, write_atomically, ServeArgs};
-use super::table::write_pairs;
 
 /// Arguments of `batch`.
 #[derive(Debug, Args)]
@@ -182,39 +182,6 @@ pub(super) fn write_summary(
         writeln!(out, "{}", serde_json::to_string_pretty(summary)?)?;
         return Ok(());
     }
-    let t = &summary.tally;
-    let mut rows = vec![("days".to_string(), t.days.to_string())];
-    let counts = [
-        ("optimal", t.optimal),
-        ("  of which by dual bound", t.optimal_by_bound),
-        ("optimal within norm", t.optimal_within_norm),
-        ("infeasible", t.infeasible),
-        ("unknown (partial set, no plan found)", t.unknown),
-        ("unbounded", t.unbounded),
-        ("step limit", t.step_limit),
-        ("not solved (Ctrl-C)", t.interrupted),
-        ("bad lines or errors", t.errors),
-    ];
-    rows.extend(
-        counts
-            .iter()
-            .filter(|(label, n)| *n > 0 || *label == "optimal")
-            .map(|(label, n)| (label.to_string(), n.to_string())),
-    );
-    if let Some(gap) = &t.largest_gap {
-        rows.push(("largest bound gap".into(), gap.clone()));
-    }
-    rows.push(("total objective".into(), t.total_objective.to_string()));
-    rows.push(("solve time".into(), format!("{:.3} s", t.solve_seconds)));
-    rows.push(("wall time".into(), format!("{:.3} s", summary.wall_seconds)));
-    rows.push((
-        "test set".into(),
-        match summary.set.as_str() {
-            "network" => "the cycles of the network (implicit: nothing enumerated)".into(),
-            _ => format!("{} moves, {}", summary.moves, summary.set),
-        },
-    ));
-    write_pairs(out, &rows)?;
-    writeln!(out, "caution: {}", summary.caution)?;
+    out.write_all(summary_text(summary).as_bytes())?;
     Ok(())
 }

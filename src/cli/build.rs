@@ -16,18 +16,17 @@ use kernstep::scenario::PlanInput;
 #[cfg(feature = "mpi")]
 use kernstep::testset::{build, entry_key, BuildOutcome};
 use kernstep::testset::{
-    BoxPolicy, BudgetRecord, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit,
-    SetAside, StateRecord,
+    BoxPolicy, BudgetRecord, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit, SetAside,
 };
+use kernstep::text::{cell, job_text, kind_name, table, StopWords, SHORT_KEY};
 use serde::Serialize;
 
 use super::common::{
-    model_paths, overflow_named, render_chain, signal_status, with_threads, CacheArgs, EngineArg,
+    overflow_named, render_chain, signal_status, with_threads, CacheArgs, EngineArg,
 };
 use super::limits::LimitArgs;
 use super::parse;
 use super::progress::{BuildProgress, ProgressArg};
-use super::table::write_table;
 
 /// Arguments of `build`.
 #[derive(Debug, Args)]
@@ -136,11 +135,10 @@ fn parse_signs(pattern: &str, n: usize) -> anyhow::Result<Vec<Sign>> {
     let signs = pattern
         .chars()
         .enumerate()
-        .map(|(i, c)| match c {
-            '+' => Ok(Sign::NonNegative),
-            '-' => Ok(Sign::NonPositive),
-            'f' | 'F' => Ok(Sign::Free),
-            other => anyhow::bail!("--signs: character {} is {other:?}; use +, - or f", i + 1),
+        .map(|(i, c)| {
+            Sign::from_symbol(c).ok_or_else(|| {
+                anyhow::anyhow!("--signs: character {} is {c:?}; use +, - or f", i + 1)
+            })
         })
         .collect::<anyhow::Result<Vec<_>>>()?;
     if signs.len() != n {
@@ -242,7 +240,7 @@ pub(super) fn run_with(
     args: &BuildArgs,
     share: Option<&dyn WorkShare>,
 ) -> anyhow::Result<ExitCode> {
-    let paths = model_paths(&args.models)?;
+    let paths = PlanInput::files(&args.models)?;
     if args.out.is_some() && paths.len() != 1 {
         anyhow::bail!("--out writes one set: name exactly one model");
     }
@@ -278,29 +276,20 @@ fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
     let cells: Vec<Vec<String>> = rows
         .iter()
         .map(|r| {
+            let report = r.report.as_ref();
+            let key = report.and_then(|r| r.key.as_deref());
             vec![
                 r.model.clone(),
-                r.report
-                    .as_ref()
-                    .and_then(|r| r.key.as_deref())
-                    .map_or("-".into(), |k| k[..12.min(k.len())].to_string()),
-                r.report
-                    .as_ref()
-                    .map_or("-".into(), |r| format!("{:?}", r.kind).to_lowercase()),
-                r.report
-                    .as_ref()
-                    .and_then(|r| r.elements)
-                    .map_or("-".into(), |e| e.to_string()),
+                cell(key.map(|k| &k[..SHORT_KEY.min(k.len())])),
+                cell(report.map(|r| kind_name(r.kind))),
+                cell(report.and_then(|r| r.elements)),
                 format!("{:.2}", r.seconds),
                 r.status.clone(),
             ]
         })
         .collect();
-    write_table(
-        out,
-        &["model", "key", "kind", "elements", "seconds", "status"],
-        &cells,
-    )
+    let head = ["model", "key", "kind", "elements", "seconds", "status"];
+    out.write_all(table(&head, &cells).as_bytes())
 }
 
 /// Builds one model's set; every problem becomes the row's status, not an error.
@@ -317,7 +306,11 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
     match run_job(args, path, share) {
         Ok((report, width)) => {
             warn_set_aside(report.set_aside.as_ref());
-            row.status = status_text(args, &report, width);
+            let words = Words {
+                limits: &args.limits,
+                width,
+            };
+            row.status = job_text(&report, args.budget.is_some(), &words);
             if let (JobStatus::Stopped { .. }, Some(_)) = (report.status, &report.kept) {
                 row.resume_command = Some(command_line());
             }
@@ -360,78 +353,20 @@ fn run_job(
     Ok((outcome?, model.variables()))
 }
 
-/// The report in words: what was done, and for a stop why, what was kept and how to go on.
-fn status_text(args: &BuildArgs, report: &JobReport, width: usize) -> String {
-    let mut status = match (report.status, &report.written_to) {
-        (JobStatus::Stopped { reason }, _) => return stopped_text(args, report, reason, width),
-        (JobStatus::Present, _) if args.budget.is_some() => {
-            "present (the whole request; no deepening needed)".to_string()
-        }
-        (JobStatus::Present, _) => "present".to_string(),
-        (_, Some(path)) => format!("written to {}", path.display()),
-        _ if report.implicit() => {
-            "built (implicit: the network's cycles, nothing enumerated)".to_string()
-        }
-        _ => "built".to_string(),
-    };
-    if report.cut_nothing {
-        status.push_str(" (complete: the truncation cut nothing)");
-    }
-    if let Some(state) = &report.resumed {
-        status.push_str(&format!(" (resumed from {})", describe(state)));
-    }
-    if let Some(damage) = &report.replaced {
-        status.push_str(&format!(" (replaced a damaged entry: {damage})"));
-    }
-    if let Some(budget) = &report.budget {
-        status.push_str(&budget_text(args, budget, width));
-    }
-    status
+/// The limits of a build of vectors of `width` entries named by their flags, and this
+/// command as the one that resumes the build.
+struct Words<'a> {
+    limits: &'a LimitArgs,
+    width: usize,
 }
 
-/// What a budgeted build reached, after the status word.
-fn budget_text(args: &BuildArgs, budget: &BudgetRecord, width: usize) -> String {
-    let limit = budget.norm_limit.unwrap_or_default();
-    let mut text = match (budget.complete, budget.proven_bound) {
-        (false, bound) => format!(
-            " within the budget: norm limit {limit} ({}; partial)",
-            bound.map_or("no finite proven bound".to_string(), |b| format!(
-                "proven bound {b}"
-            ))
-        ),
-        (true, Some(bound)) if limit >= bound => {
-            format!(" within the budget: complete (norm limit {limit} reached the proven bound)")
-        }
-        (true, _) => format!(" within the budget: complete (norm limit {limit} cut nothing)"),
-    };
-    if let Some(level) = budget.stopped_level() {
-        let reason = level.stopped.expect("a stopped level has a reason");
-        text.push_str(&format!(
-            "; norm limit {} stopped ({}) after {:.1} s",
-            level.norm_limit,
-            args.limits.named(reason, width),
-            level.seconds
-        ));
+impl StopWords for Words<'_> {
+    fn limit(&self, reason: StopReason) -> String {
+        self.limits.named(reason, self.width)
     }
-    text
-}
 
-/// A stopped build in words: why, what was kept, and how to go on.
-fn stopped_text(args: &BuildArgs, report: &JobReport, reason: StopReason, width: usize) -> String {
-    let why = args.limits.named(reason, width);
-    if let Some(level) = report.budget.as_ref().and_then(BudgetRecord::stopped_level) {
-        return format!(
-            "stopped: {why} at norm limit {}, the first level; nothing stored",
-            level.norm_limit
-        );
-    }
-    match &report.kept {
-        None => format!("stopped: {why}; nothing kept"),
-        Some(state) => format!(
-            "stopped: {why}; kept {}; resume with: {}",
-            describe(state),
-            command_line()
-        ),
+    fn resume(&self) -> String {
+        command_line()
     }
 }
 
@@ -445,15 +380,6 @@ pub(super) fn warn_set_aside(set_aside: Option<&SetAside>) {
             s.to.display()
         );
     }
-}
-
-/// A saved state in words.
-pub(super) fn describe(state: &StateRecord) -> String {
-    let within = if state.mid_stage { " (mid-stage)" } else { "" };
-    format!(
-        "stage {}/{}{within}, {} moves, {:.0} s of work",
-        state.stage, state.stages, state.moves, state.work_seconds
-    )
 }
 
 /// This process's command line, quoted for a POSIX shell: running it again resumes the build.

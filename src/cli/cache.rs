@@ -8,18 +8,13 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
-use ::cache::{Completeness, Digest, EntrySummary, PruneReport, SetKind, Sign, Store, Truncation};
+use ::cache::{PruneReport, Store};
 use anyhow::Context;
 use clap::{Args, Subcommand, ValueEnum};
-use kernstep::testset::{
-    CheckpointRecord, CheckpointState, EntryRecord, Listing, SetLibrary, VerifyRecord,
-};
+use kernstep::testset::{EntryRecord, Listing, SetLibrary, VerifyRecord};
+use kernstep::text::{entry_text, listing_text, prune_text, verify_text};
 
 use super::common::{interrupted, CacheArgs};
-use super::table::{write_pairs, write_table};
-
-/// Hex digits of a digest shown in tables (any unique prefix is accepted back as `KEY`).
-const SHORT_KEY: usize = 12;
 
 /// Arguments of `cache`.
 #[derive(Debug, Args)]
@@ -117,49 +112,7 @@ fn list(listing: &Listing, json: bool, out: &mut impl Write) -> anyhow::Result<E
     if json {
         writeln!(out, "{}", serde_json::to_string_pretty(listing)?)?;
     } else {
-        let now = now_unix();
-        let rows: Vec<Vec<String>> = listing
-            .entries
-            .iter()
-            .map(|s| summary_row(s, now))
-            .collect();
-        let head = [
-            "key",
-            "kind",
-            "width",
-            "elements",
-            "encoding",
-            "bytes",
-            "truncation",
-            "complete",
-            "age",
-        ];
-        write_table(out, &head, &rows)?;
-        if !listing.checkpoints.is_empty() {
-            writeln!(out, "\ncheckpoints")?;
-            let rows: Vec<Vec<String>> = listing
-                .checkpoints
-                .iter()
-                .map(|c| checkpoint_row(c, now))
-                .collect();
-            let head = ["key", "lifted", "moves", "work", "bytes", "age", "state"];
-            write_table(out, &head, &rows)?;
-        }
-        if !listing.locks.is_empty() {
-            writeln!(out, "\nlocks")?;
-            let rows: Vec<Vec<String>> = listing
-                .locks
-                .iter()
-                .map(|l| {
-                    vec![
-                        short_key(l.digest),
-                        age_text(now.saturating_sub(l.modified_unix)),
-                        if l.held { "held" } else { "stale" }.to_string(),
-                    ]
-                })
-                .collect();
-            write_table(out, &["key", "age", "state"], &rows)?;
-        }
+        out.write_all(listing_text(listing, now_unix()).as_bytes())?;
     }
     warn_unreadable(&listing.unreadable);
     Ok(ExitCode::SUCCESS)
@@ -169,88 +122,6 @@ fn list(listing: &Listing, json: bool, out: &mut impl Write) -> anyhow::Result<E
 fn warn_unreadable(unreadable: &[String]) {
     for problem in unreadable {
         eprintln!("kernstep: warning: {problem} (run `kernstep cache verify`)");
-    }
-}
-
-/// One checkpoint's row of the listing.
-fn checkpoint_row(c: &CheckpointRecord, now: u64) -> Vec<String> {
-    let state = match c.state {
-        CheckpointState::SetAside => "set aside",
-        CheckpointState::Building => "building",
-        CheckpointState::Unreadable => "unreadable",
-        CheckpointState::Stopped => "stopped",
-    };
-    let lifted = match (c.lifted, c.components, c.mid_stage) {
-        (Some(k), Some(n), Some(mid)) => format!("{k}/{n}{}", if mid { "+" } else { "" }),
-        _ => "-".into(),
-    };
-    vec![
-        short_key(c.file.digest),
-        lifted,
-        c.moves.map_or("-".into(), |m| m.to_string()),
-        c.work_seconds.map_or("-".into(), |w| age_text(w as u64)),
-        c.file.size_bytes.to_string(),
-        age_text(now.saturating_sub(c.file.modified_unix)),
-        state.to_string(),
-    ]
-}
-
-fn short_key(digest: Digest) -> String {
-    digest.to_hex()[..SHORT_KEY].to_string()
-}
-
-fn summary_row(s: &EntrySummary, now: u64) -> Vec<String> {
-    vec![
-        s.digest.to_hex()[..SHORT_KEY].to_string(),
-        kind_name(s.kind).to_string(),
-        s.width.to_string(),
-        s.elements.to_string(),
-        format!("{:?}", s.encoding).to_lowercase(),
-        s.size_bytes.to_string(),
-        truncation_text(&s.truncation),
-        completeness_text(&s.completeness),
-        age_text(now.saturating_sub(s.created_unix)),
-    ]
-}
-
-fn kind_name(kind: SetKind) -> &'static str {
-    match kind {
-        SetKind::Graver => "graver",
-        SetKind::Hilbert => "hilbert",
-        SetKind::Cycles => "cycles",
-    }
-}
-
-fn truncation_text(t: &Truncation) -> String {
-    let mut parts = Vec::new();
-    if let Some(n) = t.norm_limit {
-        parts.push(format!("norm<={n}"));
-    }
-    if let Some(b) = &t.bounds {
-        parts.push(format!("box({} bounds)", b.len()));
-    }
-    if parts.is_empty() {
-        "none".to_string()
-    } else {
-        parts.join(",")
-    }
-}
-
-fn completeness_text(c: &Completeness) -> String {
-    match c {
-        Completeness::Complete => "yes".to_string(),
-        Completeness::BoxTruncated => "box only".to_string(),
-        Completeness::NormTruncated { limit } => format!("norm<={limit} only"),
-    }
-}
-
-/// An age in the units `prune --older-than` takes, rounded down to the largest unit.
-fn age_text(seconds: u64) -> String {
-    match seconds {
-        s if s >= 86_400 => format!("{}d", s / 86_400),
-        s if s >= 3_600 => format!("{}h", s / 3_600),
-        s if s >= 60 => format!("{}m", s / 60),
-        s => format!("{s}s"),
     }
 }
 
@@ -264,82 +135,16 @@ fn show(entry: &EntryRecord, json: bool, out: &mut impl Write) -> anyhow::Result
     if json {
         writeln!(out, "{}", serde_json::to_string_pretty(entry)?)?;
     } else {
-        write_pairs(out, &shown_pairs(entry))?;
+        out.write_all(entry_text(entry, now_unix()).as_bytes())?;
     }
     Ok(ExitCode::SUCCESS)
-}
-
-fn shown_pairs(set: &EntryRecord) -> Vec<(String, String)> {
-    let m = &set.metadata;
-    let rows = m.matrix.len();
-    let cols = m.matrix.first().map_or(set.key.width(), Vec::len);
-    let per_element = match set.elements {
-        0 => "-".to_string(),
-        n => format!("{:.2}", set.size_bytes as f64 / n as f64),
-    };
-    let pair = |label: &str, value: String| (label.to_string(), value);
-    vec![
-        pair("key", set.digest.to_hex()),
-        pair("file", set.path.clone()),
-        pair("kind", kind_name(set.key.kind).to_string()),
-        pair("signs", sign_pattern(&set.key.signs)),
-        pair("truncation", truncation_text(&set.key.truncation)),
-        pair("complete", completeness_text(&m.completeness)),
-        pair("matrix", format!("{rows} x {cols}")),
-        pair("rank", m.rank.to_string()),
-        pair(
-            "Δ",
-            format!("{}{}", if m.delta_exact { "" } else { "<= " }, m.delta),
-        ),
-        pair("column number", m.column_number.to_string()),
-        pair(
-            "norm bound",
-            m.norm_bound.map_or("-".into(), |b| b.to_string()),
-        ),
-        pair("method", m.method.clone()),
-        pair("build seconds", format!("{:.2}", m.build_seconds)),
-        pair("built by", format!("kernstep {}", m.kernstep_version)),
-        pair("age", age_text(now_unix().saturating_sub(m.created_unix))),
-        pair("elements", set.elements.to_string()),
-        pair("width", set.width.to_string()),
-        pair("encoding", format!("{:?}", set.encoding).to_lowercase()),
-        pair("bytes", set.size_bytes.to_string()),
-        pair("bytes per element", per_element),
-    ]
-}
-
-/// The sign pattern in the characters `build --signs` takes.
-fn sign_pattern(signs: &[Sign]) -> String {
-    signs
-        .iter()
-        .map(|s| match s {
-            Sign::Free => 'f',
-            Sign::NonNegative => '+',
-            Sign::NonPositive => '-',
-        })
-        .collect()
 }
 
 fn verify(checked: &[VerifyRecord], json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
         writeln!(out, "{}", serde_json::to_string_pretty(checked)?)?;
     } else {
-        let rows: Vec<Vec<String>> = checked
-            .iter()
-            .map(|c| {
-                let state = match (c.ok, c.foreign) {
-                    (true, false) => "ok",
-                    (true, true) => "ok (foreign: sealed on first use)",
-                    (false, _) => "refused",
-                };
-                vec![
-                    short_key(c.digest),
-                    c.elements.map_or("-".into(), |e| e.to_string()),
-                    state.to_string(),
-                ]
-            })
-            .collect();
-        write_table(out, &["key", "elements", "state"], &rows)?;
+        out.write_all(verify_text(checked).as_bytes())?;
     }
     let refused: Vec<&String> = checked.iter().filter_map(|c| c.problem.as_ref()).collect();
     for problem in &refused {
@@ -367,38 +172,7 @@ fn prune(report: &PruneReport, json: bool, out: &mut impl Write) -> anyhow::Resu
     if json {
         writeln!(out, "{}", serde_json::to_string_pretty(report)?)?;
     } else {
-        let short = |ds: &[Digest]| match ds {
-            [] => "-".to_string(),
-            _ => ds
-                .iter()
-                .map(|d| short_key(*d))
-                .collect::<Vec<_>>()
-                .join(" "),
-        };
-        let pairs = [
-            ("entries removed", report.removed.len().to_string()),
-            ("removed keys", short(&report.removed)),
-            (
-                "checkpoints removed",
-                report.checkpoints_removed.len().to_string(),
-            ),
-            (
-                "set-aside checkpoints removed",
-                report.set_aside_removed.to_string(),
-            ),
-            ("unused locks removed", report.locks_removed.to_string()),
-            (
-                "temporary files removed",
-                report.temp_files_removed.to_string(),
-            ),
-            ("busy (left alone)", short(&report.busy)),
-            (
-                "unreadable (left alone)",
-                report.unreadable.len().to_string(),
-            ),
-        ]
-        .map(|(label, value)| (label.to_string(), value));
-        write_pairs(out, &pairs)?;
+        out.write_all(prune_text(report).as_bytes())?;
     }
     warn_unreadable(&report.unreadable);
     Ok(ExitCode::SUCCESS)
@@ -444,17 +218,4 @@ fn import(
         )?;
     }
     Ok(ExitCode::SUCCESS)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn ages_are_shown_in_the_largest_whole_unit() {
-        assert_eq!(age_text(59), "59s");
-        assert_eq!(age_text(60), "1m");
-        assert_eq!(age_text(7_199), "1h");
-        assert_eq!(age_text(86_400 * 3 + 5), "3d");
-    }
 }

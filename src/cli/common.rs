@@ -7,8 +7,7 @@ use std::sync::{Arc, OnceLock};
 
 use anyhow::Context;
 use clap::{Args, ValueEnum};
-use kernstep::input::syntax_path;
-use kernstep::model::{Model, ModelKind};
+use kernstep::model::Model;
 use kernstep::testset::{by_cycles, serve, serve_file, Engine, Served, SetLibrary};
 use signal_hook::consts::{SIGINT, SIGTERM};
 
@@ -149,39 +148,6 @@ pub fn with_threads<T: Send>(
 /// readers see the old file or the whole new one, never a part.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
     cache::write_atomic(path, bytes).with_context(|| format!("writing {}", path.display()))
-}
-
-/// The model files named on the command line: files as given, directories replaced by the
-/// `.json`, `.toml` and `.mps` files (also `.gz` compressed) directly inside them, in name
-/// order.
-pub fn model_paths(inputs: &[PathBuf]) -> anyhow::Result<Vec<PathBuf>> {
-    let mut out = Vec::new();
-    for input in inputs {
-        if input.is_dir() {
-            let mut found: Vec<PathBuf> = std::fs::read_dir(input)
-                .with_context(|| format!("reading directory {}", input.display()))?
-                .filter_map(|e| e.ok().map(|e| e.path()))
-                .filter(|p| p.is_file() && is_model_file(p))
-                .collect();
-            found.sort();
-            if found.is_empty() {
-                anyhow::bail!(
-                    "{}: no .json, .toml or .mps model files inside",
-                    input.display()
-                );
-            }
-            out.extend(found);
-        } else {
-            out.push(input.clone());
-        }
-    }
-    Ok(out)
-}
-
-/// A file a directory build takes: a model or scenario file by its extension (also under
-/// `.gz`).
-fn is_model_file(p: &Path) -> bool {
-    ModelKind::from_path(syntax_path(p)).is_some()
 }
 
 /// Where a solving verb gets its test set: the cache, a build on a miss (within limits), and

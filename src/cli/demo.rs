@@ -13,6 +13,7 @@ use kernstep::formats::batch::{DayRecord, DayStatus, Tally};
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
 use kernstep::solve::Prepared;
+use kernstep::text::{cell, table};
 use kernstep::trace::step_plot;
 use serde::Serialize;
 
@@ -24,7 +25,6 @@ use super::common::{
     CAUTION,
 };
 use super::limits::{BuildStopped, LimitArgs};
-use super::table::write_table;
 
 /// Where the embedded scenario lives in the source tree (for messages).
 const SCENARIO_PATH: &str = "examples/scenarios/vell_valley.toml";
@@ -238,18 +238,18 @@ impl Report<'_> {
             .days
             .iter()
             .map(|d| {
+                let ms = format!("{:.2}", d.ms);
                 vec![
                     d.day.clone(),
-                    d.status.to_string(),
-                    d.objective
-                        .map(|o| o.to_string())
-                        .unwrap_or_else(|| "-".into()),
-                    d.steps.map(|s| s.to_string()).unwrap_or_else(|| "-".into()),
-                    format!("{:.2}", d.ms),
+                    d.status.into(),
+                    cell(d.objective),
+                    cell(d.steps),
+                    ms,
                 ]
             })
             .collect();
-        write_table(out, &["day", "status", "objective", "steps", "ms"], &rows)?;
+        let head = ["day", "status", "objective", "steps", "ms"];
+        out.write_all(table(&head, &rows).as_bytes())?;
         let t = self.tally;
         writeln!(out)?;
         writeln!(

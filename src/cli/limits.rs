@@ -9,6 +9,7 @@ use std::time::Duration;
 use clap::Args;
 use kernstep::completion::{Control, StopReason};
 use kernstep::testset::{BuildLimits, SavedState, GUARD_PERCENT};
+use kernstep::text::state_text;
 
 use super::common::interrupted;
 
@@ -92,7 +93,7 @@ impl LimitArgs {
             reason,
             limit: self.named(reason, width),
             command,
-            kept: kept.map(|state| super::build::describe(&(&state).into())),
+            kept: kept.map(|state| state_text(&(&state).into())),
         }
     }
 }

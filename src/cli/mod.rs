@@ -9,7 +9,6 @@ mod build;
 mod cache;
 mod common;
 mod demo;
-mod explain;
 mod instance;
 mod limits;
 mod parse;
@@ -18,7 +17,6 @@ mod progress;
 mod ranked;
 mod shell;
 mod solve;
-mod table;
 mod trace;
 
 use std::process::ExitCode;

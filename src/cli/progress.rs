@@ -10,6 +10,7 @@ use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::completion::Progress;
 use kernstep::formats::progress::ProgressWatch;
+use kernstep::text::progress_text;
 
 /// Longest silence of a build whose stderr is not a terminal.
 pub const LINE_EVERY: Duration = Duration::from_secs(30);
@@ -74,13 +75,7 @@ impl BuildProgress {
     /// Shows a snapshot of the running completion.
     pub fn report(&self, p: &Progress) {
         let record = self.watch.record(&self.model, p);
-        let left = record.eta_seconds.map_or(String::new(), |s| {
-            format!(", about {} left", duration_text(s))
-        });
-        let text = format!(
-            "stage {}/{}, norm level {}, {} moves, {:.0} moves/s{left}",
-            p.stage, p.stages, p.level, p.elements, record.moves_per_second
-        );
+        let text = progress_text(&record);
         match self.mode {
             ProgressArg::Bar => self.bar.set_message(text),
             ProgressArg::Lines if self.line_due() => {
@@ -119,27 +114,5 @@ impl BuildProgress {
     fn write(&self, line: &str) {
         // Progress is best effort: a closed stderr must not stop the build.
         let _ = writeln!(io::stderr().lock(), "{line}");
-    }
-}
-
-/// Seconds as the largest one or two units (`45 s`, `12 min`, `3 h 20 min`).
-fn duration_text(seconds: f64) -> String {
-    let s = seconds.round() as u64;
-    match s {
-        0..=119 => format!("{s} s"),
-        120..=7199 => format!("{} min", s / 60),
-        _ => format!("{} h {} min", s / 3600, s % 3600 / 60),
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn durations_show_their_largest_units() {
-        assert_eq!(duration_text(75.0), "75 s");
-        assert_eq!(duration_text(725.0), "12 min");
-        assert_eq!(duration_text(12_000.0), "3 h 20 min");
     }
 }

@@ -7,21 +7,12 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
-use kernstep::trace::{
-    certificate_words, record, step_plot, terms, StepPhase, StepRecord, TraceDocument,
-};
+use kernstep::text::trace_text;
+use kernstep::trace::{record, step_plot};
 
 use super::common::write_atomically;
-use super::explain::{wrap, wrap_units};
 use super::instance::{cancelled, Instance, InstanceArgs};
-use super::solve::{bound_text, exit_code, set_text};
-
-/// Output width of the human trace.
-const WIDTH: usize = 100;
-/// A move column narrower than this moves below the step's numbers.
-const MIN_MOVE_WIDTH: usize = 28;
-/// A move is elided after this many lines.
-const MOVE_LINES: usize = 3;
+use super::solve::exit_code;
 
 /// Arguments of `trace`.
 #[derive(Debug, Args)]
@@ -46,17 +37,17 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
         instance.start(),
         &cancelled,
     )?;
+    let title = title(&instance);
     if let Some(path) = &args.svg {
-        write_atomically(
-            path,
-            step_plot(&doc.steps, &plot_title(&instance))?.as_bytes(),
-        )?;
+        write_atomically(path, step_plot(&doc.steps, &title)?.as_bytes())?;
     }
     let mut out = io::stdout().lock();
     if args.json {
         writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
     } else {
-        write_trace(&mut out, &instance, &doc)?;
+        let warm = instance.warm.is_some();
+        let text = trace_text(&doc, &title, warm, &instance.set, &instance.model);
+        out.write_all(text.as_bytes())?;
         if let Some(path) = &args.svg {
             writeln!(out, "plot written to {}", path.display())?;
         }
@@ -65,257 +56,10 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
     Ok(exit_code(&doc.outcome))
 }
 
-fn plot_title(instance: &Instance) -> String {
+/// `model` or `model / variant`: the trace's heading and the plot's title.
+fn title(instance: &Instance) -> String {
     match &instance.variant {
         Some(id) => format!("{} / {id}", instance.path),
         None => instance.path.clone(),
-    }
-}
-
-fn write_trace(out: &mut impl Write, instance: &Instance, doc: &TraceDocument) -> io::Result<()> {
-    let mut head = format!("trace of {}", plot_title(instance));
-    if instance.warm.is_some() {
-        head.push_str(", warm start");
-    }
-    write_wrapped(out, &head, 0)?;
-    write_wrapped(out, &format!("moves: {}", set_text(&instance.set)), 2)?;
-    if let Some(start) = &doc.start {
-        write_point(out, "start point", start, doc)?;
-    }
-    if !doc.steps.is_empty() {
-        writeln!(out)?;
-        write_steps(out, &doc.steps, &doc.variables)?;
-        writeln!(out)?;
-    }
-    if let Some(x) = &doc.x {
-        write_point(out, "final point", x, doc)?;
-    }
-    writeln!(out, "status: {}", doc.outcome)?;
-    let time = format!("{:.3} ms", doc.seconds * 1e3);
-    writeln!(out, "steps: {} in {time}", doc.steps.len())?;
-    if let Some(bound) = &doc.bound {
-        writeln!(out, "dual bound: {}", bound_text(bound))?;
-    }
-    let words = certificate_words(&doc.outcome, doc.recheck.as_ref(), &instance.model);
-    write_wrapped(out, &words, 2)
-}
-
-fn write_wrapped(out: &mut impl Write, text: &str, indent: usize) -> io::Result<()> {
-    for line in wrap(text, WIDTH, indent) {
-        writeln!(out, "{line}")?;
-    }
-    Ok(())
-}
-
-/// `start point: violation 14, cost 52: +7 brackwater_east, ...`, wrapped.
-fn write_point(
-    out: &mut impl Write,
-    label: &str,
-    x: &[i64],
-    doc: &TraceDocument,
-) -> io::Result<()> {
-    let violation: i128 = x
-        .iter()
-        .enumerate()
-        .map(|(i, &v)| {
-            let v = i128::from(v);
-            let below = doc.lower[i].map_or(0, |l| (i128::from(l) - v).max(0));
-            let above = doc.upper[i].map_or(0, |u| (v - i128::from(u)).max(0));
-            below + above
-        })
-        .sum();
-    let cost = doc.cost_at(x);
-    let cost = cost.map_or("beyond 128 bits".to_string(), |c| c.to_string());
-    let head = format!("{label}: violation {violation}, cost {cost}:");
-    let mut units: Vec<String> = head.split(' ').map(str::to_string).collect();
-    let entries = terms(x, &doc.variables);
-    if entries.is_empty() {
-        units.push("every variable 0".to_string());
-    }
-    let last = entries.len().saturating_sub(1);
-    units.extend(entries.into_iter().enumerate().map(
-        |(i, e)| {
-            if i < last {
-                format!("{e},")
-            } else {
-                e
-            }
-        },
-    ));
-    for line in wrap_units(units.iter().map(String::as_str), WIDTH, 2) {
-        writeln!(out, "{line}")?;
-    }
-    Ok(())
-}
-
-/// The step table: numbers in aligned columns, the signed move by name on the right.
-fn write_steps(out: &mut impl Write, steps: &[StepRecord], names: &[String]) -> io::Result<()> {
-    let rows: Vec<[String; 6]> = steps
-        .iter()
-        .map(|s| {
-            [
-                s.step.to_string(),
-                phase_name(s.phase).to_string(),
-                s.length.to_string(),
-                s.before.to_string(),
-                s.after.to_string(),
-                s.gain.to_string(),
-            ]
-        })
-        .collect();
-    let header = ["step", "phase", "length", "before", "after", "gain"];
-    let mut widths = header.map(str::len);
-    for row in &rows {
-        for (w, cell) in widths.iter_mut().zip(row) {
-            *w = (*w).max(cell.len());
-        }
-    }
-    let prefix: usize = widths.iter().map(|w| w + 2).sum();
-    if WIDTH.saturating_sub(prefix) < MIN_MOVE_WIDTH {
-        return write_stacked(out, steps, &rows, names);
-    }
-    let line = |cells: [&str; 6]| -> String {
-        let mut text = String::new();
-        for (i, (cell, w)) in cells.iter().zip(widths).enumerate() {
-            if i == 1 {
-                text.push_str(&format!("{cell:<w$}  "));
-            } else {
-                text.push_str(&format!("{cell:>w$}  "));
-            }
-        }
-        text
-    };
-    writeln!(out, "{}move (signed; added `length` times)", line(header))?;
-    for (row, step) in rows.iter().zip(steps) {
-        let cells = [0, 1, 2, 3, 4, 5].map(|i| row[i].as_str());
-        let lines = move_lines(&terms(&step.direction, names), WIDTH - prefix);
-        writeln!(out, "{}{}", line(cells), lines[0])?;
-        for rest in &lines[1..] {
-            writeln!(out, "{:prefix$}{rest}", "")?;
-        }
-    }
-    Ok(())
-}
-
-/// One block per step, for numbers too wide for the table.
-fn write_stacked(
-    out: &mut impl Write,
-    steps: &[StepRecord],
-    rows: &[[String; 6]],
-    names: &[String],
-) -> io::Result<()> {
-    for (row, step) in rows.iter().zip(steps) {
-        writeln!(out, "step {}  {}  length {}", row[0], row[1], row[2])?;
-        writeln!(out, "  before  {}", row[3])?;
-        writeln!(out, "  after   {}", row[4])?;
-        writeln!(out, "  gain    {}", row[5])?;
-        let lines = move_lines(&terms(&step.direction, names), WIDTH - 10);
-        writeln!(out, "  move    {}", lines[0])?;
-        for rest in &lines[1..] {
-            writeln!(out, "{:10}{rest}", "")?;
-        }
-    }
-    Ok(())
-}
-
-fn phase_name(phase: StepPhase) -> &'static str {
-    match phase {
-        StepPhase::Feasibility => "feasibility",
-        StepPhase::Cost => "cost",
-    }
-}
-
-/// The move's entries joined by `, ` in lines of at most `width` characters, at most
-/// [`MOVE_LINES`] of them; what does not fit is counted as `... +k more`.
-fn move_lines(entries: &[String], width: usize) -> Vec<String> {
-    let pieces: Vec<String> = entries
-        .iter()
-        .enumerate()
-        .map(|(i, e)| {
-            let piece = if i + 1 < entries.len() {
-                format!("{e},")
-            } else {
-                e.clone()
-            };
-            elide(&piece, width)
-        })
-        .collect();
-    let mut lines: Vec<Vec<&str>> = vec![Vec::new()];
-    for (i, piece) in pieces.iter().enumerate() {
-        let current = lines.last().map_or(0, |l| joined_len(l));
-        if current > 0 && current + 1 + piece.chars().count() > width {
-            if lines.len() == MOVE_LINES {
-                return finish_elided(lines, pieces.len() - i, width);
-            }
-            lines.push(Vec::new());
-        }
-        if let Some(last) = lines.last_mut() {
-            last.push(piece);
-        }
-    }
-    lines.into_iter().map(|l| l.join(" ")).collect()
-}
-
-/// Closes the last line with `... +k more`, dropping entries from it until the note fits.
-fn finish_elided(mut lines: Vec<Vec<&str>>, mut left: usize, width: usize) -> Vec<String> {
-    loop {
-        let note = format!("... +{left} more");
-        let last = lines.last_mut().map_or(0, |l| joined_len(l));
-        let fits = last + 1 + note.len() <= width;
-        match lines.last_mut() {
-            Some(l) if !fits && l.len() > 1 => {
-                l.pop();
-                left += 1;
-            }
-            _ => {
-                let mut out: Vec<String> = lines.iter().map(|l| l.join(" ")).collect();
-                if let Some(last) = out.last_mut() {
-                    last.push(' ');
-                    last.push_str(&note);
-                }
-                return out;
-            }
-        }
-    }
-}
-
-fn joined_len(pieces: &[&str]) -> usize {
-    let chars: usize = pieces.iter().map(|p| p.chars().count()).sum();
-    chars + pieces.len().saturating_sub(1)
-}
-
-/// `text` cut to `width` characters, with `…` marking the cut.
-fn elide(text: &str, width: usize) -> String {
-    if text.chars().count() <= width {
-        return text.to_string();
-    }
-    let kept: String = text.chars().take(width.saturating_sub(1)).collect();
-    format!("{kept}…")
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    fn entries(n: usize) -> Vec<String> {
-        (0..n).map(|i| format!("+1 lane_{i:02}")).collect()
-    }
-
-    #[test]
-    fn short_moves_stay_on_one_line() {
-        assert_eq!(move_lines(&entries(2), 40), ["+1 lane_00, +1 lane_01"]);
-    }
-
-    #[test]
-    fn long_moves_wrap_then_elide_within_the_width() {
-        let lines = move_lines(&entries(40), 30);
-        assert_eq!(lines.len(), MOVE_LINES);
-        assert!(lines.iter().all(|l| l.chars().count() <= 30), "{lines:?}");
-        let last = lines.last().unwrap();
-        let shown: usize = lines.iter().map(|l| l.matches("lane_").count()).sum();
-        assert!(
-            last.ends_with(&format!("... +{} more", 40 - shown)),
-            "{last}"
-        );
     }
 }

@@ -38,9 +38,10 @@ mod file;
 mod reader;
 mod replan;
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
-use crate::error::Result;
+use crate::error::{Error, Result};
+use crate::input::syntax_path;
 use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
@@ -277,6 +278,40 @@ impl PlanInput {
         match self {
             PlanInput::Scenario(_, model) | PlanInput::Model(model) => model,
         }
+    }
+
+    /// The input files `paths` name: a file as given, a directory replaced by the files
+    /// directly inside it that [`PlanInput::load`] takes by their extension (`.json`, `.toml`,
+    /// `.mps`, also `.gz` compressed), in name order. A directory with none is an error.
+    pub fn files(paths: &[PathBuf]) -> Result<Vec<PathBuf>> {
+        let mut out = Vec::new();
+        for path in paths {
+            if !path.is_dir() {
+                out.push(path.clone());
+                continue;
+            }
+            let io = |source| Error::Io {
+                path: path.clone(),
+                source,
+            };
+            let mut found = Vec::new();
+            for entry in std::fs::read_dir(path).map_err(io)? {
+                let file = entry.map_err(io)?.path();
+                if file.is_file() && ModelKind::from_path(syntax_path(&file)).is_some() {
+                    found.push(file);
+                }
+            }
+            if found.is_empty() {
+                return Err(Error::Input {
+                    file: path.display().to_string(),
+                    field: "directory".to_string(),
+                    message: "no .json, .toml or .mps model files inside".to_string(),
+                });
+            }
+            found.sort();
+            out.extend(found);
+        }
+        Ok(out)
     }
 }
 

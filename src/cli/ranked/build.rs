@@ -3,16 +3,16 @@
 use std::process::ExitCode;
 
 use anyhow::bail;
+use kernstep::scenario::PlanInput;
 
 use super::Ranks;
 use crate::cli::build::{follow, run_with, would_complete, BuildArgs, MethodArg};
-use crate::cli::common::model_paths;
 
 /// Rank 0 leads (the cache lock, checkpoints, the stored entry, the summary); the others
 /// follow with their share of every round. The ranks first agree whether a completion runs
 /// at all (a stored entry or a network's implicit one needs none: rank 0 reports it alone).
 pub fn run(args: &BuildArgs, ranks: Ranks) -> anyhow::Result<ExitCode> {
-    let paths = model_paths(&args.models)?;
+    let paths = PlanInput::files(&args.models)?;
     let [path] = paths.as_slice() else {
         bail!(
             "a build across MPI ranks takes exactly one model ({} given)",

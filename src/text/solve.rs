@@ -1,0 +1,132 @@
+//! A solve in words: the summary `kernstep solve` prints (status, objective, dual bound,
+//! steps, the set, the plan by name, the certificate).
+
+use std::fmt::Write;
+
+use augment::Coverage;
+
+use super::layout::{count_moves, pairs, table, wrapped};
+use crate::model::Model;
+use crate::testset::{Served, Source};
+use crate::trace::{certificate_words, BoundDoc, Outcome, SolveDocument, StepCounts};
+
+/// Output width of the human summary.
+pub const WIDTH: usize = 100;
+/// At most this many plan values are listed in the summary.
+const PLAN_ROWS: usize = 40;
+
+/// `4 moves, complete Graver basis, cache entry 1a2b3c4d5e6f`, or the implicit set of a
+/// network.
+pub fn set_text(set: &Served) -> String {
+    if set.source == Source::Network {
+        return "the cycles of the network (its Graver basis, implicit: nothing enumerated)"
+            .to_string();
+    }
+    let coverage = match set.coverage {
+        Coverage::Complete => "complete Graver basis".to_string(),
+        Coverage::BoxValid => "Graver basis truncated to the build's box".to_string(),
+        Coverage::NormTruncated { norm } => format!("Graver basis up to ℓ1 norm {norm}"),
+    };
+    format!(
+        "{}, {coverage}, {}",
+        count_moves(set.set.elements.len()),
+        set.source
+    )
+}
+
+/// `2780, meets the cost` or `2750, gap 30 (1.08%)`, with where the bound came from.
+pub fn bound_text(bound: &BoundDoc) -> String {
+    let reach = if bound.gap == "0" {
+        "meets the cost: no plan is cheaper".to_string()
+    } else {
+        format!("gap {} ({:.2}%)", bound.gap, bound.relative_gap * 100.0)
+    };
+    format!(
+        "{}, {reach} (LP relaxation's dual, evaluated exactly)",
+        bound.value
+    )
+}
+
+/// The summary of `doc`, solved with `set` on `model`; `from_base` when the solve started
+/// from the optimum of the model's own numbers (a network variant without a warm start).
+pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base: bool) -> String {
+    let mut rows = vec![("model".to_string(), doc.model.clone())];
+    if let Some(id) = &doc.variant {
+        rows.push(("variant".to_string(), id.clone()));
+    }
+    let start = if doc.warm_start {
+        "warm (previous plan + particular solution of the change)"
+    } else if from_base {
+        "from the optimum of the model's own numbers (network)"
+    } else {
+        "cold (integer solution of A x = b)"
+    };
+    rows.push(("start".to_string(), start.to_string()));
+    rows.push(("status".to_string(), doc.status.to_string()));
+    if doc.x.is_some() {
+        match (doc.objective, doc.violation) {
+            (Some(objective), _) => {
+                rows.push(("objective".to_string(), objective.to_string()));
+                if let Some(bound) = &doc.bound {
+                    rows.push(("dual bound".to_string(), bound_text(bound)));
+                }
+            }
+            (None, violation) => rows.push((
+                "violation".to_string(),
+                violation.map_or_else(String::new, |v| v.to_string()),
+            )),
+        }
+        let StepCounts { feasibility, cost } = doc.steps;
+        rows.push((
+            "steps".to_string(),
+            format!("{feasibility} in phase I (feasibility), {cost} in phase II (cost)"),
+        ));
+        rows.push(("time".to_string(), format!("{:.3} ms", doc.seconds * 1e3)));
+    }
+    rows.push(("moves".to_string(), set_text(set)));
+    let mut out = pairs(&rows);
+    if let Some(x) = &doc.x {
+        out.push('\n');
+        if let Some(heading) = point_heading(&doc.status) {
+            let _ = writeln!(out, "{heading}");
+        }
+        out.push_str(&plan_text(x, &doc.variables));
+    }
+    out.push('\n');
+    let words = certificate_words(&doc.status, doc.recheck.as_ref(), model);
+    out.push_str(&wrapped(&words, WIDTH, 2));
+    out
+}
+
+/// What the listed point is, when it is not an optimal plan.
+fn point_heading(outcome: &Outcome) -> Option<&'static str> {
+    match outcome {
+        Outcome::Optimal | Outcome::OptimalForMovesUpTo { .. } => None,
+        Outcome::Unbounded { .. } => Some("the feasible plan the ray starts from:"),
+        Outcome::StepLimit | Outcome::Cancelled => Some("the point reached so far:"),
+        _ => Some("the point where phase I stopped (outside the bounds):"),
+    }
+}
+
+/// The nonzero plan values by variable name, at most [`PLAN_ROWS`] of them.
+fn plan_text(x: &[i64], names: &[String]) -> String {
+    let nonzero: Vec<Vec<String>> = x
+        .iter()
+        .zip(names)
+        .filter(|(&v, _)| v != 0)
+        .map(|(v, name)| vec![name.clone(), v.to_string()])
+        .collect();
+    if nonzero.is_empty() {
+        return "every variable is 0\n".to_string();
+    }
+    let shown = nonzero.len().min(PLAN_ROWS);
+    let mut out = table(&["variable", "value"], &nonzero[..shown]);
+    if shown < nonzero.len() {
+        let _ = writeln!(
+            out,
+            "... and {} more nonzero values (the JSON document lists the whole plan)",
+            nonzero.len() - shown
+        );
+    }
+    out
+}
