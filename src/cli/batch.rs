@@ -13,7 +13,7 @@ use std::sync::atomic::Ordering;
 use std::time::Instant;
 
 use clap::{Args, ValueEnum};
-use kernstep::formats::batch::{self, DayRecord, RunSummary, Tally};
+use kernstep::formats::batch::{self, DayRecord, Layout, RunSummary, Tally};
 use kernstep::input::is_stdin;
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
@@ -60,6 +60,16 @@ pub enum Format {
     Csv,
 }
 
+impl Format {
+    /// The library's layout.
+    pub fn layout(self) -> Layout {
+        match self {
+            Format::Jsonl => Layout::Jsonl,
+            Format::Csv => Layout::Csv,
+        }
+    }
+}
+
 /// Runs `batch`.
 pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     // Install the Ctrl-C handler before any work, so that an early Ctrl-C is also clean.
@@ -89,7 +99,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let code = tally.exit_code();
     let summary = RunSummary::new(tally, &set, args.threads.map(capped_threads), wall);
     let mut body = Vec::new();
-    write_results(&mut body, args.format, &records, names)?;
+    batch::write_records(&mut body, args.format.layout(), &records, names, true)?;
     emit(args, &body, &summary)?;
     Ok(ExitCode::from(code))
 }
@@ -143,32 +153,6 @@ fn failure(result: &DayResult) -> Option<&kernstep::Error> {
     match &result.outcome {
         DayOutcome::Failed(e) => Some(e),
         _ => None,
-    }
-}
-
-/// Writes the results in `format`; a CSV starts with its header.
-pub(super) fn write_results(
-    out: &mut impl Write,
-    format: Format,
-    records: &[DayRecord<'_>],
-    names: &[String],
-) -> io::Result<()> {
-    if format == Format::Csv {
-        batch::write_csv_header(out, names)?;
-    }
-    write_records(out, format, records, names)
-}
-
-/// Writes one record or CSV row per day, without a header.
-pub(super) fn write_records(
-    out: &mut impl Write,
-    format: Format,
-    records: &[DayRecord<'_>],
-    names: &[String],
-) -> io::Result<()> {
-    match format {
-        Format::Jsonl => batch::write_jsonl(out, records),
-        Format::Csv => batch::write_csv_rows(out, records, names),
     }
 }
 

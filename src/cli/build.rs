@@ -16,7 +16,7 @@ use kernstep::scenario::PlanInput;
 #[cfg(feature = "mpi")]
 use kernstep::testset::{build, entry_key, BuildOutcome};
 use kernstep::testset::{
-    BoxPolicy, BudgetRecord, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit, SetAside,
+    BoxPolicy, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit, SetAside,
 };
 use kernstep::text::{cell, job_text, kind_name, table, StopWords, SHORT_KEY};
 use serde::Serialize;
@@ -166,23 +166,6 @@ struct Row {
     failed: bool,
 }
 
-impl Row {
-    /// What stopped the build, as far as the exit code goes: the job's stop, or a
-    /// cancellation that ended a budgeted deepening after a level was kept.
-    fn stop(&self) -> Option<StopReason> {
-        let report = self.report.as_ref()?;
-        match report.status {
-            JobStatus::Stopped { reason } => Some(reason),
-            _ => report
-                .budget
-                .as_ref()
-                .and_then(BudgetRecord::stopped_level)
-                .and_then(|l| l.stopped)
-                .filter(|r| *r == StopReason::Cancelled),
-        }
-    }
-}
-
 impl BuildArgs {
     fn spec(&self, model: &Model) -> anyhow::Result<BuildSpec> {
         Ok(BuildSpec {
@@ -258,10 +241,12 @@ pub(super) fn run_with(
     }
     out.flush()?;
     let failed = rows.iter().any(|r| r.failed);
-    let stopped = rows.iter().any(|r| r.stop().is_some());
+    let stopped = rows
+        .iter()
+        .any(|r| r.report.as_ref().and_then(JobReport::stop).is_some());
     let signalled = rows
         .iter()
-        .any(|r| r.stop() == Some(StopReason::Cancelled))
+        .any(|r| r.report.as_ref().and_then(JobReport::stop) == Some(StopReason::Cancelled))
         .then(signal_status)
         .flatten();
     Ok(match (failed, signalled, stopped) {

@@ -8,6 +8,8 @@ use std::sync::{Arc, OnceLock};
 use anyhow::Context;
 use clap::{Args, ValueEnum};
 use kernstep::model::Model;
+pub use kernstep::solve::capped_threads;
+use kernstep::solve::in_pool;
 use kernstep::testset::{by_cycles, serve, serve_file, Engine, Served, SetLibrary};
 use signal_hook::consts::{SIGINT, SIGTERM};
 
@@ -111,15 +113,8 @@ pub fn signal_status() -> Option<u8> {
     }
 }
 
-/// A `--threads` count capped to the machine's parallelism: more threads than cores only add
-/// switching (and, in a build, memory for each thread's buffers).
-pub fn capped_threads(threads: usize) -> usize {
-    let cores = std::thread::available_parallelism().map_or(usize::MAX, |n| n.get());
-    threads.min(cores)
-}
-
-/// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice), capped by
-/// [`capped_threads`] with one warning line on stderr when the count was above the cap.
+/// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice), capped to the
+/// machine ([`capped_threads`]) with one warning line on stderr when the count was above it.
 pub fn with_threads<T: Send>(
     threads: Option<usize>,
     f: impl FnOnce() -> T + Send,
@@ -134,11 +129,7 @@ pub fn with_threads<T: Send>(
                     "kernstep: warning: --threads {asked} is more than the {n} threads this machine runs at once; using {n}"
                 );
             }
-            let pool = rayon::ThreadPoolBuilder::new()
-                .num_threads(n)
-                .build()
-                .context("starting the thread pool")?;
-            Ok(pool.install(f))
+            Ok(in_pool(n, f)?)
         }
     }
 }

@@ -9,12 +9,9 @@ use augment::{Options, Rule};
 use clap::{Args, ValueEnum};
 use kernstep::input::read_text;
 use kernstep::model::Model;
-use kernstep::scenario::{pick_day, pick_variant, PlanInput};
-use kernstep::solve::{Prepared, Variant, WarmStart};
-use kernstep::trace::SolveContext;
-use kernstep::Error;
-
-use kernstep::testset::Served;
+use kernstep::scenario::{pick_day, read_variant, PlanInput};
+use kernstep::solve::{Variant, WarmStart};
+use kernstep::trace::Instance;
 
 use super::common::{interrupted, ServeArgs};
 
@@ -66,45 +63,6 @@ pub enum StrategyArg {
     Steepest,
 }
 
-impl Instance {
-    /// The start the solve takes: `--warm-start`, else the base optimum, else none (cold).
-    pub fn start(&self) -> Option<&WarmStart> {
-        self.warm.as_ref().or(self.base.as_ref())
-    }
-
-    /// The instance as a solve document names it.
-    pub fn context(&self) -> SolveContext<'_> {
-        SolveContext {
-            model: &self.path,
-            variant: self.variant.as_deref(),
-            warm: self.warm.as_ref(),
-            base: self.base.as_ref(),
-            set: &self.set,
-        }
-    }
-}
-
-/// A model variant ready to solve.
-pub struct Instance {
-    /// The model with the variant's numbers (compiled from a scenario and its day).
-    pub model: Model,
-    /// The model or scenario file as given.
-    pub path: String,
-    /// The variant's id (a scenario's day name), when one was given.
-    pub variant: Option<String>,
-    /// The previous plan to start from (`--warm-start`).
-    pub warm: Option<WarmStart>,
-    /// Without `--warm-start`, for a variant of a network model: the optimum of the model's
-    /// own numbers, where the solve starts (as `batch` does).
-    pub base: Option<WarmStart>,
-    /// The moves and where they came from.
-    pub set: Served,
-    /// The Hermite form and move set of the matrix.
-    pub prepared: Prepared,
-    /// The solver settings.
-    pub options: Options,
-}
-
 impl InstanceArgs {
     /// Loads the model, applies the variant, reads the warm start and finds the moves.
     pub fn load(&self) -> anyhow::Result<Instance> {
@@ -123,7 +81,6 @@ impl InstanceArgs {
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
         let set = self.serving.served(&model, &self.model)?;
-        let prepared = set.prepare(&model.matrix)?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,
             StrategyArg::First => Rule::FirstImproving,
@@ -133,22 +90,14 @@ impl InstanceArgs {
             .rule(rule)
             .powers_of_two(self.powers_of_two)
             .max_steps(self.max_steps);
-        // A variant on a network starts, as in `batch`, from the optimum of the model's own
-        // numbers.
-        let base = match (&warm, &variant) {
-            (None, Some(_)) => prepared.base_start(input.model(), &options, &cancelled),
-            _ => None,
-        };
-        Ok(Instance {
-            model,
-            path,
-            variant,
-            warm,
-            base,
-            set,
-            prepared,
-            options,
-        })
+        let mut instance = Instance::new(model, &path, set, options)?;
+        if let Some(warm) = warm {
+            instance = instance.warm_start(warm);
+        }
+        if let Some(id) = variant {
+            instance = instance.variant_of(id, input.model(), &cancelled);
+        }
+        Ok(instance)
     }
 
     /// The variant `--variant` names: a day of a scenario's days file (picked by `--day`) or a
@@ -172,7 +121,7 @@ impl InstanceArgs {
                         "--day picks a day of a scenario's days file; {model} is a model file, so pick its variant with --variant-id"
                     );
                 }
-                read_variant(spec, self.variant_id.as_deref())
+                Ok(read_variant(spec, self.variant_id.as_deref(), "--variant")?)
             }
         }
     }
@@ -181,30 +130,6 @@ impl InstanceArgs {
 /// The cancellation hook of a solve: Ctrl-C.
 pub fn cancelled() -> bool {
     interrupted().load(Ordering::Relaxed)
-}
-
-/// The variant named by `--variant` (and `--variant-id`), with the origin for messages.
-fn read_variant(spec: &str, id: Option<&str>) -> anyhow::Result<(Variant, String)> {
-    if spec.trim_start().starts_with('{') {
-        let origin = "--variant".to_string();
-        let variant: Variant = serde_json::from_str(spec).map_err(|e| Error::Input {
-            file: origin.clone(),
-            field: "inline JSON".to_string(),
-            message: e.to_string(),
-        })?;
-        if let Some(id) = id.filter(|&id| id != variant.id) {
-            anyhow::bail!(
-                "--variant-id {id:?}: the inline variant's id is {:?}",
-                variant.id
-            );
-        }
-        return Ok((variant, origin));
-    }
-    let path = Path::new(spec);
-    let text =
-        read_text(path).with_context(|| format!("reading the variants file {}", path.display()))?;
-    let origin = path.display().to_string();
-    Ok((pick_variant(&text, &origin, id)?, origin))
 }
 
 /// The plan of a previous solve document at `path`, checked against `model`.

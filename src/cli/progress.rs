@@ -3,8 +3,7 @@
 
 use std::io::{self, IsTerminal, Write};
 use std::path::Path;
-use std::sync::Mutex;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressStyle};
@@ -35,8 +34,6 @@ pub struct BuildProgress {
     mode: ProgressArg,
     model: String,
     bar: ProgressBar,
-    /// When the last line was written (none yet: `None`).
-    last_line: Mutex<Option<Instant>>,
     /// The stages seen to end, for the time left.
     watch: ProgressWatch,
 }
@@ -67,7 +64,6 @@ impl BuildProgress {
             mode,
             model,
             bar,
-            last_line: Mutex::new(None),
             watch: ProgressWatch::default(),
         }
     }
@@ -78,10 +74,10 @@ impl BuildProgress {
         let text = progress_text(&record);
         match self.mode {
             ProgressArg::Bar => self.bar.set_message(text),
-            ProgressArg::Lines if self.line_due() => {
+            ProgressArg::Lines if self.watch.due(LINE_EVERY) => {
                 self.line(&format!("{text}, {:.0} s", record.elapsed_seconds));
             }
-            ProgressArg::Json if self.line_due() => {
+            ProgressArg::Json if self.watch.due(LINE_EVERY) => {
                 if let Ok(json) = serde_json::to_string(&record) {
                     self.write(&json);
                 }
@@ -93,18 +89,6 @@ impl BuildProgress {
     /// Removes the bar.
     pub fn finish(&self) {
         self.bar.finish_and_clear();
-    }
-
-    /// Whether a line is due (the first one always is), taking the slot if so.
-    fn line_due(&self) -> bool {
-        let Ok(mut last) = self.last_line.lock() else {
-            return false;
-        };
-        let due = last.is_none_or(|at| at.elapsed() >= LINE_EVERY);
-        if due {
-            *last = Some(Instant::now());
-        }
-        due
     }
 
     fn line(&self, text: &str) {

@@ -6,7 +6,7 @@ use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::text::solve_summary;
-use kernstep::trace::{solve_document, Outcome};
+use kernstep::trace::Outcome;
 
 use super::instance::{cancelled, InstanceArgs};
 
@@ -23,13 +23,7 @@ pub struct SolveArgs {
 /// Solves the instance, re-checks the claim and prints the result.
 pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
     let instance = args.instance.load()?;
-    let doc = solve_document(
-        &instance.prepared,
-        &instance.model,
-        &instance.options,
-        instance.context(),
-        &cancelled,
-    )?;
+    let doc = instance.solve(&cancelled)?;
     let mut out = io::stdout().lock();
     if args.json {
         writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;

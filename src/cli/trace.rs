@@ -8,10 +8,10 @@ use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::text::trace_text;
-use kernstep::trace::{record, step_plot};
+use kernstep::trace::{step_plot, Instance};
 
 use super::common::write_atomically;
-use super::instance::{cancelled, Instance, InstanceArgs};
+use super::instance::{cancelled, InstanceArgs};
 use super::solve::exit_code;
 
 /// Arguments of `trace`.
@@ -30,13 +30,7 @@ pub struct TraceArgs {
 /// Solves the instance with the trace on and prints it.
 pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
     let instance = args.instance.load()?;
-    let doc = record(
-        &instance.prepared,
-        &instance.model,
-        &instance.options,
-        instance.start(),
-        &cancelled,
-    )?;
+    let doc = instance.trace(&cancelled)?;
     let title = title(&instance);
     if let Some(path) = &args.svg {
         write_atomically(path, step_plot(&doc.steps, &title)?.as_bytes())?;

@@ -294,6 +294,35 @@ fn infeasible_detail(proof: &Proof) -> String {
     }
 }
 
+/// How the records of a run are laid out.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Layout {
+    /// One JSON object per day ([`write_jsonl`]).
+    Jsonl,
+    /// A header and one row per day, the plan one column per variable ([`write_csv_rows`]).
+    Csv,
+}
+
+/// Writes `records` in `layout`, plans over `names`; `first` when they start the output (a
+/// CSV then starts with its header; a later part of the same run, as another MPI rank
+/// writes it, has none).
+pub fn write_records(
+    out: &mut impl Write,
+    layout: Layout,
+    records: &[DayRecord<'_>],
+    names: &[String],
+    first: bool,
+) -> io::Result<()> {
+    match layout {
+        Layout::Jsonl => write_jsonl(out, records),
+        Layout::Csv if first => {
+            write_csv_header(out, names)?;
+            write_csv_rows(out, records, names)
+        }
+        Layout::Csv => write_csv_rows(out, records, names),
+    }
+}
+
 /// Writes `records` as JSON Lines, one object per line.
 pub fn write_jsonl(out: &mut impl Write, records: &[DayRecord<'_>]) -> io::Result<()> {
     for record in records {

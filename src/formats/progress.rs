@@ -3,6 +3,7 @@
 //! build estimate does ([`crate::testset::extrapolate`]).
 
 use std::sync::Mutex;
+use std::time::{Duration, Instant};
 
 use serde::{Deserialize, Serialize};
 
@@ -37,10 +38,13 @@ pub struct ProgressRecord {
     pub eta_seconds: Option<f64>,
 }
 
-/// Turns a build's progress reports into records, remembering the stages seen to end.
+/// Turns a build's progress reports into records, remembering the stages seen to end, and
+/// spaces out the records that a log (rather than a live display) shows.
 #[derive(Debug, Default)]
 pub struct ProgressWatch {
     stages: Mutex<Stages>,
+    /// When [`ProgressWatch::due`] last said yes.
+    last_shown: Mutex<Option<Instant>>,
 }
 
 /// The ends of stages seen in the reports: the last report of each stage.
@@ -51,6 +55,19 @@ struct Stages {
 }
 
 impl ProgressWatch {
+    /// Whether a record is due in a log that shows at most one per `every`: the first one
+    /// always is; a yes starts the next interval.
+    pub fn due(&self, every: Duration) -> bool {
+        let Ok(mut last) = self.last_shown.lock() else {
+            return false;
+        };
+        let due = last.is_none_or(|at| at.elapsed() >= every);
+        if due {
+            *last = Some(Instant::now());
+        }
+        due
+    }
+
     /// The record of report `p` of the build of `model`.
     pub fn record(&self, model: &str, p: &Progress) -> ProgressRecord {
         let seconds = p.elapsed.as_secs_f64();

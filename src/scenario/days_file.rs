@@ -117,6 +117,27 @@ pub fn pick_variant(text: &str, origin: &str, id: Option<&str>) -> Result<Varian
     })
 }
 
+/// The variant that `spec` gives for a model file: inline JSON (`{"id": ...}`, named
+/// `inline` in errors) or the path of a JSON Lines file of variants, from which `id` picks
+/// one (default: the first); with the origin that names it in later messages.
+pub fn read_variant(spec: &str, id: Option<&str>, inline: &str) -> Result<(Variant, String)> {
+    if !spec.trim_start().starts_with('{') {
+        let path = Path::new(spec);
+        let origin = path.display().to_string();
+        return Ok((pick_variant(&read_text(path)?, &origin, id)?, origin));
+    }
+    let variant: Variant =
+        serde_json::from_str(spec).map_err(|e| missing(inline, "inline JSON", e.to_string()))?;
+    if let Some(id) = id.filter(|&id| id != variant.id) {
+        let message = format!(
+            "{id:?} was asked for; the inline variant's id is {:?}",
+            variant.id
+        );
+        return Err(missing(inline, "id", message));
+    }
+    Ok((variant, inline.to_string()))
+}
+
 /// A day or variant the file does not hold.
 fn missing(origin: &str, field: &str, message: String) -> Error {
     Error::Input {

@@ -45,7 +45,7 @@ use crate::input::syntax_path;
 use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
-pub use days_file::{pick_day, pick_variant, read_days};
+pub use days_file::{pick_day, pick_variant, read_days, read_variant};
 pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
 
 /// Which model a scenario compiles into.

@@ -3,10 +3,12 @@
 mod fittings;
 mod instance;
 mod network;
+mod pool;
 mod prepared;
 mod rounding;
 mod variant;
 
 pub use instance::{coverage_of, FlowAnswer, Verdict, WarmStart};
+pub use pool::{capped_threads, in_pool};
 pub use prepared::Prepared;
 pub use variant::{parse_lines, Numbers, ParsedLine, Variant};

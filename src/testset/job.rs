@@ -177,6 +177,21 @@ impl JobReport {
     pub fn implicit(&self) -> bool {
         self.kind == SetKind::Cycles
     }
+
+    /// What stopped the job, as far as its caller goes: the job's own stop, or a
+    /// cancellation that ended a budgeted deepening after a level was kept (the kept level
+    /// is stored, but the caller was asked to stop).
+    pub fn stop(&self) -> Option<StopReason> {
+        match self.status {
+            JobStatus::Stopped { reason } => Some(reason),
+            _ => self
+                .budget
+                .as_ref()
+                .and_then(BudgetRecord::stopped_level)
+                .and_then(|l| l.stopped)
+                .filter(|r| *r == StopReason::Cancelled),
+        }
+    }
 }
 
 impl Job<'_> {

@@ -7,6 +7,7 @@ mod bound;
 mod certified;
 mod decimal;
 mod document;
+mod instance;
 mod outcome;
 #[cfg(feature = "plot")]
 mod plot;
@@ -19,6 +20,7 @@ pub use bound::BoundDoc;
 pub use certified::{certify, Certified};
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
+pub use instance::Instance;
 pub use outcome::{sign_number, Outcome};
 #[cfg(feature = "plot")]
 pub use plot::step_plot;

@@ -8,13 +8,13 @@
 use std::process::ExitCode;
 use std::time::Instant;
 
-use kernstep::formats::batch::{DayRecord, RunSummary, Tally};
+use kernstep::formats::batch::{write_records, DayRecord, RunSummary, Tally};
 use kernstep::scenario::DayResult;
 use kernstep::solve::ParsedLine;
 use kernstep::testset::Served;
 
 use super::Ranks;
-use crate::cli::batch::{emit, report_failures, write_records, write_results, BatchArgs};
+use crate::cli::batch::{emit, report_failures, BatchArgs};
 use crate::cli::common::capped_threads;
 
 /// This rank's block of `days`: `[r n / N, (r + 1) n / N)`.
@@ -39,11 +39,8 @@ pub fn finish(
     report_failures(results);
     let records: Vec<DayRecord> = results.iter().map(|r| DayRecord::of(r, names)).collect();
     let mut body = Vec::new();
-    if ranks.rank == 0 {
-        write_results(&mut body, args.format, &records, names)?;
-    } else {
-        write_records(&mut body, args.format, &records, names)?;
-    }
+    let first = ranks.rank == 0;
+    write_records(&mut body, args.format.layout(), &records, names, first)?;
     let gathered = ranks.gather_bytes(&body)?;
     let mine = serde_json::to_string(&Tally::of(&records))?;
     let mut tally = Tally::default();
