@@ -189,7 +189,7 @@ pub fn read_warm_start(text: &str, origin: &str, model: &Model) -> Result<WarmSt
     let previous: PreviousPlan = serde_json::from_str(text).map_err(|e| {
         bad(
             "document",
-            format!("{e}; expected the output of `kernstep solve --json`"),
+            format!("{e}; expected a solve document ({SOLVE_SCHEMA}) or a trace document ({TRACE_SCHEMA})"),
         )
     })?;
     if previous.schema != SOLVE_SCHEMA && previous.schema != TRACE_SCHEMA {
