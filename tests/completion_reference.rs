@@ -2,6 +2,8 @@
 
 mod completion_support;
 
+use std::collections::BTreeSet;
+
 use completion_support::*;
 use kernstep::completion::{Method, Request};
 
@@ -110,4 +112,49 @@ fn three_way_tables_with_all_two_margins() {
     assert_eq!(set.elements.len(), 795);
     assert_valid(&a, &Request::graver(27).signs, &set);
     assert_eq!(sorted(&graver(&a, Method::Pottier)), sorted(&set));
+}
+
+#[test]
+fn wide_block_diagonal_matrices_take_wider_sign_masks() {
+    // The Graver basis of a block-diagonal matrix is the union of its blocks' Graver bases,
+    // each element padded with zeros: a conformal decomposition splits by block (from
+    // memory). Blocks of the twisted cubic (5 elements each, Sturmfels 1996) on 68 and 132
+    // columns exercise the two- and four-word sign masks of the completion.
+    let block: [&[i64]; 2] = [&[1, 1, 1, 1], &[0, 1, 2, 3]];
+    let cubic = graver(&matrix(&block), Method::ProjectAndLift);
+    for blocks in [17, 33] {
+        let cols = 4 * blocks;
+        let rows: Vec<Vec<i64>> = (0..blocks)
+            .flat_map(|b| {
+                block.iter().map(move |row| {
+                    let mut line = vec![0; cols];
+                    line[4 * b..4 * b + 4].copy_from_slice(row);
+                    line
+                })
+            })
+            .collect();
+        let refs: Vec<&[i64]> = rows.iter().map(Vec::as_slice).collect();
+        let a = matrix(&refs);
+        let want: BTreeSet<Vec<i64>> = (0..blocks)
+            .flat_map(|b| {
+                cubic.elements.iter().map(move |g| {
+                    let mut e = vec![0; cols];
+                    e[4 * b..4 * b + 4].copy_from_slice(g);
+                    canonical_sign(&e)
+                })
+            })
+            .collect();
+        let set = graver(&a, Method::ProjectAndLift);
+        assert_eq!(set.elements.len(), 5 * blocks, "{cols} columns");
+        let got: BTreeSet<Vec<i64>> = set.elements.iter().map(|e| canonical_sign(e)).collect();
+        assert_eq!(got, want, "{cols} columns");
+    }
+}
+
+/// `e` or `-e`, whichever has its first nonzero entry positive.
+fn canonical_sign(e: &[i64]) -> Vec<i64> {
+    match e.iter().find(|&&x| x != 0) {
+        Some(&x) if x < 0 => e.iter().map(|v| -v).collect(),
+        _ => e.to_vec(),
+    }
 }

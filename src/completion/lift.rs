@@ -75,8 +75,23 @@ pub(crate) struct Lifted {
 /// Members whose pairs are reduced between two checks of the time limit.
 const BATCH: usize = 1024;
 
+/// Members on one side of component `j` with one (norm on `S`, `|v_j|`): their ids and sign
+/// masks on `S` side by side, so that forming the pairs of a member scans one array of masks
+/// in order and reads a partner's entries only when the signs allow the pair.
+struct Group<const W: usize> {
+    ids: Vec<u32>,
+    masks: Vec<SignMask<W>>,
+}
+
+impl<const W: usize> Group<W> {
+    /// The members with their masks, in the order they joined.
+    fn members(&self) -> impl Iterator<Item = (u32, &SignMask<W>)> + '_ {
+        self.ids.iter().copied().zip(&self.masks)
+    }
+}
+
 /// Members on one side of component `j`, grouped by (norm on `S`, `|v_j|`).
-type Groups = BTreeMap<(u64, u64), Vec<u32>>;
+type Groups<const W: usize> = BTreeMap<(u64, u64), Group<W>>;
 
 /// A result that a limit or a cancellation may have cut short.
 type Run<T> = Result<std::result::Result<T, StopReason>>;
@@ -92,30 +107,31 @@ enum PairKind {
     Formed,
 }
 
-struct Lifting<'a> {
+struct Lifting<'a, const W: usize> {
     stage: &'a Stage<'a>,
     /// Entries per vector.
     width: usize,
-    set: WorkingSet,
-    masks: Vec<SignMask>,
+    set: WorkingSet<W>,
+    masks: Vec<SignMask<W>>,
     norms: Vec<u64>,
-    pos: Groups,
-    neg: Groups,
+    pos: Groups<W>,
+    neg: Groups<W>,
     /// When the state was last saved (or the stage started).
     saved_at: Mutex<Instant>,
 }
 
 /// Runs one stage from `start` (the minimal members on `S`, or, with `at`, the working set
 /// of a stage saved at that point); returns the minimal members on `S ∪ {j}` that satisfy
-/// the signs and limits there, or why it stopped (after saving where it stood).
-pub(crate) fn lift(
+/// the signs and limits there, or why it stopped (after saving where it stood). Sign masks
+/// take `W` words (at least the vectors' width over 64).
+pub(crate) fn lift<const W: usize>(
     start: Vec<Orbit>,
     stage: &Stage<'_>,
     control: &Control<'_>,
     at: Option<StagePoint>,
 ) -> Run<Lifted> {
     let comps = lifted_comps(stage);
-    let mut lifting = Lifting::new(start, stage, comps.clone());
+    let mut lifting = Lifting::<W>::new(start, stage, comps.clone());
     let point = at.unwrap_or(StagePoint::Pairs {
         from: 1,
         tasks_done: 0,
@@ -151,7 +167,7 @@ enum Step {
     Done(StagePoint),
 }
 
-impl<'a> Lifting<'a> {
+impl<'a, const W: usize> Lifting<'a, W> {
     /// The working set of a stage over `comps` (`T`), holding the members of `start`.
     fn new(start: Vec<Orbit>, stage: &'a Stage<'a>, comps: Vec<usize>) -> Self {
         let width = start.first().map_or(0, |o| o.rep.len());
@@ -172,7 +188,7 @@ impl<'a> Lifting<'a> {
     }
 }
 
-impl Lifting<'_> {
+impl<const W: usize> Lifting<'_, W> {
     /// Processes norm levels from `point` on until no level has pairs left; returns the state
     /// at the end (to save if the cut check stops), or why it stopped.
     fn all_levels(&mut self, mut point: StagePoint, control: &Control<'_>) -> Run<StagePoint> {
@@ -266,15 +282,22 @@ impl Lifting<'_> {
         for id in std::iter::once(a).chain(b) {
             let v = self.set.store.get(id);
             let norm = norm_on(v, self.stage.old);
-            self.masks.push(SignMask::of(v, self.stage.old));
+            let mask = SignMask::of(v, self.stage.old);
+            self.masks.push(mask);
             self.norms.push(norm);
             let x = v[self.stage.new];
             let key = (norm, u64::from(x.unsigned_abs()));
-            match x.signum() {
-                1 => self.pos.entry(key).or_default().push(id),
-                -1 => self.neg.entry(key).or_default().push(id),
-                _ => {}
-            }
+            let side = match x.signum() {
+                1 => &mut self.pos,
+                -1 => &mut self.neg,
+                _ => continue,
+            };
+            let group = side.entry(key).or_insert_with(|| Group {
+                ids: Vec::new(),
+                masks: Vec::new(),
+            });
+            group.ids.push(id);
+            group.masks.push(mask);
         }
     }
 
@@ -290,12 +313,12 @@ impl Lifting<'_> {
 
     /// The pair tasks of norm level `level`: a member and the group of its partners, in a
     /// fixed order (that of the groups).
-    fn level_tasks(&self, level: u64) -> Vec<(u32, &[u32])> {
-        let mut tasks: Vec<(u32, &[u32])> = Vec::new();
+    fn level_tasks(&self, level: u64) -> Vec<(u32, &Group<W>)> {
+        let mut tasks: Vec<(u32, &Group<W>)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
                 if a + b + x.abs_diff(y) == level {
-                    tasks.extend(ps.iter().map(|&p| (p, qs.as_slice())));
+                    tasks.extend(ps.ids.iter().map(|&p| (p, qs)));
                 }
             }
         }
@@ -323,13 +346,13 @@ impl Lifting<'_> {
         for batch in tasks.get(done..).unwrap_or_default().chunks(BATCH * size) {
             self.save_if_due(|| point(done, &sums), control);
             let local = control.interrupted();
-            let mine: Vec<&(u32, &[u32])> = match local {
+            let mine: Vec<&(u32, &Group<W>)> = match local {
                 Some(_) => Vec::new(),
                 None => batch.iter().skip(rank).step_by(size).collect(),
             };
             let chunks: Vec<Vec<Vec<Entry>>> = mine
                 .par_iter()
-                .map(|&&(p, qs)| self.reduce_pairs(p, qs.iter().copied()))
+                .map(|&&(p, qs)| self.reduce_pairs(p, qs.members()))
                 .collect::<Result<_>>()?;
             let mine = chunks.into_iter().flatten().collect();
             let (all, stop) = control.exchange(self.width, mine, local)?;
@@ -343,12 +366,18 @@ impl Lifting<'_> {
         Ok(Ok(sums))
     }
 
-    /// Normal forms of the admissible sums of `p` with each of `partners`.
-    fn reduce_pairs(&self, p: u32, partners: impl Iterator<Item = u32>) -> Result<Vec<Vec<Entry>>> {
+    /// Normal forms of the admissible sums of `p` with each of `partners` (ids with their
+    /// sign masks on `S`).
+    fn reduce_pairs<'m>(
+        &self,
+        p: u32,
+        partners: impl Iterator<Item = (u32, &'m SignMask<W>)>,
+    ) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
         let mut w = vec![0; self.width];
-        for q in partners {
-            if self.pair_kind(p, q) != PairKind::Formed {
+        let mp = &self.masks[p as usize];
+        for (q, mq) in partners {
+            if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Formed {
                 continue;
             }
             add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
@@ -359,10 +388,11 @@ impl Lifting<'_> {
         Ok(out)
     }
 
-    /// How the sum of `p` and `q` (opposite signs at `j`) is treated.
+    /// How the sum of `p` and `q` (opposite signs at `j`, sign-compatible on `S`) is
+    /// treated.
     fn pair_kind(&self, p: u32, q: u32) -> PairKind {
         let (pi, qi) = (p as usize, q as usize);
-        if !self.masks[pi].compatible(&self.masks[qi]) || !self.set.owns_pair(p, q) {
+        if !self.set.owns_pair(p, q) {
             return PairKind::Skipped;
         }
         let t = self.stage.truncation;
@@ -464,8 +494,8 @@ impl Lifting<'_> {
         let partners = side
             .iter()
             .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room)
-            .flat_map(|(_, ids)| ids.iter().copied())
-            .filter(|&f| f < first_new || f < e);
+            .flat_map(|(_, group)| group.members())
+            .filter(|&(f, _)| f < first_new || f < e);
         self.reduce_pairs(e, partners)
     }
 
@@ -474,12 +504,12 @@ impl Lifting<'_> {
     /// that does not is usually met early.
     fn cut_pairs_vanish(&self, control: &Control<'_>) -> Run<bool> {
         let t = self.stage.truncation;
-        let mut groups: Vec<(u64, u32, &[u32])> = Vec::new();
+        let mut groups: Vec<(u64, u32, &Group<W>)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
                 if t.bounds.is_some() || t.norm_limit.is_some_and(|n| a + b > n) {
                     let level = a + b + x.abs_diff(y);
-                    groups.extend(ps.iter().map(|&p| (level, p, qs.as_slice())));
+                    groups.extend(ps.ids.iter().map(|&p| (level, p, qs)));
                 }
             }
         }
@@ -505,10 +535,11 @@ impl Lifting<'_> {
 
     /// Whether some pair of `p` with a member of `qs` that the truncation cut has a nonzero
     /// normal form.
-    fn cut_pair_survives(&self, p: u32, qs: &[u32]) -> Result<bool> {
+    fn cut_pair_survives(&self, p: u32, qs: &Group<W>) -> Result<bool> {
         let mut w = vec![0; self.width];
-        for &q in qs {
-            if self.pair_kind(p, q) != PairKind::Cut {
+        let mp = &self.masks[p as usize];
+        for (q, mq) in qs.members() {
+            if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Cut {
                 continue;
             }
             add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
@@ -554,14 +585,14 @@ impl Lifting<'_> {
         if !exact {
             let kept = self.set.orbits_where(|v| signed(v) && admits(t, v, comps));
             return Lifted {
-                orbits: minimal(kept, comps),
+                orbits: minimal::<W>(kept, comps),
                 exact: false,
             };
         }
         // Members above the limits are never needed to show that a member within them is
         // not minimal (anything ⊑ it is within them too), so cutting after the minimal
         // pass gives the same set as cutting before it.
-        let all = minimal(self.set.orbits_where(signed), comps);
+        let all = minimal::<W>(self.set.orbits_where(signed), comps);
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()
@@ -579,10 +610,10 @@ fn narrow_all(sums: Vec<Vec<i64>>) -> Result<Vec<Vec<Entry>>> {
     sums.iter().map(|v| to_entries(v)).collect()
 }
 
-/// The ⊑-minimal orbits (on `comps`) among `orbits`.
-pub(crate) fn minimal(orbits: Vec<Orbit>, comps: &[usize]) -> Vec<Orbit> {
+/// The ⊑-minimal orbits (on `comps`, at most `64 * W` of them) among `orbits`.
+pub(crate) fn minimal<const W: usize>(orbits: Vec<Orbit>, comps: &[usize]) -> Vec<Orbit> {
     let width = orbits.first().map_or(0, |o| o.rep.len());
-    let mut set = WorkingSet::new(width, comps.to_vec());
+    let mut set = WorkingSet::<W>::new(width, comps.to_vec());
     for o in &orbits {
         set.add(&o.rep, o.symmetric);
     }

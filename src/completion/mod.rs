@@ -28,6 +28,7 @@ pub use checkpoint::{Checkpoint, InStage, StagePoint};
 pub use control::{Control, Progress, StopReason, WorkShare};
 use limits::admits;
 pub use limits::Truncation;
+use reducer::MAX_WORDS;
 
 use crate::error::{Error, Result};
 use crate::lattice::reduced_kernel_basis;
@@ -150,18 +151,26 @@ pub fn complete(
             )));
         }
     }
-    if n > reducer::MASK_WORDS * 64 {
+    if n > MAX_WORDS * 64 {
         return Err(Error::Dimension(format!(
             "{n} variables; the completion handles at most {}",
-            reducer::MASK_WORDS * 64
+            MAX_WORDS * 64
         )));
     }
     let signs: Vec<i8> = request.signs.iter().map(|&s| sign_code(s)).collect();
     let entries: Vec<Vec<Entry>> = basis.iter().map(|b| to_entries(b)).collect::<Result<_>>()?;
-    let orbits = match request.method {
-        Method::ProjectAndLift => by_lifting(basis, &entries, &signs, request, control, resume)?,
-        Method::Pottier => by_pottier(&entries, &signs, request, control)?,
+    // Sign masks in the fewest 64-bit words that hold every component.
+    let run = |e: &[Vec<Entry>], s: &[i8]| match (request.method, n.div_ceil(64)) {
+        (Method::ProjectAndLift, 0 | 1) => by_lifting::<1>(basis, e, s, request, control, resume),
+        (Method::ProjectAndLift, 2) => by_lifting::<2>(basis, e, s, request, control, resume),
+        (Method::ProjectAndLift, _) => {
+            by_lifting::<MAX_WORDS>(basis, e, s, request, control, resume)
+        }
+        (Method::Pottier, 0 | 1) => by_pottier::<1>(e, s, request, control),
+        (Method::Pottier, 2) => by_pottier::<2>(e, s, request, control),
+        (Method::Pottier, _) => by_pottier::<MAX_WORDS>(e, s, request, control),
     };
+    let orbits = run(&entries, &signs)?;
     Ok(match orbits {
         Ok((orbits, exact)) => {
             let cut = if exact || request.truncation.is_none() {
@@ -204,7 +213,7 @@ pub fn check_resumable(a: &IntMatrix, resume: &Checkpoint) -> Result<()> {
 /// completion stopped.
 type Staged = Result<std::result::Result<(Vec<Orbit>, bool), StopReason>>;
 
-fn by_pottier(
+fn by_pottier<const W: usize>(
     basis: &[Vec<Entry>],
     signs: &[i8],
     request: &Request,
@@ -212,14 +221,14 @@ fn by_pottier(
 ) -> Staged {
     let n = signs.len();
     let all: Vec<usize> = (0..n).collect();
-    let graver = match pottier::complete(basis, &all, control, (0, 1))? {
+    let graver = match pottier::complete::<W>(basis, &all, control, (0, 1))? {
         Ok(g) => g,
         Err(stop) => return Ok(Err(stop)),
     };
-    Ok(Ok(restrict(graver, signs, &all, &request.truncation)))
+    Ok(Ok(restrict::<W>(graver, signs, &all, &request.truncation)))
 }
 
-fn by_lifting(
+fn by_lifting<const W: usize>(
     basis: &[Vec<i64>],
     entries: &[Vec<Entry>],
     signs: &[i8],
@@ -248,12 +257,12 @@ fn by_lifting(
                         })
                     })
                     .collect::<Result<Vec<_>>>()?,
-                None => match pottier::complete(entries, &comps, control, (0, stages))? {
+                None => match pottier::complete::<W>(entries, &comps, control, (0, stages))? {
                     Ok(g) => g,
                     Err(stop) => return Ok(Err(stop)),
                 },
             };
-            let (orbits, exact) = restrict(start, signs, &comps, &request.truncation);
+            let (orbits, exact) = restrict::<W>(start, signs, &comps, &request.truncation);
             let exact = checked && exact;
             control.save(&Checkpoint::of(&comps, &orbits, exact));
             (comps, orbits, exact, None)
@@ -273,7 +282,7 @@ fn by_lifting(
             exact,
             check_cuts: checked && exact,
         };
-        let lifted = match lift::lift(orbits, &stage, control, at)? {
+        let lifted = match lift::lift::<W>(orbits, &stage, control, at)? {
             Ok(lifted) => lifted,
             Err(stop) => return Ok(Err(stop)),
         };
@@ -303,7 +312,7 @@ fn next_component(orbits: &[Orbit], done: &[usize], signs: &[i8]) -> usize {
 /// within the limits (cutting after the minimal pass gives the same set as before it:
 /// anything ⊑ a member within the limits is within them too); tells whether the limits
 /// removed none.
-fn restrict(
+fn restrict<const W: usize>(
     orbits: Vec<Orbit>,
     signs: &[i8],
     comps: &[usize],
@@ -330,7 +339,7 @@ fn restrict(
             (false, false) => {}
         }
     }
-    let minimal = lift::minimal(kept, comps);
+    let minimal = lift::minimal::<W>(kept, comps);
     let total = minimal.len();
     let within: Vec<Orbit> = minimal
         .into_iter()

@@ -20,16 +20,17 @@ use crate::error::Result;
 const CHECK_EVERY: usize = 4096;
 
 /// Runs the completion on `comps` from the lattice basis `basis`; returns the ⊑-minimal
-/// members on `comps` (a symmetric set), or why it stopped.
-pub(crate) fn complete(
+/// members on `comps` (a symmetric set), or why it stopped. Sign masks take `W` words (at
+/// least the vectors' width over 64).
+pub(crate) fn complete<const W: usize>(
     basis: &[Vec<Entry>],
     comps: &[usize],
     control: &Control<'_>,
     stage: (usize, usize),
 ) -> Result<std::result::Result<Vec<Orbit>, StopReason>> {
     let width = basis.first().map_or(0, Vec::len);
-    let mut set = WorkingSet::new(width, comps.to_vec());
-    let mut masks: Vec<SignMask> = Vec::new();
+    let mut set = WorkingSet::<W>::new(width, comps.to_vec());
+    let mut masks: Vec<SignMask<W>> = Vec::new();
     let mut queue = BinaryHeap::new();
     for b in basis {
         let mut w = b.clone();
@@ -59,7 +60,12 @@ pub(crate) fn complete(
 type PairQueue = BinaryHeap<Reverse<(u64, u32, u32)>>;
 
 /// Adds `±w` and queues its pairs with every earlier member it is not sign-compatible with.
-fn insert(set: &mut WorkingSet, masks: &mut Vec<SignMask>, queue: &mut PairQueue, w: &[Entry]) {
+fn insert<const W: usize>(
+    set: &mut WorkingSet<W>,
+    masks: &mut Vec<SignMask<W>>,
+    queue: &mut PairQueue,
+    w: &[Entry],
+) {
     let comps = set.reducer.comps().to_vec();
     let (a, b) = set.add(w, true);
     for id in std::iter::once(a).chain(b) {

@@ -2,52 +2,81 @@
 //!
 //! A support tree: each inner node splits its elements by the sign (`+`, `-`, `0`) of one
 //! active component; a query for `w` only descends into the `0` child and the child of `w`'s
-//! own sign there, so it touches few candidates. Leaves are checked with sign bit masks and
-//! then entry magnitudes. The index refers to vectors by their [`VecStore`] ids.
+//! own sign there, so it touches few candidates. A leaf holds its members inline (sign masks,
+//! norm, id; no pointer to follow per candidate), checked by norm, then sign masks, then entry
+//! magnitudes. The masks take `W` words of 64 bits, the fewest that hold the components (one
+//! word up to 64 variables), so a leaf of one-word members is a few cache lines. The index
+//! refers to vectors by their [`VecStore`] ids.
 
 use super::store::{Entry, VecStore};
 
 const LEAF_CAPACITY: usize = 12;
 
-/// Words per sign mask; the completion handles at most `64 * MASK_WORDS` components.
-pub(crate) const MASK_WORDS: usize = 4;
+/// Words per sign mask of the widest layout; the completion handles at most `64 * MAX_WORDS`
+/// components.
+pub(crate) const MAX_WORDS: usize = 4;
 
-/// Sign masks of one vector over the active components (bit `k` stands for `comps[k]`).
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub(crate) struct SignMask {
-    pos: [u64; MASK_WORDS],
-    neg: [u64; MASK_WORDS],
+/// Sign masks of one vector over the active components (bit `k` stands for `comps[k]`), in
+/// `W` words each.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct SignMask<const W: usize> {
+    pos: [u64; W],
+    neg: [u64; W],
 }
 
-impl SignMask {
-    /// Sign masks of `v` on the components `comps` (at most `64 * MASK_WORDS` of them).
+impl<const W: usize> SignMask<W> {
+    /// Sign masks of `v` on the components `comps` (at most `64 * W` of them).
     pub(crate) fn of(v: &[Entry], comps: &[usize]) -> Self {
-        let mut m = SignMask::default();
+        Self::with_norm(v, comps).0
+    }
+
+    /// [`SignMask::of`] with the l1 norm of `v` on `comps`, in one branch-free pass.
+    fn with_norm(v: &[Entry], comps: &[usize]) -> (Self, u64) {
+        let mut m = SignMask {
+            pos: [0; W],
+            neg: [0; W],
+        };
+        let mut norm = 0u64;
         for (k, &c) in comps.iter().enumerate() {
-            let bit = 1u64 << (k % 64);
-            match v[c].signum() {
-                1 => m.pos[k / 64] |= bit,
-                -1 => m.neg[k / 64] |= bit,
-                _ => {}
-            }
+            let x = v[c];
+            let shift = k % 64;
+            m.pos[k / 64] |= u64::from(x > 0) << shift;
+            m.neg[k / 64] |= u64::from(x < 0) << shift;
+            norm += u64::from(x.unsigned_abs());
         }
-        m
+        (m, norm)
+    }
+
+    /// True if the vector is zero on every component.
+    fn is_empty(&self) -> bool {
+        (0..W).all(|w| self.pos[w] | self.neg[w] == 0)
     }
 
     /// True if the signs of `self` are a subset of those of `other` (no conflict, no excess).
-    fn fits_in(&self, other: &SignMask) -> bool {
-        (0..MASK_WORDS)
-            .all(|w| self.pos[w] & !other.pos[w] == 0 && self.neg[w] & !other.neg[w] == 0)
+    fn fits_in(&self, other: &Self) -> bool {
+        (0..W).all(|w| self.pos[w] & !other.pos[w] == 0 && self.neg[w] & !other.neg[w] == 0)
     }
 
     /// True if no active component has opposite signs in `self` and `other`.
-    pub(crate) fn compatible(&self, other: &SignMask) -> bool {
-        (0..MASK_WORDS).all(|w| self.pos[w] & other.neg[w] == 0 && self.neg[w] & other.pos[w] == 0)
+    pub(crate) fn compatible(&self, other: &Self) -> bool {
+        (0..W).all(|w| self.pos[w] & other.neg[w] == 0 && self.neg[w] & other.pos[w] == 0)
+    }
+
+    /// The child slot of position `k`: 0 positive, 1 negative, 2 zero.
+    fn slot(&self, k: usize) -> usize {
+        let bit = 1u64 << (k % 64);
+        if self.pos[k / 64] & bit != 0 {
+            0
+        } else if self.neg[k / 64] & bit != 0 {
+            1
+        } else {
+            2
+        }
     }
 
     /// Positions `k` (into the component list) where the vector is nonzero.
     fn support(&self) -> impl Iterator<Item = usize> + '_ {
-        (0..MASK_WORDS).flat_map(move |w| {
+        (0..W).flat_map(move |w| {
             let mut bits = self.pos[w] | self.neg[w];
             std::iter::from_fn(move || {
                 (bits != 0).then(|| {
@@ -60,28 +89,39 @@ impl SignMask {
     }
 }
 
+/// One indexed member as a leaf holds it.
+#[derive(Clone, Copy, Debug)]
+struct Item<const W: usize> {
+    mask: SignMask<W>,
+    /// The l1 norm on the active components, saturated at `u32::MAX` (monotone, so a member
+    /// ⊑ `w` never has a larger saturated norm than `w`).
+    norm: u32,
+    id: u32,
+}
+
 #[derive(Debug)]
-enum Node {
-    Leaf(Vec<usize>),
-    Split { depth: usize, children: [usize; 3] },
+enum Node<const W: usize> {
+    Leaf(Vec<Item<W>>),
+    /// Split by the sign at position `depth` of the component list.
+    Split {
+        depth: u32,
+        children: [u32; 3],
+    },
 }
 
 /// Support-tree index over a set of stored vectors, restricted to the active components.
 #[derive(Debug)]
-pub(crate) struct Reducer {
+pub(crate) struct Reducer<const W: usize> {
     comps: Vec<usize>,
-    ids: Vec<u32>,
-    masks: Vec<SignMask>,
-    nodes: Vec<Node>,
+    nodes: Vec<Node<W>>,
 }
 
-impl Reducer {
+impl<const W: usize> Reducer<W> {
     /// An empty index comparing vectors on the components `comps` (in this order of splitting).
     pub(crate) fn new(comps: Vec<usize>) -> Self {
+        debug_assert!(comps.len() <= 64 * W);
         Self {
             comps,
-            ids: Vec::new(),
-            masks: Vec::new(),
             nodes: vec![Node::Leaf(Vec::new())],
         }
     }
@@ -91,54 +131,61 @@ impl Reducer {
         &self.comps
     }
 
-    fn mask(&self, v: &[Entry]) -> SignMask {
-        SignMask::of(v, &self.comps)
+    fn item(&self, v: &[Entry], id: u32) -> Item<W> {
+        let (mask, norm) = SignMask::with_norm(v, &self.comps);
+        Item {
+            mask,
+            norm: u32::try_from(norm).unwrap_or(u32::MAX),
+            id,
+        }
     }
 
     /// Adds the stored vector `id` to the index.
     pub(crate) fn insert(&mut self, store: &VecStore, id: u32) {
-        let v = store.get(id);
-        let local = self.ids.len();
-        self.ids.push(id);
-        self.masks.push(self.mask(v));
+        let item = self.item(store.get(id), id);
         let (mut node, mut depth) = (0, 0);
         while let Node::Split { depth: d, children } = &self.nodes[node] {
-            node = children[sign_slot(v[self.comps[*d]])];
-            depth = d + 1;
+            node = children[item.mask.slot(*d as usize)] as usize;
+            depth = *d as usize + 1;
         }
         if let Node::Leaf(items) = &mut self.nodes[node] {
-            items.push(local);
+            items.push(item);
             if items.len() > LEAF_CAPACITY && depth < self.comps.len() {
-                self.split(store, node, depth);
+                self.split(node, depth);
             }
         }
     }
 
-    fn split(&mut self, store: &VecStore, node: usize, depth: usize) {
+    fn split(&mut self, node: usize, depth: usize) {
         let Node::Leaf(items) = std::mem::replace(&mut self.nodes[node], Node::Leaf(Vec::new()))
         else {
             return;
         };
-        let comp = self.comps[depth];
-        let mut parts: [Vec<usize>; 3] = Default::default();
-        for local in items {
-            let v = store.get(self.ids[local]);
-            parts[sign_slot(v[comp])].push(local);
+        let mut parts: [Vec<Item<W>>; 3] = Default::default();
+        for item in items {
+            parts[item.mask.slot(depth)].push(item);
         }
-        let base = self.nodes.len();
+        let base = self.nodes.len() as u32;
         for part in parts {
             self.nodes.push(Node::Leaf(part));
         }
         self.nodes[node] = Node::Split {
-            depth,
+            depth: depth as u32,
             children: [base, base + 1, base + 2],
         };
     }
 
     /// A stored vector `h` (other than `skip`) with `h ⊑ w` on the active components, if any.
     pub(crate) fn find(&self, store: &VecStore, w: &[Entry], skip: Option<u32>) -> Option<u32> {
-        let wm = self.mask(w);
-        self.find_below(0, store, w, &wm, skip)
+        let query = self.item(w, u32::MAX);
+        self.find_below(0, store, w, &query, skip)
+    }
+
+    /// [`Reducer::find`] for a `w` not zero on the active components; `None` also when it is
+    /// zero there (nothing left to reduce).
+    pub(crate) fn find_nonzero(&self, store: &VecStore, w: &[Entry]) -> Option<Option<u32>> {
+        let query = self.item(w, u32::MAX);
+        (!query.mask.is_empty()).then(|| self.find_below(0, store, w, &query, None))
     }
 
     fn find_below(
@@ -146,45 +193,37 @@ impl Reducer {
         node: usize,
         store: &VecStore,
         w: &[Entry],
-        wm: &SignMask,
+        query: &Item<W>,
         skip: Option<u32>,
     ) -> Option<u32> {
         match &self.nodes[node] {
             Node::Split { depth, children } => {
-                let s = sign_slot(w[self.comps[*depth]]);
+                let s = query.mask.slot(*depth as usize);
                 if s != 2 {
-                    if let Some(h) = self.find_below(children[s], store, w, wm, skip) {
+                    if let Some(h) = self.find_below(children[s] as usize, store, w, query, skip) {
                         return Some(h);
                     }
                 }
-                self.find_below(children[2], store, w, wm, skip)
+                self.find_below(children[2] as usize, store, w, query, skip)
             }
-            Node::Leaf(items) => items.iter().find_map(|&local| {
-                let id = self.ids[local];
-                let mask = &self.masks[local];
-                (Some(id) != skip
-                    && mask.fits_in(wm)
-                    && self.magnitudes_fit(mask, store.get(id), w))
-                .then_some(id)
-            }),
+            Node::Leaf(items) => items
+                .iter()
+                .find(|item| {
+                    item.norm <= query.norm
+                        && item.mask.fits_in(&query.mask)
+                        && Some(item.id) != skip
+                        && self.magnitudes_fit(&item.mask, store.get(item.id), w)
+                })
+                .map(|item| item.id),
         }
     }
 
     /// `|h_c| <= |w_c|` on the support of `h` (signs are already known to agree).
-    fn magnitudes_fit(&self, mask: &SignMask, h: &[Entry], w: &[Entry]) -> bool {
+    fn magnitudes_fit(&self, mask: &SignMask<W>, h: &[Entry], w: &[Entry]) -> bool {
         mask.support().all(|k| {
             let c = self.comps[k];
             h[c].unsigned_abs() <= w[c].unsigned_abs()
         })
-    }
-}
-
-/// Child slot of a value: 0 positive, 1 negative, 2 zero.
-fn sign_slot(x: Entry) -> usize {
-    match x.signum() {
-        1 => 0,
-        -1 => 1,
-        _ => 2,
     }
 }
 
@@ -210,30 +249,43 @@ mod tests {
         })
     }
 
-    #[test]
-    fn tree_agrees_with_linear_scan() {
-        // A deterministic pseudo-random fill (linear congruential generator, common practice).
+    /// Fills an index of `W`-word masks over `comps` of vectors `width` wide with sparse
+    /// pseudo-random vectors (a linear congruential generator, common practice) and checks
+    /// every query against a linear scan.
+    fn agrees_with_linear_scan<const W: usize>(width: usize, comps: Vec<usize>) {
         let mut seed: u64 = 7;
         let mut next = || {
             seed = seed
                 .wrapping_mul(6364136223846793005)
                 .wrapping_add(1442695040888963407);
-            ((seed >> 33) % 5) as Entry - 2
+            let draw = (seed >> 33) % 15;
+            if draw < 5 {
+                draw as Entry - 2
+            } else {
+                0
+            }
         };
-        let mut store = VecStore::new(6);
-        let comps = vec![0, 2, 3, 5];
-        let mut index = Reducer::new(comps.clone());
-        for _ in 0..200 {
-            let v: Vec<Entry> = (0..6).map(|_| next()).collect();
+        let mut store = VecStore::new(width);
+        let mut index = Reducer::<W>::new(comps.clone());
+        for _ in 0..300 {
+            let v: Vec<Entry> = (0..width).map(|_| next()).collect();
             if comps.iter().any(|&c| v[c] != 0) {
                 let id = store.push(&v);
                 index.insert(&store, id);
             }
         }
-        for _ in 0..300 {
-            let w: Vec<Entry> = (0..6).map(|_| next() * 2).collect();
+        let mut hits = 0;
+        for i in 0..400 {
+            // Even queries are random, odd ones twice a stored vector plus noise (often
+            // reducible by it, unless the noise flips a sign).
+            let mut w: Vec<Entry> = (0..width).map(|_| next() * 2).collect();
+            if i % 2 == 1 {
+                let base = store.get((i % store.len()) as u32);
+                w.iter_mut().zip(base).for_each(|(x, &b)| *x += 2 * b);
+            }
             let found = index.find(&store, &w, None);
             assert_eq!(found.is_some(), brute(&store, &comps, &w));
+            hits += usize::from(found.is_some());
             if let Some(h) = found {
                 let h = store.get(h);
                 assert!(comps
@@ -241,5 +293,23 @@ mod tests {
                     .all(|&c| h[c] * w[c] >= 0 && h[c].abs() <= w[c].abs()));
             }
         }
+        assert!(
+            0 < hits && hits < 400,
+            "both answers are asked for: {hits} hits"
+        );
+    }
+
+    #[test]
+    fn tree_agrees_with_linear_scan() {
+        agrees_with_linear_scan::<1>(6, vec![0, 2, 3, 5]);
+    }
+
+    #[test]
+    fn wide_masks_agree_with_linear_scan() {
+        // Components past bit 64 and 128 land in the second and third words.
+        let comps: Vec<usize> = (0..140).filter(|c| c % 7 != 3).rev().collect();
+        agrees_with_linear_scan::<4>(140, comps.clone());
+        let first: Vec<usize> = comps.into_iter().filter(|&c| c < 100).collect();
+        agrees_with_linear_scan::<2>(140, first);
     }
 }

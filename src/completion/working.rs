@@ -4,6 +4,8 @@
 //! belongs to the set too). Inside a stage every member is stored explicitly, with a link to
 //! its negation when that is a member, so pairs can be formed by plain addition.
 
+use rayon::prelude::*;
+
 use super::reducer::{max_multiple, Reducer};
 use super::store::{negate, sub_scaled, Entry, VecStore};
 use crate::error::Result;
@@ -17,14 +19,15 @@ pub(crate) struct Orbit {
     pub symmetric: bool,
 }
 
-/// Members of a set during one stage, indexed for reduction on the stage's components.
-pub(crate) struct WorkingSet {
+/// Members of a set during one stage, indexed for reduction on the stage's components
+/// (sign masks of `W` words).
+pub(crate) struct WorkingSet<const W: usize> {
     pub store: VecStore,
     pub mirror: Vec<Option<u32>>,
-    pub reducer: Reducer,
+    pub reducer: Reducer<W>,
 }
 
-impl WorkingSet {
+impl<const W: usize> WorkingSet<W> {
     /// An empty set of vectors with `width` entries, compared on `comps`.
     pub(crate) fn new(width: usize, comps: Vec<usize>) -> Self {
         Self {
@@ -58,8 +61,8 @@ impl WorkingSet {
     /// as long as one exists. Returns `true` if `w` became zero there.
     pub(crate) fn reduce(&self, w: &mut [Entry]) -> Result<bool> {
         let comps = self.reducer.comps();
-        while comps.iter().any(|&c| w[c] != 0) {
-            let Some(h) = self.reducer.find(&self.store, w, None) else {
+        while let Some(found) = self.reducer.find_nonzero(&self.store, w) {
+            let Some(h) = found else {
                 return Ok(false);
             };
             let h = self.store.get(h);
@@ -79,29 +82,39 @@ impl WorkingSet {
         }
     }
 
-    /// The members that are ⊑-minimal on the stage's components, as orbits, each once.
+    /// The members that are ⊑-minimal on the stage's components, as orbits, each once. The
+    /// members are tested on all threads (each test only reads the set).
     pub(crate) fn minimal_orbits(&self) -> Vec<Orbit> {
-        self.orbits_of(|id| {
-            self.reducer
-                .find(&self.store, self.store.get(id), Some(id))
-                .is_none()
-        })
+        let minimal: Vec<bool> = (0..self.len() as u32)
+            .into_par_iter()
+            .map(|id| {
+                self.reducer
+                    .find(&self.store, self.store.get(id), Some(id))
+                    .is_none()
+            })
+            .collect();
+        self.orbits_of(&minimal)
     }
 
     /// The members satisfying `keep`, as orbits, each once.
     pub(crate) fn orbits_where(&self, keep: impl Fn(&[Entry]) -> bool) -> Vec<Orbit> {
-        self.orbits_of(|id| keep(self.store.get(id)))
+        let kept: Vec<bool> = (0..self.len() as u32)
+            .map(|id| keep(self.store.get(id)))
+            .collect();
+        self.orbits_of(&kept)
     }
 
-    fn orbits_of(&self, keep: impl Fn(u32) -> bool) -> Vec<Orbit> {
+    /// The members whose flag in `keep` is set, as orbits (a symmetric one when both signs
+    /// are kept), each once, in id order.
+    fn orbits_of(&self, keep: &[bool]) -> Vec<Orbit> {
         let mut out = Vec::new();
         for id in 0..self.len() as u32 {
             let mirror = self.mirror[id as usize];
             if mirror.is_some_and(|m| m < id) {
                 continue;
             }
-            let keep_rep = keep(id);
-            let keep_neg = mirror.is_some_and(&keep);
+            let keep_rep = keep[id as usize];
+            let keep_neg = mirror.is_some_and(|m| keep[m as usize]);
             let rep = match (keep_rep, keep_neg, mirror) {
                 (true, _, _) => self.store.get(id),
                 (false, true, Some(m)) => self.store.get(m),
