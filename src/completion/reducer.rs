@@ -99,14 +99,57 @@ struct Item<const W: usize> {
     id: u32,
 }
 
+/// A node of the support tree with what every member below it shares: a query that some
+/// member below fits must have these signs and at least this norm, so a node that fails
+/// either is passed over without reading its children or items.
 #[derive(Debug)]
-enum Node<const W: usize> {
+struct Node<const W: usize> {
+    /// The signs every member below has (for an empty node every bit, which nothing fits).
+    common: SignMask<W>,
+    /// The least norm of a member below (`u32::MAX` for an empty node).
+    least_norm: u32,
+    kind: Kind<W>,
+}
+
+#[derive(Debug)]
+enum Kind<const W: usize> {
     Leaf(Vec<Item<W>>),
     /// Split by the sign at position `depth` of the component list.
     Split {
         depth: u32,
         children: [u32; 3],
     },
+}
+
+impl<const W: usize> Node<W> {
+    /// A leaf holding `items`.
+    fn leaf(items: Vec<Item<W>>) -> Self {
+        let mut node = Node {
+            common: SignMask {
+                pos: [u64::MAX; W],
+                neg: [u64::MAX; W],
+            },
+            least_norm: u32::MAX,
+            kind: Kind::Leaf(Vec::new()),
+        };
+        items.iter().for_each(|item| node.admit(item));
+        node.kind = Kind::Leaf(items);
+        node
+    }
+
+    /// Counts `item` among the members below.
+    fn admit(&mut self, item: &Item<W>) {
+        for w in 0..W {
+            self.common.pos[w] &= item.mask.pos[w];
+            self.common.neg[w] &= item.mask.neg[w];
+        }
+        self.least_norm = self.least_norm.min(item.norm);
+    }
+
+    /// Whether some member below may fit `query`.
+    fn may_hold(&self, query: &Item<W>) -> bool {
+        self.least_norm <= query.norm && self.common.fits_in(&query.mask)
+    }
 }
 
 /// Support-tree index over a set of stored vectors, restricted to the active components.
@@ -122,7 +165,7 @@ impl<const W: usize> Reducer<W> {
         debug_assert!(comps.len() <= 64 * W);
         Self {
             comps,
-            nodes: vec![Node::Leaf(Vec::new())],
+            nodes: vec![Node::leaf(Vec::new())],
         }
     }
 
@@ -144,20 +187,28 @@ impl<const W: usize> Reducer<W> {
     pub(crate) fn insert(&mut self, store: &VecStore, id: u32) {
         let item = self.item(store.get(id), id);
         let (mut node, mut depth) = (0, 0);
-        while let Node::Split { depth: d, children } = &self.nodes[node] {
-            node = children[item.mask.slot(*d as usize)] as usize;
-            depth = *d as usize + 1;
-        }
-        if let Node::Leaf(items) = &mut self.nodes[node] {
-            items.push(item);
-            if items.len() > LEAF_CAPACITY && depth < self.comps.len() {
-                self.split(node, depth);
+        loop {
+            let current = &mut self.nodes[node];
+            current.admit(&item);
+            match &mut current.kind {
+                Kind::Split { depth: d, children } => {
+                    depth = *d as usize + 1;
+                    node = children[item.mask.slot(*d as usize)] as usize;
+                }
+                Kind::Leaf(items) => {
+                    items.push(item);
+                    if items.len() > LEAF_CAPACITY && depth < self.comps.len() {
+                        self.split(node, depth);
+                    }
+                    return;
+                }
             }
         }
     }
 
     fn split(&mut self, node: usize, depth: usize) {
-        let Node::Leaf(items) = std::mem::replace(&mut self.nodes[node], Node::Leaf(Vec::new()))
+        let Kind::Leaf(items) =
+            std::mem::replace(&mut self.nodes[node].kind, Kind::Leaf(Vec::new()))
         else {
             return;
         };
@@ -167,9 +218,9 @@ impl<const W: usize> Reducer<W> {
         }
         let base = self.nodes.len() as u32;
         for part in parts {
-            self.nodes.push(Node::Leaf(part));
+            self.nodes.push(Node::leaf(part));
         }
-        self.nodes[node] = Node::Split {
+        self.nodes[node].kind = Kind::Split {
             depth: depth as u32,
             children: [base, base + 1, base + 2],
         };
@@ -196,8 +247,12 @@ impl<const W: usize> Reducer<W> {
         query: &Item<W>,
         skip: Option<u32>,
     ) -> Option<u32> {
-        match &self.nodes[node] {
-            Node::Split { depth, children } => {
+        let current = &self.nodes[node];
+        if !current.may_hold(query) {
+            return None;
+        }
+        match &current.kind {
+            Kind::Split { depth, children } => {
                 let s = query.mask.slot(*depth as usize);
                 if s != 2 {
                     if let Some(h) = self.find_below(children[s] as usize, store, w, query, skip) {
@@ -206,7 +261,7 @@ impl<const W: usize> Reducer<W> {
                 }
                 self.find_below(children[2] as usize, store, w, query, skip)
             }
-            Node::Leaf(items) => items
+            Kind::Leaf(items) => items
                 .iter()
                 .find(|item| {
                     item.norm <= query.norm
@@ -228,7 +283,15 @@ impl<const W: usize> Reducer<W> {
 }
 
 /// The largest `k` with `k * h ⊑ w` on `comps`, given `h ⊑ w` there and `h` nonzero there.
+/// Most reductions subtract `h` once, which a test of `2h ⊑ w` by multiplication shows
+/// before any division.
 pub(crate) fn max_multiple(h: &[Entry], w: &[Entry], comps: &[usize]) -> Entry {
+    let twice = comps
+        .iter()
+        .all(|&c| 2 * u64::from(h[c].unsigned_abs()) <= u64::from(w[c].unsigned_abs()));
+    if !twice {
+        return 1;
+    }
     comps
         .iter()
         .filter(|&&c| h[c] != 0)
