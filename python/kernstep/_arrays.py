@@ -1,0 +1,144 @@
+"""Turning what a caller passes (numpy arrays of any integer dtype, integral floats, lists,
+scipy.sparse matrices) into the C-contiguous ``int64`` arrays of the compiled module.
+
+Every refusal is a :class:`kernstep.ModelError` naming the argument and the index. Infinite
+bounds become ``INT64_MIN`` (lower) and ``INT64_MAX`` (upper), values no model holds.
+"""
+
+from __future__ import annotations
+
+import sys
+from typing import Any, Literal
+
+import numpy as np
+
+from ._kernstep import VALUE_LIMIT
+from .errors import ModelError
+
+INT64_MIN = int(np.iinfo(np.int64).min)
+INT64_MAX = int(np.iinfo(np.int64).max)
+
+Side = Literal["lower", "upper"]
+
+
+def bad(field: str, message: str) -> ModelError:
+    """A :class:`ModelError` for ``field`` of the arguments."""
+    error = ModelError(f"<argument>: {field}: {message}")
+    error.field = field
+    error.file = "<argument>"
+    return error
+
+
+def _index(name: str, flat: int, shape: tuple[int, ...]) -> str:
+    """``name[i]`` or ``name[i, j]`` for the flat position ``flat`` of an array of ``shape``."""
+    where = np.unravel_index(flat, shape) if shape else ()
+    return f"{name}[{', '.join(str(int(i)) for i in where)}]"
+
+
+def _is_sparse(value: Any) -> bool:
+    """Whether ``value`` is a scipy.sparse matrix or array (scipy is never imported here)."""
+    sparse = sys.modules.get("scipy.sparse")
+    return sparse is not None and bool(sparse.issparse(value))
+
+
+def _from_objects(array: np.ndarray, name: str) -> np.ndarray:
+    """An object array of Python integers (too large for int64 or mixed) as int64."""
+    out = np.empty(array.shape, dtype=np.int64)
+    for flat, value in enumerate(array.reshape(-1)):
+        if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+            if isinstance(value, (float, np.floating)) and float(value).is_integer():
+                value = int(value)
+            else:
+                raise bad(_index(name, flat, array.shape), f"{value!r} is not an integer")
+        if not INT64_MIN <= int(value) <= INT64_MAX:
+            raise bad(_index(name, flat, array.shape), f"{value} does not fit int64")
+        out.reshape(-1)[flat] = int(value)
+    return out
+
+
+def _from_floats(array: np.ndarray, name: str) -> np.ndarray:
+    """A float array whose entries are all integral and within int64, as int64."""
+    flat = array.reshape(-1)
+    wrong = np.flatnonzero(~np.isfinite(flat) | (flat != np.floor(flat)))
+    if wrong.size:
+        k = int(wrong[0])
+        raise bad(_index(name, k, array.shape), f"{flat[k]!r} is not an integer")
+    beyond = np.flatnonzero(np.abs(flat) >= 2.0**63)
+    if beyond.size:
+        k = int(beyond[0])
+        raise bad(_index(name, k, array.shape), f"{flat[k]!r} does not fit int64")
+    return array.astype(np.int64)
+
+
+def integers(value: Any, name: str, ndim: int) -> np.ndarray:
+    """``value`` as a C-contiguous int64 array of ``ndim`` dimensions.
+
+    Integer and boolean dtypes convert when every value fits int64; floats only when every
+    entry is integral (``2.0``, not ``2.5``, ``nan`` or ``inf``); scipy.sparse matrices are
+    densified. Anything else (strings, complex numbers, dates) is refused.
+    """
+    if _is_sparse(value):
+        value = value.toarray()
+    array = np.asarray(value)
+    if array.ndim != ndim:
+        raise bad(name, f"expected a {ndim}-D array, got one of shape {array.shape}")
+    kind = array.dtype.kind
+    if kind in "bi":
+        out = array.astype(np.int64, copy=False)
+    elif kind == "u":
+        beyond = np.flatnonzero(array.reshape(-1) > INT64_MAX)
+        if beyond.size:
+            k = int(beyond[0])
+            raise bad(_index(name, k, array.shape), f"{array.reshape(-1)[k]} does not fit int64")
+        out = array.astype(np.int64)
+    elif kind == "f":
+        out = _from_floats(array, name)
+    elif kind == "O":
+        out = _from_objects(array, name)
+    else:
+        raise bad(name, f"has dtype {array.dtype}; pass integers (any integer dtype)")
+    return np.ascontiguousarray(out)
+
+
+def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndarray:
+    """Bounds of ``shape`` as int64 with infinite entries as the sentinel of ``side``.
+
+    ``value`` may be a scalar (the same bound everywhere), an array or a sequence; ``None``
+    entries and ``-inf`` (lower) or ``+inf`` (upper) are infinite bounds. Finite bounds must
+    lie within ``2**62``.
+    """
+    if _is_sparse(value):
+        value = value.toarray()
+    array = np.asarray(value, dtype=object if _has_none(value) else None)
+    if array.ndim == 0:
+        array = np.full(shape, array.item(), dtype=object if array.item() is None else array.dtype)
+    if array.shape != shape:
+        raise bad(name, f"has shape {array.shape}, expected {shape}")
+    sentinel = INT64_MIN if side == "lower" else INT64_MAX
+    infinity = -np.inf if side == "lower" else np.inf
+    flat = array.reshape(-1)
+    if array.dtype.kind == "O":
+        infinite = np.array([v is None or (isinstance(v, float) and v == infinity) for v in flat],
+                            dtype=bool)
+    elif array.dtype.kind == "f":
+        infinite = flat == infinity
+    else:
+        infinite = np.zeros(flat.shape, dtype=bool)
+    finite = flat.copy()
+    finite[infinite] = 0
+    values = integers(finite.reshape(shape), name, len(shape)).reshape(-1)
+    beyond = np.flatnonzero(~infinite & ((values > VALUE_LIMIT) | (values < -VALUE_LIMIT)))
+    if beyond.size:
+        k = int(beyond[0])
+        raise bad(_index(name, k, shape), f"{values[k]} is out of range (|v| <= 2**62)")
+    values[infinite] = sentinel
+    return np.ascontiguousarray(values.reshape(shape))
+
+
+def _has_none(value: Any) -> bool:
+    """Whether a (nested) list or tuple holds ``None``."""
+    if value is None:
+        return True
+    if isinstance(value, (list, tuple)):
+        return any(_has_none(v) for v in value)
+    return False
