@@ -62,11 +62,11 @@ def _from_floats(array: np.ndarray, name: str) -> np.ndarray:
     wrong = np.flatnonzero(~np.isfinite(flat) | (flat != np.floor(flat)))
     if wrong.size:
         k = int(wrong[0])
-        raise bad(_index(name, k, array.shape), f"{flat[k]!r} is not an integer")
+        raise bad(_index(name, k, array.shape), f"{float(flat[k])!r} is not an integer")
     beyond = np.flatnonzero(np.abs(flat) >= 2.0**63)
     if beyond.size:
         k = int(beyond[0])
-        raise bad(_index(name, k, array.shape), f"{flat[k]!r} does not fit int64")
+        raise bad(_index(name, k, array.shape), f"{float(flat[k])!r} does not fit int64")
     return array.astype(np.int64)
 
 
