@@ -7,6 +7,8 @@ entry, or a build that stopped.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 __all__ = [
     "KernstepError",
     "ModelError",
@@ -58,7 +60,7 @@ class CacheMissError(CacheError):
     ``cache_dir`` is the directory searched.
     """
 
-    cache_dir: str | None = None
+    cache_dir: Path | None = None
 
 
 class BuildStoppedError(KernstepError):
