@@ -374,20 +374,23 @@ class TestSet:
         return integers(warm_start, "warm_start", 1)
 
     def solve(self, b: Any = None, c: Any = None, lower: Any = None, upper: Any = None,
-              warm_start: Union[Result, Any, None] = None,
+              warm_start: Union[Result, Any, None] = None, strategy: str = "graver_best",
               max_steps: Optional[int] = None) -> Result:
         """Re-optimises the model with the numbers given (the model's for those omitted).
 
         ``lower``/``upper`` take scalars, arrays or sequences (``None``/``inf`` entries are
         unbounded). ``warm_start`` is a previous :class:`Result` or plan ``x``: the solve
-        starts from it plus a particular solution of ``A z = b - A x``. ``max_steps`` caps
-        the augmenting steps (default one million). The answer is certified: the status
+        starts from it plus a particular solution of ``A z = b - A x``. ``strategy`` picks
+        each step: ``"graver_best"`` (the largest improvement), ``"first"`` (the first
+        improving move) or ``"steepest"`` (the largest improvement per unit ℓ1 norm); every
+        one ends at a certified optimum. ``max_steps`` caps the augmenting steps (default one
+        million). The answer is certified: the status
         claims only what a certificate backs, re-checked independently.
         """
         b, c, lower, upper = self._numbers(b, c, lower, upper)
         (status, outcome, x, objective, claim, bound, gap, feasibility, cost,
          seconds) = self._inner.solve(b, c, lower, upper, self._warm(warm_start), None,
-                                      max_steps)
+                                      strategy, max_steps)
         return Result(
             status=Status(status), x=x, objective=objective, claim=claim,
             bound=None if bound is None else int(bound), gap=None if gap is None else int(gap),
@@ -395,10 +398,12 @@ class TestSet:
             outcome=json.loads(outcome))
 
     def solve_many(self, B: Any = None, C: Any = None, L: Any = None, U: Any = None,
-                   threads: Optional[int] = None, max_steps: Optional[int] = None) -> Batch:
+                   threads: Optional[int] = None, strategy: str = "graver_best",
+                   max_steps: Optional[int] = None) -> Batch:
         """Solves many variants in parallel without the GIL: row ``k`` of ``B`` (variants x
         rows), ``C``, ``L`` and ``U`` (variants x variables) is variant ``k``; an omitted
-        array keeps the model's numbers. ``threads`` defaults to one per core. Each answer
+        array keeps the model's numbers. ``threads`` defaults to one per core; ``strategy``
+        and ``max_steps`` are those of :meth:`solve`. Each answer
         equals :meth:`solve` of the same numbers; a variant that raises (say, a value out
         of range) raises for the whole call, naming its row. Ctrl-C stops the solves and
         raises ``KeyboardInterrupt``.
@@ -415,17 +420,18 @@ class TestSet:
             None if L is None else bounds(L, "L", "lower", (k, n)),
             None if U is None else bounds(U, "U", "upper", (k, n)),
         )
-        status, objective, x, steps = self._inner.solve_many(*arrays, threads, max_steps)
+        status, objective, x, steps = self._inner.solve_many(*arrays, threads, strategy,
+                                                             max_steps)
         return Batch(status=status, objective=objective, x=x, steps=steps)
 
     def trace(self, b: Any = None, c: Any = None, lower: Any = None, upper: Any = None,
-              warm_start: Union[Result, Any, None] = None,
+              warm_start: Union[Result, Any, None] = None, strategy: str = "graver_best",
               max_steps: Optional[int] = None) -> Trace:
         """Solves as :meth:`solve` does, recording every augmenting step; see :class:`Trace`
         (``Trace.to_frame()`` gives a pandas DataFrame when pandas is installed)."""
         b, c, lower, upper = self._numbers(b, c, lower, upper)
         document = self._inner.trace(b, c, lower, upper, self._warm(warm_start), None,
-                                     max_steps)
+                                     strategy, max_steps)
         return Trace(json.loads(document))
 
     @property

@@ -11,7 +11,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
 use std::time::Duration;
 
-use kernstep::augment::{Coverage, Options};
+use kernstep::augment::{Coverage, Options, Rule};
 use kernstep::bound::Multipliers;
 use kernstep::cache::SetKind;
 use kernstep::certify::{Answer, Claim, Limit};
@@ -279,13 +279,28 @@ impl PyTestSet {
     }
 }
 
-/// Solver options with an optional step limit.
-fn options(max_steps: Option<u64>) -> Options {
-    let options = Options::default();
-    match max_steps {
+/// Solver options: the step rule named by `strategy` (the command line's `--strategy`) and
+/// an optional step limit.
+fn options(py: Python<'_>, strategy: &str, max_steps: Option<u64>) -> PyResult<Options> {
+    let rule = match strategy {
+        "graver_best" => Rule::GraverBest,
+        "first" => Rule::FirstImproving,
+        "steepest" => Rule::Steepest,
+        other => {
+            return Err(bad_argument(
+                py,
+                "strategy",
+                &format!(
+                    "{other:?} is no strategy; use \"graver_best\", \"first\" or \"steepest\""
+                ),
+            ))
+        }
+    };
+    let options = Options::default().rule(rule);
+    Ok(match max_steps {
         Some(steps) => options.max_steps(steps),
         None => options,
-    }
+    })
 }
 
 /// The `kind` argument of a build.
@@ -423,7 +438,7 @@ impl PyTestSet {
 
     /// Solves one variant; see `kernstep.TestSet.solve`. Returns `(status, outcome JSON, x,
     /// objective, claim, bound, gap, feasibility steps, cost steps, seconds)`.
-    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, max_steps=None))]
+    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, strategy="graver_best", max_steps=None))]
     #[allow(clippy::too_many_arguments, clippy::type_complexity)]
     fn solve<'py>(
         &self,
@@ -434,6 +449,7 @@ impl PyTestSet {
         upper: Option<PyReadonlyArray1<'_, i64>>,
         warm_x: Option<PyReadonlyArray1<'_, i64>>,
         warm_b: Option<PyReadonlyArray1<'_, i64>>,
+        strategy: &str,
         max_steps: Option<u64>,
     ) -> PyResult<(
         u8,
@@ -454,7 +470,7 @@ impl PyTestSet {
             .as_ref()
             .or(serving.base.as_ref().filter(|_| variant.given));
         let numbers = self.numbers(&variant);
-        let options = options(max_steps);
+        let options = options(py, strategy, max_steps)?;
         let certified = py
             .detach(|| {
                 let verdict = serving
@@ -496,7 +512,7 @@ impl PyTestSet {
 
     /// Solves the rows of `b`, `c`, `lower` and `upper` in parallel without the GIL; see
     /// `kernstep.TestSet.solve_many`. Returns `(status, objective, x, steps)`.
-    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, threads=None, max_steps=None))]
+    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, threads=None, strategy="graver_best", max_steps=None))]
     #[allow(clippy::too_many_arguments, clippy::type_complexity)]
     fn solve_many<'py>(
         &self,
@@ -506,6 +522,7 @@ impl PyTestSet {
         lower: Option<PyReadonlyArray2<'_, i64>>,
         upper: Option<PyReadonlyArray2<'_, i64>>,
         threads: Option<usize>,
+        strategy: &str,
         max_steps: Option<u64>,
     ) -> PyResult<(
         Bound<'py, PyArray1<u8>>,
@@ -574,7 +591,7 @@ impl PyTestSet {
             ),
             None => None,
         };
-        let options = options(max_steps);
+        let options = options(py, strategy, max_steps)?;
         let model = &self.model;
         let cancel = AtomicBool::new(false);
         let row = |i: usize| -> kernstep::Result<RowAnswer> {
@@ -661,7 +678,7 @@ impl PyTestSet {
 
     /// Solves one variant with every step recorded; see `kernstep.TestSet.trace`. Returns the
     /// trace document as JSON (the layout of the command line's `trace --json`).
-    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, max_steps=None))]
+    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, strategy="graver_best", max_steps=None))]
     #[allow(clippy::too_many_arguments)]
     fn trace(
         &self,
@@ -672,6 +689,7 @@ impl PyTestSet {
         upper: Option<PyReadonlyArray1<'_, i64>>,
         warm_x: Option<PyReadonlyArray1<'_, i64>>,
         warm_b: Option<PyReadonlyArray1<'_, i64>>,
+        strategy: &str,
         max_steps: Option<u64>,
     ) -> PyResult<String> {
         let serving = self.serving(py)?;
@@ -687,7 +705,7 @@ impl PyTestSet {
             upper: variant.upper,
             ..self.model.clone()
         };
-        let options = options(max_steps);
+        let options = options(py, strategy, max_steps)?;
         let document = py
             .detach(|| record(&serving.prepared, &model, &options, start, &|| false))
             .map_err(|e| to_py(py, &e))?;

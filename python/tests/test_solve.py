@@ -61,3 +61,15 @@ def test_unbounded_plans_carry_their_ray(tmp_path):
     direction = np.array(result.outcome["direction"])
     # reference: by hand, the kernel of A is spanned by (1, 1, 1)
     assert abs(direction).tolist() == [1, 1, 1]
+
+
+def test_every_strategy_reaches_the_same_certified_optimum(tables, tables_set):
+    b, c, _ = table_variants(tables.A, 20, seed=33)
+    # reference: the default Graver-best steps
+    best = tables_set.solve_many(B=b, C=c)
+    for strategy in ("first", "steepest"):
+        other = tables_set.solve_many(B=b, C=c, strategy=strategy)
+        np.testing.assert_array_equal(other.objective, best.objective)
+        assert (other.status == kernstep.Status.OPTIMAL).all()
+    with pytest.raises(kernstep.ModelError, match='strategy: "fastest" is no strategy'):
+        tables_set.solve(strategy="fastest")
