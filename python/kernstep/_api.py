@@ -70,6 +70,7 @@ class Model:
     """
 
     __slots__ = ("_inner",)
+    _inner: _kernstep._Model
 
     def __init__(self, A: Any, b: Any, c: Any, lower: Any = None, upper: Any = None,
                  signs: Union[str, Sequence[int], None] = None) -> None:
@@ -297,6 +298,8 @@ class TestSet:
 
     __slots__ = ("_inner", "_model")
     __test__ = False  # not a pytest test class
+    _inner: _kernstep._TestSet
+    _model: Model
 
     def __init__(self) -> None:
         raise TypeError("use TestSet.build(model) or TestSet.load(model)")
