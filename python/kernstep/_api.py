@@ -38,6 +38,9 @@ class Status(enum.IntEnum):
     #: The solve was interrupted.
     CANCELLED = 6
 
+    def __str__(self) -> str:
+        return self.name
+
 
 def _signs(signs: Any, n: int) -> Optional[str]:
     """A sign pattern as the compiled module takes it: ``+``, ``-`` or ``f`` per variable."""
