@@ -401,7 +401,10 @@ impl PyTestSet {
             return Err(to_py(py, &stopped));
         }
         if kind == SetKind::Hilbert {
-            let digest = report.key.unwrap_or_default();
+            let Some(digest) = report.key else {
+                let unstored = "the build finished without storing a set".to_string();
+                return Err(to_py(py, &kernstep::Error::Unsupported(unstored)));
+            };
             let stored = library
                 .store()
                 .load_digest(&digest)

@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 import kernstep
-from conftest import HighsKept, table_variants, three_way
+from conftest import EXAMPLES, HighsKept, table_variants, three_way
 
 
 def test_a_loaded_set_equals_the_built_one(tables, tables_set, cache_dir):
@@ -84,3 +84,11 @@ def test_ctrl_c_stops_a_long_build_and_stores_nothing(tmp_path):
     assert seen[-1].stages == seen[0].stages and seen[-1].seconds >= seen[0].seconds
     with pytest.raises(kernstep.CacheMissError):
         kernstep.TestSet.load(model, cache_dir=tmp_path)
+
+
+def test_a_budgeted_build_that_reaches_the_proven_bound_is_complete(tmp_path):
+    # The matrix of examples/twisted_cubic.json: its Graver basis is small and quick.
+    model = kernstep.Model.from_file(EXAMPLES / "twisted_cubic.json")
+    testset = kernstep.TestSet.build(model, budget=60, cache_dir=tmp_path, progress=False)
+    # reference: `kernstep build` of the same file reports 5 moves, complete
+    assert testset.coverage == "complete" and len(testset) == 5
