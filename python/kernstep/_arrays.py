@@ -94,6 +94,12 @@ def integers(value: Any, name: str, ndim: int) -> np.ndarray:
     elif kind == "f":
         out = _from_floats(array, name)
     elif kind == "O":
+        # numpy infers the dtype of the Python values at C speed: int64 when they are all
+        # integers that fit, float64 when some are floats; anything else takes the slow
+        # path, which names the first bad entry.
+        inferred = np.array(array.tolist()) if array.size else array.astype(np.int64)
+        if inferred.shape == array.shape and inferred.dtype.kind in "bif":
+            return integers(inferred, name, ndim)
         out = _from_objects(array, name)
     else:
         raise bad(name, f"has dtype {array.dtype}; pass integers (any integer dtype)")
@@ -118,8 +124,7 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
     infinity = -np.inf if side == "lower" else np.inf
     flat = array.reshape(-1)
     if array.dtype.kind == "O":
-        infinite = np.array([v is None or (isinstance(v, float) and v == infinity) for v in flat],
-                            dtype=bool)
+        infinite = np.equal(flat, None) | np.equal(flat, infinity)
     elif array.dtype.kind == "f":
         infinite = flat == infinity
     else:
