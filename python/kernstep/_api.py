@@ -150,7 +150,7 @@ class Model:
     @property
     def shape(self) -> tuple[int, int]:
         """``(rows, variables)``."""
-        return (len(self._inner.row_names), len(self._inner.variable_names))
+        return self._inner.shape
 
     def __repr__(self) -> str:
         m, n = self.shape

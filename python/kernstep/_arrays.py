@@ -120,24 +120,29 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
         array = np.full(shape, array.item(), dtype=object if array.item() is None else array.dtype)
     if array.shape != shape:
         raise bad(name, f"has shape {array.shape}, expected {shape}")
-    sentinel = INT64_MIN if side == "lower" else INT64_MAX
-    infinity = -np.inf if side == "lower" else np.inf
-    flat = array.reshape(-1)
-    if array.dtype.kind == "O":
-        infinite = np.equal(flat, None) | np.equal(flat, infinity)
-    elif array.dtype.kind == "f":
-        infinite = flat == infinity
+    if array.dtype.kind in "biu":
+        # No infinite entries: integers only, each within the range.
+        values = integers(array, name, len(shape))
+        infinite = None
     else:
-        infinite = np.zeros(flat.shape, dtype=bool)
-    finite = flat.copy()
-    finite[infinite] = 0
-    values = integers(finite.reshape(shape), name, len(shape)).reshape(-1)
-    beyond = np.flatnonzero(~infinite & ((values > VALUE_LIMIT) | (values < -VALUE_LIMIT)))
+        flat = array.reshape(-1)
+        infinity = -np.inf if side == "lower" else np.inf
+        infinite = np.equal(flat, infinity)
+        if array.dtype.kind == "O":
+            infinite |= np.equal(flat, None)
+        finite = np.where(infinite, 0, flat).reshape(shape)
+        values = integers(finite, name, len(shape))
+    flat_values = values.reshape(-1)
+    beyond = np.flatnonzero((flat_values > VALUE_LIMIT) | (flat_values < -VALUE_LIMIT))
+    if infinite is not None:
+        beyond = beyond[~infinite[beyond]]
     if beyond.size:
         k = int(beyond[0])
-        raise bad(_index(name, k, shape), f"{values[k]} is out of range (|v| <= 2**62)")
-    values[infinite] = sentinel
-    return np.ascontiguousarray(values.reshape(shape))
+        raise bad(_index(name, k, shape), f"{flat_values[k]} is out of range (|v| <= 2**62)")
+    if infinite is not None and infinite.any():
+        values = values.copy()
+        values.reshape(-1)[infinite] = INT64_MIN if side == "lower" else INT64_MAX
+    return values
 
 
 def _has_none(value: Any) -> bool:

@@ -155,6 +155,12 @@ impl PyModel {
         &self.origin
     }
 
+    /// `(rows, variables)`.
+    #[getter]
+    fn shape(&self) -> (usize, usize) {
+        (self.model.constraints(), self.model.variables())
+    }
+
     /// Whether the model has piecewise-linear convex costs besides `c` (from a file).
     #[getter]
     fn has_convex_costs(&self) -> bool {
