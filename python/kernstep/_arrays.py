@@ -129,7 +129,7 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
         infinity = -np.inf if side == "lower" else np.inf
         infinite = np.equal(flat, infinity)
         if array.dtype.kind == "O":
-            infinite |= np.equal(flat, None)
+            infinite |= np.equal(flat, np.array(None, dtype=object))
         finite = np.where(infinite, 0, flat).reshape(shape)
         values = integers(finite, name, len(shape))
     flat_values = values.reshape(-1)
