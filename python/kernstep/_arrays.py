@@ -8,7 +8,7 @@ bounds become ``INT64_MIN`` (lower) and ``INT64_MAX`` (upper), values no model h
 from __future__ import annotations
 
 import sys
-from typing import Any, Literal
+from typing import Any, Literal, Optional
 
 import numpy as np
 
@@ -77,6 +77,8 @@ def integers(value: Any, name: str, ndim: int) -> np.ndarray:
     entry is integral (``2.0``, not ``2.5``, ``nan`` or ``inf``); scipy.sparse matrices are
     densified. Anything else (strings, complex numbers, dates) is refused.
     """
+    if type(value) is np.ndarray and value.dtype == np.int64 and value.ndim == ndim:
+        return np.ascontiguousarray(value)
     if _is_sparse(value):
         value = value.toarray()
     array = np.asarray(value)
@@ -113,6 +115,9 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
     entries and ``-inf`` (lower) or ``+inf`` (upper) are infinite bounds. Finite bounds must
     lie within ``2**62``.
     """
+    fast = _plain_bounds(value, side, shape)
+    if fast is not None:
+        return fast
     if _is_sparse(value):
         value = value.toarray()
     array = np.asarray(value, dtype=object if _has_none(value) else None)
@@ -143,6 +148,38 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
         values = values.copy()
         values.reshape(-1)[infinite] = INT64_MIN if side == "lower" else INT64_MAX
     return values
+
+
+def _plain_bounds(value: Any, side: Side, shape: tuple[int, ...]) -> Optional[np.ndarray]:
+    """The common cases of :func:`bounds` in a few array operations: an int64 array within
+    the range, a float array of integral values within the range and infinities of ``side``,
+    or an object array of such integers and ``None``. ``None`` for anything else (including every bad input, which the general path
+    then names)."""
+    if type(value) is not np.ndarray or value.shape != shape or value.size == 0:
+        return None
+    if value.dtype == np.int64:
+        if value.max() > VALUE_LIMIT or value.min() < -VALUE_LIMIT:
+            return None
+        return np.ascontiguousarray(value)
+    infinity = -np.inf if side == "lower" else np.inf
+    sentinel = INT64_MIN if side == "lower" else INT64_MAX
+    if value.dtype == object:
+        items = value.reshape(-1).tolist()
+        unbounded = [v is None or v == infinity for v in items]
+        filled = np.array([0 if u else v for v, u in zip(items, unbounded)])
+        if filled.dtype != np.int64 or filled.max() > VALUE_LIMIT or filled.min() < -VALUE_LIMIT:
+            return None
+        filled[np.array(unbounded)] = sentinel
+        return filled.reshape(shape)
+    if value.dtype != np.float64:
+        return None
+    infinite = value == infinity
+    finite = np.where(infinite, 0.0, value)
+    if not (np.abs(finite).max() <= VALUE_LIMIT and (finite == np.floor(finite)).all()):
+        return None
+    out = finite.astype(np.int64)
+    out[infinite] = sentinel
+    return out
 
 
 def _has_none(value: Any) -> bool:
