@@ -140,3 +140,29 @@ def test_analyze_equals_the_command_line(name):
     figures = kernstep.analyze(kernstep.Model.from_file(path))
     # reference: `kernstep analyze FILE --json` on the same file
     assert figures == cli_json("analyze", str(path))
+
+
+@pytest.mark.parametrize("upper", [
+    np.array([5.0, np.inf, 4.0, np.inf]),
+    np.array([5, 2**62, 4, 2**62]),
+    np.array([5, None, 4, None], dtype=object),
+])
+def test_bounds_of_every_common_form_agree(upper):
+    model = lane_plan(upper=upper)
+    expected = [5, None, 4, None] if upper.dtype != np.int64 else [5, 2**62, 4, 2**62]
+    assert model.upper == expected
+    assert plan_of(model) == HAND
+
+
+@pytest.mark.parametrize("upper, field, message", [
+    (np.array([5.0, np.inf, 4.5, np.inf]), "upper[2]", "4.5 is not an integer"),
+    (np.array([5.0, np.nan, 4.0, np.inf]), "upper[1]", "nan is not an integer"),
+    (np.array([5.0, -np.inf, 4.0, np.inf]), "upper[1]", "-inf is not an integer"),
+    (np.array([5, 2**62 + 1, 4, 0]), "upper[1]", "4611686018427387905 is out of range"),
+    (np.array([5, None, 2**62 + 1, None], dtype=object), "upper[2]", "is out of range"),
+    (np.array([5, None, 0.5, None], dtype=object), "upper[2]", "0.5 is not an integer"),
+])
+def test_bad_bounds_of_every_form_are_named(upper, field, message):
+    with pytest.raises(kernstep.ModelError, match=message) as err:
+        lane_plan(upper=upper)
+    assert err.value.field == field
