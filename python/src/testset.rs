@@ -598,6 +598,10 @@ impl PyTestSet {
         let model = &self.model;
         let cancel = AtomicBool::new(false);
         let row = |i: usize| -> kernstep::Result<RowAnswer> {
+            // After Ctrl-C the rows not yet started are not run (the call raises anyway).
+            if cancel.load(Ordering::Relaxed) {
+                return Ok((code::CANCELLED, None, None, 0));
+            }
             let pick = |all: &Option<Vec<i64>>, own: &[i64], w: usize| -> Vec<i64> {
                 all.as_ref()
                     .map_or_else(|| own.to_vec(), |v| v[i * w..(i + 1) * w].to_vec())

@@ -62,3 +62,19 @@ def test_bad_tables_are_refused_naming_the_argument(tables, tables_set):
         tables_set.solve_many(C=big)
     with pytest.raises(kernstep.ModelError, match="threads: must be at least 1"):
         tables_set.solve_many(B=b, threads=0)
+
+
+def test_ctrl_c_stops_solve_many(tables, tables_set):
+    import os
+    import signal
+    import threading
+
+    # About ten seconds of solves on one thread; Ctrl-C after a fifth of a second.
+    b, c, _ = table_variants(tables.A, 20000, seed=25)
+    timer = threading.Timer(0.2, os.kill, (os.getpid(), signal.SIGINT))
+    timer.start()
+    try:
+        with pytest.raises(KeyboardInterrupt):
+            tables_set.solve_many(B=b, C=c, threads=1)
+    finally:
+        timer.cancel()

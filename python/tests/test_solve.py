@@ -73,3 +73,23 @@ def test_every_strategy_reaches_the_same_certified_optimum(tables, tables_set):
         assert (other.status == kernstep.Status.OPTIMAL).all()
     with pytest.raises(kernstep.ModelError, match='strategy: "fastest" is no strategy'):
         tables_set.solve(strategy="fastest")
+
+
+def test_a_trace_replays_and_becomes_a_frame_with_pandas(tables, tables_set):
+    b, c, _ = table_variants(tables.A, 1, seed=34)
+    trace = tables_set.trace(b=b[0], c=c[0])
+    # reference: TestSet.solve of the same numbers
+    assert trace.x.tolist() == tables_set.solve(b=b[0], c=c[0]).x.tolist()
+    point = trace.start
+    for step in trace:
+        point = point + step["length"] * np.array(step["direction"])
+        assert int(step["before"]) - int(step["after"]) == int(step["gain"]) > 0
+    np.testing.assert_array_equal(point, trace.x)
+    try:
+        import pandas  # noqa: F401
+    except ImportError:
+        with pytest.raises(ImportError, match="pip install pandas"):
+            trace.to_frame()
+    else:
+        frame = trace.to_frame()
+        assert len(frame) == len(trace) and "direction" in frame.columns
