@@ -395,8 +395,8 @@ class TestSet:
         """
         b, c, lower, upper = self._numbers(b, c, lower, upper)
         (status, outcome, x, objective, claim, bound, gap, feasibility, cost,
-         seconds) = self._inner.solve(b, c, lower, upper, self._warm(warm_start), None,
-                                      strategy, max_steps)
+         seconds) = self._inner.solve(b, c, lower, upper, self._warm(warm_start), strategy,
+                                      max_steps)
         return Result(
             status=Status(status), x=x, objective=objective, claim=claim,
             bound=None if bound is None else int(bound), gap=None if gap is None else int(gap),
@@ -436,8 +436,8 @@ class TestSet:
         """Solves as :meth:`solve` does, recording every augmenting step; see :class:`Trace`
         (``Trace.to_frame()`` gives a pandas DataFrame when pandas is installed)."""
         b, c, lower, upper = self._numbers(b, c, lower, upper)
-        document = self._inner.trace(b, c, lower, upper, self._warm(warm_start), None,
-                                     strategy, max_steps)
+        document = self._inner.trace(b, c, lower, upper, self._warm(warm_start), strategy,
+                                     max_steps)
         return Trace(json.loads(document))
 
     @property

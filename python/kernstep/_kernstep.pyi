@@ -66,7 +66,7 @@ class _TestSet:
     def solve(
         self, b: Optional[_Int64] = None, c: Optional[_Int64] = None,
         lower: Optional[_Int64] = None, upper: Optional[_Int64] = None,
-        warm_x: Optional[_Int64] = None, warm_b: Optional[_Int64] = None,
+        warm_start: Optional[_Int64] = None,
         strategy: str = "graver_best", max_steps: Optional[int] = None,
     ) -> tuple[int, str, Optional[_Int64], Optional[int], Optional[str], Optional[str],
                Optional[str], int, int, float]:
@@ -82,7 +82,7 @@ class _TestSet:
     def trace(
         self, b: Optional[_Int64] = None, c: Optional[_Int64] = None,
         lower: Optional[_Int64] = None, upper: Optional[_Int64] = None,
-        warm_x: Optional[_Int64] = None, warm_b: Optional[_Int64] = None,
+        warm_start: Optional[_Int64] = None,
         strategy: str = "graver_best", max_steps: Optional[int] = None,
     ) -> str:
         """The trace document (JSON)."""

@@ -229,12 +229,11 @@ impl PyTestSet {
         })
     }
 
-    /// The previous plan `x` (for the right-hand side `b`, else `A x`) as a checked start.
+    /// The previous plan `x` (of the right-hand side `A x`) as a checked start.
     fn warm_start(
         &self,
         py: Python<'_>,
         x: Option<PyReadonlyArray1<'_, i64>>,
-        b: Option<PyReadonlyArray1<'_, i64>>,
     ) -> PyResult<Option<WarmStart>> {
         let Some(x) = x else {
             return Ok(None);
@@ -248,15 +247,12 @@ impl PyTestSet {
             "variables",
         )?;
         let x = exact(py, ("warm_start", 0), &x)?;
-        let rhs = match b {
-            Some(b) => b.as_array().to_vec(),
-            None => self.model.matrix.mul_vec(&x).ok_or_else(|| {
-                to_py(
-                    py,
-                    &kernstep::Error::Overflow("A x of the warm start".to_string()),
-                )
-            })?,
-        };
+        let rhs = self.model.matrix.mul_vec(&x).ok_or_else(|| {
+            to_py(
+                py,
+                &kernstep::Error::Overflow("A x of the warm start".to_string()),
+            )
+        })?;
         let warm = WarmStart {
             rhs,
             x,
@@ -441,7 +437,7 @@ impl PyTestSet {
 
     /// Solves one variant; see `kernstep.TestSet.solve`. Returns `(status, outcome JSON, x,
     /// objective, claim, bound, gap, feasibility steps, cost steps, seconds)`.
-    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, strategy="graver_best", max_steps=None))]
+    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_start=None, strategy="graver_best", max_steps=None))]
     #[allow(clippy::too_many_arguments, clippy::type_complexity)]
     fn solve<'py>(
         &self,
@@ -450,8 +446,7 @@ impl PyTestSet {
         c: Option<PyReadonlyArray1<'_, i64>>,
         lower: Option<PyReadonlyArray1<'_, i64>>,
         upper: Option<PyReadonlyArray1<'_, i64>>,
-        warm_x: Option<PyReadonlyArray1<'_, i64>>,
-        warm_b: Option<PyReadonlyArray1<'_, i64>>,
+        warm_start: Option<PyReadonlyArray1<'_, i64>>,
         strategy: &str,
         max_steps: Option<u64>,
     ) -> PyResult<(
@@ -468,7 +463,7 @@ impl PyTestSet {
     )> {
         let serving = self.serving(py)?;
         let variant = self.variant(py, b, c, lower, upper)?;
-        let warm = self.warm_start(py, warm_x, warm_b)?;
+        let warm = self.warm_start(py, warm_start)?;
         let start = warm
             .as_ref()
             .or(serving.base.as_ref().filter(|_| variant.given));
@@ -685,7 +680,7 @@ impl PyTestSet {
 
     /// Solves one variant with every step recorded; see `kernstep.TestSet.trace`. Returns the
     /// trace document as JSON (the layout of the command line's `trace --json`).
-    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_x=None, warm_b=None, strategy="graver_best", max_steps=None))]
+    #[pyo3(signature = (b=None, c=None, lower=None, upper=None, warm_start=None, strategy="graver_best", max_steps=None))]
     #[allow(clippy::too_many_arguments)]
     fn trace(
         &self,
@@ -694,14 +689,13 @@ impl PyTestSet {
         c: Option<PyReadonlyArray1<'_, i64>>,
         lower: Option<PyReadonlyArray1<'_, i64>>,
         upper: Option<PyReadonlyArray1<'_, i64>>,
-        warm_x: Option<PyReadonlyArray1<'_, i64>>,
-        warm_b: Option<PyReadonlyArray1<'_, i64>>,
+        warm_start: Option<PyReadonlyArray1<'_, i64>>,
         strategy: &str,
         max_steps: Option<u64>,
     ) -> PyResult<String> {
         let serving = self.serving(py)?;
         let variant = self.variant(py, b, c, lower, upper)?;
-        let warm = self.warm_start(py, warm_x, warm_b)?;
+        let warm = self.warm_start(py, warm_start)?;
         let start = warm
             .as_ref()
             .or(serving.base.as_ref().filter(|_| variant.given));
