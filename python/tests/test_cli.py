@@ -4,12 +4,13 @@ status, plan, objective and steps."""
 from __future__ import annotations
 
 import json
+import subprocess
 
 import numpy as np
 import pytest
 
 import kernstep
-from conftest import EXAMPLES, SCENARIOS, cli_json
+from conftest import EXAMPLES, SCENARIOS, cli_binary, cli_json
 
 MODEL_FILES = sorted(EXAMPLES.glob("*.json")) + sorted(EXAMPLES.glob("*.toml"))
 FILES = MODEL_FILES + sorted(SCENARIOS.glob("*.toml"))
@@ -83,3 +84,33 @@ def test_trace_equals_the_command_line(name, served):
     for step in trace:
         start = start + step["length"] * np.array(step["direction"])
     np.testing.assert_array_equal(start, trace.x)
+
+
+# The words of `kernstep batch` records for the statuses these variants reach.
+BATCH_WORDS = {"optimal": kernstep.Status.OPTIMAL, "infeasible": kernstep.Status.INFEASIBLE}
+
+
+@pytest.mark.parametrize("path", MODEL_FILES, ids=lambda p: p.name)
+def test_solve_many_equals_the_command_lines_batch(path, served, tmp_path):
+    model, testset, cache = served[path.name]
+    b, c = map(np.array, zip(*variants(model, 40, seed=3 * len(path.name))))
+    b[::7, 0] += 1  # some variants the bounds or the lattice refuse
+    days = tmp_path / "variants.jsonl"
+    days.write_text("".join(json.dumps({"id": f"v{k}", "rhs": b[k].tolist(),
+                                        "cost": c[k].tolist()}) + "\n" for k in range(len(b))))
+    out = tmp_path / "out.jsonl"
+    run = subprocess.run([str(cli_binary()), "batch", str(path), str(days), "--cache-dir",
+                          str(cache), "--out", str(out)], capture_output=True, text=True)
+    assert run.returncode in (0, 1), run.stderr
+    records = [json.loads(line) for line in out.read_text().splitlines()]
+    batch = testset.solve_many(B=b, C=c)
+    # reference: `kernstep batch FILE VARIANTS` on the same variants and cache
+    for k, record in enumerate(records):
+        assert batch.status[k] == BATCH_WORDS[record["status"]], f"variant {k}"
+        if record["plan"] is None:
+            assert not batch.x[k].any()
+            continue
+        assert batch.objective[k] == record["objective"]
+        plan = dict(zip(model.variable_names, batch.x[k].tolist()))
+        assert {name: v for name, v in plan.items() if v} == record["plan"]
+        assert batch.steps[k] == record["steps"]
