@@ -96,12 +96,6 @@ class Model:
         model._inner = _kernstep._Model.from_file(os.fspath(path))
         return model
 
-    @classmethod
-    def _of(cls, inner: "_kernstep._Model") -> "Model":
-        model = cls.__new__(cls)
-        model._inner = inner
-        return model
-
     @property
     def A(self) -> np.ndarray:
         """The constraint matrix (int64, rows x variables)."""
@@ -146,6 +140,12 @@ class Model:
     def origin(self) -> str:
         """The file the model was read from, or ``"<arrays>"``."""
         return self._inner.origin
+
+    @property
+    def has_convex_costs(self) -> bool:
+        """Whether the model (read from a file) adds piecewise-linear convex costs to ``c``;
+        variants change ``c`` and keep them."""
+        return self._inner.has_convex_costs
 
     @property
     def shape(self) -> tuple[int, int]:

@@ -122,6 +122,9 @@ def test_model_files_read_as_the_command_line_reads_them():
     assert plan_of(model) == HAND
     scenario = kernstep.Model.from_file(SCENARIOS / "brackle_lanes.toml")
     assert scenario.shape[1] > 0 and scenario.origin.endswith("brackle_lanes.toml")
+    # reference: examples/scenarios/corran_quarries.toml has lane surcharges (convex costs)
+    assert kernstep.Model.from_file(SCENARIOS / "corran_quarries.toml").has_convex_costs
+    assert not scenario.has_convex_costs and not model.has_convex_costs
 
 
 def test_a_bad_file_raises_with_the_file_and_field(tmp_path):
