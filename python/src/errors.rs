@@ -36,7 +36,7 @@ fn advice(error: &kernstep::Error) -> Option<&'static str> {
             Some("build it first with kernstep.TestSet.build(model, cache_dir=...)")
         }
         Error::BuildStopped { .. } => {
-            Some("build again with a larger budget or max_memory; the saved state is resumed")
+            Some("build again with a larger max_memory, or with a norm_limit or a budget for a partial set; a saved state is resumed")
         }
         _ => None,
     }
