@@ -153,7 +153,7 @@ def bounds(value: Any, name: str, side: Side, shape: tuple[int, ...]) -> np.ndar
 def _plain_bounds(value: Any, side: Side, shape: tuple[int, ...]) -> Optional[np.ndarray]:
     """The common cases of :func:`bounds` in a few array operations: an int64 array within
     the range, a float array of integral values within the range and infinities of ``side``,
-    or an object array of such integers and ``None``. ``None`` for anything else (including every bad input, which the general path
+    or an object array of integers and ``None`` (other objects take the general path). ``None`` for anything else (including every bad input, which the general path
     then names)."""
     if type(value) is not np.ndarray or value.shape != shape or value.size == 0:
         return None
@@ -165,8 +165,8 @@ def _plain_bounds(value: Any, side: Side, shape: tuple[int, ...]) -> Optional[np
     sentinel = INT64_MIN if side == "lower" else INT64_MAX
     if value.dtype == object:
         items = value.reshape(-1).tolist()
-        unbounded = [v is None or v == infinity for v in items]
-        filled = np.array([0 if u else v for v, u in zip(items, unbounded)])
+        unbounded = [v is None for v in items]
+        filled = np.array([0 if v is None else v for v in items])
         if filled.dtype != np.int64 or filled.max() > VALUE_LIMIT or filled.min() < -VALUE_LIMIT:
             return None
         filled[np.array(unbounded)] = sentinel
