@@ -442,12 +442,98 @@ fn svg_is_xml_with_one_point_per_step() {
     assert!(steps > 0);
     assert_eq!(circles, steps);
     assert!(cli_support::check_integer_ticks(&content) >= 2, "{content}");
+    assert!(svg_texts(&tree).contains(&"status: optimal".to_string()));
     let left: Vec<_> = std::fs::read_dir(dir.path())
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
         .filter(|n| n.ends_with(".tmp"))
         .collect();
     assert!(left.is_empty(), "temporary files left: {left:?}");
+}
+
+/// The text of every `<text>` element of an SVG picture.
+fn svg_texts(tree: &roxmltree::Document) -> Vec<String> {
+    tree.descendants()
+        .filter(|n| n.tag_name().name() == "text")
+        .filter_map(|n| n.text())
+        .map(|t| t.trim().to_string())
+        .collect()
+}
+
+/// The plot of a trace that proves infeasibility marks where phase I ended, and a partial
+/// set's plan shows its dual bound. The 2 x 2 transport with sums 5 has the plans
+/// `x = (5 - t, t, t, 5 - t)` (by hand); `x1 <= 1` needs `t >= 4` and `x2 <= 3` needs `t <= 3`,
+/// so no plan meets the bounds.
+#[test]
+fn svg_marks_an_infeasible_end_and_the_dual_bound() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("capped.toml");
+    std::fs::write(
+        &model,
+        "matrix = [[1, 1, 0, 0], [0, 0, 1, 1], [1, 0, 1, 0], [0, 1, 0, 1]]\n\
+         rhs = [5, 5, 5, 5]\ncost = [1, 2, 3, 4]\nlower = [0, 0, 0, 0]\nupper = [1, 3, 3, 1]\n",
+    )
+    .unwrap();
+    // Both engines prove it: the set of moves by phase I's minimum, the network by a cut.
+    for (engine, proof) in [
+        ("moves", "no_lattice_point_in_box"),
+        ("cycles", "infeasible_cut"),
+    ] {
+        let svg = dir.path().join(format!("capped_{engine}.svg"));
+        let extra = ["--engine", engine, "--svg", svg.to_str().unwrap()];
+        let (code, doc) = trace_json(&model, dir.path(), &extra);
+        assert_eq!(code, 1);
+        assert_eq!(doc["outcome"]["tag"], proof, "{doc}");
+        let content = std::fs::read_to_string(&svg).unwrap();
+        let texts = svg_texts(&roxmltree::Document::parse(&content).unwrap());
+        assert!(
+            texts.iter().any(|t| t.starts_with("status: infeasible")),
+            "{texts:?}"
+        );
+        assert!(
+            texts.contains(&"infeasible".to_string()),
+            "{engine}: {texts:?}"
+        );
+    }
+
+    // The Graver elements up to norm 2 of the product-line scenario: the first day's plan is
+    // optimal among them only, with a dual bound (README, Partial sets).
+    let scenario = scenarios().join("vell_valley.toml");
+    let days = scenarios().join("vell_valley_days.jsonl");
+    let (s, d) = (scenario.to_str().unwrap(), days.to_str().unwrap());
+    let cache = dir.path().join("partial");
+    let cache = cache.to_str().unwrap();
+    let build = [
+        "build",
+        s,
+        "--engine",
+        "moves",
+        "--norm-limit",
+        "2",
+        "--cache-dir",
+        cache,
+    ];
+    assert_eq!(kernstep(&build).status.code(), Some(0));
+    let svg = dir.path().join("partial.svg");
+    let args = [
+        "trace",
+        s,
+        "--variant",
+        d,
+        "--engine",
+        "moves",
+        "--cache-dir",
+        cache,
+    ];
+    let svg_arg = ["--svg", svg.to_str().unwrap(), "--json"];
+    let out = kernstep(&[&args[..], &svg_arg[..]].concat());
+    let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let bound = doc["bound"]["value"]
+        .as_str()
+        .expect("a partial set's plan has a bound");
+    let content = std::fs::read_to_string(&svg).unwrap();
+    let texts = svg_texts(&roxmltree::Document::parse(&content).unwrap());
+    assert!(texts.contains(&format!("dual bound {bound}")), "{texts:?}");
 }
 
 #[test]

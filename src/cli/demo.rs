@@ -175,7 +175,7 @@ fn write_highlight(
         scenario.title.as_deref().unwrap_or("demo"),
         doc.steps.len()
     );
-    write_atomically(&svg, step_plot(&doc.steps, &title)?.as_bytes())?;
+    write_atomically(&svg, step_plot(&doc, &title)?.as_bytes())?;
     Ok((json, svg))
 }
 

@@ -33,7 +33,7 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
     let doc = instance.trace(&cancelled)?;
     let title = title(&instance);
     if let Some(path) = &args.svg {
-        write_atomically(path, step_plot(&doc.steps, &title)?.as_bytes())?;
+        write_atomically(path, step_plot(&doc, &title)?.as_bytes())?;
     }
     let mut out = io::stdout().lock();
     if args.json {

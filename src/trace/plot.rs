@@ -1,12 +1,15 @@
 //! SVG plots of a solve's progress: the violation per step in phase I and the cost per step in
-//! phase II, each in its own panel, one marked point per augmenting step. Both axes hold
+//! phase II, each in its own panel, one marked point per augmenting step, under a line that
+//! says how the solve ended. A phase I that ended outside the box is marked with a cross at its
+//! last point; a partial set's dual bound is a dashed line in the cost panel. Both axes hold
 //! integers, so their ticks are integers chosen here (distinct, at most a handful per axis).
 
 use std::ops::Range;
 
 use plotters::prelude::*;
 
-use super::document::{StepPhase, StepRecord};
+use super::document::{StepPhase, StepRecord, TraceDocument};
+use super::outcome::Outcome;
 use crate::error::{Error, Result};
 
 /// Size of the picture in pixels.
@@ -18,33 +21,43 @@ const STEP_TICKS: usize = 10;
 /// At most this many ticks on a value axis (a panel is half the picture's height).
 const VALUE_TICKS: usize = 8;
 
+/// The status line is cut to this many characters.
+const STATUS_CHARS: usize = 110;
+
 /// One panel's data: the value before the phase's first step, then one point per step.
 struct Series {
     label: &'static str,
     colour: RGBColor,
     start: (i64, i128),
     points: Vec<(i64, i128)>,
+    /// A horizontal line: the dual bound, in the cost panel.
+    bound: Option<i128>,
+    /// A cross at the last point, with its label: phase I ended outside the box.
+    end: Option<&'static str>,
 }
 
-/// The SVG picture of the steps of a trace, headed by `title`.
-pub fn step_plot(steps: &[StepRecord], title: &str) -> Result<String> {
-    let panels: Vec<Series> = [
-        series(steps, StepPhase::Feasibility),
-        series(steps, StepPhase::Cost),
-    ]
-    .into_iter()
-    .flatten()
-    .collect();
-    let total = i64::try_from(steps.len().max(1)).unwrap_or(i64::MAX);
+/// The SVG picture of the trace `doc`, headed by `title`: its steps, the status and, where
+/// they apply, the infeasible end of phase I and the dual bound.
+pub fn step_plot(doc: &TraceDocument, title: &str) -> Result<String> {
+    let mut panels = panels(doc);
+    mark(&mut panels, doc);
+    let total = i64::try_from(doc.steps.len().max(1)).unwrap_or(i64::MAX);
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
         root.fill(&WHITE).map_err(draw_error)?;
         let root = root.titled(title, ("sans-serif", 20)).map_err(draw_error)?;
+        let (line, root) = root.split_vertically(28);
+        line.draw(&Text::new(
+            status_line(&doc.outcome),
+            (40, 4),
+            ("sans-serif", 15),
+        ))
+        .map_err(draw_error)?;
         if panels.is_empty() {
             root.draw(&Text::new(
-                "no augmenting steps: the start point was already optimal",
-                (40, 60),
+                "no augmenting steps",
+                (40, 30),
                 ("sans-serif", 16),
             ))
             .map_err(draw_error)?;
@@ -58,21 +71,87 @@ pub fn step_plot(steps: &[StepRecord], title: &str) -> Result<String> {
     Ok(svg)
 }
 
-fn series(steps: &[StepRecord], phase: StepPhase) -> Option<Series> {
-    let first = steps.iter().position(|s| s.phase == phase)?;
+/// `status: ...`, cut to [`STATUS_CHARS`] characters.
+fn status_line(outcome: &Outcome) -> String {
+    let text = format!("status: {outcome}");
+    if text.chars().count() <= STATUS_CHARS {
+        return text;
+    }
+    let kept: String = text.chars().take(STATUS_CHARS - 1).collect();
+    format!("{kept}…")
+}
+
+/// The panels of `doc`: one per phase with steps, and, for a phase without steps, one of the
+/// start point alone when there is something to mark on it (phase I ending outside the box,
+/// a dual bound on the plan's cost).
+fn panels(doc: &TraceDocument) -> Vec<Series> {
+    let alone = |phase, value: i128| Series {
+        start: (0, value),
+        points: Vec::new(),
+        ..blank(phase)
+    };
+    let feasibility = series(&doc.steps, StepPhase::Feasibility).or_else(|| {
+        let violation = doc.violation.filter(|v| v.0 > 0)?;
+        Some(alone(StepPhase::Feasibility, violation.0))
+    });
+    let cost = series(&doc.steps, StepPhase::Cost).or_else(|| {
+        doc.bound.as_ref()?;
+        Some(alone(StepPhase::Cost, doc.objective?.0))
+    });
+    feasibility.into_iter().chain(cost).collect()
+}
+
+/// Adds the dual bound to the cost panel and, when phase I ended above zero violation, the
+/// cross at its last point, labelled by what the end means.
+fn mark(panels: &mut [Series], doc: &TraceDocument) {
+    let end = match doc.outcome {
+        Outcome::NoIntegerSolution { .. }
+        | Outcome::EmptyRange { .. }
+        | Outcome::NoLatticePointInBox { .. }
+        | Outcome::InfeasibleCut { .. } => Some("infeasible"),
+        Outcome::InfeasibleUnproven { .. } => Some("no plan found (not a proof)"),
+        Outcome::StepLimit | Outcome::Cancelled => Some("stopped outside the box"),
+        _ => None,
+    };
+    for panel in panels.iter_mut() {
+        if panel.label == COST {
+            panel.bound = doc.bound.as_ref().and_then(|b| b.value.parse().ok());
+        } else if panel.points.last().unwrap_or(&panel.start).1 > 0 {
+            panel.end = end;
+        }
+    }
+}
+
+/// The label of the cost panel.
+const COST: &str = "cost (phase II)";
+
+/// The panel of `phase` with no points yet.
+fn blank(phase: StepPhase) -> Series {
     let (label, colour) = match phase {
         StepPhase::Feasibility => ("violation (phase I)", RGBColor(200, 80, 40)),
-        StepPhase::Cost => ("cost (phase II)", RGBColor(30, 90, 180)),
+        StepPhase::Cost => (COST, RGBColor(30, 90, 180)),
     };
-    Some(Series {
+    Series {
         label,
         colour,
+        start: (0, 0),
+        points: Vec::new(),
+        bound: None,
+        end: None,
+    }
+}
+
+/// The panel of the steps of `phase`, if it has any.
+fn series(steps: &[StepRecord], phase: StepPhase) -> Option<Series> {
+    let first = steps.iter().position(|s| s.phase == phase)?;
+    Some(Series {
         start: (step_number(first), steps[first].before.0),
         points: steps
             .iter()
             .filter(|s| s.phase == phase)
             .map(|s| (step_number(s.step), s.after.0))
             .collect(),
+        ..blank(phase)
     })
 }
 
@@ -118,6 +197,34 @@ where
                 .map(|&p| Circle::new(p, 4, panel.colour.filled())),
         )
         .map_err(draw_error)?;
+    if panel.points.is_empty() {
+        let start =
+            EmptyElement::at(panel.start) + Circle::new((0, 0), 5, panel.colour.stroke_width(2));
+        chart.draw_series([start]).map_err(draw_error)?;
+    }
+    if let Some(bound) = panel.bound {
+        let grey = RGBColor(90, 90, 90);
+        chart
+            .draw_series(DashedLineSeries::new(
+                [(0, bound), (steps, bound)],
+                8,
+                6,
+                grey.stroke_width(2),
+            ))
+            .map_err(draw_error)?;
+        let label = format!("dual bound {bound}");
+        let label = EmptyElement::at((0, bound)) + Text::new(label, (6, -18), ("sans-serif", 13));
+        chart.draw_series([label]).map_err(draw_error)?;
+    }
+    if let Some(label) = panel.end {
+        let at = panel.points.last().copied().unwrap_or(panel.start);
+        let red = RGBColor(190, 20, 20);
+        let font = ("sans-serif", 14).into_font().color(&red);
+        let mark = EmptyElement::at(at)
+            + Cross::new((0, 0), 9, red.stroke_width(3))
+            + Text::new(label, (14, -20), font);
+        chart.draw_series([mark]).map_err(draw_error)?;
+    }
     Ok(())
 }
 
@@ -126,9 +233,11 @@ fn step_number(step: usize) -> i64 {
     i64::try_from(step).unwrap_or(i64::MAX)
 }
 
-/// The smallest and the largest value of a panel.
+/// The smallest and the largest value of a panel, its bound included.
 fn value_extent(panel: &Series) -> (i128, i128) {
-    let values = std::iter::once(panel.start.1).chain(panel.points.iter().map(|p| p.1));
+    let values = std::iter::once(panel.start.1)
+        .chain(panel.points.iter().map(|p| p.1))
+        .chain(panel.bound);
     values.fold((i128::MAX, i128::MIN), |(l, h), v| (l.min(v), h.max(v)))
 }
 
