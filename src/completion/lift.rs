@@ -112,7 +112,6 @@ struct Lifting<'a, const W: usize> {
     /// Entries per vector.
     width: usize,
     set: WorkingSet<W>,
-    masks: Vec<SignMask<W>>,
     norms: Vec<u64>,
     pos: Groups<W>,
     neg: Groups<W>,
@@ -175,7 +174,6 @@ impl<'a, const W: usize> Lifting<'a, W> {
             stage,
             width,
             set: WorkingSet::new(width, comps),
-            masks: Vec::new(),
             norms: Vec::new(),
             pos: Groups::new(),
             neg: Groups::new(),
@@ -282,8 +280,6 @@ impl<const W: usize> Lifting<'_, W> {
         for id in std::iter::once(a).chain(b) {
             let v = self.set.store.get(id);
             let norm = norm_on(v, self.stage.old);
-            let mask = SignMask::of(v, self.stage.old);
-            self.masks.push(mask);
             self.norms.push(norm);
             let x = v[self.stage.new];
             let key = (norm, u64::from(x.unsigned_abs()));
@@ -297,8 +293,14 @@ impl<const W: usize> Lifting<'_, W> {
                 masks: Vec::new(),
             });
             group.ids.push(id);
-            group.masks.push(mask);
+            group.masks.push(SignMask::of(v, self.stage.old));
         }
+    }
+
+    /// The sign masks of member `p` on `S` (those of its group; computed again here, once per
+    /// member whose pairs are formed, rather than kept twice).
+    fn mask(&self, p: u32) -> SignMask<W> {
+        SignMask::of(self.set.store.get(p), self.stage.old)
     }
 
     /// The smallest norm level at least `from` that some pair of groups has, if any (levels
@@ -375,7 +377,7 @@ impl<const W: usize> Lifting<'_, W> {
     ) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
         let mut w = vec![0; self.width];
-        let mp = &self.masks[p as usize];
+        let mp = self.mask(p);
         for (q, mq) in partners {
             if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Formed {
                 continue;
@@ -537,7 +539,7 @@ impl<const W: usize> Lifting<'_, W> {
     /// normal form.
     fn cut_pair_survives(&self, p: u32, qs: &Group<W>) -> Result<bool> {
         let mut w = vec![0; self.width];
-        let mp = &self.masks[p as usize];
+        let mp = self.mask(p);
         for (q, mq) in qs.members() {
             if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Cut {
                 continue;
