@@ -7,6 +7,7 @@ import json
 import os
 import random
 import subprocess
+import sys
 from pathlib import Path
 from typing import Optional, Sequence
 
@@ -16,6 +17,8 @@ import pytest
 import kernstep
 
 ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT / "benches"))
+import network_scenarios  # noqa: E402
 EXAMPLES = ROOT / "examples"
 SCENARIOS = EXAMPLES / "scenarios"
 
@@ -65,28 +68,9 @@ def table_variants(a: np.ndarray, count: int, seed: int):
 
 
 def make_lanes(n_depots: int, n_zones: int, rng: random.Random) -> dict:
-    """A feasible invented lanes scenario (the generator of benches/network_scenarios.py):
-    a random plan first, then capacities and supplies around it."""
-    depots = [f"d{i:02d}" for i in range(1, n_depots + 1)]
-    zones = [f"z{j:03d}" for j in range(1, n_zones + 1)]
-    demand, lanes = {}, []
-    shipped = {d: 0 for d in depots}
-    for z in zones:
-        served_by = sorted(rng.sample(depots, min(n_depots, rng.randint(3, 5))))
-        demand[z] = rng.randint(5, 40)
-        cuts = sorted(rng.randint(0, demand[z]) for _ in served_by[1:])
-        parts = [b - a for a, b in zip([0] + cuts, cuts + [demand[z]])]
-        for d, units in zip(served_by, parts):
-            lane = {"from": d, "to": z, "cost": rng.randint(1, 30)}
-            if rng.random() < 0.8:
-                lane["capacity"] = units + rng.randint(2, 15)
-            lanes.append(lane)
-            shipped[d] += units
-    supply = {d: shipped[d] + round(0.15 * shipped[d]) + rng.randint(3, 10) for d in depots}
-    keep_cost = {d: rng.randint(0, 3) for d in depots}
-    return {"kind": "lanes", "title": f"Invented lanes, {n_depots} depots x {n_zones} zones",
-            "depots": depots, "zones": zones, "supply": supply, "demand": demand,
-            "keep_cost": keep_cost, "lanes": lanes}
+    """A feasible invented lanes scenario: the generator of benches/network_scenarios.py (a
+    random plan first, then capacities and supplies around it), which the benchmarks share."""
+    return network_scenarios.make_scenario(n_depots, n_zones, rng)
 
 
 def highs_optimum(a: np.ndarray, b: Sequence[int], c: Sequence[int],
