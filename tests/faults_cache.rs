@@ -738,7 +738,7 @@ fn forged_entries_are_refused_with_the_file_named() {
     let (dir, target) = cache_with_transport();
     let store = Store::open(dir.path()).unwrap();
     let real = store.load(&target.key).unwrap().unwrap();
-    let elements = real.data.elements().to_vec();
+    let elements = real.data.to_elements();
     let width = real.data.width();
     let mut off_kernel = elements.clone();
     off_kernel[0] += 1;
@@ -796,12 +796,7 @@ fn an_entry_copied_from_another_cache_is_verified_then_served_and_sealed() {
     let (dir, target) = cache_with_transport();
     let store = Store::open(dir.path()).unwrap();
     let real = store.load(&target.key).unwrap().unwrap();
-    copy_in(
-        dir.path(),
-        &real,
-        &target.key,
-        real.data.elements().to_vec(),
-    );
+    copy_in(dir.path(), &real, &target.key, real.data.to_elements());
     assert_eq!(
         store.load(&target.key).unwrap().unwrap().provenance,
         cache::Provenance::Foreign
@@ -974,10 +969,7 @@ fn a_checkpoint_with_a_valid_checksum_and_invalid_content_is_set_aside() {
         assert!(!checkpoint.exists(), "{name}");
         assert!(store.set_aside_path(target.key.digest()).exists(), "{name}");
         let built = store.load(&target.key).unwrap().unwrap();
-        assert_eq!(
-            built.data.rows().map(<[i64]>::to_vec).collect::<Vec<_>>(),
-            expected
-        );
+        assert_eq!(built.data.rows().collect::<Vec<_>>(), expected);
         // The next build finds the entry; the set-aside file is listed until pruned.
         let listing = bounded(dir.path(), &["cache", "list", "--json"]);
         let doc: serde_json::Value = serde_json::from_slice(&listing.stdout).unwrap();

@@ -3,8 +3,8 @@
 //! ([`Checker::violation_decrease`]).
 //!
 //! The checks share nothing with the solver's scans (no sign masks, rates, rooms or line
-//! searches of theirs): a [`Checker`] keeps its own copy of every move, read from the plain
-//! rows, and compares exact term values on either side of a unit step. A unit step
+//! searches of theirs): a [`Checker`] reads every move from the set's one copy of its entries,
+//! keeps its own sign masks of them, and compares exact term values on either side of a unit step. A unit step
 //! suffices: if `x + t d` is feasible and better for some `t >= 1`, then `x + d` lies in the
 //! (convex) box and, by convexity of `f`, `f(x + d) <= (1 - 1/t) f(x) + (1/t) f(x + t d) <
 //! f(x)`. The violation is convex as well, so the same holds for it.
@@ -14,12 +14,16 @@
 //! masks against the point's bound masks sets most moves aside; the others get the exact
 //! test. This keeps the check cheap enough to run after every solve of a batch.
 
+use std::sync::Arc;
+
+use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::error::{overflow, AugmentError, Result};
 use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::problem::Problem;
+use crate::support::Support;
 
 /// The verdict of [`certify`].
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
@@ -54,10 +58,14 @@ pub struct Decrease {
 }
 
 /// Checks `x` against every move in both signs (see the module documentation); the first
-/// improving move in (move, sign) order is returned. Builds a [`Checker`] for the one call;
-/// keep a [`Checker`] to check many points against one set.
+/// improving move in (move, sign) order is returned. Reads the set's sign patterns for the
+/// one call; keep a [`Checker`] to check many points against one set.
 pub fn certify(problem: &Problem, moves: &MoveSet, x: &[i64]) -> Result<Certificate> {
-    Checker::new(moves).certify(problem, x)
+    Check {
+        moves,
+        masks: &Masks::of(moves),
+    }
+    .certify(problem, x)
 }
 
 /// The first signed move (in (move, sign) order) that lowers the total violation at `x`;
@@ -67,94 +75,137 @@ pub fn violation_decrease(
     moves: &MoveSet,
     x: &[i64],
 ) -> Result<Option<Decrease>> {
-    Checker::new(moves).violation_decrease(problem, x)
+    Check {
+        moves,
+        masks: &Masks::of(moves),
+    }
+    .violation_decrease(problem, x)
 }
 
-/// The checker's own copy of a move set: per move its support and values, and bit masks of
-/// its positive and negative entries (bit `i % 64` of word `i / 64` for coordinate `i`),
-/// all read from the dense rows of the set.
-#[derive(Debug, Clone, PartialEq, Eq)]
+/// A move set with the checker's own sign masks of its moves: the set is shared with the
+/// solver (its entries are the one copy of the moves), the masks are not.
+#[derive(Debug, Clone)]
 pub struct Checker {
-    width: usize,
+    moves: Arc<MoveSet>,
+    masks: Masks,
+}
+
+impl Checker {
+    /// Reads the sign pattern of every move of `moves` from its entries.
+    pub fn new(moves: Arc<MoveSet>) -> Self {
+        let masks = Masks::of(&moves);
+        Checker { moves, masks }
+    }
+
+    /// Number of moves.
+    pub fn len(&self) -> usize {
+        self.moves.len()
+    }
+
+    /// True for a set without moves.
+    pub fn is_empty(&self) -> bool {
+        self.moves.is_empty()
+    }
+
+    /// Checks `x` against every move in both signs (see the module documentation); the
+    /// first improving move in (move, sign) order is returned.
+    pub fn certify(&self, problem: &Problem, x: &[i64]) -> Result<Certificate> {
+        self.check().certify(problem, x)
+    }
+
+    /// The first signed move (in (move, sign) order) that lowers the total violation
+    /// `sum_i dist(x_i, [l_i, u_i])` at `x` with a unit step, or `None` when no move does:
+    /// with a complete Graver basis `x` then minimises the violation over its fibre (Murota,
+    /// Saito, Weismantel 2004).
+    pub fn violation_decrease(&self, problem: &Problem, x: &[i64]) -> Result<Option<Decrease>> {
+        self.check().violation_decrease(problem, x)
+    }
+
+    fn check(&self) -> Check<'_> {
+        Check {
+            moves: &self.moves,
+            masks: &self.masks,
+        }
+    }
+}
+
+/// Per move bit masks of its positive and negative entries (bit `i % 64` of word `i / 64`
+/// for coordinate `i`, `words` per move), with the largest l1 norm.
+#[derive(Debug, Clone)]
+struct Masks {
     words: usize,
-    starts: Vec<usize>,
-    indices: Vec<usize>,
-    values: Vec<i64>,
     positive: Vec<u64>,
     negative: Vec<u64>,
     /// The largest l1 norm of a move, saturated at `u64::MAX`.
     max_norm: u64,
 }
 
-impl Checker {
-    /// Copies the moves of `moves` from their dense rows.
-    pub fn new(moves: &MoveSet) -> Self {
-        let (width, words) = (moves.width(), moves.width().div_ceil(64));
-        let mut checker = Checker {
-            width,
+impl Masks {
+    /// The masks of every move of `moves`, read from its entries (blocks of moves on the
+    /// pool's threads).
+    fn of(moves: &MoveSet) -> Self {
+        const BLOCK: usize = 4096;
+        let words = moves.width().div_ceil(64);
+        let mut masks = Masks {
             words,
-            starts: vec![0],
-            indices: Vec::new(),
-            values: Vec::new(),
             positive: vec![0; moves.len() * words],
             negative: vec![0; moves.len() * words],
             max_norm: 0,
         };
-        for k in 0..moves.len() {
-            for (i, &v) in moves.row(k).iter().enumerate().filter(|(_, &v)| v != 0) {
-                checker.indices.push(i);
-                checker.values.push(v);
-                let mask = if v > 0 {
-                    &mut checker.positive
-                } else {
-                    &mut checker.negative
-                };
-                mask[k * words + i / 64] |= 1 << (i % 64);
-            }
-            let norm = moves
-                .row(k)
-                .iter()
-                .fold(0u64, |n, v| n.saturating_add(v.unsigned_abs()));
-            checker.max_norm = checker.max_norm.max(norm);
-            checker.starts.push(checker.indices.len());
-        }
-        checker
+        let blocks = masks.positive.par_chunks_mut(BLOCK * words);
+        let blocks = blocks.zip(masks.negative.par_chunks_mut(BLOCK * words));
+        masks.max_norm = blocks
+            .enumerate()
+            .map(|(b, (positive, negative))| {
+                let mut max_norm = 0u64;
+                for (j, k) in (b * BLOCK..moves.len()).take(BLOCK).enumerate() {
+                    let mut norm = 0u64;
+                    for (i, v) in moves.support(k).iter() {
+                        let side = if v > 0 {
+                            &mut *positive
+                        } else {
+                            &mut *negative
+                        };
+                        side[j * words + i / 64] |= 1 << (i % 64);
+                        norm = norm.saturating_add(v.unsigned_abs());
+                    }
+                    max_norm = max_norm.max(norm);
+                }
+                max_norm
+            })
+            .max()
+            .unwrap_or(0);
+        masks
     }
+}
 
-    /// Number of moves.
-    pub fn len(&self) -> usize {
-        self.starts.len() - 1
-    }
+/// One set with its masks: the checks themselves.
+struct Check<'a> {
+    moves: &'a MoveSet,
+    masks: &'a Masks,
+}
 
-    /// True for a set without moves.
-    pub fn is_empty(&self) -> bool {
-        self.len() == 0
-    }
-
-    /// Checks `x` against every move in both signs (see the module documentation); the
-    /// first improving move in (move, sign) order is returned.
-    pub fn certify(&self, problem: &Problem, x: &[i64]) -> Result<Certificate> {
+impl Check<'_> {
+    fn certify(&self, problem: &Problem, x: &[i64]) -> Result<Certificate> {
         self.check_width(problem, x)?;
         if let Some(variable) = problem.first_outside(x) {
             return Ok(Certificate::OutsideBox { variable });
         }
-        let (at_lower, at_upper) = bound_masks(problem, x, self.words);
+        let (at_lower, at_upper) = bound_masks(problem, x, self.masks.words);
         let objective = problem.objective();
         let open = self.unblocked(&at_lower, &at_upper);
         let narrow = objective.linear_costs().is_some_and(|costs| {
             let widest = costs.iter().map(|c| c.unsigned_abs()).max().unwrap_or(0);
             widest
-                .checked_mul(self.max_norm)
+                .checked_mul(self.masks.max_norm)
                 .is_some_and(|m| m <= i64::MAX as u64)
         });
         for (move_index, &signs) in open.iter().enumerate().filter(|(_, &s)| s != 0) {
             let (plus, minus) = (signs & 1 != 0, signs & 2 != 0);
-            let (indices, values) = self.support(move_index);
+            let support = self.moves.support(move_index);
             let improving = match objective.linear_costs() {
-                Some(costs) => {
-                    linear_gain(problem, costs, x, indices, values, (plus, minus), narrow)?
-                }
-                None => separable_gain(problem, x, indices, values, (plus, minus))?,
+                Some(costs) => linear_gain(problem, costs, x, support, (plus, minus), narrow)?,
+                None => separable_gain(problem, x, support, (plus, minus))?,
             };
             if let Some((sign, gain)) = improving {
                 return Ok(Certificate::Improving {
@@ -167,17 +218,13 @@ impl Checker {
         Ok(Certificate::NoImprovingMove)
     }
 
-    /// The first signed move (in (move, sign) order) that lowers the total violation
-    /// `sum_i dist(x_i, [l_i, u_i])` at `x` with a unit step, or `None` when no move does:
-    /// with a complete Graver basis `x` then minimises the violation over its fibre (Murota,
-    /// Saito, Weismantel 2004).
-    pub fn violation_decrease(&self, problem: &Problem, x: &[i64]) -> Result<Option<Decrease>> {
+    fn violation_decrease(&self, problem: &Problem, x: &[i64]) -> Result<Option<Decrease>> {
         self.check_width(problem, x)?;
-        for move_index in 0..self.len() {
-            let (indices, values) = self.support(move_index);
+        for move_index in 0..self.moves.len() {
+            let support = self.moves.support(move_index);
             for sign in Orientation::BOTH {
                 let mut amount = 0i128;
-                for (&i, &v) in indices.iter().zip(values) {
+                for (i, v) in support.iter() {
                     let after = stepped(x[i], v, sign)?;
                     amount += problem.violation_at(i, x[i]) - problem.violation_at(i, after);
                 }
@@ -198,18 +245,23 @@ impl Checker {
     /// its lower bound. One pass over the masks, without branches when they take one word.
     fn unblocked(&self, at_lower: &[u64], at_upper: &[u64]) -> Vec<u8> {
         let signs = |plus: bool, minus: bool| u8::from(plus) | (u8::from(minus) << 1);
-        if self.words == 1 {
+        let Masks {
+            words,
+            positive,
+            negative,
+            ..
+        } = self.masks;
+        if *words == 1 {
             let (lo, up) = (at_lower[0], at_upper[0]);
-            return self
-                .positive
+            return positive
                 .iter()
-                .zip(&self.negative)
+                .zip(negative)
                 .map(|(&p, &n)| signs((p & up) | (n & lo) == 0, (n & up) | (p & lo) == 0))
                 .collect();
         }
-        self.positive
-            .chunks_exact(self.words)
-            .zip(self.negative.chunks_exact(self.words))
+        positive
+            .chunks_exact(*words)
+            .zip(negative.chunks_exact(*words))
             .map(|(p, n)| {
                 signs(
                     !meets(p, at_upper) && !meets(n, at_lower),
@@ -219,13 +271,8 @@ impl Checker {
             .collect()
     }
 
-    fn support(&self, index: usize) -> (&[usize], &[i64]) {
-        let range = self.starts[index]..self.starts[index + 1];
-        (&self.indices[range.clone()], &self.values[range])
-    }
-
     fn check_width(&self, problem: &Problem, x: &[i64]) -> Result<()> {
-        for (what, found) in [("point", x.len()), ("move width", self.width)] {
+        for (what, found) in [("point", x.len()), ("move width", self.moves.width())] {
             if found != problem.len() {
                 return Err(AugmentError::Dimension {
                     what,
@@ -266,14 +313,9 @@ fn stepped(xi: i64, v: i64, sign: Orientation) -> Result<i64> {
 
 /// True when `x + sign * g` stays in the box (only the support of `g` can leave it),
 /// computed in `i128`, where no sum of two `i64` overflows.
-fn stays_in_box(
-    problem: &Problem,
-    x: &[i64],
-    (indices, values): (&[usize], &[i64]),
-    sign: Orientation,
-) -> bool {
+fn stays_in_box(problem: &Problem, x: &[i64], support: Support<'_>, sign: Orientation) -> bool {
     let (lower, upper) = (problem.lower(), problem.upper());
-    indices.iter().zip(values).all(|(&i, &v)| {
+    support.iter().all(|(i, v)| {
         let y = i128::from(x[i]) + i128::from(sign.factor()) * i128::from(v);
         lower[i].is_none_or(|l| y >= i128::from(l)) && upper[i].is_none_or(|u| y <= i128::from(u))
     })
@@ -286,25 +328,17 @@ fn linear_gain(
     problem: &Problem,
     costs: &[i64],
     x: &[i64],
-    indices: &[usize],
-    values: &[i64],
+    support: Support<'_>,
     (plus, minus): (bool, bool),
     narrow: bool,
 ) -> Result<Option<(Orientation, i128)>> {
     let rate = if narrow {
         // |c_i| * ||g||_1 fits in i64 for every move, so no partial sum can overflow.
-        i128::from(
-            indices
-                .iter()
-                .zip(values)
-                .map(|(&i, &v)| costs[i] * v)
-                .sum::<i64>(),
-        )
+        i128::from(support.iter().map(|(i, v)| costs[i] * v).sum::<i64>())
     } else {
-        indices
+        support
             .iter()
-            .zip(values)
-            .try_fold(0i128, |sum, (&i, &v)| {
+            .try_fold(0i128, |sum, (i, v)| {
                 sum.checked_add(i128::from(costs[i]) * i128::from(v))
             })
             .ok_or(overflow("computing the cost rate of a move"))?
@@ -314,7 +348,7 @@ fn linear_gain(
         1 if minus => (Orientation::Minus, rate),
         _ => return Ok(None),
     };
-    Ok(stays_in_box(problem, x, (indices, values), sign).then_some((sign, gain)))
+    Ok(stays_in_box(problem, x, support, sign).then_some((sign, gain)))
 }
 
 /// The first `open` sign in which a move improves a separable objective and stays in the
@@ -322,17 +356,16 @@ fn linear_gain(
 fn separable_gain(
     problem: &Problem,
     x: &[i64],
-    indices: &[usize],
-    values: &[i64],
+    support: Support<'_>,
     (plus, minus): (bool, bool),
 ) -> Result<Option<(Orientation, i128)>> {
     let objective = problem.objective();
     for (sign, open) in [(Orientation::Plus, plus), (Orientation::Minus, minus)] {
-        if !open || !stays_in_box(problem, x, (indices, values), sign) {
+        if !open || !stays_in_box(problem, x, support, sign) {
             continue;
         }
         let mut gain = 0i128;
-        for (&i, &v) in indices.iter().zip(values) {
+        for (i, v) in support.iter() {
             let change = objective
                 .term(i, x[i])?
                 .checked_sub(objective.term(i, stepped(x[i], v, sign)?)?)

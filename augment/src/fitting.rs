@@ -29,18 +29,13 @@ impl Fitting {
         let key = Fitting::key_of(&source, problem)?;
         let origin: Vec<usize> = (0..source.len())
             .filter(|&index| {
-                let (indices, values) = source.support(index);
-                indices
+                source
+                    .support(index)
                     .iter()
-                    .zip(values)
-                    .all(|(&i, v)| v.unsigned_abs() <= key[i])
+                    .all(|(i, v)| v.unsigned_abs() <= key[i])
             })
             .collect();
-        let dense = origin
-            .iter()
-            .flat_map(|&index| source.row(index).iter().copied())
-            .collect();
-        let moves = MoveSet::new(source.width(), dense, source.coverage())?;
+        let moves = source.subset(&origin)?;
         Ok(Self {
             source,
             key,

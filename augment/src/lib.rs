@@ -57,6 +57,7 @@ mod separable;
 mod slopes;
 mod solution;
 mod solve;
+mod support;
 mod sweep;
 
 pub use certify::{certify, violation_decrease, Certificate, Checker, Decrease};
@@ -69,3 +70,4 @@ pub use options::Options;
 pub use problem::Problem;
 pub use solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 pub use solve::{solve, solve_fitted, solve_with_cancel};
+pub use support::Support;

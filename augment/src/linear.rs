@@ -18,6 +18,7 @@ use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
 use crate::search::Step;
 use crate::slopes::Slopes;
+use crate::support::Steps;
 use crate::sweep::Evaluate;
 
 /// What a linear scan needs.
@@ -186,18 +187,16 @@ impl Evaluate for LinearScan<'_> {
                 return Ok(None);
             }
         }
+        let flip = usize::from(sign == Orientation::Minus);
+        let slot = |e: u32| ((e >> 8) as usize ^ flip, u64::from(e & 0xff));
         let room = match self.moves.bound_steps(index) {
-            Some(entries) => {
-                let flip = usize::from(sign == Orientation::Minus);
-                let steps = entries
-                    .iter()
-                    .map(|&e| ((e >> 8) as usize ^ flip, u64::from(e & 0xff)));
-                self.room(steps, rate, floor)
+            Some(Steps::Short(words)) => {
+                self.room(words.iter().map(|&e| slot(e.into())), rate, floor)
             }
+            Some(Steps::Packed(words)) => self.room(words.iter().map(|&e| slot(e)), rate, floor),
             None => {
-                let (indices, values) = self.moves.support(index);
                 // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
-                let steps = indices.iter().zip(values).map(|(&i, &v)| {
+                let steps = self.moves.support(index).iter().map(|(i, v)| {
                     let down = (v < 0) == (sign == Orientation::Plus);
                     (2 * i + usize::from(down), v.unsigned_abs())
                 });

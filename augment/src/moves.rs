@@ -1,18 +1,20 @@
-//! Move sets: flat row-major storage plus a sparse form for fast evaluation.
+//! Move sets: the nonzero entries of every move, in the narrowest form that holds them.
 //!
 //! A [`MoveSet`] holds one vector of each `±` pair; the solver tries both signs. Each move is
-//! stored twice: densely (row-major, `width` entries per move, for callers and certificates)
-//! and sparsely (support indices and values, so that evaluating a move touches only its
-//! nonzeros), and its sign pattern is kept as two bit masks (coordinates the move raises and
-//! lowers), so a scan can discard a move blocked by a bound with a few word operations. When
-//! every entry fits in an `i8` (the usual case: Graver elements of Δ-modular matrices have
-//! entries of at most Δ) a column-major copy lets the rates `c.g` of all moves be computed in
-//! one vectorisable pass per cost vector. The set also records its [`Coverage`], which decides
-//! how honest "optimal" is.
+//! stored once, by its support (variables and values, so that evaluating a move touches only
+//! its nonzeros): one 32-bit word per entry when every value is at most 255 in size (the usual
+//! case: Graver elements of Δ-modular matrices have entries of at most Δ), else a variable and
+//! a value apart. Dense rows are written out on request ([`MoveSet::row`]). Beside the moves,
+//! the set keeps each sign pattern as two bit masks (coordinates the move raises and lowers),
+//! so a scan can discard a move blocked by a bound with a few word operations, and, when every
+//! entry fits in an `i8`, a column-major copy that lets the rates `c.g` of all moves be
+//! computed in one vectorisable pass per cost vector. The set also records its [`Coverage`],
+//! which decides how honest "optimal" is.
 
 use serde::{Deserialize, Serialize};
 
-use crate::error::{overflow, AugmentError, Result};
+use crate::error::{AugmentError, Result};
+use crate::support::{Entries, Packing, Steps, Support};
 
 /// What the caller knows about the completeness of its move set (serialised as the reports
 /// show it: `{"tag": "norm_truncated", "norm": 6}`).
@@ -60,10 +62,10 @@ impl Orientation {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct MoveSet {
     width: usize,
-    dense: Vec<i64>,
+    /// Where each move's entries start in `entries` (one more than the number of moves).
     starts: Vec<usize>,
-    indices: Vec<usize>,
-    values: Vec<i64>,
+    /// The nonzero entries of every move, move after move: the one copy of the moves.
+    entries: Entries,
     norms: Vec<i64>,
     /// Per move `words` masks of its positive entries.
     positive: Vec<u64>,
@@ -78,18 +80,22 @@ pub struct MoveSet {
     columns: Vec<i8>,
     /// Per variable the largest `|g_i|` over all moves.
     extents: Vec<u64>,
-    /// The support in one word per entry (see [`MoveSet::bound_steps`]), parallel to
-    /// `indices`, when every entry fits; otherwise empty.
-    steps: Vec<u32>,
     max_norm: i64,
     coverage: Coverage,
 }
 
 impl MoveSet {
-    /// Builds a set from row-major data (`width` entries per move).
+    /// Builds a set from row-major data (`width` entries per move), keeping only the nonzero
+    /// entries (the rows are not kept).
     ///
-    /// Rejects ragged data and zero moves; the l1 norm of every move must fit in `i64`.
-    pub fn new(width: usize, dense: Vec<i64>, coverage: Coverage) -> Result<Self> {
+    /// Rejects ragged data and zero moves; the l1 norm of every move must fit in `i64`. The
+    /// entries may come in any integer type that widens to `i64` (a stored set of small
+    /// entries is read as it is kept, one byte per entry).
+    pub fn new<T: Copy + Into<i64> + Sync>(
+        width: usize,
+        dense: &[T],
+        coverage: Coverage,
+    ) -> Result<Self> {
         let count = dense.len().checked_div(width).unwrap_or(0);
         if count * width != dense.len() {
             return Err(AugmentError::RaggedMoves {
@@ -97,39 +103,49 @@ impl MoveSet {
                 width,
             });
         }
-        let nonzeros = dense.iter().filter(|&&v| v != 0).count();
-        let mut set = MoveSet {
+        if width == 0 {
+            return Ok(MoveSet::empty(0, coverage));
+        }
+        let packing = Packing::of(dense, width)?;
+        let words = width.div_ceil(64);
+        let packed = if width <= 32 {
+            let masks = packing.positive.iter().zip(&packing.negative);
+            masks.map(|(&p, &n)| p | n << 32).collect()
+        } else {
+            Vec::new()
+        };
+        Ok(MoveSet {
             width,
-            starts: Vec::with_capacity(count + 1),
-            indices: Vec::with_capacity(nonzeros),
-            values: Vec::with_capacity(nonzeros),
-            norms: Vec::with_capacity(count),
-            positive: Vec::with_capacity(count * width.div_ceil(64)),
-            negative: Vec::with_capacity(count * width.div_ceil(64)),
+            max_norm: packing.norms.iter().copied().max().unwrap_or(0),
+            starts: packing.starts,
+            entries: packing.entries,
+            norms: packing.norms,
+            positive: packing.positive,
+            negative: packing.negative,
+            packed,
+            words,
+            columns: packing.columns,
+            extents: packing.extents,
+            coverage,
+        })
+    }
+
+    /// A set without moves of `width` variables.
+    pub fn empty(width: usize, coverage: Coverage) -> Self {
+        MoveSet {
+            width,
+            starts: vec![0],
+            entries: Entries::Short(Vec::new()),
+            norms: Vec::new(),
+            positive: Vec::new(),
+            negative: Vec::new(),
             packed: Vec::new(),
             words: width.div_ceil(64),
             columns: Vec::new(),
             extents: vec![0; width],
-            steps: Vec::new(),
             max_norm: 0,
-            dense,
             coverage,
-        };
-        set.starts.push(0);
-        for index in 0..count {
-            set.index_row(index)?;
         }
-        if width <= 32 {
-            set.packed = set
-                .positive
-                .iter()
-                .zip(&set.negative)
-                .map(|(&p, &n)| p | n << 32)
-                .collect();
-        }
-        set.columns = narrow_columns(&set.dense, width, count).unwrap_or_default();
-        set.steps = bound_steps(&set.indices, &set.values).unwrap_or_default();
-        Ok(set)
     }
 
     /// Builds a set from one vector per move; every vector must have length `width`.
@@ -145,39 +161,13 @@ impl MoveSet {
             }
             dense.extend_from_slice(row);
         }
-        MoveSet::new(width, dense, coverage)
+        MoveSet::new(width, &dense, coverage)
     }
 
-    /// Appends the sparse form and the norm of row `index`.
-    fn index_row(&mut self, index: usize) -> Result<()> {
-        let row = &self.dense[index * self.width..(index + 1) * self.width];
-        let mut norm: i64 = 0;
-        let at = self.positive.len();
-        self.positive.extend(std::iter::repeat_n(0, self.words));
-        self.negative.extend(std::iter::repeat_n(0, self.words));
-        for (i, &v) in row.iter().enumerate() {
-            if v != 0 {
-                let masks = if v > 0 {
-                    &mut self.positive
-                } else {
-                    &mut self.negative
-                };
-                masks[at + i / 64] |= 1 << (i % 64);
-                self.extents[i] = self.extents[i].max(v.unsigned_abs());
-                self.indices.push(i);
-                self.values.push(v);
-                norm = norm
-                    .checked_add(v.checked_abs().ok_or(overflow("taking a move's l1 norm"))?)
-                    .ok_or(overflow("taking a move's l1 norm"))?;
-            }
-        }
-        if norm == 0 {
-            return Err(AugmentError::ZeroMove { index });
-        }
-        self.norms.push(norm);
-        self.max_norm = self.max_norm.max(norm);
-        self.starts.push(self.indices.len());
-        Ok(())
+    /// The moves `keep` (indices into this set, in the order given) as a set of their own.
+    pub fn subset(&self, keep: &[usize]) -> Result<Self> {
+        let dense: Vec<i64> = keep.iter().flat_map(|&index| self.row(index)).collect();
+        MoveSet::new(self.width, &dense, self.coverage)
     }
 
     /// Number of variables per move.
@@ -200,15 +190,25 @@ impl MoveSet {
         self.coverage
     }
 
-    /// Move `index` as a dense vector.
-    pub fn row(&self, index: usize) -> &[i64] {
-        &self.dense[index * self.width..(index + 1) * self.width]
+    /// Move `index` as a dense vector (written out from its support).
+    pub fn row(&self, index: usize) -> Vec<i64> {
+        let mut row = vec![0; self.width];
+        for (i, v) in self.support(index).iter() {
+            row[i] = v;
+        }
+        row
     }
 
-    /// Support (indices of nonzero entries, increasing) and the matching values of move `index`.
-    pub fn support(&self, index: usize) -> (&[usize], &[i64]) {
-        let range = self.starts[index]..self.starts[index + 1];
-        (&self.indices[range.clone()], &self.values[range])
+    /// Every move as a dense vector, in order.
+    pub fn rows(&self) -> impl ExactSizeIterator<Item = Vec<i64>> + '_ {
+        (0..self.len()).map(|index| self.row(index))
+    }
+
+    /// The nonzero entries of move `index`, in increasing variable order.
+    #[inline]
+    pub fn support(&self, index: usize) -> Support<'_> {
+        self.entries
+            .support(self.starts[index]..self.starts[index + 1])
     }
 
     /// Number of 64-bit words in one sign mask.
@@ -239,14 +239,15 @@ impl MoveSet {
         }
     }
 
-    /// The support of move `index` as it meets the bounds, when the set is small enough: per
-    /// entry `i` with value `v`, `(2 i + [v < 0]) << 8 | |v|`. Applied with `+`, the entry moves
+    /// The support of move `index` as it meets the bounds, when the set is packed: per entry
+    /// `i` with value `v`, `(2 i + [v < 0]) << 8 | |v|`. Applied with `+`, the entry moves
     /// `x_i` towards its upper bound (slot `2 i`) or its lower bound (slot `2 i + 1`) by `|v|`
-    /// per step; with `-` the slot's last bit flips. One 32-bit word instead of two 64-bit
-    /// ones keeps a scan's reads of scattered moves to about one cache line each.
+    /// per step; with `-` the slot's last bit flips. One 16- or 32-bit word instead of two
+    /// 64-bit ones keeps a scan's reads of scattered moves to about one cache line each.
     #[inline]
-    pub(crate) fn bound_steps(&self, index: usize) -> Option<&[u32]> {
-        (!self.steps.is_empty()).then(|| &self.steps[self.starts[index]..self.starts[index + 1]])
+    pub(crate) fn bound_steps(&self, index: usize) -> Option<Steps<'_>> {
+        self.entries
+            .steps(self.starts[index]..self.starts[index + 1])
     }
 
     /// Entries of variable `variable` over all moves, in move order, when every entry of the
@@ -273,30 +274,30 @@ impl MoveSet {
     }
 }
 
-/// The column-major copy of row-major `dense` (`count` rows of `width`), or `None` when an entry
-/// does not fit in an `i8`.
-fn narrow_columns(dense: &[i64], width: usize, count: usize) -> Option<Vec<i8>> {
-    let mut columns = vec![0i8; dense.len()];
-    for (index, row) in dense.chunks_exact(width.max(1)).enumerate().take(count) {
-        for (variable, &v) in row.iter().enumerate() {
-            columns[variable * count + index] = i8::try_from(v).ok()?;
-        }
-    }
-    Some(columns)
-}
+#[cfg(test)]
+mod tests {
+    use super::*;
 
-/// The packed support entries of [`MoveSet::bound_steps`], or `None` when a value exceeds 255
-/// in size or a slot `2 i + 1` does not fit in 24 bits.
-fn bound_steps(indices: &[usize], values: &[i64]) -> Option<Vec<u32>> {
-    indices
-        .iter()
-        .zip(values)
-        .map(|(&i, &v)| {
-            let slot = u32::try_from(2 * i + usize::from(v < 0))
-                .ok()
-                .filter(|&s| s < 1 << 24)?;
-            let step = u8::try_from(v.unsigned_abs()).ok()?;
-            Some(slot << 8 | u32::from(step))
-        })
-        .collect()
+    /// The same moves kept packed and (beside a move with an entry over 255) wide.
+    #[test]
+    fn packed_and_wide_entries_read_back_the_same_moves() {
+        let rows = [vec![1, 0, -2, 0], vec![0, -255, 0, 3], vec![-1, 1, 1, -1]];
+        let packed = MoveSet::from_rows(4, &rows, Coverage::Complete).unwrap();
+        let wider = [&rows[..], &[vec![0, 0, 256, 0]]].concat();
+        let wide = MoveSet::from_rows(4, &wider, Coverage::Complete).unwrap();
+        assert!(packed.bound_steps(0).is_some() && wide.bound_steps(0).is_none());
+        for (index, row) in rows.iter().enumerate() {
+            assert_eq!(&packed.row(index), row);
+            assert_eq!(&wide.row(index), row);
+            let entries: Vec<_> = packed.support(index).iter().collect();
+            assert_eq!(entries, wide.support(index).iter().collect::<Vec<_>>());
+            assert_eq!(packed.norm(index), row.iter().map(|v| v.abs()).sum::<i64>());
+        }
+        assert_eq!(packed.support(1).get(0), (1, -255));
+        assert_eq!(wide.row(3), [0, 0, 256, 0]);
+        // -255 does not fit in an i8: no column-major copy; without it, there is one.
+        assert!(packed.column(1).is_none());
+        let small = MoveSet::from_rows(4, &[rows[0].clone(), rows[2].clone()], Coverage::Complete);
+        assert_eq!(small.unwrap().column(2), Some(&[-2, 1][..]));
+    }
 }

@@ -109,7 +109,7 @@ impl RepairScan<'_> {
     /// reports it).
     fn first_step_gain(&self, dir: &Direction) -> Option<i128> {
         let mut gain = 0i128;
-        for (&i, &v) in dir.indices.iter().zip(dir.values) {
+        for (i, v) in dir.support.iter() {
             let moved = self.x[i].checked_add(v.checked_mul(dir.sign)?)?;
             gain += self.problem.violation_at(i, self.x[i]) - self.problem.violation_at(i, moved);
         }
@@ -120,10 +120,9 @@ impl RepairScan<'_> {
     /// an upper bound on the violation any multiple of `dir` removes.
     fn reach(&self, dir: &Direction) -> i128 {
         let (lower, upper, x) = (self.problem.lower(), self.problem.upper(), self.x);
-        dir.indices
+        dir.support
             .iter()
-            .zip(dir.values)
-            .map(|(&i, &v)| {
+            .map(|(i, v)| {
                 let raises = (v > 0) == (dir.sign > 0);
                 match (raises, lower[i], upper[i]) {
                     (true, Some(l), _) if x[i] < l => i128::from(l) - i128::from(x[i]),

@@ -9,14 +9,13 @@
 use crate::error::{overflow, Result};
 use crate::moves::{MoveSet, Orientation};
 use crate::objective::{Recession, Separable};
+use crate::support::Support;
 
 /// A signed move in sparse form.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct Direction<'a> {
-    /// Support of the move, increasing.
-    pub indices: &'a [usize],
-    /// Values of the stored move on its support.
-    pub values: &'a [i64],
+    /// The stored move's nonzero entries.
+    pub support: Support<'a>,
     /// `+1` or `-1`.
     pub sign: i64,
 }
@@ -24,20 +23,24 @@ pub(crate) struct Direction<'a> {
 impl<'a> Direction<'a> {
     /// Move `index` of `moves` applied with `sign`.
     pub(crate) fn of(moves: &'a MoveSet, index: usize, sign: Orientation) -> Self {
-        let (indices, values) = moves.support(index);
         Direction {
-            indices,
-            values,
+            support: moves.support(index),
             sign: sign.factor(),
         }
     }
 
+    /// Number of nonzero entries.
+    pub(crate) fn len(&self) -> usize {
+        self.support.len()
+    }
+
     /// Entry `k` of the signed move, with its variable.
     pub(crate) fn entry(&self, k: usize) -> Result<(usize, i64)> {
-        let d = self.values[k]
+        let (i, v) = self.support.get(k);
+        let d = v
             .checked_mul(self.sign)
             .ok_or(overflow("negating a move"))?;
-        Ok((self.indices[k], d))
+        Ok((i, d))
     }
 }
 
@@ -169,7 +172,7 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
     /// `sum over the support of f_i(x_i + t d_i)`.
     fn phi(&self, dir: &Direction, t: i64) -> Result<i128> {
         let mut sum = 0i128;
-        for k in 0..dir.indices.len() {
+        for k in 0..dir.len() {
             let (i, d) = dir.entry(k)?;
             let moved = d
                 .checked_mul(t)
@@ -185,7 +188,7 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
     /// Asymptotic rate of `phi` along `dir`.
     fn recession(&self, dir: &Direction) -> Result<Recession> {
         let mut rate = Recession::Finite(0);
-        for k in 0..dir.indices.len() {
+        for k in 0..dir.len() {
             let (i, d) = dir.entry(k)?;
             rate = rate.add(self.f.recession(i, d)?)?;
         }

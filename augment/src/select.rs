@@ -64,7 +64,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
             for sign in Orientation::BOTH {
                 let dir = Direction::of(self.moves, index, sign);
                 let mut free = true;
-                for k in 0..dir.indices.len() {
+                for k in 0..dir.len() {
                     let (i, d) = dir.entry(k)?;
                     free &= problem.unbounded_towards(i, d);
                 }

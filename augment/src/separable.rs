@@ -73,7 +73,7 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
 /// The largest number of times `dir` can be applied to `x` inside the box (`None`: no limit).
 fn room(problem: &Problem, x: &[i64], dir: &Direction) -> Result<Option<i64>> {
     let mut room: Option<i64> = None;
-    for k in 0..dir.indices.len() {
+    for k in 0..dir.len() {
         let (i, d) = dir.entry(k)?;
         if let Some(r) = problem.room(i, x[i], d) {
             let r = room.map_or(r, |current| current.min(r));

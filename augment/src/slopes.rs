@@ -159,14 +159,7 @@ fn rates(costs: &[i64], moves: &MoveSet) -> Result<Rates> {
     if bound <= i64::MAX as u128 {
         return Ok(Rates::I64(
             (0..moves.len())
-                .map(|index| {
-                    let (indices, values) = moves.support(index);
-                    indices
-                        .iter()
-                        .zip(values)
-                        .map(|(&i, &v)| costs[i] * v)
-                        .sum()
-                })
+                .map(|index| moves.support(index).iter().map(|(i, v)| costs[i] * v).sum())
                 .collect(),
         ));
     }
@@ -200,8 +193,7 @@ where
 
 /// `c.g` in checked `i128`.
 fn checked_rate(costs: &[i64], moves: &MoveSet, index: usize) -> Result<i128> {
-    let (indices, values) = moves.support(index);
-    indices.iter().zip(values).try_fold(0i128, |sum, (&i, &v)| {
+    moves.support(index).iter().try_fold(0i128, |sum, (i, v)| {
         sum.checked_add(i128::from(costs[i]) * i128::from(v))
             .ok_or(overflow("computing the cost of a move"))
     })

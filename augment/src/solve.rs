@@ -290,11 +290,10 @@ impl<'a> Run<'a> {
 
     /// `x += length * sign * g` for the move `found` of the set of `phase`.
     fn apply(&mut self, phase: Phase, found: &Candidate, length: i64) -> Result<()> {
-        let (indices, values) = self.set(phase).support(found.index);
         let factor = length
             .checked_mul(found.sign.factor())
             .ok_or(overflow("scaling a move by its step length"))?;
-        for (&i, &v) in indices.iter().zip(values) {
+        for (i, v) in self.set(phase).support(found.index).iter() {
             self.x[i] = v
                 .checked_mul(factor)
                 .and_then(|d| self.x[i].checked_add(d))
@@ -342,8 +341,8 @@ impl<'a> Run<'a> {
             direction: self
                 .optimality
                 .row(found.index)
-                .iter()
-                .map(|&v| v * factor)
+                .into_iter()
+                .map(|v| v * factor)
                 .collect(),
         }
     }

@@ -36,10 +36,14 @@ fn case() -> impl Strategy<Value = Case> {
             prop::collection::vec(-4i64..=4, n),
             prop::collection::vec(-5i64..=5, n),
             any::<bool>(),
+            any::<bool>(),
         )
-            .prop_map(|(moves, bounds, x, costs, convex)| Case {
+            .prop_map(move |(moves, bounds, x, costs, convex, wide)| Case {
+                // A move with an entry over 255 makes the set keep its entries in the wide
+                // form instead of the packed one.
                 moves: moves
                     .into_iter()
+                    .chain(wide.then(|| [vec![300], vec![-1; n - 1]].concat()))
                     .filter(|m| m.iter().any(|&v| v != 0))
                     .collect(),
                 lower: bounds
@@ -137,7 +141,7 @@ proptest! {
     #[test]
     fn checker_agrees_with_the_dense_oracle(case in case()) {
         let problem = case.problem();
-        let checker = Checker::new(&case.set());
+        let checker = Checker::new(std::sync::Arc::new(case.set()));
         prop_assert_eq!(checker.len(), case.moves.len());
         // Inside the box as well as outside: clamp the point for the optimality check.
         let clamped: Vec<i64> = case

@@ -62,7 +62,7 @@ fn non_convex_terms_are_rejected_naming_the_variable() {
 #[test]
 fn malformed_move_sets_are_rejected() {
     assert_eq!(
-        MoveSet::new(3, vec![1, -1], Coverage::Complete).unwrap_err(),
+        MoveSet::new(3, &[1, -1], Coverage::Complete).unwrap_err(),
         AugmentError::RaggedMoves { len: 2, width: 3 }
     );
     assert_eq!(

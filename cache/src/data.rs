@@ -1,30 +1,76 @@
-//! The stored payload: a flat, row-major list of integer vectors of one width.
-
-use serde::{Deserialize, Serialize};
+//! The stored payload: a flat, row-major list of integer vectors of one width, kept one
+//! byte per entry when every entry fits (the usual case for test sets).
 
 use crate::error::CacheError;
 
-/// A test set as plain data: `elements.len() / width` vectors of `width` entries each,
-/// stored row after row.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+/// A test set as plain data: `len()` vectors of `width` entries each, stored row after row,
+/// in the narrower of two widths: `i8` when every entry fits, else `i64`. A set decoded from
+/// a file of small entries stays small, so serving it copies 1 byte per entry, not 8.
+#[derive(Clone, Debug, PartialEq, Eq)]
 pub struct TestSetData {
     width: usize,
-    elements: Vec<i64>,
+    stored: Stored,
+}
+
+/// The entries in the width chosen for them (always the narrower one that holds them all, so
+/// equal data has equal storage).
+#[derive(Clone, Debug, PartialEq, Eq)]
+enum Stored {
+    Small(Vec<i8>),
+    Full(Vec<i64>),
+}
+
+/// The flat row-major entries of a [`TestSetData`], borrowed in the width they are kept in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Entries<'a> {
+    /// Every entry fits in an `i8`.
+    Small(&'a [i8]),
+    /// Some entry does not fit in an `i8`.
+    Full(&'a [i64]),
+}
+
+impl Entries<'_> {
+    /// Number of entries.
+    pub fn len(&self) -> usize {
+        match self {
+            Entries::Small(e) => e.len(),
+            Entries::Full(e) => e.len(),
+        }
+    }
+
+    /// True when there is no entry.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Entry `k`.
+    pub fn get(&self, k: usize) -> i64 {
+        match self {
+            Entries::Small(e) => e[k].into(),
+            Entries::Full(e) => e[k],
+        }
+    }
 }
 
 impl TestSetData {
     /// Wraps a flat row-major buffer; `width` must be positive and divide its length.
     pub fn new(width: usize, elements: Vec<i64>) -> Result<Self, CacheError> {
-        if width == 0 || !elements.len().is_multiple_of(width) {
-            return Err(CacheError::InvalidInput {
-                field: "elements",
-                problem: format!(
-                    "{} entries cannot be split into vectors of width {width}",
-                    elements.len()
-                ),
-            });
-        }
-        Ok(TestSetData { width, elements })
+        check_shape(width, elements.len())?;
+        let small: Option<Vec<i8>> = elements.iter().map(|&v| i8::try_from(v).ok()).collect();
+        Ok(TestSetData {
+            width,
+            stored: small.map_or(Stored::Full(elements), Stored::Small),
+        })
+    }
+
+    /// Wraps a flat row-major buffer of one-byte entries; `width` must be positive and
+    /// divide its length.
+    pub fn from_small(width: usize, elements: Vec<i8>) -> Result<Self, CacheError> {
+        check_shape(width, elements.len())?;
+        Ok(TestSetData {
+            width,
+            stored: Stored::Small(elements),
+        })
     }
 
     /// Entries per vector (number of variables).
@@ -34,28 +80,54 @@ impl TestSetData {
 
     /// Number of vectors.
     pub fn len(&self) -> usize {
-        self.elements.len() / self.width
+        self.entries().len() / self.width
     }
 
     /// Whether the set has no vectors.
     pub fn is_empty(&self) -> bool {
-        self.elements.is_empty()
+        self.entries().is_empty()
     }
 
-    /// The flat row-major entries.
-    pub fn elements(&self) -> &[i64] {
-        &self.elements
+    /// The flat row-major entries in their stored width.
+    pub fn entries(&self) -> Entries<'_> {
+        match &self.stored {
+            Stored::Small(e) => Entries::Small(e),
+            Stored::Full(e) => Entries::Full(e),
+        }
+    }
+
+    /// Vector `index`.
+    pub fn row(&self, index: usize) -> Vec<i64> {
+        let range = index * self.width..(index + 1) * self.width;
+        match &self.stored {
+            Stored::Small(e) => e[range].iter().map(|&v| i64::from(v)).collect(),
+            Stored::Full(e) => e[range].to_vec(),
+        }
     }
 
     /// The vectors one by one.
-    pub fn rows(&self) -> std::slice::ChunksExact<'_, i64> {
-        self.elements.chunks_exact(self.width)
+    pub fn rows(&self) -> impl ExactSizeIterator<Item = Vec<i64>> + '_ {
+        (0..self.len()).map(|index| self.row(index))
     }
 
-    /// Gives back the flat row-major buffer.
-    pub fn into_elements(self) -> Vec<i64> {
-        self.elements
+    /// Every entry, flat and row-major, as `i64`.
+    pub fn to_elements(&self) -> Vec<i64> {
+        match &self.stored {
+            Stored::Small(e) => e.iter().map(|&v| i64::from(v)).collect(),
+            Stored::Full(e) => e.clone(),
+        }
     }
+}
+
+/// Refuses a zero width or a length it does not divide.
+fn check_shape(width: usize, len: usize) -> Result<(), CacheError> {
+    if width == 0 || !len.is_multiple_of(width) {
+        return Err(CacheError::InvalidInput {
+            field: "elements",
+            problem: format!("{len} entries cannot be split into vectors of width {width}"),
+        });
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -66,8 +138,23 @@ mod tests {
     fn shape_is_checked() {
         assert!(TestSetData::new(0, vec![]).is_err());
         assert!(TestSetData::new(3, vec![1, 2]).is_err());
+        assert!(TestSetData::from_small(2, vec![1]).is_err());
         let d = TestSetData::new(2, vec![1, 2, 3, 4, 5, 6]).unwrap();
         assert_eq!(d.len(), 3);
-        assert_eq!(d.rows().nth(1).unwrap(), &[3, 4]);
+        assert_eq!(d.rows().nth(1).unwrap(), [3, 4]);
+    }
+
+    #[test]
+    fn entries_are_kept_in_the_narrower_width() {
+        let small = TestSetData::new(2, vec![-128, 127, 0, 1]).unwrap();
+        assert_eq!(small.entries(), Entries::Small(&[-128, 127, 0, 1]));
+        assert_eq!(
+            small,
+            TestSetData::from_small(2, vec![-128, 127, 0, 1]).unwrap()
+        );
+        let full = TestSetData::new(2, vec![128, 0, 0, -1]).unwrap();
+        assert_eq!(full.entries(), Entries::Full(&[128, 0, 0, -1]));
+        assert_eq!(full.row(0), [128, 0]);
+        assert_eq!(full.to_elements(), [128, 0, 0, -1]);
     }
 }

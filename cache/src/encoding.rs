@@ -13,6 +13,8 @@
 
 use serde::{Deserialize, Serialize};
 
+use crate::data::Entries;
+
 /// How the element entries are stored.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 pub enum ElementEncoding {
@@ -30,10 +32,17 @@ pub enum ElementEncoding {
 
 impl ElementEncoding {
     /// The narrowest encoding that holds every entry of `entries`.
-    pub fn narrowest_for(entries: &[i64]) -> Self {
-        let (lo, hi) = entries
-            .iter()
-            .fold((0i64, 0i64), |(lo, hi), &v| (lo.min(v), hi.max(v)));
+    pub fn narrowest_for(entries: Entries<'_>) -> Self {
+        fn range<T: Copy + Into<i64>>(entries: &[T]) -> (i64, i64) {
+            entries.iter().fold((0, 0), |(lo, hi), &v| {
+                let v = v.into();
+                (lo.min(v), hi.max(v))
+            })
+        }
+        let (lo, hi) = match entries {
+            Entries::Small(e) => range(e),
+            Entries::Full(e) => range(e),
+        };
         let fits = |min: i64, max: i64| lo >= min && hi <= max;
         if fits(-1, 1) {
             ElementEncoding::Trit
@@ -85,32 +94,32 @@ impl ElementEncoding {
 
 /// Appends `entries` to `out` in `encoding`; every entry must fit it (see
 /// [`ElementEncoding::narrowest_for`]), so the narrowing casts below are exact.
-pub(crate) fn encode(encoding: ElementEncoding, entries: &[i64], out: &mut Vec<u8>) {
-    match encoding {
-        ElementEncoding::Trit => encode_trits(entries, out),
-        ElementEncoding::I8 => out.extend(entries.iter().map(|&v| v as i8 as u8)),
-        ElementEncoding::I16 => {
-            for &v in entries {
-                out.extend_from_slice(&(v as i16).to_le_bytes());
-            }
-        }
-        ElementEncoding::I32 => {
-            for &v in entries {
-                out.extend_from_slice(&(v as i32).to_le_bytes());
-            }
-        }
-        ElementEncoding::I64 => {
-            for &v in entries {
-                out.extend_from_slice(&v.to_le_bytes());
-            }
-        }
+pub(crate) fn encode(encoding: ElementEncoding, entries: Entries<'_>, out: &mut Vec<u8>) {
+    match entries {
+        Entries::Small(e) => encode_values(encoding, e, out),
+        Entries::Full(e) => encode_values(encoding, e, out),
     }
 }
 
-fn encode_trits(entries: &[i64], out: &mut Vec<u8>) {
+fn encode_values<T: Copy + Into<i64>>(encoding: ElementEncoding, entries: &[T], out: &mut Vec<u8>) {
+    let values = entries.iter().map(|&v| v.into());
+    match encoding {
+        ElementEncoding::Trit => encode_trits(entries, out),
+        ElementEncoding::I8 => out.extend(values.map(|v| v as i8 as u8)),
+        ElementEncoding::I16 => {
+            values.for_each(|v| out.extend_from_slice(&(v as i16).to_le_bytes()))
+        }
+        ElementEncoding::I32 => {
+            values.for_each(|v| out.extend_from_slice(&(v as i32).to_le_bytes()))
+        }
+        ElementEncoding::I64 => values.for_each(|v| out.extend_from_slice(&v.to_le_bytes())),
+    }
+}
+
+fn encode_trits<T: Copy + Into<i64>>(entries: &[T], out: &mut Vec<u8>) {
     for group in entries.chunks(4) {
         let byte = group.iter().enumerate().fold(0u8, |acc, (i, &v)| {
-            let code = match v {
+            let code = match v.into() {
                 1 => 0b01,
                 -1 => 0b10,
                 _ => 0b00,
@@ -121,35 +130,50 @@ fn encode_trits(entries: &[i64], out: &mut Vec<u8>) {
     }
 }
 
+/// Entries as decoded: one byte each for the two narrow encodings.
+#[derive(Debug, PartialEq, Eq)]
+pub(crate) enum Decoded {
+    /// From `Trit` or `I8`.
+    Small(Vec<i8>),
+    /// From a wider encoding.
+    Full(Vec<i64>),
+}
+
 /// Decodes exactly `entries` entries from `bytes` (whose length the caller has checked
 /// against [`ElementEncoding::payload_len`]); the error says what is malformed.
 pub(crate) fn decode(
     encoding: ElementEncoding,
     bytes: &[u8],
     entries: usize,
-) -> Result<Vec<i64>, &'static str> {
-    match encoding {
-        ElementEncoding::Trit => decode_trits(bytes, entries),
-        ElementEncoding::I8 => Ok(bytes.iter().map(|&b| i64::from(b as i8)).collect()),
-        ElementEncoding::I16 => Ok(bytes
-            .chunks_exact(2)
-            .map(|c| i64::from(i16::from_le_bytes([c[0], c[1]])))
-            .collect()),
-        ElementEncoding::I32 => Ok(bytes
-            .chunks_exact(4)
-            .map(|c| i64::from(i32::from_le_bytes([c[0], c[1], c[2], c[3]])))
-            .collect()),
-        ElementEncoding::I64 => Ok(bytes
-            .chunks_exact(8)
-            .map(|c| i64::from_le_bytes([c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7]]))
-            .collect()),
-    }
+) -> Result<Decoded, &'static str> {
+    Ok(match encoding {
+        ElementEncoding::Trit => Decoded::Small(decode_trits(bytes, entries)?),
+        ElementEncoding::I8 => Decoded::Small(bytes.iter().map(|&b| b as i8).collect()),
+        ElementEncoding::I16 => Decoded::Full(
+            bytes
+                .chunks_exact(2)
+                .map(|c| i64::from(i16::from_le_bytes([c[0], c[1]])))
+                .collect(),
+        ),
+        ElementEncoding::I32 => Decoded::Full(
+            bytes
+                .chunks_exact(4)
+                .map(|c| i64::from(i32::from_le_bytes([c[0], c[1], c[2], c[3]])))
+                .collect(),
+        ),
+        ElementEncoding::I64 => Decoded::Full(
+            bytes
+                .chunks_exact(8)
+                .map(|c| i64::from_le_bytes([c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7]]))
+                .collect(),
+        ),
+    })
 }
 
 /// The four entries of every packed byte (invalid `11` codes decode to 0 and are rejected
 /// separately).
-const TRIT_TABLE: [[i64; 4]; 256] = {
-    let mut table = [[0i64; 4]; 256];
+const TRIT_TABLE: [[i8; 4]; 256] = {
+    let mut table = [[0i8; 4]; 256];
     let mut byte = 0;
     while byte < 256 {
         let mut i = 0;
@@ -166,7 +190,7 @@ const TRIT_TABLE: [[i64; 4]; 256] = {
     table
 };
 
-fn decode_trits(bytes: &[u8], entries: usize) -> Result<Vec<i64>, &'static str> {
+fn decode_trits(bytes: &[u8], entries: usize) -> Result<Vec<i8>, &'static str> {
     // A byte holds an invalid `11` code exactly when some bit pair has both bits set.
     if bytes.iter().any(|&b| b & (b >> 1) & 0x55 != 0) {
         return Err("a 2-bit entry has the unused code 11");
@@ -191,11 +215,21 @@ mod tests {
     use super::*;
 
     fn round_trip(entries: &[i64]) -> ElementEncoding {
-        let enc = ElementEncoding::narrowest_for(entries);
+        let enc = ElementEncoding::narrowest_for(Entries::Full(entries));
         let mut bytes = Vec::new();
-        encode(enc, entries, &mut bytes);
+        encode(enc, Entries::Full(entries), &mut bytes);
         assert_eq!(Some(bytes.len()), enc.payload_len(entries.len()));
-        assert_eq!(decode(enc, &bytes, entries.len()).unwrap(), entries);
+        let decoded = match decode(enc, &bytes, entries.len()).unwrap() {
+            Decoded::Small(small) => {
+                // The same entries kept small encode to the same bytes.
+                let mut again = Vec::new();
+                encode(enc, Entries::Small(&small), &mut again);
+                assert_eq!(again, bytes);
+                small.into_iter().map(i64::from).collect()
+            }
+            Decoded::Full(full) => full,
+        };
+        assert_eq!(decoded, entries);
         enc
     }
 
@@ -219,7 +253,7 @@ mod tests {
         assert!(decode(ElementEncoding::Trit, &[0b0100], 1).is_err());
         assert_eq!(
             decode(ElementEncoding::Trit, &[0b1001], 2).unwrap(),
-            [1, -1]
+            Decoded::Small(vec![1, -1])
         );
     }
 

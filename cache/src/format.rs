@@ -43,7 +43,7 @@ use xxhash_rust::xxh3::xxh3_64;
 
 use crate::data::TestSetData;
 use crate::digest::Digest;
-use crate::encoding::{self, ElementEncoding};
+use crate::encoding::{self, Decoded, ElementEncoding};
 use crate::error::CacheError;
 use crate::key::EntryKey;
 use crate::metadata::SetMetadata;
@@ -103,9 +103,9 @@ pub(crate) fn encode_entry(
 ) -> Result<Vec<u8>, CacheError> {
     let key_bytes = encode_section("key", key)?;
     let meta_bytes = encode_section("metadata", metadata)?;
-    let encoding = ElementEncoding::narrowest_for(data.elements());
+    let encoding = ElementEncoding::narrowest_for(data.entries());
     let payload_len = encoding
-        .payload_len(data.elements().len())
+        .payload_len(data.entries().len())
         .ok_or(CacheError::Overflow {
             what: "payload length",
         })?;
@@ -129,7 +129,7 @@ pub(crate) fn encode_entry(
     out.extend_from_slice(&to_u64(payload_len, "payload length")?.to_le_bytes());
     out.extend_from_slice(&key_bytes);
     out.extend_from_slice(&meta_bytes);
-    encoding::encode(encoding, data.elements(), &mut out);
+    encoding::encode(encoding, data.entries(), &mut out);
     let seal = secret.seal(&out);
     out.extend_from_slice(&seal);
     let checksum = xxh3_64(&out);
@@ -415,8 +415,11 @@ fn decode_payload(
     if header.encoding.payload_len(entries) != Some(bytes.len()) {
         return Err(malformed("payload length does not match count x width"));
     }
-    let flat = encoding::decode(header.encoding, bytes, entries).map_err(malformed)?;
-    TestSetData::new(width, flat).map_err(|_| malformed("zero width"))
+    match encoding::decode(header.encoding, bytes, entries).map_err(malformed)? {
+        Decoded::Small(flat) => TestSetData::from_small(width, flat),
+        Decoded::Full(flat) => TestSetData::new(width, flat),
+    }
+    .map_err(|_| malformed("zero width"))
 }
 
 fn config() -> impl bincode::config::Config {

@@ -81,7 +81,7 @@ mod validate;
 pub use atomic::write_atomic;
 pub use checkpoint::{CheckpointState, CHECKPOINT_MAGIC, CHECKPOINT_SUFFIX};
 pub use covering::CoverSearch;
-pub use data::TestSetData;
+pub use data::{Entries, TestSetData};
 pub use digest::{Digest, DIGEST_HEX_LEN};
 pub use encoding::ElementEncoding;
 pub use error::CacheError;

@@ -259,7 +259,7 @@ impl Store {
         let set = self.load_digest(prefix)?;
         Ok(ExportedEntry {
             digest: set.digest,
-            elements: set.data.rows().map(<[i64]>::to_vec).collect(),
+            elements: set.data.rows().collect(),
             width: set.data.width(),
             key: set.key,
             metadata: set.metadata,

@@ -293,7 +293,7 @@ impl Store {
             truncation: key.truncation.clone(),
             elements: data.len() as u64,
             width: data.width() as u64,
-            encoding: ElementEncoding::narrowest_for(data.elements()),
+            encoding: ElementEncoding::narrowest_for(data.entries()),
             completeness: metadata.completeness.clone(),
             size_bytes: bytes.len() as u64,
             created_unix: metadata.created_unix,

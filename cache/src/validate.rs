@@ -25,7 +25,7 @@ pub(crate) fn check_entry(
         });
     }
     for (row, vector) in data.rows().enumerate() {
-        check_vector(key, row, vector)?;
+        check_vector(key, row, &vector)?;
     }
     Ok(())
 }

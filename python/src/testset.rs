@@ -8,18 +8,18 @@
 
 use std::path::PathBuf;
 use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::Mutex;
+use std::sync::{Arc, Mutex};
 use std::time::Duration;
 
-use kernstep::augment::{Coverage, Options, Rule};
+use kernstep::augment::{Coverage, MoveSet, Options, Rule};
 use kernstep::bound::Multipliers;
 use kernstep::cache::SetKind;
 use kernstep::certify::{Answer, Claim, Limit};
-use kernstep::completion::{ElementSet, Progress};
+use kernstep::completion::Progress;
 use kernstep::model::Model;
 use kernstep::solve::{Numbers, Prepared, WarmStart};
 use kernstep::testset::{
-    by_cycles, from_data, serve, BuildLimits, BuildSpec, Destination, Engine, Job, JobStatus,
+    by_cycles, moves_of, serve, BuildLimits, BuildSpec, Destination, Engine, Job, JobStatus,
     NormLimit, Served, SetLibrary,
 };
 use kernstep::trace::{certify, record, Certified, Outcome};
@@ -131,7 +131,7 @@ type RowAnswer = (u8, Option<i128>, Option<Vec<i64>>, u64);
 pub struct PyTestSet {
     model: Model,
     kind: SetKind,
-    moves: ElementSet,
+    moves: Arc<MoveSet>,
     coverage: Coverage,
     source: String,
     /// `None` for a Hilbert basis, which serves no solves.
@@ -158,7 +158,7 @@ impl PyTestSet {
             kind,
             coverage: served.coverage,
             source: served.source.to_string(),
-            moves: served.set,
+            moves: served.moves,
             serving: Some(Serving {
                 prepared,
                 base,
@@ -405,11 +405,12 @@ impl PyTestSet {
                 .store()
                 .load_digest(&digest)
                 .map_err(|e| to_py(py, &kernstep::Error::Cache(e)))?;
+            let coverage = kernstep::solve::coverage_of(&stored.metadata.completeness);
             return Ok(PyTestSet {
                 model: model.model.clone(),
                 kind,
-                moves: from_data(&stored.data),
-                coverage: kernstep::solve::coverage_of(&stored.metadata.completeness),
+                moves: Arc::new(moves_of(&stored.data, coverage).map_err(|e| to_py(py, &e))?),
+                coverage,
                 source: format!("built into the cache ({})", &digest[..digest.len().min(12)]),
                 serving: None,
             });
@@ -742,12 +743,10 @@ impl PyTestSet {
     /// network's implicit cycles).
     #[getter]
     fn moves<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<i64>>> {
-        let flat: Vec<i64> = self.moves.elements.concat();
-        let array = numpy::ndarray::Array2::from_shape_vec(
-            (self.moves.elements.len(), self.moves.width),
-            flat,
-        )
-        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
+        let flat: Vec<i64> = self.moves.rows().flatten().collect();
+        let array =
+            numpy::ndarray::Array2::from_shape_vec((self.moves.len(), self.moves.width()), flat)
+                .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
         Ok(PyArray2::from_owned_array(py, array))
     }
 }

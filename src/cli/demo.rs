@@ -87,7 +87,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         scenario: scenario.title.as_deref().unwrap_or(SCENARIO_PATH),
         variables: model.variables(),
         rows: model.constraints(),
-        moves: set.set.elements.len(),
+        moves: set.moves.len(),
         set: set.source.to_string(),
         set_seconds,
         days: records.iter().map(DayRow::of).collect(),

@@ -636,7 +636,7 @@ impl RunSummary {
             tally,
             wall_seconds,
             threads,
-            moves: served.set.elements.len(),
+            moves: served.moves.len(),
             set: match &served.source {
                 Source::Cached(digest) => format!("cached {}", &digest[..digest.len().min(12)]),
                 Source::Built => "built for this run".to_string(),

@@ -22,7 +22,6 @@ use cache::Completeness;
 use super::fittings::Fittings;
 use super::rounding::Rounding;
 use super::variant::Numbers;
-use crate::completion::ElementSet;
 use crate::error::{Error, Result};
 use crate::lattice::{to_i64_vec, Certificate, HermiteForm, IntegerSolution, QuickSolver};
 use crate::matrix::IntMatrix;
@@ -33,7 +32,7 @@ use crate::network::{FlowOutcome, FlowSolution};
 const QUICK_LIMIT: u64 = 1 << 40;
 
 /// What a test set of moves needs per matrix: the Hermite form and roundings for start
-/// points, the moves, the re-check's copy of them and the cuts for recurring boxes.
+/// points, the moves, the re-check's masks of them and the cuts for recurring boxes.
 #[derive(Clone, Debug)]
 pub(super) struct MoveEngine {
     matrix: IntMatrix,
@@ -41,7 +40,7 @@ pub(super) struct MoveEngine {
     quick: Option<QuickSolver>,
     rounding: Rounding,
     moves: Arc<augment::MoveSet>,
-    /// The re-check's own copy of the moves.
+    /// The re-check, with its own sign masks of the same moves.
     checker: Arc<augment::Checker>,
     box_limit: Option<Vec<u64>>,
     /// Cuts of `moves` to the boxes that recur, for phase II.
@@ -215,12 +214,12 @@ pub fn coverage_of(completeness: &Completeness) -> Coverage {
 }
 
 impl MoveEngine {
-    /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
-    pub(super) fn new(a: &IntMatrix, set: &ElementSet, coverage: Coverage) -> Result<Self> {
-        if set.width != a.cols() {
+    /// Prepares `a` with its test set `moves`.
+    pub(super) fn new(a: &IntMatrix, moves: Arc<augment::MoveSet>) -> Result<Self> {
+        if moves.width() != a.cols() {
             return Err(Error::Dimension(format!(
                 "test set has width {}, the matrix {} columns",
-                set.width,
+                moves.width(),
                 a.cols()
             )));
         }
@@ -230,14 +229,13 @@ impl MoveEngine {
             .iter()
             .map(|v| to_i64_vec(v, "kernel basis vector"))
             .collect::<Result<Vec<_>>>()?;
-        let moves = augment::MoveSet::from_rows(set.width, &set.elements, coverage)?;
         Ok(Self {
             matrix: a.clone(),
             rounding: Rounding::new(a, hermite.pivot_rows(), basis),
             quick: QuickSolver::new(&hermite),
             hermite,
-            checker: Arc::new(augment::Checker::new(&moves)),
-            moves: Arc::new(moves),
+            checker: Arc::new(augment::Checker::new(Arc::clone(&moves))),
+            moves,
             box_limit: None,
             fittings: Arc::default(),
         })
@@ -260,7 +258,7 @@ impl MoveEngine {
         &self.moves
     }
 
-    /// The independent re-check's own copy of the moves (see [`crate::trace::recheck`]).
+    /// The independent re-check of the moves (see [`crate::trace::recheck`]).
     pub(super) fn checker(&self) -> &augment::Checker {
         &self.checker
     }

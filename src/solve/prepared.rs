@@ -31,9 +31,14 @@ enum Engine {
 impl Prepared {
     /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
     pub fn new(a: &IntMatrix, set: &ElementSet, coverage: Coverage) -> Result<Self> {
-        let engine = MoveEngine::new(a, set, coverage)?;
+        let moves = augment::MoveSet::from_rows(set.width, &set.elements, coverage)?;
+        Self::with_moves(a, Arc::new(moves))
+    }
+
+    /// Prepares `a` with its test set already in the solver's form (shared, not copied).
+    pub fn with_moves(a: &IntMatrix, moves: Arc<augment::MoveSet>) -> Result<Self> {
         Ok(Self {
-            engine: Engine::Moves(Box::new(engine)),
+            engine: Engine::Moves(Box::new(MoveEngine::new(a, moves)?)),
         })
     }
 
@@ -64,7 +69,7 @@ impl Prepared {
         }
     }
 
-    /// The independent re-check's own copy of the moves (see [`crate::trace::recheck`]);
+    /// The independent re-check of the moves (see [`crate::trace::recheck`]);
     /// `None` for a network, whose verdicts carry their own certificates.
     pub fn checker(&self) -> Option<&augment::Checker> {
         match &self.engine {

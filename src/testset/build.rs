@@ -2,7 +2,8 @@
 
 use std::time::Instant;
 
-use cache::{Completeness, EntryKey, SetMetadata, TestSetData};
+use augment::{Coverage, MoveSet};
+use cache::{Completeness, Entries, EntryKey, SetMetadata, TestSetData};
 
 use super::spec::{model_box, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
@@ -122,11 +123,20 @@ pub fn to_data(set: &ElementSet) -> Result<TestSetData> {
     Ok(TestSetData::new(set.width, set.elements.concat())?)
 }
 
+/// A stored set in the solver's form, read as it is kept (one byte per entry for small
+/// entries), with the coverage `coverage`.
+pub fn moves_of(data: &TestSetData, coverage: Coverage) -> Result<MoveSet> {
+    Ok(match data.entries() {
+        Entries::Small(entries) => MoveSet::new(data.width(), entries, coverage),
+        Entries::Full(entries) => MoveSet::new(data.width(), entries, coverage),
+    }?)
+}
+
 /// The in-memory form of a stored set.
 pub fn from_data(data: &TestSetData) -> ElementSet {
     ElementSet {
         width: data.width(),
-        elements: data.rows().map(<[i64]>::to_vec).collect(),
+        elements: data.rows().collect(),
     }
 }
 

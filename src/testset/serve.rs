@@ -9,14 +9,16 @@
 //! "optimal among moves up to norm N" unless a dual bound proves more. On a miss with a
 //! build asked for, the complete set is built under the caller's [`Control`] and stored.
 
-use augment::Coverage;
+use std::sync::Arc;
+
+use augment::{Coverage, MoveSet};
 use cache::EntryKey;
 
-use super::build::{build, default_graver_keys, from_data, BuildOutcome, BuiltSet};
+use super::build::{build, default_graver_keys, moves_of, BuildOutcome, BuiltSet};
 use super::library::{Obtained, SetAside, SetLibrary};
 use super::spec::BuildSpec;
 use crate::analysis::{AnalysisOptions, MatrixAnalysis};
-use crate::completion::{Control, ElementSet};
+use crate::completion::Control;
 use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::network::Network;
@@ -69,8 +71,9 @@ impl std::fmt::Display for Source {
 #[derive(Clone, Debug)]
 #[non_exhaustive]
 pub struct Served {
-    /// The moves (empty for a network, whose cycles are implicit).
-    pub set: ElementSet,
+    /// The moves in the solver's form, decoded once and shared by every preparation (empty
+    /// for a network, whose cycles are implicit).
+    pub moves: Arc<MoveSet>,
     /// What the set guarantees.
     pub coverage: Coverage,
     /// Where it came from.
@@ -90,15 +93,13 @@ impl Served {
         if let Some(network) = &self.network {
             return Ok(Prepared::network(matrix, network.clone()));
         }
-        Ok(Prepared::new(matrix, &self.set, self.coverage)?.with_box_limit(self.box_limit.clone()))
+        Ok(Prepared::with_moves(matrix, Arc::clone(&self.moves))?
+            .with_box_limit(self.box_limit.clone()))
     }
 
     fn network(model: &Model, network: Network) -> Self {
         Served {
-            set: ElementSet {
-                width: model.variables(),
-                elements: Vec::new(),
-            },
+            moves: Arc::new(MoveSet::empty(model.variables(), Coverage::Complete)),
             coverage: Coverage::Complete,
             source: Source::Network,
             box_limit: None,
@@ -107,26 +108,30 @@ impl Served {
         }
     }
 
-    fn cached(stored: &cache::StoredSet) -> Self {
-        Served {
-            set: from_data(&stored.data),
-            coverage: coverage_of(&stored.metadata.completeness),
+    /// The stored set `stored`, its entries read straight into the solver's form.
+    fn cached(stored: &cache::StoredSet) -> Result<Self> {
+        let coverage = coverage_of(&stored.metadata.completeness);
+        Ok(Served {
+            moves: Arc::new(moves_of(&stored.data, coverage)?),
+            coverage,
             source: Source::Cached(stored.digest.to_hex()),
             box_limit: stored.key.truncation.bounds.clone(),
             network: None,
             set_aside: None,
-        }
+        })
     }
 
-    fn built(built: BuiltSet, set_aside: Option<SetAside>) -> Self {
-        Served {
-            coverage: coverage_of(&built.metadata.completeness),
-            set: built.set,
+    fn built(built: BuiltSet, set_aside: Option<SetAside>) -> Result<Self> {
+        let coverage = coverage_of(&built.metadata.completeness);
+        let moves = MoveSet::from_rows(built.set.width, &built.set.elements, coverage)?;
+        Ok(Served {
+            moves: Arc::new(moves),
+            coverage,
             source: Source::Built,
             box_limit: None,
             network: None,
             set_aside,
-        }
+        })
     }
 }
 
@@ -158,7 +163,7 @@ pub fn serve(
         };
         let (analysis, spec) = complete_request(model)?;
         return match build(&model.matrix, &analysis, &spec, control, None)? {
-            BuildOutcome::Built(built) => Ok(Served::built(*built, None)),
+            BuildOutcome::Built(built) => Served::built(*built, None),
             BuildOutcome::Stopped(reason) => Err(Error::BuildStopped {
                 reason,
                 kept: None,
@@ -169,7 +174,7 @@ pub fn serve(
     let (complete, boxed) = default_graver_keys(model);
     for key in std::iter::once(&complete).chain(&boxed) {
         if let Some(stored) = library.find(key)? {
-            return Ok(Served::cached(&stored));
+            return Served::cached(&stored);
         }
     }
     let Some(control) = build_under else {
@@ -181,7 +186,7 @@ pub fn serve(
             ..complete
         };
         return match library.find_largest(&by_norm)? {
-            Some(stored) => Ok(Served::cached(&stored)),
+            Some(stored) => Served::cached(&stored),
             None => Err(Error::NotCached {
                 dir: library.store().dir().to_path_buf(),
             }),
@@ -189,10 +194,10 @@ pub fn serve(
     };
     let (analysis, spec) = complete_request(model)?;
     match library.obtain(&model.matrix, &analysis, &spec, control, false)? {
-        Obtained::Reused(stored) => Ok(Served::cached(&stored)),
+        Obtained::Reused(stored) => Served::cached(&stored),
         Obtained::Built {
             built, set_aside, ..
-        } => Ok(Served::built(*built, set_aside)),
+        } => Served::built(*built, set_aside),
         Obtained::Stopped {
             reason,
             kept,

@@ -58,10 +58,12 @@ pub fn serve_file(model: &Model, path: &Path) -> Result<Served> {
             "only a Graver set with every sign free serves solves",
         ));
     }
+    let coverage = coverage_of(&built.metadata.completeness);
+    let moves = augment::MoveSet::from_rows(built.set.width, &built.set.elements, coverage)?;
     Ok(Served {
-        coverage: coverage_of(&built.metadata.completeness),
+        coverage,
         box_limit: built.key.truncation.bounds.clone(),
-        set: built.set,
+        moves: std::sync::Arc::new(moves),
         source: Source::File(path.display().to_string()),
         network: None,
         set_aside: None,

@@ -83,8 +83,8 @@ pub fn verify_parts(
     }
     let mut seen = HashSet::with_capacity(set.data.len());
     for (i, e) in set.data.rows().enumerate() {
-        check_element(&a, set, e).map_err(|m| fail(format!("elements[{i}]"), m))?;
-        if !seen.insert(oriented(e)) {
+        check_element(&a, set, &e).map_err(|m| fail(format!("elements[{i}]"), m))?;
+        if !seen.insert(oriented(&e)) {
             return Err(fail(
                 format!("elements[{i}]"),
                 "equals an earlier element or its negation".into(),
@@ -191,7 +191,7 @@ fn generates_kernel(a: &IntMatrix, set: &Content<'_>) -> bool {
         return true;
     }
     for e in set.data.rows() {
-        let Some(coordinates) = coordinates(&basis, e) else {
+        let Some(coordinates) = coordinates(&basis, &e) else {
             return false;
         };
         form.add(coordinates);

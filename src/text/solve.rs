@@ -29,7 +29,7 @@ pub fn set_text(set: &Served) -> String {
     };
     format!(
         "{}, {coverage}, {}",
-        count_moves(set.set.elements.len()),
+        count_moves(set.moves.len()),
         set.source
     )
 }

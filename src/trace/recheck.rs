@@ -430,7 +430,7 @@ mod tests {
         recheck(
             &model.matrix,
             Numbers::of(model),
-            Some(&Checker::new(moves)),
+            Some(&Checker::new(std::sync::Arc::new(moves.clone()))),
             verdict,
         )
         .unwrap()

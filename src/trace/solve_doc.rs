@@ -54,7 +54,7 @@ impl SetRecord {
             source: source.to_string(),
             digest,
             file,
-            moves: served.set.elements.len(),
+            moves: served.moves.len(),
         }
     }
 }
