@@ -1,14 +1,17 @@
 //! Cache load benchmark on real test sets: the Graver bases of the 5 x 5 and 6 x 6
-//! transportation matrices and of the 3 x 3 x 3 tables with fixed line sums, built as
-//! `kernstep build` builds them by default (the smallest proven norm bound, e.g. 12 for the
-//! unimodular 6 x 6 matrix) and kept in a bench cache directory between runs.
+//! transportation matrices and of the 3 x 3 x 3 tables with fixed line sums (with
+//! `KERNSTEP_BENCH_LARGE=1` also the 3 x 3 x 4 and 3 x 3 x 5 tables), built as `kernstep build`
+//! builds them by default (the smallest proven norm bound, e.g. 12 for the unimodular 6 x 6
+//! matrix) and kept in a bench cache directory between runs.
 //!
 //! Run with `cargo bench --bench cache_load`. The cache directory is
 //! `$KERNSTEP_BENCH_CACHE`, else `<target>/tmp/cache_load`; the first run builds the sets
-//! (the 6 x 6 one takes minutes), later runs only load them. Per set the table shows the file
-//! size, bytes per element (vector) and per entry (coordinate), the build time when built in
-//! this run, and the best of several loads as elements per second: a full checked load
-//! (read, checksum, key, decode), and the same plus conversion to the solver's move set.
+//! (the 6 x 6 one takes minutes, the 3 x 3 x 5 one about five), later runs only load them.
+//! Per set the table shows the file size, bytes per element (vector) and per entry
+//! (coordinate), the build time when built in this run, the best of several full checked
+//! loads (read, checksum, key, decode) as elements per second, and the best time of what a
+//! solve does before its first step: serve the set from the cache and prepare it for the
+//! matrix (the moves in the solver's form, the re-check's masks, the lattice data).
 
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
@@ -17,7 +20,7 @@ use cache::StoredSet;
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::Control;
 use kernstep::model::{Model, ModelKind};
-use kernstep::testset::{entry_key, from_data, BuildSpec, Obtained, SetLibrary};
+use kernstep::testset::{entry_key, serve, BuildSpec, Engine, Obtained, SetLibrary};
 
 /// Loads per measurement; the fastest one is reported.
 const LOADS: usize = 9;
@@ -32,21 +35,28 @@ fn transport(p: usize, q: usize) -> Vec<Vec<i64>> {
     kernstep::IntMatrix::transportation(p, q).to_rows()
 }
 
-/// Line sums of `3 x 3 x 3` tables: every cell set with two indices fixed.
-fn three_way() -> Vec<Vec<i64>> {
-    let var = |i: usize, j: usize, k: usize| (i * 3 + j) * 3 + k;
+/// Line sums of `p x q x s` tables: one row per line of cells with two indices fixed.
+fn three_way(p: usize, q: usize, s: usize) -> Vec<Vec<i64>> {
+    let var = |i: usize, j: usize, k: usize| (i * q + j) * s + k;
+    let line = |cells: Vec<usize>| {
+        let mut row = vec![0; p * q * s];
+        cells.into_iter().for_each(|c| row[c] = 1);
+        row
+    };
     let mut rows = Vec::new();
-    for a in 0..3 {
-        for b in 0..3 {
-            for cells in [
-                [var(a, b, 0), var(a, b, 1), var(a, b, 2)],
-                [var(a, 0, b), var(a, 1, b), var(a, 2, b)],
-                [var(0, a, b), var(1, a, b), var(2, a, b)],
-            ] {
-                let mut row = vec![0; 27];
-                cells.iter().for_each(|&c| row[c] = 1);
-                rows.push(row);
-            }
+    for i in 0..p {
+        for j in 0..q {
+            rows.push(line((0..s).map(|k| var(i, j, k)).collect()));
+        }
+    }
+    for i in 0..p {
+        for k in 0..s {
+            rows.push(line((0..q).map(|j| var(i, j, k)).collect()));
+        }
+    }
+    for j in 0..q {
+        for k in 0..s {
+            rows.push(line((0..p).map(|i| var(i, j, k)).collect()));
         }
     }
     rows
@@ -101,9 +111,9 @@ fn best_of(mut load: impl FnMut() -> usize, expected: usize) -> Duration {
         .expect("at least one load")
 }
 
-/// The benchmarked matrices.
-fn cases() -> [Case; 3] {
-    [
+/// The benchmarked matrices (the large ones when `KERNSTEP_BENCH_LARGE` is set).
+fn cases() -> Vec<Case> {
+    let mut cases = vec![
         Case {
             name: "transport 5x5",
             rows: transport(5, 5),
@@ -114,9 +124,20 @@ fn cases() -> [Case; 3] {
         },
         Case {
             name: "3x3x3 line sums",
-            rows: three_way(),
+            rows: three_way(3, 3, 3),
         },
-    ]
+    ];
+    if std::env::var_os("KERNSTEP_BENCH_LARGE").is_some() {
+        cases.push(Case {
+            name: "3x3x4 line sums",
+            rows: three_way(3, 3, 4),
+        });
+        cases.push(Case {
+            name: "3x3x5 line sums",
+            rows: three_way(3, 3, 5),
+        });
+    }
+    cases
 }
 
 fn main() {
@@ -124,7 +145,7 @@ fn main() {
     let cases = cases();
     println!("cache: {}", library.store().dir().display());
     println!(
-        "{:<16} {:>8} {:>5} {:>8} {:>10} {:>9} {:>9} {:>9} {:>13} {:>13}",
+        "{:<16} {:>8} {:>5} {:>8} {:>10} {:>9} {:>9} {:>9} {:>13} {:>16}",
         "set",
         "elements",
         "width",
@@ -134,7 +155,7 @@ fn main() {
         "B/entry",
         "build s",
         "load el/s",
-        "to moves el/s"
+        "serve+prepare ms"
     );
     for case in &cases {
         let m = model(&case.rows);
@@ -143,17 +164,17 @@ fn main() {
         let store = library.store();
         let n = set.data.len();
         let load = best_of(|| store.load(&key).unwrap().unwrap().data.len(), n);
-        let moves = best_of(
+        let ready = best_of(
             || {
-                from_data(&store.load(&key).unwrap().unwrap().data)
-                    .elements
-                    .len()
+                let served = serve(&m, Some(&library), Engine::Moves, None).unwrap();
+                let prepared = served.prepare(&m.matrix).unwrap();
+                prepared.moves().map_or(0, |moves| moves.len())
             },
             n,
         );
         let entries = (n * set.data.width()) as f64;
         println!(
-            "{:<16} {:>8} {:>5} {:>8} {:>10} {:>9.2} {:>9.3} {:>9} {:>13.0} {:>13.0}",
+            "{:<16} {:>8} {:>5} {:>8} {:>10} {:>9.2} {:>9.3} {:>9} {:>13.0} {:>16.1}",
             case.name,
             n,
             set.data.width(),
@@ -163,7 +184,7 @@ fn main() {
             set.size_bytes as f64 / entries,
             built.map_or("cached".to_string(), |d| format!("{:.1}", d.as_secs_f64())),
             n as f64 / load.as_secs_f64(),
-            n as f64 / moves.as_secs_f64(),
+            ready.as_secs_f64() * 1e3,
         );
     }
 }

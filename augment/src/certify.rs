@@ -160,7 +160,7 @@ impl Masks {
                 let mut max_norm = 0u64;
                 for (j, k) in (b * BLOCK..moves.len()).take(BLOCK).enumerate() {
                     let mut norm = 0u64;
-                    for (i, v) in moves.support(k).iter() {
+                    moves.support(k).for_each(|i, v| {
                         let side = if v > 0 {
                             &mut *positive
                         } else {
@@ -168,7 +168,7 @@ impl Masks {
                         };
                         side[j * words + i / 64] |= 1 << (i % 64);
                         norm = norm.saturating_add(v.unsigned_abs());
-                    }
+                    });
                     max_norm = max_norm.max(norm);
                 }
                 max_norm

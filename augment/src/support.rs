@@ -85,6 +85,25 @@ impl<'a> Support<'a> {
         }
     }
 
+    /// Calls `f` with every entry's variable and value, in increasing variable order (one
+    /// dispatch on the form for the whole move, where [`Support::iter`] takes one per entry).
+    #[inline]
+    pub fn for_each(&self, mut f: impl FnMut(usize, i64)) {
+        match self.0 {
+            View::Short(words) => words.iter().for_each(|&w| {
+                let (i, v) = unpack(w.into());
+                f(i, v)
+            }),
+            View::Packed(words) => words.iter().for_each(|&w| {
+                let (i, v) = unpack(w);
+                f(i, v)
+            }),
+            View::Wide(indices, values) => {
+                indices.iter().zip(values).for_each(|(&i, &v)| f(i, v));
+            }
+        }
+    }
+
     /// The entries in increasing variable order.
     #[inline]
     pub fn iter(&self) -> impl ExactSizeIterator<Item = (usize, i64)> + 'a {
@@ -115,17 +134,27 @@ fn unpack(word: u32) -> (usize, i64) {
 trait Word: Copy + Default {
     /// `slot << 8 | size`; the caller has checked that it fits.
     fn pack(slot: u32, size: u32) -> Self;
+    /// The word widened.
+    fn widen(self) -> u32;
 }
 
 impl Word for u16 {
     fn pack(slot: u32, size: u32) -> Self {
         (slot << 8 | size) as u16
     }
+
+    fn widen(self) -> u32 {
+        self.into()
+    }
 }
 
 impl Word for u32 {
     fn pack(slot: u32, size: u32) -> Self {
         slot << 8 | size
+    }
+
+    fn widen(self) -> u32 {
+        self
     }
 }
 
@@ -360,7 +389,6 @@ impl<T: Copy + Into<i64>, W: Word> Block<'_, T, W> {
     /// ones), then copied to its place.
     fn fill(mut self, width: usize) -> std::result::Result<Vec<u64>, usize> {
         let words = width.div_ceil(64);
-        let mut extents = vec![0u64; width];
         let mut scratch = vec![W::default(); width + 1];
         let mut end = 0;
         let rows = self.dense.chunks_exact(width).enumerate();
@@ -378,7 +406,6 @@ impl<T: Copy + Into<i64>, W: Word> Block<'_, T, W> {
                     norm += size;
                     up |= u64::from(v > 0) << bit;
                     down |= u64::from(v < 0) << bit;
-                    extents[i] = extents[i].max(size);
                 }
                 positive[word] = up;
                 negative[word] = down;
@@ -392,15 +419,21 @@ impl<T: Copy + Into<i64>, W: Word> Block<'_, T, W> {
             self.norms[r] = norm as i64;
             self.ends[r] = self.offset + end;
         }
-        if !self.columns.is_empty() {
-            for (r, row) in self.dense.chunks_exact(width).enumerate() {
-                for (column, &v) in self.columns.iter_mut().zip(row) {
-                    let v: i64 = v.into();
-                    column[r] = v as i8;
-                }
+        if self.columns.is_empty() {
+            let mut extents = vec![0u64; width];
+            for (i, v) in self.packed.iter().map(|&word| unpack(word.widen())) {
+                extents[i] = extents[i].max(v.unsigned_abs());
+            }
+            return Ok(extents);
+        }
+        for (r, row) in self.dense.chunks_exact(width).enumerate() {
+            for (column, &v) in self.columns.iter_mut().zip(row) {
+                let v: i64 = v.into();
+                column[r] = v as i8;
             }
         }
-        Ok(extents)
+        let extent = |column: &[i8]| column.iter().map(|v| v.unsigned_abs()).max().unwrap_or(0);
+        Ok(self.columns.iter().map(|c| u64::from(extent(c))).collect())
     }
 }
 

@@ -147,7 +147,7 @@ fn read_checkpoint_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError> {
             actual: file_len,
         });
     }
-    bytes.extend(read_exactly(&mut file, file_len - HEAD as u64, path)?);
+    read_exactly(&mut file, file_len - HEAD as u64, path, &mut bytes)?;
     Ok(Some(bytes))
 }
 

@@ -172,9 +172,7 @@ pub(crate) fn read_entry_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError
         return Ok(None);
     };
     let rest = opened.file_len - HEADER_LEN as u64;
-    opened
-        .header_bytes
-        .extend(read_exactly(&mut opened.file, rest, path)?);
+    read_exactly(&mut opened.file, rest, path, &mut opened.header_bytes)?;
     Ok(Some(opened.header_bytes))
 }
 

@@ -69,24 +69,32 @@ pub(crate) fn open_regular(
     Ok(Some((file, opened.len())))
 }
 
-/// Reads exactly `len` bytes from `file`; a file that ends sooner or goes on longer (it
-/// changed since its length was taken) is a [`CacheError::LengthMismatch`].
-pub(crate) fn read_exactly(file: &mut File, len: u64, path: &Path) -> Result<Vec<u8>, CacheError> {
+/// Appends exactly `len` bytes from `file` to `bytes` (read in place, without a second
+/// buffer); a file that ends sooner or goes on longer (it changed since its length was
+/// taken) is a [`CacheError::LengthMismatch`].
+pub(crate) fn read_exactly(
+    file: &mut File,
+    len: u64,
+    path: &Path,
+    bytes: &mut Vec<u8>,
+) -> Result<(), CacheError> {
     let capacity = usize::try_from(len).map_err(|_| CacheError::Overflow {
         what: "file length",
     })?;
-    let mut bytes = Vec::with_capacity(capacity);
+    bytes.reserve_exact(capacity);
+    let before = bytes.len();
     file.take(len.saturating_add(1))
-        .read_to_end(&mut bytes)
+        .read_to_end(bytes)
         .map_err(|e| CacheError::io("read", path, e))?;
-    if bytes.len() as u64 != len {
+    let read = (bytes.len() - before) as u64;
+    if read != len {
         return Err(CacheError::LengthMismatch {
             path: path.to_owned(),
             expected: len,
-            actual: bytes.len() as u64,
+            actual: read,
         });
     }
-    Ok(bytes)
+    Ok(())
 }
 
 /// Reads up to `buf.len()` bytes (fewer only at the end of the file).
@@ -124,5 +132,7 @@ pub(crate) fn read_small(
             actual: len,
         });
     }
-    read_exactly(&mut file, len, path).map(Some)
+    let mut bytes = Vec::new();
+    read_exactly(&mut file, len, path, &mut bytes)?;
+    Ok(Some(bytes))
 }
