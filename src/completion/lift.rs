@@ -578,7 +578,8 @@ impl<const W: usize> Lifting<'_, W> {
     }
 
     /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members; with
-    /// `exact`, reports whether the limits removed none of the minimal members.
+    /// `exact`, reports whether the limits removed none of the minimal members. The stage's
+    /// working set, index and pair groups are dropped before the minimal pass builds its own.
     fn finish(self, comps: &[usize], exact: bool) -> Lifted {
         let j = self.stage.new;
         let sign = self.stage.signs[j];
@@ -586,6 +587,7 @@ impl<const W: usize> Lifting<'_, W> {
         let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
         if !exact {
             let kept = self.set.orbits_where(|v| signed(v) && admits(t, v, comps));
+            drop(self);
             return Lifted {
                 orbits: minimal::<W>(kept, comps),
                 exact: false,
@@ -594,7 +596,9 @@ impl<const W: usize> Lifting<'_, W> {
         // Members above the limits are never needed to show that a member within them is
         // not minimal (anything ⊑ it is within them too), so cutting after the minimal
         // pass gives the same set as cutting before it.
-        let all = minimal::<W>(self.set.orbits_where(signed), comps);
+        let kept = self.set.orbits_where(signed);
+        drop(self);
+        let all = minimal::<W>(kept, comps);
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()
@@ -616,7 +620,8 @@ fn narrow_all(sums: Vec<Vec<i64>>) -> Result<Vec<Vec<Entry>>> {
 pub(crate) fn minimal<const W: usize>(orbits: Vec<Orbit>, comps: &[usize]) -> Vec<Orbit> {
     let width = orbits.first().map_or(0, |o| o.rep.len());
     let mut set = WorkingSet::<W>::new(width, comps.to_vec());
-    for o in &orbits {
+    set.reserve(orbits.iter().map(|o| 1 + usize::from(o.symmetric)).sum());
+    for o in orbits {
         set.add(&o.rep, o.symmetric);
     }
     set.minimal_orbits()

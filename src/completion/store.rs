@@ -30,6 +30,11 @@ impl VecStore {
         self.data.len().checked_div(self.width).unwrap_or(0)
     }
 
+    /// Makes room for `vectors` more vectors (exactly, not by doubling).
+    pub(crate) fn reserve(&mut self, vectors: usize) {
+        self.data.reserve_exact(vectors * self.width);
+    }
+
     /// The vector with id `id`.
     pub(crate) fn get(&self, id: u32) -> &[Entry] {
         let start = id as usize * self.width;

@@ -37,6 +37,12 @@ impl<const W: usize> WorkingSet<W> {
         }
     }
 
+    /// Makes room for `members` more members without growing by doubling.
+    pub(crate) fn reserve(&mut self, members: usize) {
+        self.store.reserve(members);
+        self.mirror.reserve_exact(members);
+    }
+
     /// Number of stored members (a symmetric orbit counts twice).
     pub(crate) fn len(&self) -> usize {
         self.store.len()
