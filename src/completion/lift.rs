@@ -179,7 +179,7 @@ impl<'a, const W: usize> Lifting<'a, W> {
             neg: Groups::new(),
             saved_at: Mutex::new(Instant::now()),
         };
-        for orbit in &start {
+        for orbit in start {
             lifting.add(&orbit.rep, orbit.symmetric);
         }
         lifting
