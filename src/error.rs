@@ -28,6 +28,11 @@ pub enum Error {
     /// An integer result does not fit the machine integer width used at this step.
     #[error("integer overflow in {0}; the entries are too large for this computation")]
     Overflow(String),
+    /// A vector met in a completion has an entry wider than the compact store of its stage
+    /// keeps. The completion catches this and starts again with wider stores, so no caller
+    /// of the library sees it.
+    #[error("a completion's compact store met a wider entry")]
+    EntryWidth,
     /// Reading or writing a file failed.
     #[error("{path}: {source}")]
     Io {

@@ -51,6 +51,23 @@ fn transport_graver_bases_are_the_cycles() {
 }
 
 #[test]
+fn entries_beyond_a_byte_take_wider_stores() {
+    // The Graver basis of (1, 1, -N) is (1, -1, 0) and (i, N - i, 1) for 0 <= i <= N, N + 2
+    // elements up to sign (derived by hand: with x3 = 0 only (1, -1, 0) is primitive, x3 = 1
+    // needs x1 + x2 = N with both signs nonnegative, and x3 >= 2 splits conformally). With
+    // N = 200 the entries outgrow one byte, so the lifting's stores widen on the way.
+    for n in [100, 200, 1000] {
+        let a = matrix(&[&[-n, 1, 1]]);
+        let mut expected: Vec<Vec<i64>> = (0..=n).map(|i| canonical_sign(&[1, i, n - i])).collect();
+        expected.push(canonical_sign(&[0, 1, -1]));
+        expected.sort();
+        for method in [Method::ProjectAndLift, Method::Pottier] {
+            assert_eq!(sorted(&graver(&a, method)), expected, "N = {n}, {method:?}");
+        }
+    }
+}
+
+#[test]
 fn twisted_cubic() {
     // Sturmfels, Gröbner Bases and Convex Polytopes (1996): the Graver basis of
     // [[1,1,1,1],[0,1,2,3]] has these 5 elements.

@@ -42,7 +42,7 @@ use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
 use super::control::{Control, StopReason};
 use super::limits::{admits, Truncation};
 use super::reducer::SignMask;
-use super::store::{add_into, norm_on, to_entries, Entry};
+use super::store::{add_into, norm_on, to_entries, Entry, Stored};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
 
@@ -107,11 +107,11 @@ enum PairKind {
     Formed,
 }
 
-struct Lifting<'a, const W: usize> {
+struct Lifting<'a, const W: usize, E> {
     stage: &'a Stage<'a>,
     /// Entries per vector.
     width: usize,
-    set: WorkingSet<W>,
+    set: WorkingSet<W, E>,
     norms: Vec<u64>,
     pos: Groups<W>,
     neg: Groups<W>,
@@ -123,14 +123,14 @@ struct Lifting<'a, const W: usize> {
 /// of a stage saved at that point); returns the minimal members on `S ∪ {j}` that satisfy
 /// the signs and limits there, or why it stopped (after saving where it stood). Sign masks
 /// take `W` words (at least the vectors' width over 64).
-pub(crate) fn lift<const W: usize>(
+pub(crate) fn lift<const W: usize, E: Stored>(
     start: Vec<Orbit>,
     stage: &Stage<'_>,
     control: &Control<'_>,
     at: Option<StagePoint>,
 ) -> Run<Lifted> {
     let comps = lifted_comps(stage);
-    let mut lifting = Lifting::<W>::new(start, stage, comps.clone());
+    let mut lifting = Lifting::<W, E>::new(start, stage, comps.clone())?;
     let point = at.unwrap_or(StagePoint::Pairs {
         from: 1,
         tasks_done: 0,
@@ -148,7 +148,7 @@ pub(crate) fn lift<const W: usize>(
                 return Ok(Err(stop));
             }
         };
-    Ok(Ok(lifting.finish(&comps, exact)))
+    Ok(Ok(lifting.finish(&comps, exact)?))
 }
 
 /// The components of `T = S ∪ {j}`, in the order the working set keeps them.
@@ -166,9 +166,9 @@ enum Step {
     Done(StagePoint),
 }
 
-impl<'a, const W: usize> Lifting<'a, W> {
+impl<'a, const W: usize, E: Stored> Lifting<'a, W, E> {
     /// The working set of a stage over `comps` (`T`), holding the members of `start`.
-    fn new(start: Vec<Orbit>, stage: &'a Stage<'a>, comps: Vec<usize>) -> Self {
+    fn new(start: Vec<Orbit>, stage: &'a Stage<'a>, comps: Vec<usize>) -> Result<Self> {
         let width = start.first().map_or(0, |o| o.rep.len());
         let mut lifting = Lifting {
             stage,
@@ -180,13 +180,13 @@ impl<'a, const W: usize> Lifting<'a, W> {
             saved_at: Mutex::new(Instant::now()),
         };
         for orbit in start {
-            lifting.add(&orbit.rep, orbit.symmetric);
+            lifting.add(&orbit.rep, orbit.symmetric)?;
         }
-        lifting
+        Ok(lifting)
     }
 }
 
-impl<const W: usize> Lifting<'_, W> {
+impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     /// Processes norm levels from `point` on until no level has pairs left; returns the state
     /// at the end (to save if the cut check stops), or why it stopped.
     fn all_levels(&mut self, mut point: StagePoint, control: &Control<'_>) -> Run<StagePoint> {
@@ -275,13 +275,13 @@ impl<const W: usize> Lifting<'_, W> {
         Ok(Ok(next))
     }
 
-    fn add(&mut self, rep: &[Entry], symmetric: bool) {
-        let (a, b) = self.set.add(rep, symmetric);
+    fn add(&mut self, rep: &[Entry], symmetric: bool) -> Result<()> {
+        let (a, b) = self.set.add(rep, symmetric)?;
         for id in std::iter::once(a).chain(b) {
             let v = self.set.store.get(id);
             let norm = norm_on(v, self.stage.old);
             self.norms.push(norm);
-            let x = v[self.stage.new];
+            let x: Entry = v[self.stage.new].into();
             let key = (norm, u64::from(x.unsigned_abs()));
             let side = match x.signum() {
                 1 => &mut self.pos,
@@ -295,6 +295,7 @@ impl<const W: usize> Lifting<'_, W> {
             group.ids.push(id);
             group.masks.push(SignMask::of(v, self.stage.old));
         }
+        Ok(())
     }
 
     /// The sign masks of member `p` on `S` (those of its group; computed again here, once per
@@ -403,12 +404,13 @@ impl<const W: usize> Lifting<'_, W> {
         {
             return PairKind::Cut;
         }
-        let (u, v) = (self.set.store.get(p), self.set.store.get(q));
+        let store = &self.set.store;
+        let size = |id: u32, c: usize| u64::from(store.entry(id, c).unsigned_abs());
         let in_box = t.bounds.as_ref().is_none_or(|b| {
             self.stage
                 .old
                 .iter()
-                .all(|&c| u64::from(u[c].unsigned_abs()) + u64::from(v[c].unsigned_abs()) <= b[c])
+                .all(|&c| size(p, c) + size(q, c) <= b[c])
         });
         if in_box {
             PairKind::Formed
@@ -428,7 +430,7 @@ impl<const W: usize> Lifting<'_, W> {
                     .old
                     .iter()
                     .all(|&c| self.stage.signs[c] == 0 || w[c] == 0);
-                self.add(&w, symmetric);
+                self.add(&w, symmetric)?;
             }
         }
         Ok(())
@@ -485,7 +487,7 @@ impl<const W: usize> Lifting<'_, W> {
     /// Normal forms of the sums of the new member `e` with the partners of norm level at most
     /// `level` that came before it (older members, or new ones with a smaller id).
     fn catch_up_pairs(&self, e: u32, first_new: u32, level: u64) -> Result<Vec<Vec<Entry>>> {
-        let x = self.set.store.get(e)[self.stage.new];
+        let x = self.set.store.entry(e, self.stage.new);
         let side = match x.signum() {
             1 => &self.neg,
             -1 => &self.pos,
@@ -580,7 +582,7 @@ impl<const W: usize> Lifting<'_, W> {
     /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members; with
     /// `exact`, reports whether the limits removed none of the minimal members. The stage's
     /// working set, index and pair groups are dropped before the minimal pass builds its own.
-    fn finish(self, comps: &[usize], exact: bool) -> Lifted {
+    fn finish(self, comps: &[usize], exact: bool) -> Result<Lifted> {
         let j = self.stage.new;
         let sign = self.stage.signs[j];
         let t = self.stage.truncation;
@@ -588,26 +590,26 @@ impl<const W: usize> Lifting<'_, W> {
         if !exact {
             let kept = self.set.orbits_where(|v| signed(v) && admits(t, v, comps));
             drop(self);
-            return Lifted {
-                orbits: minimal::<W>(kept, comps),
+            return Ok(Lifted {
+                orbits: minimal::<W, E>(kept, comps)?,
                 exact: false,
-            };
+            });
         }
         // Members above the limits are never needed to show that a member within them is
         // not minimal (anything ⊑ it is within them too), so cutting after the minimal
         // pass gives the same set as cutting before it.
         let kept = self.set.orbits_where(signed);
         drop(self);
-        let all = minimal::<W>(kept, comps);
+        let all = minimal::<W, E>(kept, comps)?;
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()
             .filter(|o| admits(t, &o.rep, comps))
             .collect();
-        Lifted {
+        Ok(Lifted {
             exact: orbits.len() == total,
             orbits,
-        }
+        })
     }
 }
 
@@ -616,13 +618,51 @@ fn narrow_all(sums: Vec<Vec<i64>>) -> Result<Vec<Vec<Entry>>> {
     sums.iter().map(|v| to_entries(v)).collect()
 }
 
-/// The ⊑-minimal orbits (on `comps`, at most `64 * W` of them) among `orbits`.
-pub(crate) fn minimal<const W: usize>(orbits: Vec<Orbit>, comps: &[usize]) -> Vec<Orbit> {
+/// The ⊑-minimal orbits (on `comps`, at most `64 * W` of them) among `orbits`, kept as `E`
+/// meanwhile ([`crate::Error::EntryWidth`] when one does not fit).
+pub(crate) fn minimal<const W: usize, E: Stored>(
+    orbits: Vec<Orbit>,
+    comps: &[usize],
+) -> Result<Vec<Orbit>> {
     let width = orbits.first().map_or(0, |o| o.rep.len());
-    let mut set = WorkingSet::<W>::new(width, comps.to_vec());
+    let mut set = WorkingSet::<W, E>::new(width, comps.to_vec());
     set.reserve(orbits.iter().map(|o| 1 + usize::from(o.symmetric)).sum());
     for o in orbits {
-        set.add(&o.rep, o.symmetric);
+        set.add(&o.rep, o.symmetric)?;
     }
-    set.minimal_orbits()
+    Ok(set.minimal_orbits())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn orbit(rep: &[Entry]) -> Orbit {
+        Orbit {
+            rep: rep.to_vec(),
+            symmetric: true,
+        }
+    }
+
+    /// A member beyond a byte is refused by a one-byte store (so the completion widens) and
+    /// kept exactly by a two-byte one.
+    #[test]
+    fn narrow_stores_refuse_what_they_cannot_hold() {
+        let orbits = || {
+            vec![
+                orbit(&[1, 200, 0]),
+                orbit(&[0, 1, -1]),
+                orbit(&[1, 201, -1]),
+            ]
+        };
+        let comps = [0, 1, 2];
+        assert!(matches!(
+            minimal::<1, i8>(orbits(), &comps),
+            Err(crate::Error::EntryWidth)
+        ));
+        let half = minimal::<1, i16>(orbits(), &comps).unwrap();
+        assert_eq!(half, minimal::<1, Entry>(orbits(), &comps).unwrap());
+        // (1, 201, -1) = (1, 200, 0) + (0, 1, -1) conformally: not minimal.
+        assert_eq!(half.len(), 2);
+    }
 }

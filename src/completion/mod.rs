@@ -225,9 +225,12 @@ fn by_pottier<const W: usize>(
         Ok(g) => g,
         Err(stop) => return Ok(Err(stop)),
     };
-    Ok(Ok(restrict::<W>(graver, signs, &all, &request.truncation)))
+    Ok(Ok(restrict::<W>(graver, signs, &all, &request.truncation)?))
 }
 
+/// Project-and-lift with stores one byte per entry where they hold a stage's vectors; when a
+/// vector outgrows its store, the completion starts again with wider ones (rare: Graver
+/// elements of small-Δ matrices have small entries).
 fn by_lifting<const W: usize>(
     basis: &[Vec<i64>],
     entries: &[Vec<Entry>],
@@ -235,6 +238,25 @@ fn by_lifting<const W: usize>(
     request: &Request,
     control: &Control<'_>,
     resume: Option<&Checkpoint>,
+) -> Staged {
+    let mut floor = StoreWidth::Byte;
+    loop {
+        match lift_all::<W>(basis, entries, signs, request, control, resume, floor) {
+            Err(Error::EntryWidth) if floor != StoreWidth::Full => floor = floor.wider(),
+            done => return done,
+        }
+    }
+}
+
+/// Project-and-lift with stores at least `floor` wide.
+fn lift_all<const W: usize>(
+    basis: &[Vec<i64>],
+    entries: &[Vec<Entry>],
+    signs: &[i8],
+    request: &Request,
+    control: &Control<'_>,
+    resume: Option<&Checkpoint>,
+    floor: StoreWidth,
 ) -> Staged {
     let n = signs.len();
     let stages = n - basis.len() + 1;
@@ -262,7 +284,7 @@ fn by_lifting<const W: usize>(
                     Err(stop) => return Ok(Err(stop)),
                 },
             };
-            let (orbits, exact) = restrict::<W>(start, signs, &comps, &request.truncation);
+            let (orbits, exact) = restrict::<W>(start, signs, &comps, &request.truncation)?;
             let exact = checked && exact;
             control.save(&Checkpoint::of(&comps, &orbits, exact));
             (comps, orbits, exact, None)
@@ -282,7 +304,7 @@ fn by_lifting<const W: usize>(
             exact,
             check_cuts: checked && exact,
         };
-        let lifted = match lift::lift::<W>(orbits, &stage, control, at)? {
+        let lifted = match lift_stored::<W>(orbits, &stage, control, at, floor)? {
             Ok(lifted) => lifted,
             Err(stop) => return Ok(Err(stop)),
         };
@@ -317,7 +339,7 @@ fn restrict<const W: usize>(
     signs: &[i8],
     comps: &[usize],
     t: &Truncation,
-) -> (Vec<Orbit>, bool) {
+) -> Result<(Vec<Orbit>, bool)> {
     let fits = |v: &[Entry]| {
         comps
             .iter()
@@ -339,14 +361,14 @@ fn restrict<const W: usize>(
             (false, false) => {}
         }
     }
-    let minimal = lift::minimal::<W>(kept, comps);
+    let minimal = lift::minimal::<W, Entry>(kept, comps)?;
     let total = minimal.len();
     let within: Vec<Orbit> = minimal
         .into_iter()
         .filter(|o| admits(t, &o.rep, comps))
         .collect();
     let exact = within.len() == total;
-    (within, exact)
+    Ok((within, exact))
 }
 
 /// Orients and sorts the final orbits.
@@ -367,4 +389,56 @@ fn canonical(width: usize, orbits: Vec<Orbit>) -> ElementSet {
         na.cmp(&nb).then_with(|| b.cmp(a))
     });
     ElementSet { width, elements }
+}
+
+/// How wide the stores of the lifting stages keep entries, at the least.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
+enum StoreWidth {
+    Byte,
+    Half,
+    Full,
+}
+
+impl StoreWidth {
+    /// The next wider one (`Full` stays).
+    fn wider(self) -> Self {
+        match self {
+            StoreWidth::Byte => StoreWidth::Half,
+            StoreWidth::Half | StoreWidth::Full => StoreWidth::Full,
+        }
+    }
+
+    /// The narrowest width, at least `self`, whose type holds four times the largest entry
+    /// of `orbits` (room for the sums and remainders of a stage, which rarely outgrow it).
+    fn for_stage(self, orbits: &[Orbit]) -> Self {
+        let largest = orbits
+            .iter()
+            .flat_map(|o| &o.rep)
+            .map(|x| x.unsigned_abs())
+            .max()
+            .unwrap_or(0);
+        let fit = match largest.saturating_mul(4) {
+            0..=127 => StoreWidth::Byte,
+            128..=32_767 => StoreWidth::Half,
+            _ => StoreWidth::Full,
+        };
+        self.max(fit)
+    }
+}
+
+/// One lifting stage with its stores as narrow as [`StoreWidth::for_stage`] allows from
+/// `floor`; a vector too wide for them is [`Error::EntryWidth`], and the caller starts the
+/// completion again with a wider floor.
+fn lift_stored<const W: usize>(
+    orbits: Vec<Orbit>,
+    stage: &lift::Stage<'_>,
+    control: &Control<'_>,
+    at: Option<checkpoint::StagePoint>,
+    floor: StoreWidth,
+) -> Result<std::result::Result<lift::Lifted, StopReason>> {
+    match floor.for_stage(&orbits) {
+        StoreWidth::Byte => lift::lift::<W, i8>(orbits, stage, control, at),
+        StoreWidth::Half => lift::lift::<W, i16>(orbits, stage, control, at),
+        StoreWidth::Full => lift::lift::<W, Entry>(orbits, stage, control, at),
+    }
 }

@@ -35,7 +35,7 @@ pub(crate) fn complete<const W: usize>(
     for b in basis {
         let mut w = b.clone();
         if !set.reduce(&mut w)? {
-            insert(&mut set, &mut masks, &mut queue, &w);
+            insert(&mut set, &mut masks, &mut queue, &w)?;
         }
     }
     let mut processed = 0usize;
@@ -48,7 +48,7 @@ pub(crate) fn complete<const W: usize>(
         }
         let mut w = add(set.store.get(a), set.store.get(b))?;
         if !set.reduce(&mut w)? {
-            insert(&mut set, &mut masks, &mut queue, &w);
+            insert(&mut set, &mut masks, &mut queue, &w)?;
         }
     }
     if let Some(stop) = control.checkpoint(stage.0, stage.1, 0, set.len()) {
@@ -65,9 +65,9 @@ fn insert<const W: usize>(
     masks: &mut Vec<SignMask<W>>,
     queue: &mut PairQueue,
     w: &[Entry],
-) {
+) -> Result<()> {
     let comps = set.reducer.comps().to_vec();
-    let (a, b) = set.add(w, true);
+    let (a, b) = set.add(w, true)?;
     for id in std::iter::once(a).chain(b) {
         masks.push(SignMask::of(set.store.get(id), &comps));
     }
@@ -80,6 +80,7 @@ fn insert<const W: usize>(
             queue.push(Reverse((sum, old, new)));
         }
     }
+    Ok(())
 }
 
 /// The l1 norm on `comps` of `u + v`.

@@ -8,7 +8,7 @@
 //! word up to 64 variables), so a leaf of one-word members is a few cache lines. The index
 //! refers to vectors by their [`VecStore`] ids.
 
-use super::store::{Entry, VecStore};
+use super::store::{Entry, Stored, VecStore};
 
 const LEAF_CAPACITY: usize = 12;
 
@@ -26,19 +26,19 @@ pub(crate) struct SignMask<const W: usize> {
 
 impl<const W: usize> SignMask<W> {
     /// Sign masks of `v` on the components `comps` (at most `64 * W` of them).
-    pub(crate) fn of(v: &[Entry], comps: &[usize]) -> Self {
+    pub(crate) fn of<E: Stored>(v: &[E], comps: &[usize]) -> Self {
         Self::with_norm(v, comps).0
     }
 
     /// [`SignMask::of`] with the l1 norm of `v` on `comps`, in one branch-free pass.
-    fn with_norm(v: &[Entry], comps: &[usize]) -> (Self, u64) {
+    fn with_norm<E: Stored>(v: &[E], comps: &[usize]) -> (Self, u64) {
         let mut m = SignMask {
             pos: [0; W],
             neg: [0; W],
         };
         let mut norm = 0u64;
         for (k, &c) in comps.iter().enumerate() {
-            let x = v[c];
+            let x: Entry = v[c].into();
             let shift = k % 64;
             m.pos[k / 64] |= u64::from(x > 0) << shift;
             m.neg[k / 64] |= u64::from(x < 0) << shift;
@@ -174,7 +174,7 @@ impl<const W: usize> Reducer<W> {
         &self.comps
     }
 
-    fn item(&self, v: &[Entry], id: u32) -> Item<W> {
+    fn item<E: Stored>(&self, v: &[E], id: u32) -> Item<W> {
         let (mask, norm) = SignMask::with_norm(v, &self.comps);
         Item {
             mask,
@@ -184,7 +184,7 @@ impl<const W: usize> Reducer<W> {
     }
 
     /// Adds the stored vector `id` to the index.
-    pub(crate) fn insert(&mut self, store: &VecStore, id: u32) {
+    pub(crate) fn insert<E: Stored>(&mut self, store: &VecStore<E>, id: u32) {
         let item = self.item(store.get(id), id);
         let (mut node, mut depth) = (0, 0);
         loop {
@@ -227,23 +227,32 @@ impl<const W: usize> Reducer<W> {
     }
 
     /// A stored vector `h` (other than `skip`) with `h ⊑ w` on the active components, if any.
-    pub(crate) fn find(&self, store: &VecStore, w: &[Entry], skip: Option<u32>) -> Option<u32> {
+    pub(crate) fn find<E: Stored, Q: Stored>(
+        &self,
+        store: &VecStore<E>,
+        w: &[Q],
+        skip: Option<u32>,
+    ) -> Option<u32> {
         let query = self.item(w, u32::MAX);
         self.find_below(0, store, w, &query, skip)
     }
 
     /// [`Reducer::find`] for a `w` not zero on the active components; `None` also when it is
     /// zero there (nothing left to reduce).
-    pub(crate) fn find_nonzero(&self, store: &VecStore, w: &[Entry]) -> Option<Option<u32>> {
+    pub(crate) fn find_nonzero<E: Stored>(
+        &self,
+        store: &VecStore<E>,
+        w: &[Entry],
+    ) -> Option<Option<u32>> {
         let query = self.item(w, u32::MAX);
         (!query.mask.is_empty()).then(|| self.find_below(0, store, w, &query, None))
     }
 
-    fn find_below(
+    fn find_below<E: Stored, Q: Stored>(
         &self,
         node: usize,
-        store: &VecStore,
-        w: &[Entry],
+        store: &VecStore<E>,
+        w: &[Q],
         query: &Item<W>,
         skip: Option<u32>,
     ) -> Option<u32> {
@@ -274,10 +283,10 @@ impl<const W: usize> Reducer<W> {
     }
 
     /// `|h_c| <= |w_c|` on the support of `h` (signs are already known to agree).
-    fn magnitudes_fit(&self, mask: &SignMask<W>, h: &[Entry], w: &[Entry]) -> bool {
+    fn magnitudes_fit<E: Stored, Q: Stored>(&self, mask: &SignMask<W>, h: &[E], w: &[Q]) -> bool {
         mask.support().all(|k| {
             let c = self.comps[k];
-            h[c].unsigned_abs() <= w[c].unsigned_abs()
+            h[c].into().unsigned_abs() <= w[c].into().unsigned_abs()
         })
     }
 }
@@ -285,17 +294,18 @@ impl<const W: usize> Reducer<W> {
 /// The largest `k` with `k * h ⊑ w` on `comps`, given `h ⊑ w` there and `h` nonzero there.
 /// Most reductions subtract `h` once, which a test of `2h ⊑ w` by multiplication shows
 /// before any division.
-pub(crate) fn max_multiple(h: &[Entry], w: &[Entry], comps: &[usize]) -> Entry {
+pub(crate) fn max_multiple<E: Stored>(h: &[E], w: &[Entry], comps: &[usize]) -> Entry {
+    let h = |c: usize| -> Entry { h[c].into() };
     let twice = comps
         .iter()
-        .all(|&c| 2 * u64::from(h[c].unsigned_abs()) <= u64::from(w[c].unsigned_abs()));
+        .all(|&c| 2 * u64::from(h(c).unsigned_abs()) <= u64::from(w[c].unsigned_abs()));
     if !twice {
         return 1;
     }
     comps
         .iter()
-        .filter(|&&c| h[c] != 0)
-        .map(|&c| w[c] / h[c])
+        .filter(|&&c| h(c) != 0)
+        .map(|&c| w[c] / h(c))
         .min()
         .unwrap_or(1)
 }
@@ -304,11 +314,12 @@ pub(crate) fn max_multiple(h: &[Entry], w: &[Entry], comps: &[usize]) -> Entry {
 mod tests {
     use super::*;
 
-    fn brute(store: &VecStore, comps: &[usize], w: &[Entry]) -> bool {
+    fn brute(store: &VecStore<i8>, comps: &[usize], w: &[Entry]) -> bool {
         store.iter().any(|h| {
-            comps
-                .iter()
-                .all(|&c| h[c] * w[c] >= 0 && h[c].abs() <= w[c].abs())
+            comps.iter().all(|&c| {
+                let h = Entry::from(h[c]);
+                h * w[c] >= 0 && h.abs() <= w[c].abs()
+            })
         })
     }
 
@@ -328,12 +339,12 @@ mod tests {
                 0
             }
         };
-        let mut store = VecStore::new(width);
+        let mut store = VecStore::<i8>::new(width);
         let mut index = Reducer::<W>::new(comps.clone());
         for _ in 0..300 {
             let v: Vec<Entry> = (0..width).map(|_| next()).collect();
             if comps.iter().any(|&c| v[c] != 0) {
-                let id = store.push(&v);
+                let id = store.push(&v).unwrap();
                 index.insert(&store, id);
             }
         }
@@ -344,13 +355,15 @@ mod tests {
             let mut w: Vec<Entry> = (0..width).map(|_| next() * 2).collect();
             if i % 2 == 1 {
                 let base = store.get((i % store.len()) as u32);
-                w.iter_mut().zip(base).for_each(|(x, &b)| *x += 2 * b);
+                w.iter_mut()
+                    .zip(base)
+                    .for_each(|(x, &b)| *x += 2 * Entry::from(b));
             }
             let found = index.find(&store, &w, None);
             assert_eq!(found.is_some(), brute(&store, &comps, &w));
             hits += usize::from(found.is_some());
             if let Some(h) = found {
-                let h = store.get(h);
+                let h = store.widened(h);
                 assert!(comps
                     .iter()
                     .all(|&c| h[c] * w[c] >= 0 && h[c].abs() <= w[c].abs()));

@@ -1,22 +1,37 @@
 //! Flat storage of lattice vectors during a completion.
 //!
 //! Invariant: every stored vector has `width` entries, all in the kernel lattice, kept in one
-//! contiguous `Vec<i32>` (compact and cache friendly). Arithmetic on entries is checked: a sum
-//! that leaves `i32` is an [`Error::Overflow`], never a wrapped value.
+//! contiguous `Vec` of the store's entry type ([`Stored`]: `i8`, `i16` or `i32`, the
+//! narrowest a stage's vectors fit; one byte per entry is the usual case, since Graver
+//! elements of small-Δ matrices have small entries). Arithmetic runs on [`Entry`] (`i32`)
+//! buffers and is checked: a sum that leaves `i32` is an [`Error::Overflow`], never a wrapped
+//! value; a vector that does not fit the store's type is refused with [`Error::EntryWidth`],
+//! and the completion starts again with wider stores.
 
 use crate::error::{Error, Result};
 
-/// Entry type of vectors inside the completion.
+/// Entry type of the vectors the completion computes with.
 pub(crate) type Entry = i32;
 
-/// A growing arena of equal-width integer vectors addressed by `u32` ids.
-#[derive(Clone, Debug)]
-pub(crate) struct VecStore {
-    width: usize,
-    data: Vec<Entry>,
+/// An entry type a store may keep: narrowed from an [`Entry`] when it fits, widened back
+/// without loss.
+pub(crate) trait Stored:
+    Copy + Default + Send + Sync + Into<Entry> + TryFrom<Entry> + std::fmt::Debug + 'static
+{
 }
 
-impl VecStore {
+impl Stored for i8 {}
+impl Stored for i16 {}
+impl Stored for i32 {}
+
+/// A growing arena of equal-width integer vectors addressed by `u32` ids, kept as `E`.
+#[derive(Clone, Debug)]
+pub(crate) struct VecStore<E = Entry> {
+    width: usize,
+    data: Vec<E>,
+}
+
+impl<E: Stored> VecStore<E> {
     /// An empty store for vectors of `width` entries.
     pub(crate) fn new(width: usize) -> Self {
         Self {
@@ -36,53 +51,69 @@ impl VecStore {
     }
 
     /// The vector with id `id`.
-    pub(crate) fn get(&self, id: u32) -> &[Entry] {
+    pub(crate) fn get(&self, id: u32) -> &[E] {
         let start = id as usize * self.width;
         &self.data[start..start + self.width]
     }
 
-    /// Appends a vector and returns its id.
-    pub(crate) fn push(&mut self, v: &[Entry]) -> u32 {
+    /// Entry `i` of the vector with id `id`, widened.
+    pub(crate) fn entry(&self, id: u32, i: usize) -> Entry {
+        self.data[id as usize * self.width + i].into()
+    }
+
+    /// The vector with id `id`, widened.
+    pub(crate) fn widened(&self, id: u32) -> Vec<Entry> {
+        self.get(id).iter().map(|&x| x.into()).collect()
+    }
+
+    /// Appends a vector and returns its id; [`Error::EntryWidth`] (and nothing stored) when
+    /// an entry does not fit `E`.
+    pub(crate) fn push(&mut self, v: &[Entry]) -> Result<u32> {
         debug_assert_eq!(v.len(), self.width);
+        let narrow: Option<Vec<E>> = v.iter().map(|&x| E::try_from(x).ok()).collect();
+        let narrow = narrow.ok_or(Error::EntryWidth)?;
         let id = self.len() as u32;
-        self.data.extend_from_slice(v);
-        id
+        self.data.extend_from_slice(&narrow);
+        Ok(id)
     }
 
     /// Iterates over all vectors in id order.
     #[cfg(test)]
-    pub(crate) fn iter(&self) -> impl Iterator<Item = &[Entry]> {
+    pub(crate) fn iter(&self) -> impl Iterator<Item = &[E]> {
         self.data.chunks_exact(self.width.max(1))
     }
 }
 
 /// `a + b`, checked.
-pub(crate) fn add(a: &[Entry], b: &[Entry]) -> Result<Vec<Entry>> {
+pub(crate) fn add<E: Stored>(a: &[E], b: &[E]) -> Result<Vec<Entry>> {
     a.iter()
         .zip(b)
-        .map(|(&x, &y)| in_range(x.checked_add(y)))
+        .map(|(&x, &y)| in_range(x.into().checked_add(y.into())))
         .collect()
 }
 
 /// `w = a + b` into an existing buffer, checked.
-pub(crate) fn add_into(w: &mut [Entry], a: &[Entry], b: &[Entry]) -> Result<()> {
+pub(crate) fn add_into<E: Stored>(w: &mut [Entry], a: &[E], b: &[E]) -> Result<()> {
     for ((x, &y), &z) in w.iter_mut().zip(a).zip(b) {
-        *x = in_range(y.checked_add(z))?;
+        *x = in_range(y.into().checked_add(z.into()))?;
     }
     Ok(())
 }
 
 /// `w -= k * h` in place, checked.
-pub(crate) fn sub_scaled(w: &mut [Entry], h: &[Entry], k: Entry) -> Result<()> {
+pub(crate) fn sub_scaled<E: Stored>(w: &mut [Entry], h: &[E], k: Entry) -> Result<()> {
     for (x, &y) in w.iter_mut().zip(h) {
-        *x = in_range(y.checked_mul(k).and_then(|p| x.checked_sub(p)))?;
+        *x = in_range(y.into().checked_mul(k).and_then(|p| x.checked_sub(p)))?;
     }
     Ok(())
 }
 
 /// The l1 norm of `v` restricted to the components `comps`.
-pub(crate) fn norm_on(v: &[Entry], comps: &[usize]) -> u64 {
-    comps.iter().map(|&i| u64::from(v[i].unsigned_abs())).sum()
+pub(crate) fn norm_on<E: Stored>(v: &[E], comps: &[usize]) -> u64 {
+    comps
+        .iter()
+        .map(|&i| u64::from(v[i].into().unsigned_abs()))
+        .sum()
 }
 
 /// The negation of `v` (cannot overflow: stored entries never equal `Entry::MIN`).
@@ -120,11 +151,16 @@ mod tests {
 
     #[test]
     fn store_round_trip() {
-        let mut s = VecStore::new(3);
-        let a = s.push(&[1, -2, 0]);
-        let b = s.push(&[0, 0, 5]);
+        let mut s = VecStore::<i8>::new(3);
+        let a = s.push(&[1, -2, 0]).unwrap();
+        let b = s.push(&[0, 0, 127]).unwrap();
         assert_eq!((a, b, s.len()), (0, 1, 2));
-        assert_eq!(s.get(1), &[0, 0, 5]);
+        assert_eq!(s.get(1), &[0, 0, 127]);
+        assert_eq!(s.widened(0), [1, -2, 0]);
         assert_eq!(norm_on(s.get(0), &[0, 1]), 3);
+        // An entry beyond the store's type is refused, and nothing is stored.
+        assert!(matches!(s.push(&[0, 128, 0]), Err(Error::EntryWidth)));
+        assert_eq!(s.len(), 2);
+        assert!(VecStore::<i16>::new(1).push(&[128]).is_ok());
     }
 }

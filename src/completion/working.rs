@@ -7,7 +7,7 @@
 use rayon::prelude::*;
 
 use super::reducer::{max_multiple, Reducer};
-use super::store::{negate, sub_scaled, Entry, VecStore};
+use super::store::{negate, sub_scaled, Entry, Stored, VecStore};
 use crate::error::Result;
 
 /// A `±` class of lattice vectors: `rep`, and `-rep` as well when `symmetric`.
@@ -20,14 +20,14 @@ pub(crate) struct Orbit {
 }
 
 /// Members of a set during one stage, indexed for reduction on the stage's components
-/// (sign masks of `W` words).
-pub(crate) struct WorkingSet<const W: usize> {
-    pub store: VecStore,
+/// (sign masks of `W` words), kept as `E` entries.
+pub(crate) struct WorkingSet<const W: usize, E = Entry> {
+    pub store: VecStore<E>,
     pub mirror: Vec<Option<u32>>,
     pub reducer: Reducer<W>,
 }
 
-impl<const W: usize> WorkingSet<W> {
+impl<const W: usize, E: Stored> WorkingSet<W, E> {
     /// An empty set of vectors with `width` entries, compared on `comps`.
     pub(crate) fn new(width: usize, comps: Vec<usize>) -> Self {
         Self {
@@ -49,18 +49,20 @@ impl<const W: usize> WorkingSet<W> {
     }
 
     /// Adds an orbit; returns the ids of `rep` and, if symmetric, of `-rep`.
-    pub(crate) fn add(&mut self, rep: &[Entry], symmetric: bool) -> (u32, Option<u32>) {
-        let a = self.store.push(rep);
+    /// [`crate::Error::EntryWidth`] when one of them does not fit `E`: the set is then
+    /// abandoned (the completion starts again with wider stores).
+    pub(crate) fn add(&mut self, rep: &[Entry], symmetric: bool) -> Result<(u32, Option<u32>)> {
+        let a = self.store.push(rep)?;
         self.mirror.push(None);
         self.reducer.insert(&self.store, a);
         if !symmetric {
-            return (a, None);
+            return Ok((a, None));
         }
-        let b = self.store.push(&negate(rep));
+        let b = self.store.push(&negate(rep))?;
         self.mirror.push(Some(a));
         self.mirror[a as usize] = Some(b);
         self.reducer.insert(&self.store, b);
-        (a, Some(b))
+        Ok((a, Some(b)))
     }
 
     /// Reduces `w` to normal form: subtracts members `h ⊑ w` (on the stage's components)
@@ -105,7 +107,7 @@ impl<const W: usize> WorkingSet<W> {
     /// The members satisfying `keep`, as orbits, each once.
     pub(crate) fn orbits_where(&self, keep: impl Fn(&[Entry]) -> bool) -> Vec<Orbit> {
         let kept: Vec<bool> = (0..self.len() as u32)
-            .map(|id| keep(self.store.get(id)))
+            .map(|id| keep(&self.store.widened(id)))
             .collect();
         self.orbits_of(&kept)
     }
@@ -122,12 +124,12 @@ impl<const W: usize> WorkingSet<W> {
             let keep_rep = keep[id as usize];
             let keep_neg = mirror.is_some_and(|m| keep[m as usize]);
             let rep = match (keep_rep, keep_neg, mirror) {
-                (true, _, _) => self.store.get(id),
-                (false, true, Some(m)) => self.store.get(m),
+                (true, _, _) => self.store.widened(id),
+                (false, true, Some(m)) => self.store.widened(m),
                 _ => continue,
             };
             out.push(Orbit {
-                rep: rep.to_vec(),
+                rep,
                 symmetric: keep_rep && keep_neg,
             });
         }
