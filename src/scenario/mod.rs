@@ -46,7 +46,7 @@ use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
 pub use days_file::{pick_day, pick_variant, read_days, read_variant};
-pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
+pub use replan::{replan, DayChange, DayOutcome, DayResult, ReplanSettings};
 
 /// Which model a scenario compiles into.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
