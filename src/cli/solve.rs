@@ -18,11 +18,19 @@ pub struct SolveArgs {
     /// Print one JSON document (layout in the README) instead of the summary.
     #[arg(long)]
     pub json: bool,
+    /// With --warm-start: add W per unit changed against the warm start's plan to the cost.
+    #[arg(long, value_name = "W", requires = "warm_start")]
+    pub change_cost: Option<i64>,
+    /// With --change-cost: also solve without the price and report its figures.
+    #[arg(long, requires = "change_cost")]
+    pub compare: bool,
 }
 
 /// Solves the instance, re-checks the claim and prints the result.
 pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
-    let instance = args.instance.load()?;
+    let instance = args
+        .instance
+        .load(args.change_cost.map(|w| (w, args.compare)))?;
     let doc = instance.solve(&cancelled)?;
     let mut out = io::stdout().lock();
     if args.json {

@@ -259,22 +259,18 @@ impl Run<'_> {
             ..numbers
         };
         let (verdict, bound) = self.solve(with_price, Some(previous), prices)?;
-        let figures = |verdict: &Verdict| {
-            let (_, x) = verdict.optimum()?;
-            price.figures(numbers, &previous.x, x)
-        };
-        let Some((cost, _)) = verdict.optimum() else {
+        let Some(optimum) = verdict.optimum() else {
             return Ok((verdict, bound, None));
         };
+        let priced = price.priced_figures(numbers, &previous.x, optimum)?;
         let constant = price
             .constant(&previous.x)
             .ok_or_else(|| Error::Overflow("the change price of the previous plan".into()))?;
-        let whole = cost.checked_add(constant);
-        let priced = figures(&verdict)
-            .filter(|f| whole.is_some() && f.plan_cost.checked_add(f.change_cost) == whole)
-            .ok_or_else(|| Error::Overflow("the plan cost with its change price".into()))?;
         let unpriced = if self.settings.compare {
-            figures(&self.solve(numbers, Some(previous), prices)?.0)
+            let (plain, _) = self.solve(numbers, Some(previous), prices)?;
+            plain
+                .optimum()
+                .and_then(|(_, x)| price.figures(numbers, &previous.x, x))
         } else {
             None
         };

@@ -140,6 +140,23 @@ impl ChangePrice {
         Some(figures)
     }
 
+    /// The figures of the plan `x` a solve of `numbers` with this price against `previous`
+    /// found at cost `cost` (the solver's objective), checked to add up: plan cost plus
+    /// change cost is `cost` plus [`ChangePrice::constant`].
+    pub fn priced_figures(
+        &self,
+        numbers: Numbers<'_>,
+        previous: &[i64],
+        (cost, x): (i128, &[i64]),
+    ) -> Result<PlanFigures> {
+        let whole = self
+            .constant(previous)
+            .and_then(|constant| cost.checked_add(constant));
+        self.figures(numbers, previous, x)
+            .filter(|f| whole.is_some() && f.plan_cost.checked_add(f.change_cost) == whole)
+            .ok_or_else(|| Error::Overflow("the plan cost with its change price".into()))
+    }
+
     /// `model` as the engine choice sees a priced day of it: its convex costs with the price
     /// against the zero plan. The network solver takes linear costs only, so a network matrix
     /// is then served by its enumerated Graver basis.

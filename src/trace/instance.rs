@@ -5,10 +5,10 @@
 use augment::Options;
 
 use super::document::{record, TraceDocument};
-use super::solve_doc::{solve_document, SolveContext, SolveDocument};
+use super::solve_doc::{solve_document, ChangeContext, SolveContext, SolveDocument};
 use crate::error::Result;
 use crate::model::Model;
-use crate::solve::{Prepared, WarmStart};
+use crate::solve::{ChangePrice, Prepared, WarmStart};
 use crate::testset::Served;
 
 /// A model variant ready to solve.
@@ -31,6 +31,10 @@ pub struct Instance {
     pub prepared: Prepared,
     /// The solver settings.
     pub options: Options,
+    /// A price per unit changed against the warm start's plan.
+    pub change: Option<ChangePrice>,
+    /// With a change price, also solve without it and report the unpriced plan's figures.
+    pub compare: bool,
 }
 
 impl Instance {
@@ -46,7 +50,18 @@ impl Instance {
             set,
             prepared,
             options,
+            change: None,
+            compare: false,
         })
+    }
+
+    /// Prices every unit changed against the warm start's plan with `price` (a solve without
+    /// a warm start is then refused); `compare` also solves without the price. The set must
+    /// serve convex costs: [`ChangePrice::model_to_serve`] is the model to serve.
+    pub fn priced(mut self, price: ChangePrice, compare: bool) -> Instance {
+        self.change = Some(price);
+        self.compare = compare;
+        self
     }
 
     /// Starts from `warm`, a previous plan (checked against the model by its reader).
@@ -84,6 +99,10 @@ impl Instance {
             warm: self.warm.as_ref(),
             base: self.base.as_ref(),
             set: &self.set,
+            change: self.change.as_ref().map(|price| ChangeContext {
+                price,
+                compare: self.compare,
+            }),
         }
     }
 
