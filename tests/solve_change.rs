@@ -361,3 +361,60 @@ proptest! {
         }
     }
 }
+
+/// A model file prices variables by name under `change_cost`; `--change-cost W` (here the
+/// default of `ChangePrice::of_model`) prices the others. A negative price names its field.
+#[test]
+fn a_model_file_prices_its_own_variables() {
+    let read = |change: serde_json::Value| {
+        let text = json!({"matrix": [[1, 1, 1]], "rhs": [3],
+                          "names": {"variables": ["dock", "yard", "quay"]}, "change_cost": change});
+        Model::from_str(&text.to_string(), ModelKind::Json, "plan.json")
+    };
+    let model = read(json!({"yard": 7, "dock": 0})).unwrap();
+    let price = ChangePrice::of_model(&model, 2, "--change-cost").unwrap();
+    assert_eq!(price.weights(), &[0, 7, 2]);
+    let err = read(json!({"quay": -1})).unwrap_err().to_string();
+    assert_eq!(
+        err,
+        "plan.json: change_cost.quay: -1 is negative; a price per unit changed is 0 or more"
+    );
+    let err = read(json!({"pier": 1})).unwrap_err().to_string();
+    assert!(err.contains("change_cost.pier: no variable named"), "{err}");
+    let err = ChangePrice::of_model(&model, -3, "--change-cost").unwrap_err();
+    assert!(err
+        .to_string()
+        .starts_with("--change-cost: change cost: -3 is negative"));
+}
+
+/// A lane's `change_cost` prices its units column: column `l` of a lanes scenario, `3 l` of
+/// a truckloads scenario (units, spare, trucks per lane).
+#[test]
+fn a_lane_prices_its_units() {
+    let scenario = |kind: &str, extra: &str, per_lane: &str| {
+        let text = format!(
+            r#"kind = "{kind}"
+depots = ["a", "b"]
+zones = ["x", "y"]
+{extra}
+supply = {{ a = 7, b = 5 }}
+demand = {{ x = 4, y = 6 }}
+lanes = [
+  {{ from = "a", to = "x", cost = 3, capacity = 4 {per_lane} }},
+  {{ from = "b", to = "y", cost = 2, change_cost = 9 {per_lane} }},
+]
+"#
+        );
+        kernstep::scenario::Scenario::from_str(&text, ModelKind::Toml, "s.toml")
+            .unwrap()
+            .compile()
+            .unwrap()
+    };
+    let lanes = scenario("lanes", "", "");
+    assert_eq!(lanes.change_cost, vec![(1, 9)]);
+    let trucks = scenario("truckloads", "truck_capacity = 3", ", truck_cost = 5");
+    assert_eq!(trucks.change_cost, vec![(3, 9)]);
+    assert_eq!(trucks.variable_names[3], "b->y");
+    let price = ChangePrice::of_model(&trucks, 1, "--change-cost").unwrap();
+    assert_eq!(price.weights()[3], 9);
+}

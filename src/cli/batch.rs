@@ -38,7 +38,8 @@ pub struct BatchArgs {
     /// Warm-start each day from the previous day's plan (the days then run one after another).
     #[arg(long)]
     pub chain: bool,
-    /// With --chain: add W per unit changed against the day before to each day's cost.
+    /// With --chain: add W per unit changed against the day before to each day's cost (a
+    /// variable the input file prices with its own `change_cost` keeps that price).
     #[arg(long, value_name = "W", requires = "chain")]
     pub change_cost: Option<i64>,
     /// With --change-cost: also solve each day without the price and report its figures.
@@ -90,7 +91,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
         chain: args.chain,
         change: args
             .change_cost
-            .map(|w| ChangePrice::uniform(w, model.variables(), "--change-cost"))
+            .map(|w| ChangePrice::of_model(model, w, "--change-cost"))
             .transpose()?,
         compare: args.compare,
         ..ReplanSettings::default()

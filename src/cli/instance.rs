@@ -82,7 +82,7 @@ impl InstanceArgs {
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
         let price = change
-            .map(|(w, _)| ChangePrice::uniform(w, model.variables(), "--change-cost"))
+            .map(|(w, _)| ChangePrice::of_model(&model, w, "--change-cost"))
             .transpose()?;
         let to_serve = price.as_ref().map(|p| p.model_to_serve(&model));
         let set = (self.serving).served(

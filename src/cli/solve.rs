@@ -18,7 +18,8 @@ pub struct SolveArgs {
     /// Print one JSON document (layout in the README) instead of the summary.
     #[arg(long)]
     pub json: bool,
-    /// With --warm-start: add W per unit changed against the warm start's plan to the cost.
+    /// With --warm-start: add W per unit changed against the warm start's plan to the cost (a
+    /// variable the model file prices with its own `change_cost` keeps that price).
     #[arg(long, value_name = "W", requires = "warm_start")]
     pub change_cost: Option<i64>,
     /// With --change-cost: also solve without the price and report its figures.

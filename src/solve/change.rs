@@ -60,6 +60,22 @@ impl ChangePrice {
         })
     }
 
+    /// `default` for every variable of `model` but those its file prices itself
+    /// ([`Model::change_cost`]); `origin` names where `default` came from in errors.
+    pub fn of_model(model: &Model, default: i64, origin: &str) -> Result<ChangePrice> {
+        let mut price = ChangePrice::uniform(default, model.variables(), origin)?;
+        for &(i, w) in &model.change_cost {
+            let slot = price.weights.get_mut(i).ok_or_else(|| {
+                Error::Dimension(format!(
+                    "a change cost names variable {i} of {}",
+                    model.variables()
+                ))
+            })?;
+            *slot = w;
+        }
+        Ok(price)
+    }
+
     /// One weight per variable; `origin` names the file in errors, which give the entry.
     pub fn per_variable(weights: Vec<i64>, origin: &str) -> Result<ChangePrice> {
         for (i, &w) in weights.iter().enumerate() {
