@@ -19,10 +19,12 @@ use completion_support::graver;
 use kernstep::completion::{Control, Method};
 use kernstep::formats::batch::{DayRecord, DayStatus};
 use kernstep::model::{Model, ModelKind};
-use kernstep::scenario::{replan, ReplanSettings};
-use kernstep::solve::{ChangePrice, Prepared, Variant, WarmStart};
+use kernstep::scenario::{replan, CurvePiece, ReplanSettings, StabilityCurve};
+use kernstep::solve::{ChangePrice, Numbers, Prepared, Variant, WarmStart};
 use kernstep::testset::{serve, Engine, Served};
 use kernstep::trace::{Instance, Outcome};
+use num_rational::BigRational;
+use num_traits::{ToPrimitive, Zero};
 use proptest::prelude::*;
 use proptest_cases::Class;
 use serde::Deserialize;
@@ -417,4 +419,81 @@ lanes = [
     assert_eq!(trucks.variable_names[3], "b->y");
     let price = ChangePrice::of_model(&trucks, 1, "--change-cost").unwrap();
     assert_eq!(price.weights()[3], 9);
+}
+
+/// The stability curve of `model`'s own numbers against `previous` (every variable priced 1
+/// per unit), over the multipliers `0..=top`.
+fn curve_pieces(model: &Model, previous: Vec<i64>, top: i64) -> Vec<CurvePiece> {
+    let unit = ChangePrice::uniform(1, model.variables(), "case").unwrap();
+    let prepared = served(model, &unit).prepare(&model.matrix).unwrap();
+    let warm = WarmStart {
+        rhs: model.matrix.mul_vec(&previous).unwrap(),
+        x: previous,
+        potentials: None,
+    };
+    let options = Options::default();
+    let curve = StabilityCurve {
+        prepared: &prepared,
+        matrix: &model.matrix,
+        numbers: Numbers::of(model),
+        previous: &warm,
+        unit: &unit,
+        options: &options,
+    };
+    curve.pieces(top).unwrap()
+}
+
+proptest! {
+    #![proptest_config(proptest_cases::config(Class::Augmentation))]
+
+    /// The price of stability of one day (`F(λ) = min plan + λ moved`) is exact: at the start
+    /// of every piece and halfway to the next (or to the top price), the piece's plan is
+    /// optimal; plan costs rise and units moved fall from piece to piece.
+    #[test]
+    fn the_stability_curve_is_exact(case in small()) {
+        let n = case.cost.len();
+        let top = 20;
+        let pieces = curve_pieces(&case.model(), case.in_box(&case.previous), top);
+        prop_assert_eq!(pieces[0].from.clone(), BigRational::zero());
+        let top = BigRational::from_integer(top.into());
+        for (k, piece) in pieces.iter().enumerate() {
+            let end = pieces.get(k + 1).map_or(top.clone(), |p| p.from.clone());
+            prop_assert!(piece.from < end);
+            if k > 0 {
+                let before = &pieces[k - 1].figures;
+                prop_assert!(piece.figures.plan_cost > before.plan_cost);
+                prop_assert!(piece.figures.moved < before.moved);
+            }
+            for price in [piece.from.clone(), (&piece.from + &end) / BigRational::from_integer(2.into())] {
+                // Reference: enumeration of every integer point of the box at the price a / b,
+                // as the integer objective b c.x + a |x - p|.
+                let (a, b) = (price.numer().to_i64().unwrap(), price.denom().to_i64().unwrap());
+                let scaled = Small { cost: case.cost.iter().map(|c| c * b).collect(), ..case.clone() };
+                let (best, _) = scaled.brute_force(&vec![a; n]);
+                let f = &piece.figures;
+                prop_assert_eq!(i128::from(best), f.plan_cost * i128::from(b) + f.change_cost * i128::from(a));
+            }
+        }
+    }
+}
+
+/// A worked example of the curve. One row `x1 + x2 + x3 = 6`, costs 5, 2, 3, each variable in
+/// `0..=6`, yesterday `p = (6, 0, 0)`. Keeping `p` costs 30 and moves nothing; the cheapest
+/// plan `(0, 6, 0)` costs 12 and moves 12 units (6 off x1, 6 onto x2); every other plan lies
+/// above one of these two lines. So `F(λ) = min(12 + 12 λ, 30)`: one breakpoint, at
+/// `λ = 18 / 12 = 3/2` (worked by hand).
+#[test]
+fn the_stability_curve_of_a_worked_example() {
+    let text = json!({"matrix": [[1, 1, 1]], "rhs": [6], "cost": [5, 2, 3],
+                      "lower": [0, 0, 0], "upper": [6, 6, 6]});
+    let model = Model::from_str(&text.to_string(), ModelKind::Json, "case.json").unwrap();
+    let pieces = curve_pieces(&model, vec![6, 0, 0], 20);
+    let figures: Vec<(String, i128, u128)> = pieces
+        .iter()
+        .map(|p| (p.from.to_string(), p.figures.plan_cost, p.figures.moved))
+        .collect();
+    assert_eq!(
+        figures,
+        vec![("0".to_string(), 12, 12), ("3/2".to_string(), 30, 0)]
+    );
 }

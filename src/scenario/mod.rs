@@ -41,6 +41,7 @@ mod days_file;
 mod file;
 mod reader;
 mod replan;
+mod stability;
 
 use std::path::{Path, PathBuf};
 
@@ -51,6 +52,7 @@ use crate::model::{Model, ModelKind, Pieces};
 pub use days::{day_named, parse_csv, parse_day_lines};
 pub use days_file::{pick_day, pick_variant, read_days, read_variant};
 pub use replan::{replan, DayChange, DayOutcome, DayResult, ReplanSettings};
+pub use stability::{CurvePiece, StabilityCurve};
 
 /// Which model a scenario compiles into.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
