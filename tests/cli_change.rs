@@ -150,6 +150,21 @@ fn solve_prices_changes_against_the_warm_start() {
     assert!(doc["change"]["unpriced"].is_object());
     let summary = day("2026-03-03", &priced);
     assert!(summary.contains("with price  plan cost"), "{summary}");
+    // The price of stability: the first piece is the unpriced optimum (the --compare
+    // figures above), the plan cost rises and the units moved fall from piece to piece.
+    let curve = day(
+        "2026-03-03",
+        &[&priced[..], &["--price-curve", "20", "--json"]].concat(),
+    );
+    let pieces: Vec<Value> = serde_json::from_str(&curve).unwrap();
+    assert_eq!(pieces[0]["from"], "0");
+    let unpriced = &doc["change"]["unpriced"];
+    assert_eq!(pieces[0]["figures"]["plan_cost"], unpriced["plan_cost"]);
+    for pair in pieces.windows(2) {
+        let (a, b) = (&pair[0]["figures"], &pair[1]["figures"]);
+        assert!(a["plan_cost"].as_i64() < b["plan_cost"].as_i64(), "{curve}");
+        assert!(a["moved"].as_i64() > b["moved"].as_i64(), "{curve}");
+    }
 }
 
 #[test]

@@ -14,6 +14,7 @@
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{ToPrimitive, Zero};
+use serde::Serialize;
 
 use crate::certify::Answer;
 use crate::error::{Error, Result};
@@ -23,9 +24,11 @@ use crate::trace::certify;
 
 /// One piece of the curve: from price `from` on (to the next piece's), the plan with these
 /// figures is optimal.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct CurvePiece {
-    /// The multiplier `λ` of the unit weights where the piece starts (0 for the first).
+    /// The multiplier `λ` of the unit weights where the piece starts (0 for the first),
+    /// written as a reduced fraction (`"3/2"`).
+    #[serde(serialize_with = "fraction")]
     pub from: BigRational,
     /// The figures of the plan optimal on the piece, priced with the unit weights.
     pub figures: PlanFigures,
@@ -135,6 +138,14 @@ impl StabilityCurve<'_> {
             .figures(self.numbers, &self.previous.x, x)
             .ok_or_else(too_large)
     }
+}
+
+/// A price as its reduced fraction in words.
+fn fraction<S: serde::Serializer>(
+    price: &BigRational,
+    serializer: S,
+) -> std::result::Result<S::Ok, S::Error> {
+    serializer.collect_str(price)
 }
 
 /// `plan + λ change` of a plan's figures.

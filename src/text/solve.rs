@@ -7,6 +7,7 @@ use augment::Coverage;
 
 use super::layout::{count_moves, pairs, table, wrapped};
 use crate::model::Model;
+use crate::scenario::CurvePiece;
 use crate::solve::{PlanFigures, Stability};
 use crate::testset::{Served, Source};
 use crate::trace::{certificate_words, BoundDoc, Outcome, SolveDocument, StepCounts};
@@ -63,6 +64,23 @@ fn change_rows(change: &Stability) -> Vec<(String, String)> {
         rows.push(("without".to_string(), figures_text(unpriced)));
     }
     rows
+}
+
+/// The stability curve as a table: one row per piece, from its price on.
+pub fn curve_text(pieces: &[CurvePiece]) -> String {
+    let rows: Vec<Vec<String>> = pieces
+        .iter()
+        .map(|p| {
+            let f = &p.figures;
+            let from = p.from.to_string();
+            vec![from, f.plan_cost.to_string(), f.change_cost.to_string()]
+                .into_iter()
+                .chain([f.changed.to_string(), f.moved.to_string()])
+                .collect()
+        })
+        .collect();
+    let header = ["from price", "plan cost", "change", "changed", "moved"];
+    table(&header, &rows)
 }
 
 /// The summary of `doc`, solved with `set` on `model`; `from_base` when the solve started

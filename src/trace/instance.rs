@@ -6,9 +6,10 @@ use augment::Options;
 
 use super::document::{record, TraceDocument};
 use super::solve_doc::{solve_document, ChangeContext, SolveContext, SolveDocument};
-use crate::error::Result;
+use crate::error::{Error, Result};
 use crate::model::Model;
-use crate::solve::{ChangePrice, Prepared, WarmStart};
+use crate::scenario::{CurvePiece, StabilityCurve};
+use crate::solve::{ChangePrice, Numbers, Prepared, WarmStart};
 use crate::testset::Served;
 
 /// A model variant ready to solve.
@@ -89,6 +90,27 @@ impl Instance {
     /// The start the solve takes: the warm start, else the base optimum, else none (cold).
     pub fn start(&self) -> Option<&WarmStart> {
         self.warm.as_ref().or(self.base.as_ref())
+    }
+
+    /// The price of stability of this instance against the warm start's plan: the plans
+    /// optimal for the change prices `λ w`, `0 <= λ <= top`, `w` the change price given
+    /// ([`Instance::priced`]), exactly (see [`StabilityCurve`]).
+    pub fn stability_curve(&self, top: i64) -> Result<Vec<CurvePiece>> {
+        let (Some(unit), Some(previous)) = (&self.change, &self.warm) else {
+            return Err(Error::Unsupported(
+                "a stability curve needs a change price and the previous plan (a warm start)"
+                    .into(),
+            ));
+        };
+        let curve = StabilityCurve {
+            prepared: &self.prepared,
+            matrix: &self.model.matrix,
+            numbers: Numbers::of(&self.model),
+            previous,
+            unit,
+            options: &self.options,
+        };
+        curve.pieces(top)
     }
 
     /// The instance as a solve document names it.
