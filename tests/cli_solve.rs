@@ -844,6 +844,7 @@ fn the_solve_document_is_the_library_call() {
         warm: None,
         base: None,
         set: &served,
+        change: None,
     };
     let options = augment::Options::default();
     let mut called = solve_document(&prepared, &model, &options, context, &|| false).unwrap();

@@ -500,6 +500,7 @@ proptest! {
             rhs: vec![b],
             cost: vec![c1, c2],
             convex: Default::default(),
+            change_cost: Vec::new(),
             lower: vec![Some(box_low), Some(0)],
             upper: vec![Some(upper_x1), Some(limit)],
             variable_names: vec!["x1".into(), "x2".into()],

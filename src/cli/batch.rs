@@ -17,7 +17,7 @@ use kernstep::formats::batch::{self, DayRecord, Layout, RunSummary, Tally};
 use kernstep::input::is_stdin;
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
-use kernstep::solve::{ParsedLine, Prepared};
+use kernstep::solve::{ChangePrice, ParsedLine, Prepared};
 use kernstep::text::summary_text;
 
 use super::common::{capped_threads, interrupted, with_threads, write_atomically, ServeArgs};
@@ -38,6 +38,13 @@ pub struct BatchArgs {
     /// Warm-start each day from the previous day's plan (the days then run one after another).
     #[arg(long)]
     pub chain: bool,
+    /// With --chain: add W per unit changed against the day before to each day's cost (a
+    /// variable the input file prices with its own `change_cost` keeps that price).
+    #[arg(long, value_name = "W", requires = "chain")]
+    pub change_cost: Option<i64>,
+    /// With --change-cost: also solve each day without the price and report its figures.
+    #[arg(long, requires = "change_cost")]
+    pub compare: bool,
     #[command(flatten)]
     pub serving: ServeArgs,
     /// Write the results to FILE instead of stdout (the summary then goes to stdout).
@@ -80,17 +87,29 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let input = PlanInput::load(&args.input)?;
     let days = read_days(&input, &args.days)?;
     let model = input.model();
-    let set = args.serving.served(model, &args.input)?;
+    let settings = ReplanSettings {
+        chain: args.chain,
+        change: args
+            .change_cost
+            .map(|w| ChangePrice::of_model(model, w, "--change-cost"))
+            .transpose()?,
+        compare: args.compare,
+        ..ReplanSettings::default()
+    };
+    let priced = settings.change.as_ref().map(|p| p.model_to_serve(model));
+    let set = args
+        .serving
+        .served(priced.transpose()?.as_ref().unwrap_or(model), &args.input)?;
     let started = Instant::now();
     let prepared = set.prepare(&model.matrix)?;
     #[cfg(feature = "mpi")]
     if let Some(ranks) = super::ranked::current() {
         let days = super::ranked::batch::block(days, ranks);
-        let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
+        let results = solve_days(&prepared, model, days, &settings, args.threads, &args.days)?;
         let named = (&set, model.variable_names.as_slice());
         return super::ranked::batch::finish(args, named, &results, started, ranks);
     }
-    let results = solve_days(&prepared, model, days, args.chain, args.threads, &args.days)?;
+    let results = solve_days(&prepared, model, days, &settings, args.threads, &args.days)?;
     let wall = started.elapsed().as_secs_f64();
     report_failures(&results);
     let names = &model.variable_names;
@@ -127,18 +146,14 @@ pub(super) fn solve_days(
     prepared: &Prepared,
     model: &Model,
     days: Vec<ParsedLine>,
-    chain: bool,
+    settings: &ReplanSettings,
     threads: Option<usize>,
     origin: &Path,
 ) -> anyhow::Result<Vec<DayResult>> {
-    let settings = ReplanSettings {
-        chain,
-        ..ReplanSettings::default()
-    };
     let origin = origin.display().to_string();
     let cancel = || interrupted().load(Ordering::Relaxed);
     with_threads(threads, || {
-        replan(prepared, model, days, &settings, &origin, &cancel)
+        replan(prepared, model, days, settings, &origin, &cancel)
     })
 }
 

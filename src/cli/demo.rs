@@ -11,7 +11,7 @@ use anyhow::Context;
 use clap::Args;
 use kernstep::formats::batch::{DayRecord, DayStatus, Tally};
 use kernstep::model::{Model, ModelKind};
-use kernstep::scenario::{parse_day_lines, DayResult, Scenario};
+use kernstep::scenario::{parse_day_lines, DayResult, ReplanSettings, Scenario};
 use kernstep::solve::Prepared;
 use kernstep::text::{cell, table};
 use kernstep::trace::step_plot;
@@ -66,7 +66,14 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     let set = obtain_set(&model, &args.cache, &args.limits)?;
     let set_seconds = started.elapsed().as_secs_f64();
     let prepared = set.prepare(&model.matrix)?;
-    let results = solve_days(&prepared, &model, days, false, None, Path::new(DAYS_PATH))?;
+    let results = solve_days(
+        &prepared,
+        &model,
+        days,
+        &ReplanSettings::default(),
+        None,
+        Path::new(DAYS_PATH),
+    )?;
     let records: Vec<DayRecord> = results
         .iter()
         .map(|r| DayRecord::of(r, &model.variable_names))

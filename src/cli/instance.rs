@@ -10,7 +10,7 @@ use clap::{Args, ValueEnum};
 use kernstep::input::read_text;
 use kernstep::model::Model;
 use kernstep::scenario::{pick_day, read_variant, PlanInput};
-use kernstep::solve::{Variant, WarmStart};
+use kernstep::solve::{ChangePrice, Variant, WarmStart};
 use kernstep::trace::Instance;
 
 use super::common::{interrupted, ServeArgs};
@@ -64,8 +64,9 @@ pub enum StrategyArg {
 }
 
 impl InstanceArgs {
-    /// Loads the model, applies the variant, reads the warm start and finds the moves.
-    pub fn load(&self) -> anyhow::Result<Instance> {
+    /// Loads the model, applies the variant, reads the warm start and finds the moves; with
+    /// `change` (a weight and whether to compare), prices every unit changed.
+    pub fn load(&self, change: Option<(i64, bool)>) -> anyhow::Result<Instance> {
         let input = PlanInput::load(&self.model)?;
         let path = self.model.display().to_string();
         let (model, variant) = match &self.variant {
@@ -80,7 +81,14 @@ impl InstanceArgs {
             .as_deref()
             .map(|path| read_warm_start(path, &model))
             .transpose()?;
-        let set = self.serving.served(&model, &self.model)?;
+        let price = change
+            .map(|(w, _)| ChangePrice::of_model(&model, w, "--change-cost"))
+            .transpose()?;
+        let to_serve = price.as_ref().map(|p| p.model_to_serve(&model));
+        let set = (self.serving).served(
+            to_serve.transpose()?.as_ref().unwrap_or(&model),
+            &self.model,
+        )?;
         let rule = match self.strategy {
             StrategyArg::GraverBest => Rule::GraverBest,
             StrategyArg::First => Rule::FirstImproving,
@@ -93,6 +101,9 @@ impl InstanceArgs {
         let mut instance = Instance::new(model, &path, set, options)?;
         if let Some(warm) = warm {
             instance = instance.warm_start(warm);
+        }
+        if let (Some(price), Some((_, compare))) = (price, change) {
+            instance = instance.priced(price, compare);
         }
         if let Some(id) = variant {
             instance = instance.variant_of(id, input.model(), &cancelled);

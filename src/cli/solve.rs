@@ -5,7 +5,7 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 
 use clap::Args;
-use kernstep::text::solve_summary;
+use kernstep::text::{curve_text, solve_summary};
 use kernstep::trace::Outcome;
 
 use super::instance::{cancelled, InstanceArgs};
@@ -18,11 +18,33 @@ pub struct SolveArgs {
     /// Print one JSON document (layout in the README) instead of the summary.
     #[arg(long)]
     pub json: bool,
+    /// With --warm-start: add W per unit changed against the warm start's plan to the cost (a
+    /// variable the model file prices with its own `change_cost` keeps that price).
+    #[arg(long, value_name = "W", requires = "warm_start")]
+    pub change_cost: Option<i64>,
+    /// With --change-cost: also solve without the price and report its figures.
+    #[arg(long, requires = "change_cost")]
+    pub compare: bool,
+    /// With --change-cost W: print the plans optimal for every price λ W, 0 <= λ <= MAX,
+    /// found exactly (the price of stability) instead of one solve.
+    #[arg(long, value_name = "MAX", requires = "change_cost")]
+    pub price_curve: Option<i64>,
 }
 
 /// Solves the instance, re-checks the claim and prints the result.
 pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
-    let instance = args.instance.load()?;
+    let instance = args
+        .instance
+        .load(args.change_cost.map(|w| (w, args.compare)))?;
+    if let Some(top) = args.price_curve {
+        let pieces = instance.stability_curve(top)?;
+        let text = match args.json {
+            true => serde_json::to_string_pretty(&pieces)? + "\n",
+            false => curve_text(&pieces),
+        };
+        io::stdout().lock().write_all(text.as_bytes())?;
+        return Ok(ExitCode::SUCCESS);
+    }
     let doc = instance.solve(&cancelled)?;
     let mut out = io::stdout().lock();
     if args.json {

@@ -29,7 +29,7 @@ pub struct TraceArgs {
 
 /// Solves the instance with the trace on and prints it.
 pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
-    let instance = args.instance.load()?;
+    let instance = args.instance.load(None)?;
     let doc = instance.trace(&cancelled)?;
     let title = title(&instance);
     if let Some(path) = &args.svg {

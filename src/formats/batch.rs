@@ -19,7 +19,7 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 use crate::certify::{Answer, Limit, Proof};
 use crate::error::{Error, Result};
 use crate::scenario::{DayOutcome, DayResult};
-use crate::solve::Verdict;
+use crate::solve::{Stability, Verdict};
 use crate::testset::{Served, Source};
 
 use super::CAUTION;
@@ -198,6 +198,11 @@ pub struct DayRecord<'a> {
     pub seconds: f64,
     /// The plan.
     pub plan: Option<Plan<'a>>,
+    /// A day priced against the day before: its plan cost and change cost apart, the
+    /// variables changed and the units moved (and the same for the plan without the price,
+    /// when compared). `objective` and `bound` are then those of the whole objective.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub change: Option<Stability>,
 }
 
 impl<'a> DayRecord<'a> {
@@ -206,21 +211,27 @@ impl<'a> DayRecord<'a> {
         // Judged once: the status and the detail both read it.
         let judged = result.answer();
         let answer = optimum(result);
+        // The solver's objective leaves out the change price's constant; add it back.
+        let constant = result.change.map_or(0, |c| c.constant);
         let (bound, gap) = answer
             .zip(result.bound.as_ref())
-            .map(|((cost, _), b)| (b.ceiling().to_string(), b.gap(cost).to_string()))
+            .map(|((cost, _), b)| {
+                let value = b.ceiling() + BigInt::from(constant);
+                (value.to_string(), b.gap(cost).to_string())
+            })
             .unzip();
         DayRecord {
             day: result.id.as_deref().map(Cow::Borrowed),
             line: result.line,
             status: DayStatus::judged(result, judged.as_ref()),
             detail: detail(result, judged.as_ref()),
-            objective: answer.map(|(o, _)| o),
+            objective: answer.and_then(|(o, _)| o.checked_add(constant)),
             bound,
             gap,
             steps: steps(result),
             seconds: result.elapsed.as_secs_f64(),
             plan: answer.map(|(_, x)| Plan::of(names, x)),
+            change: result.change.map(|c| c.stability),
         }
     }
 }
@@ -487,6 +498,7 @@ fn csv_record(
         steps: parsed("steps", cell(6))?,
         seconds: parsed("seconds", cell(7))?.unwrap_or(0.0),
         plan: objective.map(|_| Plan(plan.into_iter().filter(|(_, v)| *v != 0).collect())),
+        change: None,
     })
 }
 

@@ -107,6 +107,29 @@ impl Pieces {
         total
     }
 
+    /// The slope just above `x`: `s_k` with `k` the number of breaks at or below `x`.
+    fn slope_above(&self, x: i64) -> i64 {
+        self.slopes[self.breaks.partition_point(|&b| b <= x)]
+    }
+
+    /// The sum `p + q` of two convex costs: convex again, with the union of the breaks and
+    /// the slopes added on every segment (both are 0 at `x = 0`, so is the sum).
+    pub fn plus(&self, other: &Pieces) -> std::result::Result<Pieces, PiecesFault> {
+        let mut breaks: Vec<i64> = self.breaks.iter().chain(&other.breaks).copied().collect();
+        breaks.sort_unstable();
+        breaks.dedup();
+        let first = self.slopes[0].checked_add(other.slopes[0]);
+        let slopes = std::iter::once(first)
+            .chain(
+                breaks
+                    .iter()
+                    .map(|&b| self.slope_above(b).checked_add(other.slope_above(b))),
+            )
+            .collect::<Option<Vec<i64>>>()
+            .ok_or(PiecesFault::TooLarge)?;
+        Pieces::new(breaks, slopes)
+    }
+
     /// The solver's term for `c x + p(x)`: the breakpoints `(b, c b + p(b))` with one point
     /// beyond each end, so that the first and last segments carry `c + s_0` and `c + s_K`.
     pub fn term(&self, linear: i64) -> std::result::Result<Term, PiecesFault> {
@@ -251,6 +274,19 @@ mod tests {
             let want = 7 * 3 + 2 * i128::from(x) + p.value(x);
             assert_eq!(objective.value(&[3, x]).unwrap(), want, "x = {x}");
         }
+    }
+
+    #[test]
+    fn a_sum_of_pieces_is_the_sum_of_their_values() {
+        let p = pieces(&[-1, 2, 4], &[-3, 0, 0, 6]);
+        let q = pieces(&[2, 5], &[-1, 1, 2]);
+        let sum = p.plus(&q).unwrap();
+        assert_eq!(sum.breaks(), &[-1, 2, 4, 5]);
+        for x in -8..=12 {
+            assert_eq!(sum.value(x), p.value(x) + q.value(x), "x = {x}");
+        }
+        let huge = pieces(&[0], &[0, i64::MAX]);
+        assert_eq!(huge.plus(&huge), Err(PiecesFault::TooLarge));
     }
 
     #[test]

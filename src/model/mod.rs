@@ -108,6 +108,10 @@ pub struct Model {
     pub cost: Vec<i64>,
     /// Piecewise-linear convex costs added to the linear cost of some variables.
     pub convex: ConvexCosts,
+    /// The file's own prices per unit changed against a previous plan, `(variable, weight)`
+    /// with increasing variables and weights `>= 0`; they apply when a change price is asked
+    /// for (see [`crate::solve::ChangePrice::of_model`]).
+    pub change_cost: Vec<(usize, i64)>,
     /// Lower bounds; `None` is unbounded below.
     pub lower: Vec<Option<i64>>,
     /// Upper bounds; `None` is unbounded above.
@@ -128,6 +132,7 @@ impl Model {
             rhs: vec![0; m],
             cost: vec![0; n],
             convex: ConvexCosts::default(),
+            change_cost: Vec::new(),
             lower: vec![None; n],
             upper: vec![None; n],
             variable_names: (1..=n).map(|i| format!("x{i}")).collect(),

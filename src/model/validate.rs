@@ -9,7 +9,7 @@ use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
 
 /// The top-level keys a model file may hold.
-const MODEL_KEYS: [&str; 7] = [
+const MODEL_KEYS: [&str; 8] = [
     "matrix",
     "rhs",
     "cost",
@@ -17,6 +17,7 @@ const MODEL_KEYS: [&str; 7] = [
     "upper",
     "names",
     "convex_cost",
+    "change_cost",
 ];
 /// The keys of one variable's convex cost.
 const PIECE_KEYS: [&str; 2] = ["breaks", "slopes"];
@@ -219,22 +220,35 @@ impl Checker<'_> {
         }
     }
 
+    /// The entries of the table `key` from variable names to values (`what` says what the
+    /// table is in errors): each value with its variable's index and its field.
+    fn by_variable<'n>(
+        &self,
+        node: &'n Node,
+        (key, what): (&str, &str),
+        names: &[String],
+    ) -> Result<Vec<(usize, String, &'n Node)>> {
+        let Node::Table(entries) = node else {
+            return Err(self.expected(key, what, node));
+        };
+        entries
+            .iter()
+            .map(|(name, value)| {
+                let field = format!("{key}.{name}");
+                match names.iter().position(|n| n == name) {
+                    Some(variable) => Ok((variable, field, value)),
+                    None => Err(self.error(&field, format!("no variable named {name:?}"))),
+                }
+            })
+            .collect()
+    }
+
     /// `convex_cost`: a table from variable names to `{ breaks, slopes }`.
     fn convex(&self, node: &Node, names: &[String]) -> Result<ConvexCosts> {
-        let Node::Table(entries) = node else {
-            return Err(self.expected(
-                "convex_cost",
-                "a table from variable names to { breaks, slopes }",
-                node,
-            ));
-        };
+        let what = "a table from variable names to { breaks, slopes }";
+        let entries = self.by_variable(node, ("convex_cost", what), names)?;
         let mut out = Vec::with_capacity(entries.len());
-        for (name, spec) in entries {
-            let field = format!("convex_cost.{name}");
-            let variable = names
-                .iter()
-                .position(|n| n == name)
-                .ok_or_else(|| self.error(&field, format!("no variable named {name:?}")))?;
+        for (variable, field, spec) in entries {
             let parts = self.table(spec, &field, &PIECE_KEYS)?;
             let list = |key: &str| -> Result<Vec<i64>> {
                 let here = format!("{field}.{key}");
@@ -251,11 +265,30 @@ impl Checker<'_> {
                     PiecesFault::Unsorted { .. } => "breaks",
                     _ => "slopes",
                 };
+                let name = &names[variable];
                 self.error(format!("{field}.{key}"), format!("{name}: {fault}"))
             })?;
             out.push((variable, pieces));
         }
         Ok(ConvexCosts::new(out))
+    }
+
+    /// `change_cost`: a table from variable names to prices per unit changed (`>= 0`).
+    fn change_cost(&self, node: &Node, names: &[String]) -> Result<Vec<(usize, i64)>> {
+        let what = "a table from variable names to prices per unit changed";
+        let mut out = Vec::new();
+        for (variable, field, value) in self.by_variable(node, ("change_cost", what), names)? {
+            let weight = self.integer(value, &field, VALUE_LIMIT)?;
+            if weight < 0 {
+                return Err(self.error(
+                    &field,
+                    format!("{weight} is negative; a price per unit changed is 0 or more"),
+                ));
+            }
+            out.push((variable, weight));
+        }
+        out.sort_unstable();
+        Ok(out)
     }
 
     fn names(&self, node: &Node, field: &str, len: usize, why: &str) -> Result<Vec<String>> {
@@ -328,11 +361,16 @@ pub(crate) fn build(root: &Node, file: &str) -> Result<Model> {
     convex
         .objective(&cost, Some(&variable_names))
         .map_err(|e| c.error("convex_cost", e.to_string()))?;
+    let change_cost = match get(entries, "change_cost") {
+        Some(node) => c.change_cost(node, &variable_names)?,
+        None => Vec::new(),
+    };
     Ok(Model {
         matrix,
         rhs,
         cost,
         convex,
+        change_cost,
         lower,
         upper,
         variable_names,

@@ -34,6 +34,7 @@ pub(crate) fn model(s: &Scenario) -> Result<Model> {
         rhs,
         cost,
         convex: surcharges(s),
+        change_cost: change_costs(s),
         lower,
         upper,
         variable_names,
@@ -41,13 +42,26 @@ pub(crate) fn model(s: &Scenario) -> Result<Model> {
     })
 }
 
+/// The column of lane `l`'s units.
+fn units(s: &Scenario, l: usize) -> usize {
+    match s.kind {
+        ScenarioKind::Truckloads => 3 * l,
+        // Product lines have no surcharges or change costs (the invariant of `Scenario`).
+        ScenarioKind::Lanes | ScenarioKind::ProductLines => l,
+    }
+}
+
+/// The lanes' change costs as prices of their units columns.
+fn change_costs(s: &Scenario) -> Vec<(usize, i64)> {
+    let entries = s.change_costs.iter().enumerate();
+    entries
+        .filter_map(|(l, w)| w.map(|w| (units(s, l), w)))
+        .collect()
+}
+
 /// The lanes' surcharges as convex costs of their units columns.
 fn surcharges(s: &Scenario) -> ConvexCosts {
-    let units = |l: usize| match s.kind {
-        ScenarioKind::Truckloads => 3 * l,
-        // Product lines have no surcharges (the invariant of `Scenario`).
-        ScenarioKind::Lanes | ScenarioKind::ProductLines => l,
-    };
+    let units = |l: usize| units(s, l);
     let entries = s.surcharges.iter().enumerate();
     ConvexCosts::new(
         entries

@@ -41,9 +41,17 @@ fn top_keys(kind: ScenarioKind) -> &'static [&'static str] {
 /// Keys of one `lanes` entry for each kind.
 fn lane_keys(kind: ScenarioKind) -> &'static [&'static str] {
     match kind {
-        ScenarioKind::Lanes => &["from", "to", "cost", "capacity", "surcharge"],
+        ScenarioKind::Lanes => &["from", "to", "cost", "capacity", "surcharge", "change_cost"],
         ScenarioKind::ProductLines => &["from", "to", "cost", "volume"],
-        ScenarioKind::Truckloads => &["from", "to", "cost", "truck_cost", "capacity", "surcharge"],
+        ScenarioKind::Truckloads => &[
+            "from",
+            "to",
+            "cost",
+            "truck_cost",
+            "capacity",
+            "surcharge",
+            "change_cost",
+        ],
     }
 }
 
@@ -97,6 +105,7 @@ pub(crate) fn scenario(tree: &Value, origin: &str) -> Result<Scenario> {
         truck_capacity,
         tables: Vec::new(),
         surcharges: Vec::new(),
+        change_costs: Vec::new(),
     };
     for &field in kind.fields() {
         let table = read_table(&r, field, top, &entries, &scenario)?;
@@ -114,7 +123,30 @@ pub(crate) fn scenario(tree: &Value, origin: &str) -> Result<Scenario> {
             None => Ok(None),
         })
         .collect::<Result<_>>()?;
+    scenario.change_costs = entries
+        .iter()
+        .enumerate()
+        .map(|(i, entry)| {
+            let at = format!("lanes[{i}].change_cost");
+            entry
+                .get("change_cost")
+                .map(|w| change_cost(&r, w, &at))
+                .transpose()
+        })
+        .collect::<Result<_>>()?;
     Ok(scenario)
+}
+
+/// A lane's `change_cost`: an integer, 0 or more.
+fn change_cost(r: &Reader, value: &Value, at: &str) -> Result<i64> {
+    let weight = r.int(value, at)?;
+    if weight < 0 {
+        return Err(r.error(
+            at,
+            format!("{weight} is negative; a price per unit changed is 0 or more"),
+        ));
+    }
+    Ok(weight)
 }
 
 /// One lane's `surcharge` steps as the convex cost of its units; `cost` is the lane's cost per

@@ -24,6 +24,10 @@
 //! `0, S_1, S_1 + S_2, ...`; nondecreasing slopes make it convex by construction. Product lines
 //! refuse the key.
 //!
+//! A lane of a lanes or truckloads scenario may also carry a `change_cost` (an integer `>= 0`):
+//! the price per unit of its units changed against a previous plan, used when a change price
+//! is asked for (`--change-cost`, [`crate::solve::ChangePrice::of_model`]).
+//!
 //! Invariant: the matrix depends only on the kind, the depots, zones, products, lanes and the
 //! truck capacity, never on the day's numbers, so one test set serves every day of a scenario.
 //! The numbers (supply, demand, stock, volume, costs, capacities) are [`Table`]s, one per
@@ -37,6 +41,7 @@ mod days_file;
 mod file;
 mod reader;
 mod replan;
+mod stability;
 
 use std::path::{Path, PathBuf};
 
@@ -46,7 +51,8 @@ use crate::model::{Model, ModelKind, Pieces};
 
 pub use days::{day_named, parse_csv, parse_day_lines};
 pub use days_file::{pick_day, pick_variant, read_days, read_variant};
-pub use replan::{replan, DayOutcome, DayResult, ReplanSettings};
+pub use replan::{replan, DayChange, DayOutcome, DayResult, ReplanSettings};
+pub use stability::{CurvePiece, StabilityCurve};
 
 /// Which model a scenario compiles into.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -181,7 +187,7 @@ pub struct Lane {
 /// Invariant: names are unique within depots, zones and products; lanes are unique pairs;
 /// `tables` holds exactly one table per field of `kind`, named as documented on [`Field`];
 /// `truck_capacity` is `Some(C)` with `1 <= C <= 2^31 - 1` exactly for truckloads;
-/// `surcharges` has one entry per lane, all `None` for product lines.
+/// `surcharges` and `change_costs` have one entry per lane, all `None` for product lines.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Scenario {
     /// Which model it compiles into.
@@ -203,6 +209,9 @@ pub struct Scenario {
     /// Per lane, the convex cost its `surcharge` adds to its units (breaks the steps' `above`,
     /// slopes the running sums of their `per_unit` after a leading 0); `None` without one.
     pub surcharges: Vec<Option<Pieces>>,
+    /// Per lane, its `change_cost`: the price per unit of its units changed against a
+    /// previous plan (see [`crate::solve::ChangePrice::of_model`]); `None` without one.
+    pub change_costs: Vec<Option<i64>>,
 }
 
 impl Scenario {

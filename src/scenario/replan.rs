@@ -7,6 +7,11 @@
 //! multipliers of the model's own numbers (or, chained, of the day before), which serve most
 //! days without an LP solve.
 //!
+//! Chained days may carry a change price ([`ChangePrice`]): each day after the first then
+//! minimises its cost plus `sum_i w_i |x_i - p_i|` against the plan of the day before, and its
+//! result gives the plan cost and the change cost apart ([`Stability`]), with the same
+//! figures for the plan without the price when [`ReplanSettings::compare`] asks for them.
+//!
 //! Results come back in input order whatever the thread count. Every day's claim (optimal,
 //! infeasible, unbounded, a bound) is re-checked independently ([`crate::trace::recheck`])
 //! before it is returned; a refuted claim makes the day an error. A day whose line was bad is an
@@ -22,16 +27,23 @@ use crate::certify::{judge, Answer};
 use crate::error::Error;
 use crate::model::Model;
 use crate::network::FlowOutcome;
-use crate::solve::{Numbers, ParsedLine, Prepared, Variant, Verdict, WarmStart};
+use crate::solve::{
+    ChangePrice, Numbers, ParsedLine, Prepared, Stability, Variant, Verdict, WarmStart,
+};
 use crate::trace::certify;
 
 /// How to re-optimise the days.
-#[derive(Clone, Copy, Debug, Default)]
+#[derive(Clone, Debug, Default)]
 pub struct ReplanSettings {
     /// Solver settings for every day. Default: [`augment::Options::default`].
     pub options: augment::Options,
     /// Warm-start each day from the last feasible plan before it (sequential). Default: off.
     pub chain: bool,
+    /// Chained days: the price per unit changed against the day before. Default: none.
+    pub change: Option<ChangePrice>,
+    /// With a change price, also solve each priced day without it and report its figures.
+    /// Default: off.
+    pub compare: bool,
 }
 
 /// The result of one day.
@@ -48,6 +60,19 @@ pub struct DayResult {
     pub bound: Option<DualBound>,
     /// Wall-clock time spent on the day.
     pub elapsed: Duration,
+    /// A day priced against the day before: the figures of its plan (and, compared, of the
+    /// plan without the price), and the constant the solver's objective leaves out
+    /// ([`ChangePrice::constant`]).
+    pub change: Option<DayChange>,
+}
+
+/// The change figures of a priced day.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct DayChange {
+    /// The figures of the plan, and of the plan without the price when compared.
+    pub stability: Stability,
+    /// The whole objective less the solver's: add it to the verdict's cost and bound.
+    pub constant: i128,
 }
 
 /// What happened to one day.
@@ -173,6 +198,7 @@ impl Run<'_> {
             outcome,
             bound,
             elapsed: started.elapsed(),
+            change: None,
         };
         if (self.cancel)() {
             return (finish(DayOutcome::NotRun, None), None);
@@ -185,15 +211,78 @@ impl Run<'_> {
             Ok(n) => n,
             Err(e) => return (finish(DayOutcome::Failed(e), None), None),
         };
-        let solved = self
-            .prepared
-            .solve_numbers(numbers, &self.settings.options, warm, self.cancel)
-            .and_then(|verdict| self.confirmed(numbers, verdict, prices));
+        let priced = match (&self.settings.change, warm) {
+            (Some(price), Some(warm)) if self.settings.chain => Some((price, warm)),
+            _ => None,
+        };
+        let solved = match priced {
+            Some((price, previous)) => self.priced_day(numbers, price, previous, prices),
+            None => self
+                .solve(numbers, warm, prices)
+                .map(|(verdict, bound)| (verdict, bound, None)),
+        };
         let result = match solved {
-            Ok((verdict, bound)) => finish(DayOutcome::Solved(verdict), bound),
+            Ok((verdict, bound, change)) => DayResult {
+                change,
+                ..finish(DayOutcome::Solved(verdict), bound)
+            },
             Err(e) => finish(DayOutcome::Failed(e), None),
         };
         (result, Some(numbers.rhs.to_vec()))
+    }
+
+    /// Solves the instance `numbers` from `warm` and confirms the verdict ([`Run::confirmed`]).
+    fn solve(
+        &self,
+        numbers: Numbers<'_>,
+        warm: Option<&WarmStart>,
+        prices: Option<&Multipliers>,
+    ) -> Result<(Verdict, Option<DualBound>), Error> {
+        let verdict =
+            self.prepared
+                .solve_numbers(numbers, &self.settings.options, warm, self.cancel)?;
+        self.confirmed(numbers, verdict, prices)
+    }
+
+    /// Solves the instance `numbers` plus the change price against the previous plan (also
+    /// the start), and figures its plan (and, compared, the plan without the price).
+    fn priced_day(
+        &self,
+        numbers: Numbers<'_>,
+        price: &ChangePrice,
+        previous: &WarmStart,
+        prices: Option<&Multipliers>,
+    ) -> Result<(Verdict, Option<DualBound>, Option<DayChange>), Error> {
+        let convex = price.priced(numbers.convex, &previous.x)?;
+        let with_price = Numbers {
+            convex: &convex,
+            ..numbers
+        };
+        let (verdict, bound) = self.solve(with_price, Some(previous), prices)?;
+        let Some(optimum) = verdict.optimum() else {
+            return Ok((verdict, bound, None));
+        };
+        let priced = price.priced_figures(numbers, &previous.x, optimum)?;
+        let constant = price
+            .constant(&previous.x)
+            .ok_or_else(|| Error::Overflow("the change price of the previous plan".into()))?;
+        let unpriced = if self.settings.compare {
+            let (plain, _) = self.solve(numbers, Some(previous), prices)?;
+            plain
+                .optimum()
+                .and_then(|(_, x)| price.figures(numbers, &previous.x, x))
+        } else {
+            None
+        };
+        let stability = Stability { priced, unpriced };
+        Ok((
+            verdict,
+            bound,
+            Some(DayChange {
+                stability,
+                constant,
+            }),
+        ))
     }
 
     /// The verdict with its dual bound (for a truncated set's plan) once the independent

@@ -217,7 +217,8 @@ fn network_engine(model: &Model, engine: Engine) -> Result<Option<Network>> {
         Engine::Auto if model.convex.is_empty() => Ok(Network::detect(&model.matrix).ok()),
         Engine::Auto | Engine::Moves => Ok(None),
         Engine::Cycles if !model.convex.is_empty() => Err(Error::Unsupported(
-            "the model has convex costs, which the network solver does not take".to_string(),
+            "the model has convex costs (a change price is one), which the network solver does not take"
+                .to_string(),
         )),
         Engine::Cycles => Network::detect(&model.matrix)
             .map(Some)

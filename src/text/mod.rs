@@ -19,5 +19,5 @@ pub use inventory::{
 };
 pub use layout::{cell, count_moves, labelled, pairs, table, wrap, wrap_units, wrapped};
 pub use progress::{duration_text, progress_text};
-pub use solve::{bound_text, set_text, solve_summary};
+pub use solve::{bound_text, curve_text, set_text, solve_summary};
 pub use trace::trace_text;

@@ -7,6 +7,8 @@ use augment::Coverage;
 
 use super::layout::{count_moves, pairs, table, wrapped};
 use crate::model::Model;
+use crate::scenario::CurvePiece;
+use crate::solve::{PlanFigures, Stability};
 use crate::testset::{Served, Source};
 use crate::trace::{certificate_words, BoundDoc, Outcome, SolveDocument, StepCounts};
 
@@ -47,6 +49,40 @@ pub fn bound_text(bound: &BoundDoc) -> String {
     )
 }
 
+/// `plan cost 298 + change cost 60 (8 variables changed, 20 units moved)`.
+fn figures_text(f: &PlanFigures) -> String {
+    format!(
+        "plan cost {} + change cost {} ({} variables changed, {} units moved)",
+        f.plan_cost, f.change_cost, f.changed, f.moved
+    )
+}
+
+/// The rows of a priced plan's figures and, compared, of the unpriced plan's.
+fn change_rows(change: &Stability) -> Vec<(String, String)> {
+    let mut rows = vec![("with price".to_string(), figures_text(&change.priced))];
+    if let Some(unpriced) = &change.unpriced {
+        rows.push(("without".to_string(), figures_text(unpriced)));
+    }
+    rows
+}
+
+/// The stability curve as a table: one row per piece, from its price on.
+pub fn curve_text(pieces: &[CurvePiece]) -> String {
+    let rows: Vec<Vec<String>> = pieces
+        .iter()
+        .map(|p| {
+            let f = &p.figures;
+            let from = p.from.to_string();
+            vec![from, f.plan_cost.to_string(), f.change_cost.to_string()]
+                .into_iter()
+                .chain([f.changed.to_string(), f.moved.to_string()])
+                .collect()
+        })
+        .collect();
+    let header = ["from price", "plan cost", "change", "changed", "moved"];
+    table(&header, &rows)
+}
+
 /// The summary of `doc`, solved with `set` on `model`; `from_base` when the solve started
 /// from the optimum of the model's own numbers (a network variant without a warm start).
 pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base: bool) -> String {
@@ -67,6 +103,9 @@ pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base
         match (doc.objective, doc.violation) {
             (Some(objective), _) => {
                 rows.push(("objective".to_string(), objective.to_string()));
+                if let Some(change) = &doc.change {
+                    rows.extend(change_rows(change));
+                }
                 if let Some(bound) = &doc.bound {
                     rows.push(("dual bound".to_string(), bound_text(bound)));
                 }

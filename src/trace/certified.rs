@@ -72,12 +72,15 @@ pub(crate) struct Reported {
 }
 
 /// Solves `model` with `prepared` from `start` and certifies the verdict ([`certify`]): the
-/// sequence behind the solve and the trace documents.
+/// sequence behind the solve and the trace documents. `constant` is what the whole objective
+/// adds to the solver's (a change price's, see [`crate::solve::ChangePrice::constant`]; else
+/// 0): the bound's document is that of the whole objective.
 pub(crate) fn solve_reported(
     prepared: &Prepared,
     model: &Model,
     options: &augment::Options,
     start: Option<&WarmStart>,
+    constant: i128,
     cancel: &dyn Fn() -> bool,
 ) -> Result<Reported> {
     let verdict = prepared.solve(model, options, start, cancel)?;
@@ -92,8 +95,22 @@ pub(crate) fn solve_reported(
         bound: verdict
             .optimum()
             .zip(bound.as_ref())
-            .map(|((cost, _), b)| BoundDoc::of(b, cost)),
+            .map(|((cost, _), b)| whole_bound(b, cost, constant))
+            .transpose()?,
         verdict,
         recheck,
     })
+}
+
+/// The document of `bound`, a bound of the solver's objective, for the whole objective: both
+/// the bound and the cost `cost` plus `constant`.
+fn whole_bound(bound: &DualBound, cost: i128, constant: i128) -> Result<BoundDoc> {
+    let whole = cost
+        .checked_add(constant)
+        .ok_or_else(|| crate::Error::Overflow("the plan cost with its change price".into()))?;
+    let shifted = DualBound {
+        value: &bound.value + num_rational::BigRational::from_integer(constant.into()),
+        multipliers: bound.multipliers.clone(),
+    };
+    Ok(BoundDoc::of(&shifted, whole))
 }

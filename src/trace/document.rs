@@ -125,7 +125,7 @@ pub fn record(
         recheck,
         outcome,
         bound,
-    } = solve_reported(prepared, model, &options.trace(true), warm, cancel)?;
+    } = solve_reported(prepared, model, &options.trace(true), warm, 0, cancel)?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
         schema: TRACE_SCHEMA.to_string(),

@@ -5,10 +5,11 @@
 use augment::Options;
 
 use super::document::{record, TraceDocument};
-use super::solve_doc::{solve_document, SolveContext, SolveDocument};
-use crate::error::Result;
+use super::solve_doc::{solve_document, ChangeContext, SolveContext, SolveDocument};
+use crate::error::{Error, Result};
 use crate::model::Model;
-use crate::solve::{Prepared, WarmStart};
+use crate::scenario::{CurvePiece, StabilityCurve};
+use crate::solve::{ChangePrice, Numbers, Prepared, WarmStart};
 use crate::testset::Served;
 
 /// A model variant ready to solve.
@@ -31,6 +32,10 @@ pub struct Instance {
     pub prepared: Prepared,
     /// The solver settings.
     pub options: Options,
+    /// A price per unit changed against the warm start's plan.
+    pub change: Option<ChangePrice>,
+    /// With a change price, also solve without it and report the unpriced plan's figures.
+    pub compare: bool,
 }
 
 impl Instance {
@@ -46,7 +51,18 @@ impl Instance {
             set,
             prepared,
             options,
+            change: None,
+            compare: false,
         })
+    }
+
+    /// Prices every unit changed against the warm start's plan with `price` (a solve without
+    /// a warm start is then refused); `compare` also solves without the price. The set must
+    /// serve convex costs: [`ChangePrice::model_to_serve`] is the model to serve.
+    pub fn priced(mut self, price: ChangePrice, compare: bool) -> Instance {
+        self.change = Some(price);
+        self.compare = compare;
+        self
     }
 
     /// Starts from `warm`, a previous plan (checked against the model by its reader).
@@ -76,6 +92,27 @@ impl Instance {
         self.warm.as_ref().or(self.base.as_ref())
     }
 
+    /// The price of stability of this instance against the warm start's plan: the plans
+    /// optimal for the change prices `λ w`, `0 <= λ <= top`, `w` the change price given
+    /// ([`Instance::priced`]), exactly (see [`StabilityCurve`]).
+    pub fn stability_curve(&self, top: i64) -> Result<Vec<CurvePiece>> {
+        let (Some(unit), Some(previous)) = (&self.change, &self.warm) else {
+            return Err(Error::Unsupported(
+                "a stability curve needs a change price and the previous plan (a warm start)"
+                    .into(),
+            ));
+        };
+        let curve = StabilityCurve {
+            prepared: &self.prepared,
+            matrix: &self.model.matrix,
+            numbers: Numbers::of(&self.model),
+            previous,
+            unit,
+            options: &self.options,
+        };
+        curve.pieces(top)
+    }
+
     /// The instance as a solve document names it.
     pub fn context(&self) -> SolveContext<'_> {
         SolveContext {
@@ -84,6 +121,10 @@ impl Instance {
             warm: self.warm.as_ref(),
             base: self.base.as_ref(),
             set: &self.set,
+            change: self.change.as_ref().map(|price| ChangeContext {
+                price,
+                compare: self.compare,
+            }),
         }
     }
 

@@ -26,8 +26,8 @@ pub use outcome::{sign_number, Outcome};
 pub use plot::step_plot;
 pub use recheck::{recheck, recheck_with_bound, Claim, Defect, Recheck, SignedMove};
 pub use solve_doc::{
-    read_warm_start, solve_document, SetRecord, SolveContext, SolveDocument, StepCounts,
-    SOLVE_SCHEMA,
+    read_warm_start, solve_document, ChangeContext, SetRecord, SolveContext, SolveDocument,
+    StepCounts, SOLVE_SCHEMA,
 };
 pub use sparse::{named_entries, NamedEntry};
 pub use words::{certificate_words, terms};

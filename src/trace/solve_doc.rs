@@ -12,7 +12,7 @@ use super::outcome::Outcome;
 use super::recheck::Recheck;
 use crate::error::{Error, Result};
 use crate::model::Model;
-use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
+use crate::solve::{ChangePrice, Numbers, Prepared, Stability, Verdict, WarmStart};
 use crate::testset::{Served, Source};
 
 /// The `schema` value of solve documents.
@@ -73,6 +73,18 @@ pub struct SolveContext<'a> {
     pub base: Option<&'a WarmStart>,
     /// The set that serves the solve.
     pub set: &'a Served,
+    /// A price per unit changed against the warm start's plan, if any.
+    pub change: Option<ChangeContext<'a>>,
+}
+
+/// A change price for one solve: the plan minimises its cost plus the price against the
+/// previous plan (the warm start, which it needs).
+#[derive(Clone, Copy, Debug)]
+pub struct ChangeContext<'a> {
+    /// The price.
+    pub price: &'a ChangePrice,
+    /// Also solve without the price and give the unpriced plan's figures.
+    pub compare: bool,
 }
 
 /// One certified solve: the outcome, the plan and its cost, the dual bound of a partial
@@ -112,6 +124,11 @@ pub struct SolveDocument {
     pub set: SetRecord,
     /// The independent re-check of the outcome's claim, when it makes one.
     pub recheck: Option<Recheck>,
+    /// With a change price: the plan cost and change cost apart, variables changed and units
+    /// moved (and the same for the unpriced plan, when compared). `objective` and `bound`
+    /// are then those of the whole objective.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub change: Option<Stability>,
 }
 
 /// Solves `model` with `prepared` from the context's start, certifies the verdict
@@ -124,13 +141,31 @@ pub fn solve_document(
     cancel: &dyn Fn() -> bool,
 ) -> Result<SolveDocument> {
     let start = context.warm.or(context.base);
+    let priced = match (context.change, context.warm) {
+        (None, _) => None,
+        (Some(change), Some(warm)) => Some(PricedSolve::new(model, change, &warm.x)?),
+        (Some(_), None) => {
+            return Err(Error::Unsupported(
+                "a change price needs the previous plan: give a warm start".into(),
+            ))
+        }
+    };
+    let solved = priced.as_ref().map_or(model, |p| &p.model);
+    let constant = priced.as_ref().map_or(0, |p| p.constant);
     let Reported {
         verdict,
         recheck,
         outcome,
         bound,
-    } = solve_reported(prepared, model, options, start, cancel)?;
-    let (x, objective, violation) = reached(model, &verdict)?;
+    } = solve_reported(prepared, solved, options, start, constant, cancel)?;
+    let (x, objective, violation) = reached(solved, &verdict)?;
+    let objective = objective
+        .map(|o| o.checked_add(constant).ok_or_else(too_large))
+        .transpose()?;
+    let change = match &priced {
+        Some(p) => p.stability(prepared, options, &verdict, (start, cancel))?,
+        None => None,
+    };
     let (feasibility, cost) = verdict.steps();
     Ok(SolveDocument {
         schema: SOLVE_SCHEMA.to_string(),
@@ -149,7 +184,66 @@ pub fn solve_document(
         coverage: context.set.coverage,
         set: SetRecord::of(context.set),
         recheck,
+        change,
     })
+}
+
+/// The overflow of a cost with its change price.
+fn too_large() -> Error {
+    Error::Overflow("the plan cost with its change price".into())
+}
+
+/// One solve with a change price: the priced model and what the figures need.
+struct PricedSolve<'a> {
+    /// The model with the price in its convex costs.
+    model: Model,
+    /// The model without it.
+    plain: &'a Model,
+    change: ChangeContext<'a>,
+    previous: &'a [i64],
+    /// The whole objective less the solver's.
+    constant: i128,
+}
+
+impl<'a> PricedSolve<'a> {
+    fn new(plain: &'a Model, change: ChangeContext<'a>, previous: &'a [i64]) -> Result<Self> {
+        Ok(PricedSolve {
+            model: Model {
+                convex: change.price.priced(&plain.convex, previous)?,
+                ..plain.clone()
+            },
+            plain,
+            change,
+            previous,
+            constant: change.price.constant(previous).ok_or_else(too_large)?,
+        })
+    }
+
+    /// The figures of the priced plan of `verdict` (none without a plan) and, compared,
+    /// of the certified unpriced plan from the same start.
+    fn stability(
+        &self,
+        prepared: &Prepared,
+        options: &augment::Options,
+        verdict: &Verdict,
+        (start, cancel): (Option<&WarmStart>, &dyn Fn() -> bool),
+    ) -> Result<Option<Stability>> {
+        let Some(optimum) = verdict.optimum() else {
+            return Ok(None);
+        };
+        let (price, numbers) = (self.change.price, Numbers::of(self.plain));
+        let priced = price.priced_figures(numbers, self.previous, optimum)?;
+        let unpriced = if self.change.compare {
+            let plain = solve_reported(prepared, self.plain, options, start, 0, cancel)?;
+            plain
+                .verdict
+                .optimum()
+                .and_then(|(_, x)| price.figures(numbers, self.previous, x))
+        } else {
+            None
+        };
+        Ok(Some(Stability { priced, unpriced }))
+    }
 }
 
 /// The point `verdict` reached with its cost (once inside the box) and violation, evaluated

@@ -65,6 +65,7 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
     full_cost.resize(variable_names.len(), 0);
     let model = Model {
         convex: crate::model::ConvexCosts::default(),
+        change_cost: Vec::new(),
         matrix,
         rhs: rows.iter().map(|r| r.rhs).collect(),
         cost: full_cost,

@@ -1,0 +1,192 @@
+//! `--change-cost` through the binary: `batch --chain` and `solve --warm-start` price every
+//! unit changed against the previous plan. The optima themselves are checked against HiGHS in
+//! `tests/solve_change.rs`; here the records must add up against their own plans, a price of 0
+//! must give the optima of the unpriced chain (the network solver's, proven by potentials),
+//! and bad input must name the flag.
+
+use std::collections::BTreeMap;
+
+use serde_json::Value;
+
+mod cli_support;
+use cli_support::{expect_both as expect, scenarios};
+
+fn records(stdout: &str) -> Vec<Value> {
+    stdout
+        .lines()
+        .map(|l| serde_json::from_str(l).expect("a JSON line"))
+        .collect()
+}
+
+fn plan(record: &Value) -> BTreeMap<String, i64> {
+    record["plan"]
+        .as_object()
+        .map(|m| {
+            m.iter()
+                .map(|(k, v)| (k.clone(), v.as_i64().unwrap()))
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Variables changed and units moved from `before` to `after` (absent entries are 0).
+fn changes(before: &BTreeMap<String, i64>, after: &BTreeMap<String, i64>) -> (i64, i64) {
+    let names: std::collections::BTreeSet<&String> = before.keys().chain(after.keys()).collect();
+    let steps: Vec<i64> = names
+        .iter()
+        .map(|n| (after.get(*n).unwrap_or(&0) - before.get(*n).unwrap_or(&0)).abs())
+        .filter(|&s| s > 0)
+        .collect();
+    (steps.len() as i64, steps.iter().sum())
+}
+
+fn lanes() -> (String, String) {
+    let s = scenarios().join("brackle_lanes.toml");
+    let d = scenarios().join("brackle_lanes_days.jsonl");
+    (s.display().to_string(), d.display().to_string())
+}
+
+#[test]
+fn chained_records_give_plan_cost_and_change_cost_against_the_day_before() {
+    let cache = tempfile::tempdir().unwrap();
+    let (s, d) = lanes();
+    let args = [
+        "batch",
+        &s,
+        &d,
+        "--build",
+        "--chain",
+        "--change-cost",
+        "3",
+        "--compare",
+    ];
+    // Two of the Brackle days are infeasible on purpose: exit 1.
+    let (stdout, _) = expect(cache.path(), &args, 1);
+    let records = records(&stdout);
+    assert!(
+        records[0].get("change").is_none(),
+        "the first day has no day before"
+    );
+    let mut previous = plan(&records[0]);
+    let mut priced_days = 0;
+    for r in &records[1..] {
+        if r["status"] != "optimal" {
+            assert!(r.get("change").is_none());
+            continue;
+        }
+        priced_days += 1;
+        let today = plan(r);
+        let change = &r["change"]["priced"];
+        let (changed, moved) = changes(&previous, &today);
+        assert_eq!(change["changed"].as_i64(), Some(changed), "{r}");
+        assert_eq!(change["moved"].as_i64(), Some(moved), "{r}");
+        assert_eq!(change["change_cost"].as_i64(), Some(3 * moved), "{r}");
+        let whole = change["plan_cost"].as_i64().unwrap() + 3 * moved;
+        assert_eq!(r["objective"].as_i64(), Some(whole), "{r}");
+        // The unpriced plan is cheaper (or as cheap) before the price and dearer after it.
+        let plain = &r["change"]["unpriced"];
+        let plain_cost = plain["plan_cost"].as_i64().unwrap();
+        assert!(plain_cost <= change["plan_cost"].as_i64().unwrap(), "{r}");
+        assert!(
+            whole <= plain_cost + plain["change_cost"].as_i64().unwrap(),
+            "{r}"
+        );
+        previous = today;
+    }
+    assert_eq!(priced_days, 5);
+}
+
+#[test]
+fn a_price_of_zero_gives_the_optima_of_the_unpriced_chain() {
+    let cache = tempfile::tempdir().unwrap();
+    let (s, d) = lanes();
+    let (priced, _) = expect(
+        cache.path(),
+        &["batch", &s, &d, "--build", "--chain", "--change-cost", "0"],
+        1,
+    );
+    // Reference: the unpriced chain on the network solver, each optimum proven by potentials.
+    let (plain, _) = expect(cache.path(), &["batch", &s, &d, "--chain"], 1);
+    let objectives = |text: &str| -> Vec<Option<i64>> {
+        records(text)
+            .iter()
+            .map(|r| r["objective"].as_i64())
+            .collect()
+    };
+    assert_eq!(objectives(&priced), objectives(&plain));
+}
+
+#[test]
+fn solve_prices_changes_against_the_warm_start() {
+    let cache = tempfile::tempdir().unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let (s, d) = lanes();
+    let day = |name: &str, more: &[&str]| {
+        let mut args = vec!["solve", &s, "--variant", &d, "--day", name, "--build"];
+        args.extend_from_slice(more);
+        expect(cache.path(), &args, 0).0
+    };
+    let first = day("2026-03-02", &["--json"]);
+    let warm = dir.path().join("monday.json");
+    std::fs::write(&warm, &first).unwrap();
+    let warm = warm.display().to_string();
+    let priced = ["--warm-start", &warm, "--change-cost", "3"];
+    let out = day(
+        "2026-03-03",
+        &[&priced[..], &["--compare", "--json"]].concat(),
+    );
+    let doc: Value = serde_json::from_str(&out).unwrap();
+    let before: Value = serde_json::from_str(&first).unwrap();
+    let moved: i64 = (before["x"].as_array().unwrap().iter())
+        .zip(doc["x"].as_array().unwrap())
+        .map(|(a, b)| (a.as_i64().unwrap() - b.as_i64().unwrap()).abs())
+        .sum();
+    let change = &doc["change"]["priced"];
+    assert_eq!(change["moved"].as_i64(), Some(moved));
+    let whole = change["plan_cost"].as_i64().unwrap() + change["change_cost"].as_i64().unwrap();
+    // The solve document writes the objective as a decimal string.
+    assert_eq!(doc["objective"].as_str(), Some(whole.to_string().as_str()));
+    assert_eq!(change["change_cost"].as_i64(), Some(3 * moved));
+    assert!(doc["change"]["unpriced"].is_object());
+    let summary = day("2026-03-03", &priced);
+    assert!(summary.contains("with price  plan cost"), "{summary}");
+    // The price of stability: the first piece is the unpriced optimum (the --compare
+    // figures above), the plan cost rises and the units moved fall from piece to piece.
+    let curve = day(
+        "2026-03-03",
+        &[&priced[..], &["--price-curve", "20", "--json"]].concat(),
+    );
+    let pieces: Vec<Value> = serde_json::from_str(&curve).unwrap();
+    assert_eq!(pieces[0]["from"], "0");
+    let unpriced = &doc["change"]["unpriced"];
+    assert_eq!(pieces[0]["figures"]["plan_cost"], unpriced["plan_cost"]);
+    for pair in pieces.windows(2) {
+        let (a, b) = (&pair[0]["figures"], &pair[1]["figures"]);
+        assert!(a["plan_cost"].as_i64() < b["plan_cost"].as_i64(), "{curve}");
+        assert!(a["moved"].as_i64() > b["moved"].as_i64(), "{curve}");
+    }
+}
+
+#[test]
+fn bad_change_costs_name_the_flag() {
+    let cache = tempfile::tempdir().unwrap();
+    let (s, d) = lanes();
+    let (_, err) = expect(cache.path(), &["batch", &s, &d, "--change-cost", "3"], 2);
+    assert!(err.contains("--chain"), "{err}");
+    let (_, err) = expect(
+        cache.path(),
+        &["batch", &s, &d, "--chain", "--change-cost=-2", "--build"],
+        2,
+    );
+    assert!(
+        err.contains("--change-cost") && err.contains("negative"),
+        "{err}"
+    );
+    let (_, err) = expect(cache.path(), &["solve", &s, "--change-cost", "3"], 2);
+    assert!(err.contains("--warm-start"), "{err}");
+    let cycles = ["--chain", "--change-cost", "2", "--engine", "cycles"];
+    let (_, err) = expect(cache.path(), &[&["batch", &s, &d][..], &cycles].concat(), 2);
+    assert!(err.contains("a change price is one"), "{err}");
+    let (_, err) = expect(cache.path(), &["batch", &s, &d, "--chain", "--compare"], 2);
+    assert!(err.contains("--change-cost"), "{err}");
+}
