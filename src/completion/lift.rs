@@ -587,20 +587,23 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let sign = self.stage.signs[j];
         let t = self.stage.truncation;
         let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
+        let width = self.width;
         if !exact {
-            let kept = self.set.orbits_where(|v| signed(v) && admits(t, v, comps));
+            let (members, kept) = self.set.kept_orbits(|v| signed(v) && admits(t, v, comps));
+            let set = collect_set::<W, E>(kept, members, width, comps)?;
             drop(self);
             return Ok(Lifted {
-                orbits: minimal::<W, E>(kept, comps)?,
+                orbits: set.minimal_orbits(),
                 exact: false,
             });
         }
         // Members above the limits are never needed to show that a member within them is
         // not minimal (anything ⊑ it is within them too), so cutting after the minimal
         // pass gives the same set as cutting before it.
-        let kept = self.set.orbits_where(signed);
+        let (members, kept) = self.set.kept_orbits(signed);
+        let set = collect_set::<W, E>(kept, members, width, comps)?;
         drop(self);
-        let all = minimal::<W, E>(kept, comps)?;
+        let all = set.minimal_orbits();
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()
@@ -625,12 +628,24 @@ pub(crate) fn minimal<const W: usize, E: Stored>(
     comps: &[usize],
 ) -> Result<Vec<Orbit>> {
     let width = orbits.first().map_or(0, |o| o.rep.len());
+    let members = orbits.iter().map(|o| 1 + usize::from(o.symmetric)).sum();
+    Ok(collect_set::<W, E>(orbits, members, width, comps)?.minimal_orbits())
+}
+
+/// A set of vectors `width` wide holding `orbits` (`members` members in all, a symmetric
+/// orbit counting twice), indexed on `comps` and kept as `E`, its store reserved exactly.
+fn collect_set<const W: usize, E: Stored>(
+    orbits: impl IntoIterator<Item = Orbit>,
+    members: usize,
+    width: usize,
+    comps: &[usize],
+) -> Result<WorkingSet<W, E>> {
     let mut set = WorkingSet::<W, E>::new(width, comps.to_vec());
-    set.reserve(orbits.iter().map(|o| 1 + usize::from(o.symmetric)).sum());
+    set.reserve(members);
     for o in orbits {
         set.add(&o.rep, o.symmetric)?;
     }
-    Ok(set.minimal_orbits())
+    Ok(set)
 }
 
 #[cfg(test)]

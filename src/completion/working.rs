@@ -101,38 +101,46 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
                     .is_none()
             })
             .collect();
-        self.orbits_of(&minimal)
+        self.orbits_of(minimal).collect()
     }
 
     /// The members satisfying `keep`, as orbits, each once.
     pub(crate) fn orbits_where(&self, keep: impl Fn(&[Entry]) -> bool) -> Vec<Orbit> {
+        self.kept_orbits(keep).1.collect()
+    }
+
+    /// The members satisfying `keep`, as orbits made one at a time (no list of them all), with
+    /// how many members they hold (a symmetric orbit counts twice).
+    pub(crate) fn kept_orbits(
+        &self,
+        keep: impl Fn(&[Entry]) -> bool,
+    ) -> (usize, impl Iterator<Item = Orbit> + '_) {
         let kept: Vec<bool> = (0..self.len() as u32)
             .map(|id| keep(&self.store.widened(id)))
             .collect();
-        self.orbits_of(&kept)
+        let members = kept.iter().filter(|&&k| k).count();
+        (members, self.orbits_of(kept))
     }
 
     /// The members whose flag in `keep` is set, as orbits (a symmetric one when both signs
     /// are kept), each once, in id order.
-    fn orbits_of(&self, keep: &[bool]) -> Vec<Orbit> {
-        let mut out = Vec::new();
-        for id in 0..self.len() as u32 {
+    fn orbits_of(&self, keep: Vec<bool>) -> impl Iterator<Item = Orbit> + '_ {
+        (0..self.len() as u32).filter_map(move |id| {
             let mirror = self.mirror[id as usize];
             if mirror.is_some_and(|m| m < id) {
-                continue;
+                return None;
             }
             let keep_rep = keep[id as usize];
             let keep_neg = mirror.is_some_and(|m| keep[m as usize]);
             let rep = match (keep_rep, keep_neg, mirror) {
                 (true, _, _) => self.store.widened(id),
                 (false, true, Some(m)) => self.store.widened(m),
-                _ => continue,
+                _ => return None,
             };
-            out.push(Orbit {
+            Some(Orbit {
                 rep,
                 symmetric: keep_rep && keep_neg,
-            });
-        }
-        out
+            })
+        })
     }
 }
