@@ -42,14 +42,6 @@ impl Entries<'_> {
     pub fn is_empty(&self) -> bool {
         self.len() == 0
     }
-
-    /// Entry `k`.
-    pub fn get(&self, k: usize) -> i64 {
-        match self {
-            Entries::Small(e) => e[k].into(),
-            Entries::Full(e) => e[k],
-        }
-    }
 }
 
 impl TestSetData {
