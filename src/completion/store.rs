@@ -40,6 +40,11 @@ impl<E: Stored> VecStore<E> {
         }
     }
 
+    /// Entries per vector.
+    pub(crate) fn width(&self) -> usize {
+        self.width
+    }
+
     /// Number of stored vectors.
     pub(crate) fn len(&self) -> usize {
         self.data.len().checked_div(self.width).unwrap_or(0)
@@ -59,6 +64,13 @@ impl<E: Stored> VecStore<E> {
     /// Entry `i` of the vector with id `id`, widened.
     pub(crate) fn entry(&self, id: u32, i: usize) -> Entry {
         self.data[id as usize * self.width + i].into()
+    }
+
+    /// Writes the vector with id `id`, widened, into `out` (`width` entries long).
+    pub(crate) fn widen_into(&self, id: u32, out: &mut [Entry]) {
+        for (o, &x) in out.iter_mut().zip(self.get(id)) {
+            *o = x.into();
+        }
     }
 
     /// The vector with id `id`, widened.

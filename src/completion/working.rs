@@ -115,8 +115,12 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
         &self,
         keep: impl Fn(&[Entry]) -> bool,
     ) -> (usize, impl Iterator<Item = Orbit> + '_) {
+        let mut widened = vec![0; self.store.width()];
         let kept: Vec<bool> = (0..self.len() as u32)
-            .map(|id| keep(&self.store.widened(id)))
+            .map(|id| {
+                self.store.widen_into(id, &mut widened);
+                keep(&widened)
+            })
             .collect();
         let members = kept.iter().filter(|&&k| k).count();
         (members, self.orbits_of(kept))
