@@ -309,9 +309,20 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     fn next_level(&self, from: u64) -> Option<u64> {
         self.pos
             .keys()
-            .flat_map(|&(a, x)| self.neg.keys().map(move |&(b, y)| a + b + x.abs_diff(y)))
+            .flat_map(|&(a, x)| {
+                self.neg
+                    .keys()
+                    .filter(move |&&(b, _)| !self.norms_cut(a, b))
+                    .map(move |&(b, y)| a + b + x.abs_diff(y))
+            })
             .filter(|&level| level >= from)
             .min()
+    }
+
+    /// Whether the norm limit cuts every pair of a member of norm `a` on `S` with one of norm
+    /// `b` there: such pairs of groups are not formed at all (only the cut check visits them).
+    fn norms_cut(&self, a: u64, b: u64) -> bool {
+        self.stage.truncation.norm_limit.is_some_and(|n| a + b > n)
     }
 
     /// The pair tasks of norm level `level`: a member and the group of its partners, in a
@@ -320,7 +331,7 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let mut tasks: Vec<(u32, &Group<W>)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
-                if a + b + x.abs_diff(y) == level {
+                if a + b + x.abs_diff(y) == level && !self.norms_cut(a, b) {
                     tasks.extend(ps.ids.iter().map(|&p| (p, qs)));
                 }
             }
@@ -494,10 +505,11 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
             _ => return Ok(Vec::new()),
         };
         let x = u64::from(x.unsigned_abs());
-        let room = level.saturating_sub(self.norms[e as usize]);
+        let a = self.norms[e as usize];
+        let room = level.saturating_sub(a);
         let partners = side
             .iter()
-            .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room)
+            .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room && !self.norms_cut(a, b))
             .flat_map(|(_, group)| group.members())
             .filter(|&(f, _)| f < first_new || f < e);
         self.reduce_pairs(e, partners)
@@ -511,7 +523,7 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let mut groups: Vec<(u64, u32, &Group<W>)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
-                if t.bounds.is_some() || t.norm_limit.is_some_and(|n| a + b > n) {
+                if t.bounds.is_some() || self.norms_cut(a, b) {
                     let level = a + b + x.abs_diff(y);
                     groups.extend(ps.ids.iter().map(|&p| (level, p, qs)));
                 }
