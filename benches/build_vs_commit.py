@@ -8,8 +8,12 @@ fixed; benches/ranks.py), then for each model and thread count times `kernstep b
 ratios taken pair by pair) and checks that both wrote the same set, element by element in the
 same order. Prints farm-bench's report: quote the medians of `A/B wall` and the peaks.
 
-Usage: python3 benches/build_vs_commit.py [REV] [--tables 3x3x4,3x3x5] [--threads 1,2]
-       [--runs N] [--timeout S]   (defaults HEAD~1, 3x3x4, 1,2, 5, 600)
+With `--transport RxS,...` it also builds the R x S transportation matrices (the complete
+bipartite graph K_{R,S}; its Graver basis is its cycles) with `--engine moves`, so that the
+enumerated set is built rather than the implicit cycle entry.
+
+Usage: python3 benches/build_vs_commit.py [REV] [--tables 3x3x4,3x3x5] [--transport 6x6]
+       [--threads 1,2] [--runs N] [--timeout S]   (defaults HEAD~1, 3x3x4, none, 1,2, 5, 600)
 """
 
 import argparse
@@ -37,18 +41,48 @@ def checkout(rev, into):
     subprocess.run(["tar", "-x", "-C", into], input=archive.stdout, check=True)
 
 
-def elements(binary, model, threads, out):
-    """The elements `build --out` writes for `model`."""
-    subprocess.run([binary, "build", model, "--out", out, "--progress", "none",
-                    "--threads", str(threads)], capture_output=True, check=True)
-    with open(out) as f:
+def transport(r, s):
+    """The R x S transportation model: one row per row sum and per column sum."""
+    rows = [[1 if c // s == i else 0 for c in range(r * s)] for i in range(r)]
+    rows += [[1 if c % s == j else 0 for c in range(r * s)] for j in range(s)]
+    n = r * s
+    return {"matrix": rows, "rhs": [0] * len(rows), "cost": [0] * n,
+            "lower": [0] * n, "upper": [None] * n}
+
+
+def elements(binary, command):
+    """The elements `build ... --out FILE` writes."""
+    subprocess.run([binary] + command, capture_output=True, check=True)
+    with open(command[-1]) as f:
         return json.load(f)["elements"]
+
+
+def quiet(binary):
+    """`--progress none` when `binary` has that option (releases before it print no progress)."""
+    help_text = subprocess.run([binary, "build", "--help"], capture_output=True, text=True).stdout
+    return ["--progress", "none"] if "--progress" in help_text else []
+
+
+def compare(base, new, label, model, extra, args, work):
+    """Checks that both binaries build the same set of `model`, then times them."""
+    for threads in args.threads.split(","):
+        command = ["build", model, "--threads", threads] + extra
+        a = command + quiet(new) + ["--out", os.path.join(work, "a.json")]
+        b = command + quiet(base) + ["--out", os.path.join(work, "b.json")]
+        same = elements(new, a) == elements(base, b)
+        print(f"\n== {label}, {threads} thread(s): sets identical: {same}", flush=True)
+        if not same:
+            sys.exit(f"{label}: the sets differ between {args.rev} and this tree")
+        subprocess.run(["farm-bench", "-n", str(args.runs), "--warmup", "0",
+                        "--timeout", str(args.timeout),
+                        "--vs", " ".join([base] + b), "--", new] + a, check=True)
 
 
 def main():
     parser = argparse.ArgumentParser()
     parser.add_argument("rev", nargs="?", default="HEAD~1")
     parser.add_argument("--tables", default="3x3x4")
+    parser.add_argument("--transport", default="")
     parser.add_argument("--threads", default="1,2")
     parser.add_argument("--runs", type=int, default=5)
     parser.add_argument("--timeout", type=int, default=600)
@@ -59,22 +93,14 @@ def main():
     checkout(args.rev, base_source)
     base = build_release(base_source, os.path.join(work, "base-target"))
     new = build_release(ROOT, os.path.join(ROOT, "target"))
-    for shape in args.tables.split(","):
-        p, q, s = (int(x) for x in shape.split("x"))
-        model = os.path.join(work, f"tables_{shape}.json")
+    models = [(f"{shape} tables", tables, shape, []) for shape in args.tables.split(",") if shape]
+    models += [(f"{shape} transport", transport, shape, ["--engine", "moves"])
+               for shape in args.transport.split(",") if shape]
+    for label, make, shape, extra in models:
+        model = os.path.join(work, f"{label.replace(' ', '_')}.json")
         with open(model, "w") as f:
-            json.dump(tables(p, q, s), f)
-        for threads in args.threads.split(","):
-            a_out, b_out = os.path.join(work, "a.json"), os.path.join(work, "b.json")
-            same = elements(new, model, threads, a_out) == elements(base, model, threads, b_out)
-            print(f"\n== {shape} tables, {threads} thread(s): sets identical: {same}", flush=True)
-            if not same:
-                sys.exit(f"{shape}: the sets differ between {args.rev} and this tree")
-            command = ["build", model, "--progress", "none", "--threads", threads, "--out"]
-            subprocess.run(["farm-bench", "-n", str(args.runs), "--warmup", "0",
-                            "--timeout", str(args.timeout),
-                            "--vs", " ".join([base] + command + [b_out]),
-                            "--", new] + command + [a_out], check=True)
+            json.dump(make(*(int(x) for x in shape.split("x"))), f)
+        compare(base, new, label, model, extra, args, work)
 
 
 if __name__ == "__main__":
