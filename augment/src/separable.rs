@@ -4,6 +4,15 @@
 //!
 //! It only evaluates single moves; the driver in `sweep.rs` chooses among them, with the same
 //! rules and tie-breaking as every other scan.
+//!
+//! Most signed moves do not improve, and a line search spends two evaluations of the objective
+//! on its support to find that out. So the scan first bounds the first step's change from
+//! below by the objective's one-unit differences at the current point, computed once per scan
+//! ([`Differences`]): a convex term rises at least `d` times its right difference when its
+//! variable rises by `d`, and falls at most `|d|` times its left difference when it falls by
+//! `|d|`. When that bound is not negative the first step does not improve, and since the
+//! function is convex along the move no longer step does: the move is passed over, exactly as
+//! the line search would have decided (the same steps, in the same order).
 
 use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
@@ -26,6 +35,66 @@ pub(crate) struct SeparableScan<'a, F: ?Sized> {
     pub rule: Rule,
     /// Skips signed moves blocked by a bound at the current point.
     pub filter: &'a Filter,
+    /// The objective's one-unit differences at the current point, when known.
+    pub differences: Option<&'a Differences>,
+}
+
+/// Per variable `i` the objective's left and right differences at the current point `x`:
+/// `f_i(x_i) - f_i(x_i - 1)` and `f_i(x_i + 1) - f_i(x_i)`.
+/// They are kept as `i64` so that a bound's products never overflow (`i64 * i64` fits in
+/// `i128`); a difference beyond `i64` leaves the scan without them.
+pub(crate) struct Differences(Vec<[i64; 2]>);
+
+impl Differences {
+    /// The differences of `f` at `x`; `None` when one of them overflows (the scan then runs
+    /// every line search).
+    pub(crate) fn at<F: Separable + ?Sized>(f: &F, x: &[i64]) -> Option<Self> {
+        x.iter()
+            .enumerate()
+            .map(|(i, &xi)| Self::of_term(f, i, xi))
+            .collect::<Option<Vec<_>>>()
+            .map(Differences)
+    }
+
+    /// The differences after a step changed `x` (now `x`) on the variables `changed` only;
+    /// `None` when one of them overflows.
+    pub(crate) fn moved<F: Separable + ?Sized>(
+        mut self,
+        f: &F,
+        x: &[i64],
+        changed: impl Iterator<Item = usize>,
+    ) -> Option<Self> {
+        for i in changed {
+            self.0[i] = Self::of_term(f, i, x[i])?;
+        }
+        Some(self)
+    }
+
+    /// The left and right differences of term `i` at `xi`.
+    fn of_term<F: Separable + ?Sized>(f: &F, i: usize, xi: i64) -> Option<[i64; 2]> {
+        let here = f.term(i, xi).ok()?;
+        let left = here.checked_sub(f.term(i, xi.checked_sub(1)?).ok()?)?;
+        let right = f.term(i, xi.checked_add(1)?).ok()?.checked_sub(here)?;
+        Some([i64::try_from(left).ok()?, i64::try_from(right).ok()?])
+    }
+
+    /// Whether one step along `dir` cannot lower the objective: the lower bound
+    /// `sum d_i * (right difference if d_i > 0, else left difference)` of its change is not
+    /// negative (by convexity; see the module documentation). `false` when the bound
+    /// overflows.
+    fn first_step_useless(&self, dir: &Direction) -> Result<bool> {
+        let mut bound = 0i128;
+        for k in 0..dir.len() {
+            let (i, d) = dir.entry(k)?;
+            let [left, right] = self.0[i];
+            let rate = if d > 0 { right } else { left };
+            let Some(sum) = bound.checked_add(i128::from(rate) * i128::from(d)) else {
+                return Ok(false);
+            };
+            bound = sum;
+        }
+        Ok(bound >= 0)
+    }
 }
 
 impl<F: Separable + ?Sized> Evaluate for SeparableScan<'_, F> {
@@ -62,6 +131,11 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
             return Ok(None);
         }
         let dir = Direction::of(self.moves, index, sign);
+        if let Some(differences) = &self.differences {
+            if differences.first_step_useless(&dir)? {
+                return Ok(None);
+            }
+        }
         let room = room(self.bounds, self.search.x, &dir)?;
         Ok(match self.search.best(&dir, room, None)? {
             Step::Useless => None,
@@ -84,4 +158,62 @@ fn room(problem: &Problem, x: &[i64], dir: &Direction) -> Result<Option<i64>> {
         }
     }
     Ok(room)
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::moves::Coverage;
+    use crate::objective::{Objective, Term};
+
+    /// A convex term: a quadratic `a x^2 + c x` with `a >= 0`, or a piecewise-linear one
+    /// with nondecreasing slopes.
+    fn term() -> impl Strategy<Value = Term> {
+        prop_oneof![
+            (0i64..=3, -6i64..=6).prop_map(|(a, c)| Term::Quadratic { a, c }),
+            (
+                -3i64..=3,
+                prop::collection::vec((1i64..=3, -4i64..=4), 1..=3)
+            )
+                .prop_map(|(x, segments)| {
+                    let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
+                    slopes.sort_unstable();
+                    let mut points = vec![(x, 0)];
+                    for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
+                        let &(px, py) = points.last().expect("starts nonempty");
+                        points.push((px + gap, py + slope * gap));
+                    }
+                    Term::PiecewiseLinear(points)
+                }),
+        ]
+    }
+
+    proptest! {
+        /// The bound is sound (a move it passes over does not improve in one step, checked
+        /// by evaluating the objective) and exact for moves of entries `±1`, where it is the
+        /// first step's change itself (by definition of the one-unit differences).
+        #[test]
+        fn first_step_bound_is_sound(
+            terms in prop::collection::vec(term(), 4),
+            x in prop::collection::vec(-6i64..=6, 4),
+            g in prop::collection::vec(-3i64..=3, 4),
+        ) {
+            prop_assume!(g.iter().any(|&v| v != 0));
+            let f = Objective::separable(terms).expect("convex by construction");
+            let moves = MoveSet::from_rows(4, &[g.clone()], Coverage::Complete).unwrap();
+            let differences = Differences::at(&f, &x).expect("small values fit");
+            for sign in Orientation::BOTH {
+                let dir = Direction::of(&moves, 0, sign);
+                let y: Vec<i64> = x.iter().zip(&g).map(|(a, b)| a + b * sign.factor()).collect();
+                let change = f.value(&y).unwrap() - f.value(&x).unwrap();
+                let useless = differences.first_step_useless(&dir).unwrap();
+                prop_assert!(!useless || change >= 0);
+                if g.iter().all(|v| v.abs() <= 1) {
+                    prop_assert_eq!(useless, change >= 0);
+                }
+            }
+        }
+    }
 }

@@ -19,6 +19,7 @@ use crate::recurrence::{Recurrence, WATCH_AFTER};
 use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
 use crate::select::Scan;
+use crate::separable::Differences;
 use crate::slopes::Slopes;
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 use crate::sweep;
@@ -94,6 +95,7 @@ fn solve_in(
         cancel,
         x: x0.to_vec(),
         objective: None,
+        differences: None,
         steps: [0, 0],
         trace: options.records_trace().then(Vec::new),
     };
@@ -122,6 +124,9 @@ struct Run<'a> {
     cancel: &'a dyn Fn() -> bool,
     x: Vec<i64>,
     objective: Option<i128>,
+    /// The objective's one-unit differences at `x` in phase II of a nonlinear objective,
+    /// kept up to date step by step (see [`Differences`]).
+    differences: Option<Differences>,
     steps: [u64; 2],
     trace: Option<Vec<TraceStep>>,
 }
@@ -166,6 +171,9 @@ impl<'a> Run<'a> {
             .linear_costs()
             .map(|costs| Slopes::new(costs, self.optimality))
             .transpose()?;
+        if slopes.is_none() {
+            self.differences = Differences::at(objective, &self.x);
+        }
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
         if self.options.selected_rule() == Rule::FirstImproving {
@@ -267,6 +275,7 @@ impl<'a> Run<'a> {
             moves: self.optimality,
             bounds: self.problem,
             slopes,
+            differences: self.differences.as_ref(),
             rule: self.options.selected_rule(),
             filter: Filter::blocking(self.problem, &self.x, self.optimality.words()),
         }
@@ -293,11 +302,16 @@ impl<'a> Run<'a> {
         let factor = length
             .checked_mul(found.sign.factor())
             .ok_or(overflow("scaling a move by its step length"))?;
-        for (i, v) in self.set(phase).support(found.index).iter() {
+        let support = self.set(phase).support(found.index);
+        for (i, v) in support.iter() {
             self.x[i] = v
                 .checked_mul(factor)
                 .and_then(|d| self.x[i].checked_add(d))
                 .ok_or(overflow("applying a step"))?;
+        }
+        if let Some(differences) = self.differences.take() {
+            let objective = self.problem.objective();
+            self.differences = differences.moved(objective, &self.x, support.iter().map(|e| e.0));
         }
         Ok(())
     }
