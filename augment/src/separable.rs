@@ -202,7 +202,7 @@ mod tests {
         ) {
             prop_assume!(g.iter().any(|&v| v != 0));
             let f = Objective::separable(terms).expect("convex by construction");
-            let moves = MoveSet::from_rows(4, &[g.clone()], Coverage::Complete).unwrap();
+            let moves = MoveSet::from_rows(4, std::slice::from_ref(&g), Coverage::Complete).unwrap();
             let differences = Differences::at(&f, &x).expect("small values fit");
             for sign in Orientation::BOTH {
                 let dir = Direction::of(&moves, 0, sign);
