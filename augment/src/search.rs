@@ -22,6 +22,7 @@ pub(crate) struct Direction<'a> {
 
 impl<'a> Direction<'a> {
     /// Move `index` of `moves` applied with `sign`.
+    #[inline]
     pub(crate) fn of(moves: &'a MoveSet, index: usize, sign: Orientation) -> Self {
         Direction {
             support: moves.support(index),
@@ -30,11 +31,13 @@ impl<'a> Direction<'a> {
     }
 
     /// Number of nonzero entries.
+    #[inline]
     pub(crate) fn len(&self) -> usize {
         self.support.len()
     }
 
     /// Entry `k` of the signed move, with its variable.
+    #[inline]
     pub(crate) fn entry(&self, k: usize) -> Result<(usize, i64)> {
         let (i, v) = self.support.get(k);
         let d = v

@@ -82,18 +82,15 @@ impl Differences {
     /// `sum d_i * (right difference if d_i > 0, else left difference)` of its change is not
     /// negative (by convexity; see the module documentation). `false` when the bound
     /// overflows.
-    fn first_step_useless(&self, dir: &Direction) -> Result<bool> {
-        let mut bound = 0i128;
-        for k in 0..dir.len() {
-            let (i, d) = dir.entry(k)?;
+    fn first_step_useless(&self, dir: &Direction) -> bool {
+        let mut bound = Some(0i128);
+        dir.support.for_each(|i, v| {
+            let d = i128::from(v) * i128::from(dir.sign);
             let [left, right] = self.0[i];
             let rate = if d > 0 { right } else { left };
-            let Some(sum) = bound.checked_add(i128::from(rate) * i128::from(d)) else {
-                return Ok(false);
-            };
-            bound = sum;
-        }
-        Ok(bound >= 0)
+            bound = bound.and_then(|b| b.checked_add(i128::from(rate) * d));
+        });
+        bound.is_some_and(|b| b >= 0)
     }
 }
 
@@ -132,7 +129,7 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
         }
         let dir = Direction::of(self.moves, index, sign);
         if let Some(differences) = &self.differences {
-            if differences.first_step_useless(&dir)? {
+            if differences.first_step_useless(&dir) {
                 return Ok(None);
             }
         }
@@ -208,7 +205,7 @@ mod tests {
                 let dir = Direction::of(&moves, 0, sign);
                 let y: Vec<i64> = x.iter().zip(&g).map(|(a, b)| a + b * sign.factor()).collect();
                 let change = f.value(&y).unwrap() - f.value(&x).unwrap();
-                let useless = differences.first_step_useless(&dir).unwrap();
+                let useless = differences.first_step_useless(&dir);
                 prop_assert!(!useless || change >= 0);
                 if g.iter().all(|v| v.abs() <= 1) {
                     prop_assert_eq!(useless, change >= 0);
