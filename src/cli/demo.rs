@@ -9,13 +9,12 @@ use std::time::Instant;
 
 use anyhow::Context;
 use clap::Args;
-use kernstep::formats::batch::{DayRecord, DayStatus, Tally};
+use kernstep::formats::batch::{DayRecord, Tally};
+use kernstep::formats::demo::{highlight, DemoDay, DemoReport, TraceFiles};
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, ReplanSettings, Scenario};
 use kernstep::solve::Prepared;
-use kernstep::text::{cell, table};
 use kernstep::trace::step_plot;
-use serde::Serialize;
 
 use kernstep::testset::Served;
 
@@ -79,7 +78,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         .map(|r| DayRecord::of(r, &model.variable_names))
         .collect();
     let tally = Tally::of(&records);
-    let highlight = highlight_day(&records);
+    let highlight = highlight(&records);
     let trace_files = match highlight {
         Some(index) => Some(write_highlight(
             &scenario,
@@ -90,19 +89,17 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         None => None,
     };
     let mut out = io::stdout().lock();
-    let report = Report {
-        scenario: scenario.title.as_deref().unwrap_or(SCENARIO_PATH),
+    let report = DemoReport {
+        scenario: scenario.title.as_deref().unwrap_or(SCENARIO_PATH).into(),
         variables: model.variables(),
         rows: model.constraints(),
         moves: set.moves.len(),
         set: set.source.to_string(),
         set_seconds,
-        days: records.iter().map(DayRow::of).collect(),
-        tally: &tally,
-        trace: trace_files
-            .as_ref()
-            .map(|(json, svg)| TraceFiles { json, svg }),
-        caution: CAUTION,
+        days: records.iter().map(DemoDay::of).collect(),
+        trace: trace_files.map(|(json, svg)| TraceFiles { json, svg }),
+        caution: CAUTION.into(),
+        tally,
     };
     if args.json {
         writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
@@ -110,9 +107,9 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         report.write(&mut out)?;
     }
     out.flush()?;
-    Ok(if tally.errors > 0 {
+    Ok(if report.tally.errors > 0 {
         ExitCode::from(2)
-    } else if tally.interrupted > 0 {
+    } else if report.tally.interrupted > 0 {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
@@ -134,16 +131,6 @@ fn obtain_set(model: &Model, cache: &CacheArgs, limits: &LimitArgs) -> anyhow::R
             graver_uncached(model, input, cache, limits)
         }
     }
-}
-
-/// The optimal day with the most augmenting steps (the first of equals).
-fn highlight_day(records: &[DayRecord]) -> Option<usize> {
-    records
-        .iter()
-        .enumerate()
-        .filter(|(_, r)| r.status == DayStatus::Optimal)
-        .max_by_key(|(i, r)| (r.steps.unwrap_or(0), std::cmp::Reverse(*i)))
-        .map(|(i, _)| i)
 }
 
 /// Solves the highlighted day again with the trace on and writes the trace document and
@@ -184,95 +171,4 @@ fn write_highlight(
     );
     write_atomically(&svg, step_plot(&doc, &title)?.as_bytes())?;
     Ok((json, svg))
-}
-
-/// One row of the table of days.
-#[derive(Serialize)]
-struct DayRow {
-    day: String,
-    status: &'static str,
-    objective: Option<i128>,
-    steps: Option<u64>,
-    ms: f64,
-}
-
-impl DayRow {
-    fn of(r: &DayRecord) -> DayRow {
-        DayRow {
-            day: r
-                .day
-                .as_deref()
-                .map_or_else(|| format!("line {}", r.line), String::from),
-            status: r.status.word(),
-            objective: r.objective,
-            steps: r.steps,
-            ms: r.seconds * 1000.0,
-        }
-    }
-}
-
-/// Paths of the highlighted day's files.
-#[derive(Serialize)]
-struct TraceFiles<'a> {
-    json: &'a Path,
-    svg: &'a Path,
-}
-
-/// What the demo prints.
-#[derive(Serialize)]
-struct Report<'a> {
-    scenario: &'a str,
-    variables: usize,
-    rows: usize,
-    moves: usize,
-    set: String,
-    set_seconds: f64,
-    days: Vec<DayRow>,
-    tally: &'a Tally,
-    trace: Option<TraceFiles<'a>>,
-    caution: &'static str,
-}
-
-impl Report<'_> {
-    fn write(&self, out: &mut impl Write) -> io::Result<()> {
-        writeln!(
-            out,
-            "{}: {} variables, {} rows; test set of {} moves {} in {:.2} s",
-            self.scenario, self.variables, self.rows, self.moves, self.set, self.set_seconds
-        )?;
-        writeln!(out)?;
-        let rows: Vec<Vec<String>> = self
-            .days
-            .iter()
-            .map(|d| {
-                let ms = format!("{:.2}", d.ms);
-                vec![
-                    d.day.clone(),
-                    d.status.into(),
-                    cell(d.objective),
-                    cell(d.steps),
-                    ms,
-                ]
-            })
-            .collect();
-        let head = ["day", "status", "objective", "steps", "ms"];
-        out.write_all(table(&head, &rows).as_bytes())?;
-        let t = self.tally;
-        writeln!(out)?;
-        writeln!(
-            out,
-            "total: {} days, {} optimal, {} infeasible; total objective {}; solve time {:.1} ms",
-            t.days,
-            t.optimal,
-            t.infeasible,
-            t.total_objective,
-            t.solve_seconds * 1000.0
-        )?;
-        writeln!(out, "caution: {}", self.caution)?;
-        if let Some(files) = &self.trace {
-            writeln!(out, "steps of the longest day: {}", files.svg.display())?;
-            writeln!(out, "replayable trace: {}", files.json.display())?;
-        }
-        Ok(())
-    }
 }

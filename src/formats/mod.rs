@@ -7,6 +7,7 @@
 
 pub mod analysis;
 pub mod batch;
+pub mod demo;
 pub mod progress;
 
 /// The caution every plan report carries: plans affect people, and the tool checks only the
