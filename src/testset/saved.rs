@@ -22,8 +22,10 @@ use super::spec::ResolvedSpec;
 use crate::completion::{Checkpoint, Method};
 
 /// The tag that opens every payload of this layout. Layout 1 (no tag, the bare state) did
-/// not record the request; layout 2 held states between stages only and no work time.
-const LAYOUT: &str = "kernstep.lift-checkpoint.3";
+/// not record the request; layout 2 held states between stages only and no work time;
+/// layout 3 counted a level's pair tasks including those of groups beyond the norm limit
+/// (a count of tasks done means other tasks now, so such a state is set aside).
+const LAYOUT: &str = "kernstep.lift-checkpoint.4";
 
 /// Everything that decides how a build runs: the entry key (row space, kind, signs and the
 /// truncation that changes the set) and the truncation and method handed to the completion.
