@@ -7,8 +7,8 @@
 //!
 //! Most signed moves do not improve, and a line search spends two evaluations of the objective
 //! on its support to find that out. So the scan first bounds the first step's change from
-//! below by the objective's one-unit differences at the current point, computed once per scan
-//! ([`Differences`]): a convex term rises at least `d` times its right difference when its
+//! below by the objective's one-unit differences at the current point ([`Differences`], which
+//! the solve keeps and updates on each step's support): a convex term rises at least `d` times its right difference when its
 //! variable rises by `d`, and falls at most `|d|` times its left difference when it falls by
 //! `|d|`. When that bound is not negative the first step does not improve, and since the
 //! function is convex along the move no longer step does: the move is passed over, exactly as
@@ -128,7 +128,7 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
             return Ok(None);
         }
         let dir = Direction::of(self.moves, index, sign);
-        if let Some(differences) = &self.differences {
+        if let Some(differences) = self.differences {
             if differences.first_step_useless(&dir) {
                 return Ok(None);
             }
