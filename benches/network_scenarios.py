@@ -242,7 +242,7 @@ def build(scenario, cache, timeout, max_elements):
     if run is None:
         return wall, None, f"did not finish in {timeout:g} s"
     try:
-        row = json.loads(run.stdout)[0]
+        row = json.loads(run.stdout)["models"][0]
     except (ValueError, IndexError, KeyError, TypeError):
         row = {}
     status = row.get("status") or ""
@@ -257,7 +257,8 @@ def build(scenario, cache, timeout, max_elements):
 def read_results(path):
     try:
         with open(path) as f:
-            return [json.loads(line) for line in f if line.strip()]
+            # Day records write objectives as decimal strings (the JSON contract).
+            return [objective_as_int(json.loads(line)) for line in f if line.strip()]
     except (OSError, ValueError):
         return None
 
@@ -290,6 +291,13 @@ def batch_best(scenario, days_path, cache, extra, repeats, timeout, out, count):
         if best is None or wall < best:
             best, records = wall, got
     return best, records, "answers varied between runs" if varied else None, None
+
+
+def objective_as_int(record):
+    """`record` with its objective (a decimal string, or null) as an integer."""
+    if record.get("objective") is not None:
+        record["objective"] = int(record["objective"])
+    return record
 
 
 def answers_of(records):

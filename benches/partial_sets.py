@@ -112,7 +112,12 @@ def batch(scenario, days_path, cache, threads, out):
     if run.returncode not in (0, 1):
         raise SystemExit(f"kernstep batch failed: {run.stderr}")
     with open(out) as f:
-        return [json.loads(line) for line in f if line.strip()], wall
+        records = [json.loads(line) for line in f if line.strip()]
+    # Day records write objectives as decimal strings (the JSON contract).
+    for r in records:
+        if r.get("objective") is not None:
+            r["objective"] = int(r["objective"])
+    return records, wall
 
 
 def judge(records, optima):
@@ -153,7 +158,7 @@ def run_scenario(name, s, days, build_args, repeats, directory):
                               "--json", *build_args)
     if built.returncode != 0:
         raise SystemExit(f"kernstep build failed: {built.stdout}{built.stderr}")
-    row = json.loads(built.stdout)[0]
+    row = json.loads(built.stdout)["models"][0]
     count = len(days)
     print(f"\n== {name}: {len(programs[0][0])} variables, {len(programs[0][1])} rows, {count} days"
           f" (HiGHS optimal on {sum(o is not None for o in optima)})")

@@ -90,7 +90,7 @@ def bench_build(model, repeats, directory):
                                             "--json", "--cache-dir", cache] + extra)
             if done.returncode != 0:
                 raise SystemExit(f"{label}: build failed: {done.stdout}{done.stderr}")
-            row = json.loads(done.stdout)[0]
+            row = json.loads(done.stdout)["models"][0]
             doc = exported(cache, row["key"])
             if reference is None:
                 reference = doc

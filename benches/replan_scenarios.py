@@ -97,7 +97,7 @@ def batch(scenario, days_path, cache, threads, build=False):
             raise SystemExit(f"kernstep batch failed: {run.stderr}")
         with open(out) as f:
             results = [json.loads(line) for line in f if line.strip()]
-    objectives = [r["objective"] if r["status"] == "optimal" else None for r in results]
+    objectives = [int(r["objective"]) if r["status"] == "optimal" else None for r in results]
     return objectives, wall
 
 

@@ -51,10 +51,22 @@ def main():
                 digest = hashlib.sha256()
                 with open(out) as f:
                     for line in f:
-                        record = json.loads(line)
+                        record = old_shape(json.loads(line))
                         record.pop("seconds", None)
                         digest.update(json.dumps(record, sort_keys=True).encode())
                 print(f"{file:<22} {threads} thread(s)  {count} days  {digest.hexdigest()[:16]}")
+
+
+def old_shape(record):
+    """A day record in the layout the digests were first taken of: no schema field, the
+    objective and plan values as JSON numbers (kernstep.day/1 writes them as decimal
+    strings), so that the digests compare answers, not spellings."""
+    record.pop("schema", None)
+    if record.get("objective") is not None:
+        record["objective"] = int(record["objective"])
+    if record.get("plan") is not None:
+        record["plan"] = {name: int(v) for name, v in record["plan"].items()}
+    return record
 
 
 if __name__ == "__main__":

@@ -139,7 +139,7 @@ def main():
             chained_batch(path, days_path, cache, price, build=True)
             records, wall = best_of(repeats, lambda: chained_batch(path, days_path, cache, price))
         plans = [r["plan"] or {} for r in records]
-        ours = [r["objective"] if r["status"] == "optimal" else None for r in records]
+        ours = [int(r["objective"]) if r["status"] == "optimal" else None for r in records]
         theirs, highs_s = best_of(repeats, lambda: highs_chain(programs, plans, price))
         equal = sum(a == b and a is not None for a, b in zip(ours, theirs))
         moved = sum(r["change"]["priced"]["moved"] for r in records if r.get("change"))

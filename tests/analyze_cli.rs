@@ -250,7 +250,9 @@ fn the_printed_report_is_the_library_report() {
     for path in examples() {
         let file = path.to_str().unwrap();
         let out = kernstep(&["analyze", file, "--json"]);
-        let printed: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let mut printed: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let schema = printed.as_object_mut().unwrap().remove("schema");
+        assert_eq!(schema.unwrap(), "kernstep.analysis/1");
         let model = PlanInput::load(&path).unwrap().into_model();
         let report = analyze(&model, file, &AnalysisOptions::new(), None).unwrap();
         assert_eq!(printed, serde_json::to_value(&report).unwrap(), "{file}");

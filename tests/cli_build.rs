@@ -16,7 +16,7 @@ mod cli_support;
 use cli_support::{command, examples, expect, kernstep, run_concurrently, text, transport_model};
 
 fn json(cache: &Path, args: &[&str], code: i32) -> Value {
-    serde_json::from_str(&expect(cache, args, code)).expect("JSON output")
+    cli_support::json_rows(&expect(cache, args, code))
 }
 
 fn files_with_suffix(dir: &Path, suffix: &str) -> Vec<PathBuf> {
@@ -65,7 +65,7 @@ fn a_directory_of_models_gives_one_summary_row_each() {
     assert_eq!(rows.len(), models);
     for row in rows {
         assert_eq!(row["status"], "present", "{row}");
-        assert_eq!(row["kind"], "Graver");
+        assert_eq!(row["kind"], "graver");
         assert_eq!(row["key"].as_str().unwrap().len(), cache::DIGEST_HEX_LEN);
         assert!(row["elements"].as_u64().unwrap() >= 1);
     }
@@ -97,7 +97,7 @@ fn a_bad_model_among_good_ones_exits_2_and_the_others_are_stored() {
         ],
     );
     assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
-    let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows = cli_support::json_rows(&text(&out.stdout));
     let statuses: Vec<&str> = rows
         .as_array()
         .unwrap()
@@ -269,7 +269,7 @@ fn two_builders_of_one_model_store_one_entry() {
         .into_iter()
         .map(|out| {
             assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
-            let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+            let rows = cli_support::json_rows(&text(&out.stdout));
             rows[0]["status"].as_str().unwrap().to_string()
         })
         .collect();
@@ -477,7 +477,7 @@ fn signals_save_the_state_and_the_build_resumes_to_the_same_set() {
         }
         interrupted += 1;
         assert_eq!(out.status.code(), Some(code), "SIG{signal}");
-        let rows: Value = serde_json::from_slice(&out.stdout).unwrap();
+        let rows = cli_support::json_rows(&text(&out.stdout));
         let status = rows[0]["status"].as_str().unwrap();
         assert!(
             status.starts_with("stopped: interrupted; kept stage "),
@@ -512,7 +512,7 @@ fn a_network_gets_an_implicit_entry_of_its_own_kind() {
     let cache_dir = tempfile::tempdir().unwrap();
     let lanes = examples().join("scenarios/brackle_lanes.toml");
     let rows = json(cache_dir.path(), &["build", path_str(&lanes), "--json"], 0);
-    assert_eq!(rows[0]["kind"], "Cycles", "{rows}");
+    assert_eq!(rows[0]["kind"], "cycles", "{rows}");
     assert_eq!(rows[0]["elements"], 0);
     let again = json(cache_dir.path(), &["build", path_str(&lanes), "--json"], 0);
     assert_eq!(again[0]["status"], "present");
@@ -528,7 +528,7 @@ fn a_network_gets_an_implicit_entry_of_its_own_kind() {
         &["build", "--engine", "moves", path_str(&lanes), "--json"],
         0,
     );
-    assert_eq!(moves[0]["kind"], "Graver");
+    assert_eq!(moves[0]["kind"], "graver");
     assert!(moves[0]["elements"].as_u64().unwrap() > 0);
     let trucks = examples().join("scenarios/hollin_trucks.toml");
     let refused = json(
@@ -568,10 +568,10 @@ fn written_set(model: &Path) -> Vec<Vec<i64>> {
         &["build", path_str(model), "--out", path_str(&out), "--json"],
         0,
     );
-    assert_eq!(rows[0]["kind"], "Graver", "{rows}");
+    assert_eq!(rows[0]["kind"], "graver", "{rows}");
     let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
-    assert_eq!(file["key"]["kind"], "Graver");
-    assert_eq!(file["metadata"]["completeness"], "Complete");
+    assert_eq!(file["key"]["kind"], "graver");
+    assert_eq!(file["metadata"]["completeness"], "complete");
     assert_eq!(
         rows[0]["elements"],
         file["elements"].as_array().unwrap().len()
@@ -680,7 +680,7 @@ fn implicit_network_entries_are_never_written_as_empty_sets() {
     let models = tempfile::tempdir().unwrap();
     let model = transport_model(models.path(), 3, 3);
     let rows = json(cache_dir.path(), &["build", path_str(&model), "--json"], 0);
-    assert_eq!(rows[0]["kind"], "Cycles");
+    assert_eq!(rows[0]["kind"], "cycles");
     let key = rows[0]["key"].as_str().unwrap();
     let export = expect(cache_dir.path(), &["cache", "export", key], 0);
     let exported: Value = serde_json::from_str(&export).unwrap();
@@ -773,7 +773,7 @@ fn a_sign_pattern_may_start_with_a_minus() {
             "--json",
         ];
         let out = kernstep(cache_dir.path(), &args);
-        serde_json::from_slice::<Value>(&out.stdout).unwrap()[0].clone()
+        cli_support::json_rows(&text(&out.stdout))[0].clone()
     };
     let short = build("-+");
     let status = short["status"].as_str().unwrap();

@@ -9,7 +9,7 @@ mod cli_support;
 use cli_support::{examples, expect, kernstep, text};
 
 fn json(cache: &Path, args: &[&str]) -> Value {
-    serde_json::from_str(&expect(cache, args, 0)).expect("JSON output")
+    cli_support::json_rows(&expect(cache, args, 0))
 }
 
 /// A cache holding the sets of every example model; returns it and the digests.
@@ -48,7 +48,7 @@ fn list_shows_one_row_per_entry_with_counts() {
     let transport = entries.iter().find(|e| e["width"] == 9).unwrap();
     // The 15 cycles of K_{3,3} (standard count: 9 four-cycles + 6 six-cycles).
     assert_eq!(transport["elements"], 15);
-    assert_eq!(transport["encoding"], "Trit");
+    assert_eq!(transport["encoding"], "trit");
 
     let table = expect(dir.path(), &["cache", "list"], 0);
     let lines: Vec<&str> = table.lines().collect();
@@ -149,7 +149,7 @@ fn show_prints_key_metadata_counts_encoding_and_size() {
     assert_eq!(doc["width"], 9);
     assert_eq!(doc["size_bytes"], size);
     assert_eq!(doc["metadata"]["rank"], 5);
-    assert_eq!(doc["key"]["kind"], "Graver");
+    assert_eq!(doc["key"]["kind"], "graver");
 }
 
 /// A set document with the two facts that differ between two builds of one set (how long
@@ -178,7 +178,7 @@ fn export_equals_the_build_out_file_of_the_same_model() {
             out.to_str().unwrap(),
             "--json",
         ];
-        let summary: Value = serde_json::from_str(&expect(dir.path(), &args, 0)).unwrap();
+        let summary = cli_support::json_rows(&expect(dir.path(), &args, 0));
         let key = summary[0]["key"].as_str().unwrap();
         let file: Value = serde_json::from_slice(&std::fs::read(&out).unwrap()).unwrap();
         let exported = json(dir.path(), &["cache", "export", key, "--format", "json"]);
@@ -226,7 +226,7 @@ fn verify_passes_a_sound_cache_and_names_each_damaged_file() {
 
     let checked: Value =
         serde_json::from_str(&expect(dir.path(), &["cache", "verify", "--json"], 2)).unwrap();
-    let bad: Vec<&str> = checked
+    let bad: Vec<&str> = checked["entries"]
         .as_array()
         .unwrap()
         .iter()
@@ -343,7 +343,8 @@ fn the_cache_documents_are_the_library_calls() {
         serde_json::from_value(json(dir.path(), &["cache", "show", &keys[0], "--json"])).unwrap();
     assert_eq!(shown, library.entry_record(&keys[0]).unwrap());
     let verified: Vec<VerifyRecord> =
-        serde_json::from_value(json(dir.path(), &["cache", "verify", "--json"])).unwrap();
+        serde_json::from_value(json(dir.path(), &["cache", "verify", "--json"])["entries"].clone())
+            .unwrap();
     assert_eq!(verified, library.verify_records(None).unwrap());
     assert!(verified.iter().all(|v| v.ok && !v.foreign));
     let exported = expect(dir.path(), &["cache", "export", &keys[0]], 0);

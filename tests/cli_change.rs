@@ -18,14 +18,15 @@ fn records(stdout: &str) -> Vec<Value> {
         .collect()
 }
 
+/// An integer the JSON contract writes as a decimal string (`None` for `null`).
+fn n(value: &Value) -> Option<i64> {
+    cli_support::int64(value)
+}
+
 fn plan(record: &Value) -> BTreeMap<String, i64> {
     record["plan"]
         .as_object()
-        .map(|m| {
-            m.iter()
-                .map(|(k, v)| (k.clone(), v.as_i64().unwrap()))
-                .collect()
-        })
+        .map(|m| m.iter().map(|(k, v)| (k.clone(), n(v).unwrap())).collect())
         .unwrap_or_default()
 }
 
@@ -79,16 +80,16 @@ fn chained_records_give_plan_cost_and_change_cost_against_the_day_before() {
         let change = &r["change"]["priced"];
         let (changed, moved) = changes(&previous, &today);
         assert_eq!(change["changed"].as_i64(), Some(changed), "{r}");
-        assert_eq!(change["moved"].as_i64(), Some(moved), "{r}");
-        assert_eq!(change["change_cost"].as_i64(), Some(3 * moved), "{r}");
-        let whole = change["plan_cost"].as_i64().unwrap() + 3 * moved;
-        assert_eq!(r["objective"].as_i64(), Some(whole), "{r}");
+        assert_eq!(n(&change["moved"]), Some(moved), "{r}");
+        assert_eq!(n(&change["change_cost"]), Some(3 * moved), "{r}");
+        let whole = n(&change["plan_cost"]).unwrap() + 3 * moved;
+        assert_eq!(n(&r["objective"]), Some(whole), "{r}");
         // The unpriced plan is cheaper (or as cheap) before the price and dearer after it.
         let plain = &r["change"]["unpriced"];
-        let plain_cost = plain["plan_cost"].as_i64().unwrap();
-        assert!(plain_cost <= change["plan_cost"].as_i64().unwrap(), "{r}");
+        let plain_cost = n(&plain["plan_cost"]).unwrap();
+        assert!(plain_cost <= n(&change["plan_cost"]).unwrap(), "{r}");
         assert!(
-            whole <= plain_cost + plain["change_cost"].as_i64().unwrap(),
+            whole <= plain_cost + n(&plain["change_cost"]).unwrap(),
             "{r}"
         );
         previous = today;
@@ -108,10 +109,7 @@ fn a_price_of_zero_gives_the_optima_of_the_unpriced_chain() {
     // Reference: the unpriced chain on the network solver, each optimum proven by potentials.
     let (plain, _) = expect(cache.path(), &["batch", &s, &d, "--chain"], 1);
     let objectives = |text: &str| -> Vec<Option<i64>> {
-        records(text)
-            .iter()
-            .map(|r| r["objective"].as_i64())
-            .collect()
+        records(text).iter().map(|r| n(&r["objective"])).collect()
     };
     assert_eq!(objectives(&priced), objectives(&plain));
 }
@@ -139,14 +137,14 @@ fn solve_prices_changes_against_the_warm_start() {
     let before: Value = serde_json::from_str(&first).unwrap();
     let moved: i64 = (before["x"].as_array().unwrap().iter())
         .zip(doc["x"].as_array().unwrap())
-        .map(|(a, b)| (a.as_i64().unwrap() - b.as_i64().unwrap()).abs())
+        .map(|(a, b)| (n(a).unwrap() - n(b).unwrap()).abs())
         .sum();
     let change = &doc["change"]["priced"];
-    assert_eq!(change["moved"].as_i64(), Some(moved));
-    let whole = change["plan_cost"].as_i64().unwrap() + change["change_cost"].as_i64().unwrap();
+    assert_eq!(n(&change["moved"]), Some(moved));
+    let whole = n(&change["plan_cost"]).unwrap() + n(&change["change_cost"]).unwrap();
     // The solve document writes the objective as a decimal string.
     assert_eq!(doc["objective"].as_str(), Some(whole.to_string().as_str()));
-    assert_eq!(change["change_cost"].as_i64(), Some(3 * moved));
+    assert_eq!(n(&change["change_cost"]), Some(3 * moved));
     assert!(doc["change"]["unpriced"].is_object());
     let summary = day("2026-03-03", &priced);
     assert!(summary.contains("with price  plan cost"), "{summary}");
@@ -156,14 +154,16 @@ fn solve_prices_changes_against_the_warm_start() {
         "2026-03-03",
         &[&priced[..], &["--price-curve", "20", "--json"]].concat(),
     );
-    let pieces: Vec<Value> = serde_json::from_str(&curve).unwrap();
+    let curve: Value = serde_json::from_str(&curve).unwrap();
+    assert_eq!(curve["schema"], "kernstep.price_curve/1");
+    let pieces = curve["pieces"].as_array().unwrap();
     assert_eq!(pieces[0]["from"], "0");
     let unpriced = &doc["change"]["unpriced"];
     assert_eq!(pieces[0]["figures"]["plan_cost"], unpriced["plan_cost"]);
     for pair in pieces.windows(2) {
         let (a, b) = (&pair[0]["figures"], &pair[1]["figures"]);
-        assert!(a["plan_cost"].as_i64() < b["plan_cost"].as_i64(), "{curve}");
-        assert!(a["moved"].as_i64() > b["moved"].as_i64(), "{curve}");
+        assert!(n(&a["plan_cost"]) < n(&b["plan_cost"]), "{curve}");
+        assert!(n(&a["moved"]) > n(&b["moved"]), "{curve}");
     }
 }
 

@@ -65,12 +65,11 @@ fn a_directory_build_takes_mps_files() {
     let mps = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("tests/fixtures/mps/orchard_crates.mps");
     std::fs::copy(&mps, models.path().join("orchard_crates.mps")).unwrap();
-    let rows: Value = serde_json::from_str(&expect(
+    let rows = cli_support::json_rows(&expect(
         dir.path(),
         &["build", models.path().to_str().unwrap(), "--json"],
         0,
-    ))
-    .unwrap();
+    ));
     assert_eq!(rows.as_array().unwrap().len(), 1);
     assert!(rows[0]["model"]
         .as_str()

@@ -83,11 +83,12 @@ impl Instance {
     }
 }
 
+/// A list of integers: JSON numbers (the model's own) or decimal strings (plan values).
 fn numbers(v: &Value) -> Vec<i64> {
     v.as_array()
         .unwrap()
         .iter()
-        .map(|e| e.as_i64().unwrap())
+        .map(|e| e.as_i64().or_else(|| cli_support::int64(e)).unwrap())
         .collect()
 }
 
@@ -165,7 +166,7 @@ fn replay(m: &Instance, doc: &Value, set: &[Vec<i64>], cost: &dyn Fn(&[i64]) -> 
             None => assert!(d.iter().all(|v| v.abs() <= 1) && doc["moves"].is_null()),
         }
         assert!(m.image(&d).iter().all(|&v| v == 0), "A d = 0");
-        let length = step["length"].as_i64().unwrap();
+        let length = cli_support::int64(&step["length"]).unwrap();
         assert!(length >= 1);
         let next = add(&x, &d, length);
         let values = match step["phase"].as_str().unwrap() {

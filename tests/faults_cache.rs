@@ -33,6 +33,13 @@ use kernstep::testset::{
 mod cli_support;
 use cli_support::{examples, kernstep, run_concurrently, text, transport_model};
 
+/// The rows (`models`) of a `build --json` summary; `null` when the output is not one.
+fn build_rows(stdout: &[u8]) -> serde_json::Value {
+    serde_json::from_slice::<serde_json::Value>(stdout)
+        .map(|doc| doc["models"].clone())
+        .unwrap_or_default()
+}
+
 const WRITER_ENV: &str = "KERNSTEP_FAULTS_WRITER_DIR";
 const WRITER_TEST: &str = "a_writer_killed_mid_write_leaves_a_whole_entry";
 
@@ -154,7 +161,7 @@ impl Target {
                 "--json",
             ],
         );
-        let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_default();
+        let rows = build_rows(&out.stdout);
         let status = rows[0]["status"].as_str().unwrap_or("").to_string();
         (out.status.code(), status)
     }
@@ -403,7 +410,7 @@ fn concurrent_processes(target: &Target, tally: &mut Tally) {
     let mut statuses: Vec<String> = run_concurrently(dir.path(), &args, 3)
         .into_iter()
         .map(|out| {
-            let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_default();
+            let rows = build_rows(&out.stdout);
             rows[0]["status"].as_str().unwrap_or("").to_string()
         })
         .collect();
@@ -804,7 +811,7 @@ fn an_entry_copied_from_another_cache_is_verified_then_served_and_sealed() {
     let verify = bounded(dir.path(), &["cache", "verify", "--json"]);
     assert_eq!(verify.status.code(), Some(0), "{}", text(&verify.stderr));
     let checked: serde_json::Value = serde_json::from_slice(&verify.stdout).unwrap();
-    assert_eq!(checked[0]["foreign"], true, "{checked}");
+    assert_eq!(checked["entries"][0]["foreign"], true, "{checked}");
     let model = path_str(&target.model);
     let solve = bounded(dir.path(), &["solve", model, "--engine", "moves", "--json"]);
     assert_eq!(solve.status.code(), Some(0), "{}", text(&solve.stderr));
@@ -864,7 +871,7 @@ fn prune_racing_a_build_removes_none_of_its_files() {
     }
     let out = build.wait_with_output().unwrap();
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
-    let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows = build_rows(&out.stdout);
     assert_eq!(rows[0]["status"], "built", "{rows}");
     eprintln!("{prunes} prunes ran during the build, {busy} found its files busy");
     // The race really happened: some prune found the build's files and left them alone.
@@ -959,7 +966,7 @@ fn a_checkpoint_with_a_valid_checksum_and_invalid_content_is_set_aside() {
                     && stderr.contains(".kckpt.bad"),
                 "{name}: {stderr}"
             );
-            let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+            let rows = build_rows(&out.stdout);
             (
                 out.status.code(),
                 rows[0]["status"].as_str().unwrap().to_string(),
@@ -1135,7 +1142,7 @@ fn a_build_waiting_for_a_lock_names_its_holder() {
             }
         }
         let out = child.wait_with_output().unwrap();
-        let rows: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let rows = build_rows(&out.stdout);
         if signal.is_none() {
             assert_eq!(out.status.code(), Some(0), "{rows}");
             assert_eq!(rows[0]["status"], "built", "{rows}");

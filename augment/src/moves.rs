@@ -11,6 +11,7 @@
 //! computed in one vectorisable pass per cost vector. The set also records its [`Coverage`],
 //! which decides how honest "optimal" is.
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::error::{AugmentError, Result};
@@ -18,7 +19,7 @@ use crate::support::{Entries, Packing, Steps, Support};
 
 /// What the caller knows about the completeness of its move set (serialised as the reports
 /// show it: `{"tag": "norm_truncated", "norm": 6}`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
 #[serde(tag = "tag", rename_all = "snake_case")]
 pub enum Coverage {
     /// The full Graver basis (or a superset of it within the lattice): a test set for every
@@ -37,7 +38,9 @@ pub enum Coverage {
 
 /// Which way a stored move is applied: as stored (`Plus`, tried first) or negated (`Minus`).
 /// (A variable's sign restriction is `cache::Sign`, a different thing.)
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize, JsonSchema,
+)]
 pub enum Orientation {
     /// The move as stored.
     Plus,

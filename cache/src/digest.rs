@@ -48,6 +48,20 @@ impl Serialize for Digest {
     }
 }
 
+impl schemars::JsonSchema for Digest {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "Digest".into()
+    }
+
+    fn json_schema(_: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        schemars::json_schema!({
+            "description": "An entry key's digest: 32 lower-case hexadecimal digits.",
+            "type": "string",
+            "pattern": "^[0-9a-f]{32}$",
+        })
+    }
+}
+
 impl<'de> Deserialize<'de> for Digest {
     fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
         let text = String::deserialize(deserializer)?;

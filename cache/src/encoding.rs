@@ -11,22 +11,29 @@
 //!
 //! Entries are laid out flat, row after row, so decoding is one linear pass.
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::data::Entries;
 
 /// How the element entries are stored.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
 pub enum ElementEncoding {
     /// Entries in {-1, 0, 1}, two bits each.
+    #[serde(alias = "Trit")]
     Trit,
     /// Entries fitting `i8`.
+    #[serde(alias = "I8")]
     I8,
     /// Entries fitting `i16`.
+    #[serde(alias = "I16")]
     I16,
     /// Entries fitting `i32`.
+    #[serde(alias = "I32")]
     I32,
     /// Any `i64` entries.
+    #[serde(alias = "I64")]
     I64,
 }
 

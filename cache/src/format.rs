@@ -458,3 +458,39 @@ fn to_u64(n: usize, what: &'static str) -> Result<u64, CacheError> {
 fn to_u32(n: usize, what: &'static str) -> Result<u32, CacheError> {
     u32::try_from(n).map_err(|_| CacheError::Overflow { what })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::{Completeness, ElementEncoding, SetKind, Sign};
+
+    /// The stored bytes of the enumerations do not depend on how JSON spells them: bincode
+    /// writes a variant as its index (a one-byte varint below 251; bincode 2 specification,
+    /// "Enums"), so the lower snake case names of the JSON contract leave every entry file
+    /// as it was.
+    #[test]
+    fn enumerations_are_stored_by_index_whatever_json_calls_them() {
+        let bytes = |v: &dyn erased::Encode| v.bytes();
+        assert_eq!(bytes(&SetKind::Graver), [0]);
+        assert_eq!(bytes(&SetKind::Cycles), [2]);
+        assert_eq!(bytes(&Sign::NonPositive), [2]);
+        assert_eq!(bytes(&ElementEncoding::I16), [2]);
+        assert_eq!(bytes(&Completeness::NormTruncated { limit: 7 }), [2, 7]);
+        let path = Path::new("k.kset");
+        let read: Completeness = decode_section(&[2, 7], path, "metadata").unwrap();
+        assert_eq!(read, Completeness::NormTruncated { limit: 7 });
+    }
+
+    /// A value encoded as a section, behind one object type for the test's table.
+    mod erased {
+        pub trait Encode {
+            fn bytes(&self) -> Vec<u8>;
+        }
+
+        impl<T: serde::Serialize> Encode for T {
+            fn bytes(&self) -> Vec<u8> {
+                super::encode_section("test", self).unwrap()
+            }
+        }
+    }
+}

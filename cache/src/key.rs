@@ -17,6 +17,7 @@
 //! Changing this encoding orphans every existing cache entry; `tests::digest_is_stable`
 //! guards it.
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 use xxhash_rust::xxh3::{xxh3_128, xxh3_64};
 
@@ -26,25 +27,33 @@ use crate::error::CacheError;
 const DOMAIN: &[u8] = b"kernstep.entry-key.1\0";
 
 /// Which kind of minimal set is stored.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
 pub enum SetKind {
     /// Conformally minimal nonzero kernel vectors (every variable free).
+    #[serde(alias = "Graver")]
     Graver,
     /// Conformally minimal nonzero kernel vectors inside a sign pattern.
+    #[serde(alias = "Hilbert")]
     Hilbert,
     /// The Graver basis of a network matrix, kept implicit: its elements are the signed cycles
     /// of the network, which the caller finds from the matrix, so the entry stores none.
+    #[serde(alias = "Cycles")]
     Cycles,
 }
 
 /// Sign restriction on one variable.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
 pub enum Sign {
     /// No restriction.
+    #[serde(alias = "Free")]
     Free,
     /// The variable is `>= 0`.
+    #[serde(alias = "NonNegative")]
     NonNegative,
     /// The variable is `<= 0`.
+    #[serde(alias = "NonPositive")]
     NonPositive,
 }
 
@@ -76,7 +85,7 @@ impl Sign {
 }
 
 /// Limits the set was truncated to when it was built.
-#[derive(Clone, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
 pub struct Truncation {
     /// Only elements with ℓ1 norm at most this were kept (`None`: no norm limit).
     pub norm_limit: Option<u64>,
@@ -92,7 +101,7 @@ impl Truncation {
 }
 
 /// Everything a test set depends on; equal keys mean interchangeable sets.
-#[derive(Clone, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
 pub struct EntryKey {
     /// Canonical text of the matrix row space, produced by the caller.
     pub row_space: String,

@@ -6,6 +6,7 @@ use std::io::ErrorKind;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, SystemTime, UNIX_EPOCH};
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::atomic::sync_dir;
@@ -20,7 +21,7 @@ use crate::owned::{classify, FileKind};
 use crate::store::{EntrySummary, Store};
 
 /// An entry as plain serde data, for rendering (e.g. as JSON) by the caller.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct ExportedEntry {
     /// Digest of the key.
     pub digest: Digest,
@@ -46,7 +47,7 @@ pub struct Verified {
 }
 
 /// What [`Store::prune`] did.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct PruneReport {
     /// Entries removed for their age.
     pub removed: Vec<Digest>,
@@ -65,7 +66,7 @@ pub struct PruneReport {
 }
 
 /// A checkpoint or lock file, as listed.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct FileSummary {
     /// Digest of the key the file belongs to.
     pub digest: Digest,

@@ -1,17 +1,22 @@
 //! Facts about how a stored set was built; stored beside the elements, never part of the key.
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::error::CacheError;
 
 /// How complete the stored set is.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
 pub enum Completeness {
     /// The whole set (no truncation, or a truncation proven not to cut anything).
+    #[serde(alias = "Complete")]
     Complete,
     /// Elements outside the key's box were left out.
+    #[serde(alias = "BoxTruncated")]
     BoxTruncated,
     /// Elements with ℓ1 norm above `limit` were left out.
+    #[serde(alias = "NormTruncated")]
     NormTruncated {
         /// The ℓ1 norm limit applied.
         limit: u64,
@@ -19,7 +24,7 @@ pub enum Completeness {
 }
 
 /// Build facts recorded with every entry, for display and for honest result statuses.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct SetMetadata {
     /// The matrix the set was built from, row by row.
     pub matrix: Vec<Vec<i64>>,

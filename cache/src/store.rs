@@ -4,6 +4,7 @@ use std::fs;
 use std::path::{Path, PathBuf};
 use std::sync::{Arc, OnceLock};
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::atomic::{self, write_atomic};
@@ -54,7 +55,7 @@ pub struct StoredSet {
 }
 
 /// One line of a listing.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct EntrySummary {
     /// Digest of the key.
     pub digest: Digest,

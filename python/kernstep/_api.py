@@ -237,7 +237,9 @@ class Trace(list):
     """The augmenting steps of one solve, one dict per step (``step``, ``phase``,
     ``move_index``, ``sign``, ``length``, ``direction``, ``before``, ``after``, ``gain``),
     with the whole replayable document (the layout of ``kernstep trace --json``) in
-    :attr:`document`."""
+    :attr:`document`. As in that document, ``length``, ``before``, ``after`` and ``gain``
+    are decimal strings (exact beyond 2**53); :attr:`start` and :attr:`x` are integer
+    arrays."""
 
     def __init__(self, document: dict[str, Any]) -> None:
         super().__init__(document["steps"])

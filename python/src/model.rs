@@ -188,7 +188,7 @@ fn parse_signs(py: Python<'_>, pattern: &str, n: usize) -> PyResult<Vec<Sign>> {
 }
 
 /// The figures of `model`'s matrix as the command line's `analyze --json` prints them (a JSON
-/// document); `subdet_limit` caps the column subsets enumerated for the largest minor.
+/// document with its `schema` field); `subdet_limit` caps the column subsets enumerated for the largest minor.
 #[pyfunction]
 #[pyo3(signature = (model, subdet_limit=None))]
 pub fn analyze(py: Python<'_>, model: &PyModel, subdet_limit: Option<u64>) -> PyResult<String> {
@@ -199,6 +199,6 @@ pub fn analyze(py: Python<'_>, model: &PyModel, subdet_limit: Option<u64>) -> Py
     let report = py
         .detach(|| analysis_report(&model.model, &model.origin, &options, None))
         .map_err(|e| to_py(py, &e))?;
-    serde_json::to_string(&report)
+    kernstep::formats::tagged::line(&report)
         .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))
 }

@@ -82,7 +82,7 @@ def test_a_trace_replays_and_becomes_a_frame_with_pandas(tables, tables_set):
     assert trace.x.tolist() == tables_set.solve(b=b[0], c=c[0]).x.tolist()
     point = trace.start
     for step in trace:
-        point = point + step["length"] * np.array(step["direction"])
+        point = point + int(step["length"]) * np.array(step["direction"])
         assert int(step["before"]) - int(step["after"]) == int(step["gain"]) > 0
     np.testing.assert_array_equal(point, trace.x)
     try:

@@ -18,28 +18,34 @@
 //! When `Δ` is only an upper bound the `Δ`-based bounds remain valid upper bounds.
 
 use num_bigint::BigInt;
+use schemars::JsonSchema;
 use serde::Serialize;
 
 /// The bounds, exactly, as big integers (serialised as decimal strings).
-#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 pub struct NormBounds {
     /// `(n - r)(r + 1) Δ`.
     #[serde(serialize_with = "super::decimal::serialize")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub by_variables: BigInt,
     /// `max(2, (h - r)(r + 1) Δ)`.
     #[serde(serialize_with = "super::decimal::serialize")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub by_column_number: BigInt,
     /// `(2 r ||B||_inf + 1)^r`.
     #[serde(serialize_with = "super::decimal::serialize")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub steinitz: BigInt,
     /// `max(2, r + 1)` when `A` is unimodular, else absent.
     #[serde(serialize_with = "super::decimal::serialize_option")]
+    #[schemars(with = "Option<crate::trace::Decimal>")]
     pub unimodular: Option<BigInt>,
     /// `n Δ`: some optimal integer point lies within this ∞-distance of an optimal LP
     /// solution (Cook, Gerards, Schrijver, Tardos 1986, "Sensitivity theorems in integer
     /// linear programming", Math. Programming 34); the circuit form of their proof needs only
     /// circuit entries bounded by `Δ`, which holds for the maximal-minor `Δ` used here.
     #[serde(serialize_with = "super::decimal::serialize")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub proximity: BigInt,
 }
 

@@ -9,6 +9,7 @@
 use num_bigint::BigInt;
 use num_integer::Integer;
 use num_traits::{Signed, Zero};
+use schemars::JsonSchema;
 use serde::Serialize;
 
 use super::columns::Representative;
@@ -16,15 +17,23 @@ use super::minors::{binomial, minor};
 use crate::matrix::IntMatrix;
 
 /// The value of `Δ`, or an upper bound on it when enumeration was too expensive.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 #[serde(tag = "kind", content = "value", rename_all = "snake_case")]
 pub enum Delta {
     /// `Δ` itself, from every maximal minor.
-    Exact(#[serde(serialize_with = "super::decimal::serialize")] BigInt),
+    Exact(
+        #[serde(serialize_with = "super::decimal::serialize")]
+        #[schemars(with = "crate::trace::Decimal")]
+        BigInt,
+    ),
     /// `Δ <= value` by Hadamard's inequality: the floor of the square root of the smaller of
     /// the product of the `r` largest squared column norms and the product of the squared row
     /// norms of `B` (one column per parallel class).
-    UpperBound(#[serde(serialize_with = "super::decimal::serialize")] BigInt),
+    UpperBound(
+        #[serde(serialize_with = "super::decimal::serialize")]
+        #[schemars(with = "crate::trace::Decimal")]
+        BigInt,
+    ),
 }
 
 impl Delta {

@@ -5,10 +5,11 @@
 //! matrix for which `Δ` is only known as an upper bound.
 
 use num_bigint::BigInt;
+use schemars::JsonSchema;
 use serde::Serialize;
 
 /// For which ranks a published value is proven.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum RankCondition {
     /// Every rank `r >= 1` (and trivially `r = 0`).
@@ -19,7 +20,7 @@ pub enum RankCondition {
 }
 
 /// A published maximum number of pairwise non-parallel nonzero columns.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 pub struct PublishedColumnNumber {
     /// The `Δ` the value belongs to.
     pub delta: u8,

@@ -26,6 +26,7 @@ mod options;
 mod parity;
 
 use num_bigint::BigInt;
+use schemars::JsonSchema;
 use serde::Serialize;
 
 pub use bounds::NormBounds;
@@ -41,7 +42,7 @@ use crate::matrix::IntMatrix;
 use columns::transpose;
 
 /// Everything the analysis finds out about a matrix.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 pub struct MatrixAnalysis {
     /// Number of variables (columns) `n`.
     pub variables: usize,
@@ -67,6 +68,7 @@ pub struct MatrixAnalysis {
     pub maximal_minors_evaluated: u64,
     /// The gcd of all maximal minors of `B` (every column counted), when `Δ` is exact.
     #[serde(serialize_with = "decimal::serialize_option")]
+    #[schemars(with = "Option<crate::trace::Decimal>")]
     pub maximal_minor_gcd: Option<BigInt>,
     /// Whether `A` is unimodular (definition in the module documentation).
     pub unimodular: Decision,

@@ -10,6 +10,7 @@
 //! - `A` is *totally unimodular* when every square submatrix has determinant 0, 1 or -1
 //!   (Schrijver 1986, §19.1).
 
+use schemars::JsonSchema;
 use serde::Serialize;
 
 use super::columns::{transpose, ColumnClasses};
@@ -18,7 +19,7 @@ use super::minors::{binomial, minor};
 use crate::matrix::IntMatrix;
 
 /// The answer to a yes/no question about the matrix.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum Decision {
     /// The property holds.

@@ -5,6 +5,7 @@ use std::process::ExitCode;
 
 use kernstep::analysis::AnalysisOptions;
 use kernstep::formats::analysis::{analyze, Probe};
+use kernstep::formats::tagged;
 use kernstep::scenario::PlanInput;
 use kernstep::text::analysis_text;
 
@@ -23,7 +24,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<ExitCode> {
     let report = analyze(&model, &args.model.display().to_string(), &options, probe)?;
     let mut out = io::stdout().lock();
     if args.json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
+        writeln!(out, "{}", tagged::pretty(&report)?)?;
     } else {
         out.write_all(analysis_text(&report, &model).as_bytes())?;
     }

@@ -14,6 +14,7 @@ use std::time::Instant;
 
 use clap::{Args, ValueEnum};
 use kernstep::formats::batch::{self, DayRecord, Layout, RunSummary, Tally};
+use kernstep::formats::tagged;
 use kernstep::input::is_stdin;
 use kernstep::model::Model;
 use kernstep::scenario::{read_days, replan, DayOutcome, DayResult, PlanInput, ReplanSettings};
@@ -178,7 +179,7 @@ pub(super) fn write_summary(
     json: bool,
 ) -> anyhow::Result<()> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(summary)?)?;
+        writeln!(out, "{}", tagged::pretty(summary)?)?;
         return Ok(());
     }
     out.write_all(summary_text(summary).as_bytes())?;

@@ -11,6 +11,8 @@ use clap::{Args, ValueEnum};
 #[cfg(feature = "mpi")]
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{Method, Progress, Sign, StopReason, WorkShare};
+use kernstep::formats::published::{BuildReport, BuildRow};
+use kernstep::formats::tagged;
 use kernstep::model::Model;
 use kernstep::scenario::PlanInput;
 #[cfg(feature = "mpi")]
@@ -19,7 +21,6 @@ use kernstep::testset::{
     BoxPolicy, BuildSpec, Destination, Job, JobReport, JobStatus, NormLimit, SetAside,
 };
 use kernstep::text::{cell, job_text, kind_name, table, StopWords, SHORT_KEY};
-use serde::Serialize;
 
 use super::common::{
     overflow_named, render_chain, signal_status, with_threads, CacheArgs, EngineArg,
@@ -150,22 +151,6 @@ fn parse_signs(pattern: &str, n: usize) -> anyhow::Result<Vec<Sign>> {
     Ok(signs)
 }
 
-/// One line of the summary: the library's report, worded.
-#[derive(Debug, Serialize)]
-struct Row {
-    model: String,
-    #[serde(flatten)]
-    report: Option<JobReport>,
-    /// The command that resumes a stopped build.
-    #[serde(skip_serializing_if = "Option::is_none")]
-    resume_command: Option<String>,
-    seconds: f64,
-    status: String,
-    /// Whether the build failed (an error, told in `status`).
-    #[serde(skip)]
-    failed: bool,
-}
-
 impl BuildArgs {
     fn spec(&self, model: &Model) -> anyhow::Result<BuildSpec> {
         Ok(BuildSpec {
@@ -231,16 +216,23 @@ pub(super) fn run_with(
         paths
             .iter()
             .map(|p| build_one(args, p, share))
-            .collect::<Vec<Row>>()
+            .collect::<Vec<BuildRow>>()
     })?;
+    let code = exit_code(&rows);
     let mut out = io::stdout().lock();
     if args.json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&rows)?)?;
+        writeln!(out, "{}", tagged::pretty(&BuildReport { models: rows })?)?;
     } else {
         render(&mut out, &rows)?;
     }
     out.flush()?;
-    let failed = rows.iter().any(|r| r.failed);
+    Ok(code)
+}
+
+/// 2 if a build failed (it has no report), a signal's status if one stopped a build, 1 if a
+/// limit stopped one.
+fn exit_code(rows: &[BuildRow]) -> ExitCode {
+    let failed = rows.iter().any(|r| r.report.is_none());
     let stopped = rows
         .iter()
         .any(|r| r.report.as_ref().and_then(JobReport::stop).is_some());
@@ -249,15 +241,15 @@ pub(super) fn run_with(
         .any(|r| r.report.as_ref().and_then(JobReport::stop) == Some(StopReason::Cancelled))
         .then(signal_status)
         .flatten();
-    Ok(match (failed, signalled, stopped) {
+    match (failed, signalled, stopped) {
         (true, _, _) => ExitCode::from(2),
         (false, Some(status), _) => ExitCode::from(status),
         (false, None, true) => ExitCode::from(1),
         _ => ExitCode::SUCCESS,
-    })
+    }
 }
 
-fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
+fn render(out: &mut impl Write, rows: &[BuildRow]) -> io::Result<()> {
     let cells: Vec<Vec<String>> = rows
         .iter()
         .map(|r| {
@@ -278,15 +270,14 @@ fn render(out: &mut impl Write, rows: &[Row]) -> io::Result<()> {
 }
 
 /// Builds one model's set; every problem becomes the row's status, not an error.
-fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Row {
+fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> BuildRow {
     let start = Instant::now();
-    let mut row = Row {
+    let mut row = BuildRow {
         model: path.display().to_string(),
         report: None,
         resume_command: None,
         seconds: 0.0,
         status: String::new(),
-        failed: false,
     };
     match run_job(args, path, share) {
         Ok((report, width)) => {
@@ -302,7 +293,6 @@ fn build_one(args: &BuildArgs, path: &Path, share: Option<&dyn WorkShare>) -> Ro
             row.report = Some(report);
         }
         Err(e) => {
-            row.failed = true;
             row.status = format!("failed: {}", render_chain(&overflow_named(e, path)));
         }
     }

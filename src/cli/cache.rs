@@ -11,6 +11,8 @@ use std::time::{Duration, SystemTime, UNIX_EPOCH};
 use ::cache::{PruneReport, Store};
 use anyhow::Context;
 use clap::{Args, Subcommand, ValueEnum};
+use kernstep::formats::published::{ImportReport, Removed, VerifyReport};
+use kernstep::formats::tagged;
 use kernstep::testset::{EntryRecord, Listing, SetLibrary, VerifyRecord};
 use kernstep::text::{entry_text, listing_text, prune_text, verify_text};
 
@@ -110,7 +112,7 @@ pub fn run(args: &CacheVerbArgs) -> anyhow::Result<ExitCode> {
 
 fn list(listing: &Listing, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(listing)?)?;
+        writeln!(out, "{}", tagged::pretty(listing)?)?;
     } else {
         out.write_all(listing_text(listing, now_unix()).as_bytes())?;
     }
@@ -133,7 +135,7 @@ fn now_unix() -> u64 {
 
 fn show(entry: &EntryRecord, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(entry)?)?;
+        writeln!(out, "{}", tagged::pretty(entry)?)?;
     } else {
         out.write_all(entry_text(entry, now_unix()).as_bytes())?;
     }
@@ -142,7 +144,13 @@ fn show(entry: &EntryRecord, json: bool, out: &mut impl Write) -> anyhow::Result
 
 fn verify(checked: &[VerifyRecord], json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(checked)?)?;
+        writeln!(
+            out,
+            "{}",
+            tagged::pretty(&VerifyReport {
+                entries: checked.to_vec()
+            })?
+        )?;
     } else {
         out.write_all(verify_text(checked).as_bytes())?;
     }
@@ -160,8 +168,10 @@ fn verify(checked: &[VerifyRecord], json: bool, out: &mut impl Write) -> anyhow:
 fn remove(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     let digest = store.remove(key)?;
     if json {
-        let doc = serde_json::json!({ "removed": digest });
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        let doc = Removed {
+            removed: digest.to_string(),
+        };
+        writeln!(out, "{}", tagged::pretty(&doc)?)?;
     } else {
         writeln!(out, "removed {digest}")?;
     }
@@ -170,7 +180,7 @@ fn remove(store: &Store, key: &str, json: bool, out: &mut impl Write) -> anyhow:
 
 fn prune(report: &PruneReport, json: bool, out: &mut impl Write) -> anyhow::Result<ExitCode> {
     if json {
-        writeln!(out, "{}", serde_json::to_string_pretty(report)?)?;
+        writeln!(out, "{}", tagged::pretty(report)?)?;
     } else {
         out.write_all(prune_text(report).as_bytes())?;
     }
@@ -200,12 +210,12 @@ fn import(
 ) -> anyhow::Result<ExitCode> {
     let imported = library.import(file)?;
     if json {
-        let doc = serde_json::json!({
-            "imported": imported.digest,
-            "elements": imported.elements,
-            "replaced": imported.replaced,
-        });
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        let doc = ImportReport {
+            imported: imported.digest.to_string(),
+            elements: imported.elements,
+            replaced: imported.replaced.clone(),
+        };
+        writeln!(out, "{}", tagged::pretty(&doc)?)?;
     } else {
         writeln!(
             out,

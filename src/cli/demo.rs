@@ -11,6 +11,7 @@ use anyhow::Context;
 use clap::Args;
 use kernstep::formats::batch::{DayRecord, Tally};
 use kernstep::formats::demo::{highlight, DemoDay, DemoReport, TraceFiles};
+use kernstep::formats::tagged;
 use kernstep::model::{Model, ModelKind};
 use kernstep::scenario::{parse_day_lines, DayResult, ReplanSettings, Scenario};
 use kernstep::solve::Prepared;
@@ -102,7 +103,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
         tally,
     };
     if args.json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&report)?)?;
+        writeln!(out, "{}", tagged::pretty(&report)?)?;
     } else {
         report.write(&mut out)?;
     }
@@ -163,7 +164,7 @@ fn write_highlight(
     std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
     let json = dir.join(format!("{day}.trace.json"));
     let svg = dir.join(format!("{day}.svg"));
-    write_atomically(&json, serde_json::to_string_pretty(&doc)?.as_bytes())?;
+    write_atomically(&json, tagged::pretty(&doc)?.as_bytes())?;
     let title = format!(
         "{}: {day}, {} steps",
         scenario.title.as_deref().unwrap_or("demo"),

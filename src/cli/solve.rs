@@ -5,6 +5,8 @@ use std::io::{self, Write};
 use std::process::ExitCode;
 
 use clap::Args;
+use kernstep::formats::published::PriceCurve;
+use kernstep::formats::tagged;
 use kernstep::text::{curve_text, solve_summary};
 use kernstep::trace::Outcome;
 
@@ -39,8 +41,8 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
     if let Some(top) = args.price_curve {
         let pieces = instance.stability_curve(top)?;
         let text = match args.json {
-            true => serde_json::to_string_pretty(&pieces)? + "\n",
             false => curve_text(&pieces),
+            true => tagged::pretty(&PriceCurve { pieces })? + "\n",
         };
         io::stdout().lock().write_all(text.as_bytes())?;
         return Ok(ExitCode::SUCCESS);
@@ -48,7 +50,7 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
     let doc = instance.solve(&cancelled)?;
     let mut out = io::stdout().lock();
     if args.json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        writeln!(out, "{}", tagged::pretty(&doc)?)?;
     } else {
         let from_base = instance.base.is_some();
         let text = solve_summary(&doc, &instance.set, &instance.model, from_base);

@@ -7,6 +7,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
+use kernstep::formats::tagged;
 use kernstep::text::trace_text;
 use kernstep::trace::{step_plot, Instance};
 
@@ -37,7 +38,7 @@ pub fn run(args: &TraceArgs) -> anyhow::Result<ExitCode> {
     }
     let mut out = io::stdout().lock();
     if args.json {
-        writeln!(out, "{}", serde_json::to_string_pretty(&doc)?)?;
+        writeln!(out, "{}", tagged::pretty(&doc)?)?;
     } else {
         let warm = instance.warm.is_some();
         let text = trace_text(&doc, &title, warm, &instance.set, &instance.model);

@@ -6,11 +6,13 @@
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::{Duration, Instant};
 
+use schemars::JsonSchema;
+
 use super::checkpoint::Checkpoint;
 use crate::error::{Error, Result};
 
 /// Why a completion stopped before finishing.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum StopReason {
     /// The working set grew past the element limit.

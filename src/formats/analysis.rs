@@ -4,6 +4,7 @@
 use std::sync::atomic::AtomicBool;
 use std::time::Duration;
 
+use schemars::JsonSchema;
 use serde::Serialize;
 
 use crate::analysis::{norm_step, AnalysisOptions, MatrixAnalysis};
@@ -14,7 +15,7 @@ use crate::network::Network;
 use crate::testset::{estimate, BuildEstimate, StageMark};
 
 /// Whether the matrix is a network matrix, and if not, what stands in the way.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct NetworkRecord {
     /// Some scaling of rows by -1 leaves every column with at most one +1 and one -1.
     pub network: bool,
@@ -45,7 +46,7 @@ impl NetworkRecord {
 }
 
 /// One end of an estimate's range.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct EndRecord {
     /// Elements, as a decimal string.
     pub elements: String,
@@ -54,7 +55,7 @@ pub struct EndRecord {
 }
 
 /// Elements (a decimal string) and seconds, with their low and high ends.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct FiguresRecord {
     /// Elements, as a decimal string.
     pub elements: String,
@@ -83,7 +84,7 @@ impl FiguresRecord {
 }
 
 /// The estimated cost of the build, from a probe of limited time.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct EstimateRecord {
     /// 2 when every kernel vector has even ℓ1 norm (odd limits hold nothing more), else 1.
     pub norm_step: u64,
@@ -122,7 +123,7 @@ pub struct Probe<'a> {
 }
 
 /// The analysis report of one model.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 #[non_exhaustive]
 pub struct AnalysisReport {
     /// The model file.

@@ -12,6 +12,7 @@ use std::io::{self, BufRead, Write};
 use std::marker::PhantomData;
 
 use num_bigint::BigInt;
+use schemars::JsonSchema;
 use serde::de::{MapAccess, Visitor};
 use serde::ser::SerializeMap;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
@@ -21,12 +22,13 @@ use crate::error::{Error, Result};
 use crate::scenario::{DayOutcome, DayResult};
 use crate::solve::{Stability, Verdict};
 use crate::testset::{Served, Source};
+use crate::trace::decimal::Lenient;
 
 use super::CAUTION;
 
 /// How a day ended, in the words of the records: the day's certified answer
 /// ([`crate::certify::judge`]) or why there is none.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 #[non_exhaustive]
 pub enum DayStatus {
@@ -144,9 +146,23 @@ impl Serialize for Plan<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> std::result::Result<S::Ok, S::Error> {
         let mut map = serializer.serialize_map(Some(self.0.len()))?;
         for (name, value) in &self.0 {
-            map.serialize_entry(name, value)?;
+            map.serialize_entry(name, &value.to_string())?;
         }
         map.end()
+    }
+}
+
+impl JsonSchema for Plan<'_> {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "Plan".into()
+    }
+
+    fn json_schema(_: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        schemars::json_schema!({
+            "description": "The plan's nonzero entries by variable name, in model order, each a decimal string.",
+            "type": "object",
+            "additionalProperties": { "type": "string", "pattern": "^-?[0-9]+$" },
+        })
     }
 }
 
@@ -156,15 +172,15 @@ impl<'de, 'a> Deserialize<'de> for Plan<'a> {
         impl<'de, 'a> Visitor<'de> for Entries<'a> {
             type Value = Plan<'a>;
             fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-                f.write_str("an object of variable names to integers")
+                f.write_str("an object of variable names to integers (decimal strings)")
             }
             fn visit_map<M: MapAccess<'de>>(
                 self,
                 mut map: M,
             ) -> std::result::Result<Self::Value, M::Error> {
                 let mut entries = Vec::new();
-                while let Some((name, value)) = map.next_entry::<String, i64>()? {
-                    entries.push((Cow::Owned(name), value));
+                while let Some((name, value)) = map.next_entry::<String, Lenient<i64>>()? {
+                    entries.push((Cow::Owned(name), value.0));
                 }
                 Ok(Plan(entries))
             }
@@ -174,7 +190,7 @@ impl<'de, 'a> Deserialize<'de> for Plan<'a> {
 }
 
 /// One day's result record.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct DayRecord<'a> {
     /// The day's name, when its line could be read.
@@ -186,7 +202,9 @@ pub struct DayRecord<'a> {
     /// Why the day has no proven answer, in words.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub detail: Option<String>,
-    /// The plan's cost, when the day has a plan.
+    /// The plan's cost, when the day has a plan (a decimal string).
+    #[serde(with = "crate::trace::decimal::text_option")]
+    #[schemars(with = "Option<crate::trace::Decimal>")]
     pub objective: Option<i128>,
     /// The proven lower bound `ceil(L(y))` of a partial set's plan, as a decimal.
     pub bound: Option<String>,
@@ -334,11 +352,10 @@ pub fn write_records(
     }
 }
 
-/// Writes `records` as JSON Lines, one object per line.
+/// Writes `records` as JSON Lines, one object per line, each with its `schema` field.
 pub fn write_jsonl(out: &mut impl Write, records: &[DayRecord<'_>]) -> io::Result<()> {
     for record in records {
-        serde_json::to_writer(&mut *out, record)?;
-        writeln!(out)?;
+        writeln!(out, "{}", super::tagged::line(record)?)?;
     }
     Ok(())
 }
@@ -514,7 +531,7 @@ fn csv_error(origin: &str, e: csv::Error) -> Error {
 }
 
 /// Counts of the days by status, with the total cost of the answered days.
-#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct Tally {
     /// Days in the input.
@@ -540,6 +557,8 @@ pub struct Tally {
     /// Bad lines and refused days.
     pub errors: usize,
     /// Sum of the answered days' costs.
+    #[serde(with = "crate::trace::decimal::text")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub total_objective: i128,
     /// Sum of the days' solve times, in seconds.
     pub solve_seconds: f64,
@@ -622,7 +641,7 @@ impl Tally {
 }
 
 /// The summary document of a batch run (`batch --json`): the tally and how the run went.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct RunSummary {
     /// The counts.

@@ -7,6 +7,7 @@
 use std::io::{self, Write};
 use std::path::PathBuf;
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::batch::{DayRecord, DayStatus, Tally};
@@ -14,14 +15,16 @@ use crate::error::{Error, Result};
 use crate::text::{cell, table};
 
 /// One row of the table of days.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct DemoDay {
     /// The day's id, or `line N` for a day without one.
     pub day: String,
     /// How the day ended, in its record's word.
     pub status: String,
-    /// The plan's cost, when there is a plan.
+    /// The plan's cost, when there is a plan (a decimal string).
+    #[serde(with = "crate::trace::decimal::text_option")]
+    #[schemars(with = "Option<crate::trace::Decimal>")]
     pub objective: Option<i128>,
     /// Augmenting steps taken.
     pub steps: Option<u64>,
@@ -46,7 +49,7 @@ impl DemoDay {
 }
 
 /// Where the highlighted day's step trace (JSON) and plot (SVG) were written.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct TraceFiles {
     /// The replayable trace document.
     pub json: PathBuf,
@@ -55,7 +58,7 @@ pub struct TraceFiles {
 }
 
 /// What the demo reports.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct DemoReport {
     /// The scenario's title.
     pub scenario: String,

@@ -9,6 +9,8 @@ pub mod analysis;
 pub mod batch;
 pub mod demo;
 pub mod progress;
+pub mod published;
+pub mod tagged;
 
 /// The caution every plan report carries: plans affect people, and the tool checks only the
 /// model.

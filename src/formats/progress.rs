@@ -5,6 +5,7 @@
 use std::sync::Mutex;
 use std::time::{Duration, Instant};
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::completion::Progress;
@@ -14,7 +15,7 @@ use crate::testset::{extrapolate, StageMark};
 pub const PROGRESS_SCHEMA: &str = "kernstep.progress/1";
 
 /// One snapshot of a running build.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct ProgressRecord {
     /// Always [`PROGRESS_SCHEMA`].

@@ -14,6 +14,7 @@
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{ToPrimitive, Zero};
+use schemars::JsonSchema;
 use serde::Serialize;
 
 use crate::certify::Answer;
@@ -24,11 +25,12 @@ use crate::trace::certify;
 
 /// One piece of the curve: from price `from` on (to the next piece's), the plan with these
 /// figures is optimal.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct CurvePiece {
     /// The multiplier `λ` of the unit weights where the piece starts (0 for the first),
     /// written as a reduced fraction (`"3/2"`).
     #[serde(serialize_with = "fraction")]
+    #[schemars(with = "String")]
     pub from: BigRational,
     /// The figures of the plan optimal on the piece, priced with the unit weights.
     pub figures: PlanFigures,

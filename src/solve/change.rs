@@ -15,6 +15,7 @@
 //! matrix is served by the enumerated Graver basis (for a network matrix, its cycles); the
 //! model to serve is [`ChangePrice::model_to_serve`].
 
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::variant::Numbers;
@@ -28,20 +29,26 @@ pub struct ChangePrice {
 }
 
 /// One plan against the previous plan: what it costs and how much it changes.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct PlanFigures {
     /// The plan's own cost (linear and convex), without the change price.
+    #[serde(with = "crate::trace::decimal::text")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub plan_cost: i128,
     /// `sum_i w_i |x_i - p_i|`.
+    #[serde(with = "crate::trace::decimal::text")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub change_cost: i128,
     /// Variables whose value differs from the previous plan.
     pub changed: usize,
     /// Units moved: `sum_i |x_i - p_i|`.
+    #[serde(with = "crate::trace::decimal::text")]
+    #[schemars(with = "crate::trace::Decimal")]
     pub moved: u128,
 }
 
 /// The figures of a priced plan and, when asked for, of the plan without the price.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct Stability {
     /// The plan that minimises cost plus change price.
     pub priced: PlanFigures,

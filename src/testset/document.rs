@@ -12,8 +12,14 @@ pub const SET_FORMAT: &str = "kernstep move set";
 
 /// The layout version. Version 2 gave the `build --out` file the `digest` and `width` that
 /// `cache export` printed, and left the on-disk `encoding` (which `cache show` prints) out of
-/// `cache export`, so that both write this one layout.
-pub const SET_VERSION: u32 = 2;
+/// `cache export`, so that both write this one layout. Version 3 spells the key's kind and
+/// signs and the metadata's completeness in lower snake case (`"graver"`, `"free"`,
+/// `"complete"`), as every JSON document of kernstep does; version 2 documents, which spelled
+/// them `"Graver"`, `"Free"`, `"Complete"`, are still read.
+pub const SET_VERSION: u32 = 3;
+
+/// The oldest layout version still read.
+const OLDEST_READ: u32 = 2;
 
 /// One test set as its document holds it.
 #[derive(Clone, Debug, PartialEq, Deserialize)]
@@ -81,10 +87,13 @@ pub fn read_set_document(text: &str, origin: &str) -> Result<SetDocument> {
             format!("{:?}, expected {SET_FORMAT:?}", doc.format),
         ));
     }
-    if doc.version != SET_VERSION {
+    if !(OLDEST_READ..=SET_VERSION).contains(&doc.version) {
         return Err(error(
             "version",
-            format!("{}, this build reads version {SET_VERSION}", doc.version),
+            format!(
+                "{}, this build reads versions {OLDEST_READ} to {SET_VERSION}",
+                doc.version
+            ),
         ));
     }
     doc.key
@@ -138,6 +147,22 @@ mod tests {
     }
 
     #[test]
+    fn a_version_2_document_with_its_capitalised_names_reads_back_equal() {
+        let (key, metadata, elements) = k22();
+        let text = set_document(&key, &metadata, &elements)
+            .replace("\"version\":3", "\"version\":2")
+            .replace("\"cycles\"", "\"Cycles\"")
+            .replace("\"free\"", "\"Free\"")
+            .replace("\"complete\"", "\"Complete\"");
+        assert!(
+            text.contains("\"Cycles\"") && text.contains("\"Free\""),
+            "{text}"
+        );
+        let doc = read_set_document(&text, "k22.json").unwrap();
+        assert_eq!((doc.key, doc.metadata, doc.version), (key, metadata, 2));
+    }
+
+    #[test]
     fn a_tampered_document_is_refused_naming_the_field() {
         let (key, metadata, elements) = k22();
         let text = set_document(&key, &metadata, &elements);
@@ -145,7 +170,7 @@ mod tests {
         let cases = [
             (text.replace(&digest, &"0".repeat(digest.len())), "digest"),
             (text.replace("[1,-1,-1,1]", "[1,-1,-1]"), "elements[0]"),
-            (text.replace("\"version\":2", "\"version\":1"), "version"),
+            (text.replace("\"version\":3", "\"version\":1"), "version"),
             (text.replacen('{', "{\"extra\":1,", 1), "document"),
         ];
         for (bad, field) in cases {

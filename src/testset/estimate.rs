@@ -20,6 +20,7 @@
 use std::sync::Mutex;
 use std::time::Instant;
 
+use schemars::JsonSchema;
 use serde::Serialize;
 
 use super::build::{build, BuildOutcome};
@@ -48,7 +49,7 @@ const ALTERNATION: f64 = 3.0;
 const ALTERNATING_DECAY: (f64, f64, f64) = (0.6, 0.45, 0.75);
 
 /// A finished stage of the probe.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct StageMark {
     /// Stage number (0 is the start projection).
     pub stage: usize,
@@ -59,7 +60,7 @@ pub struct StageMark {
 }
 
 /// A figure with its plausible range.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct Range {
     /// The estimate.
     pub value: f64,
@@ -80,7 +81,7 @@ impl Range {
 }
 
 /// The estimated cost of one build.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, JsonSchema)]
 pub struct BuildEstimate {
     /// The norm limit of the set estimated (`None`: the complete set).
     pub norm_limit: Option<u64>,

@@ -10,6 +10,7 @@ use cache::{
     Digest, ElementEncoding, EntryKey, EntrySummary, FileSummary, Provenance, PruneReport, SetKind,
     SetMetadata,
 };
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::build::BuildOutcome;
@@ -21,7 +22,7 @@ use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
 
 /// The state of a checkpoint file.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum CheckpointState {
     /// Set aside as unusable (`<key>.kckpt.bad`).
@@ -35,7 +36,7 @@ pub enum CheckpointState {
 }
 
 /// One checkpoint in a listing.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct CheckpointRecord {
     /// Key digest, size, age and whether a build holds the key's lock.
     #[serde(flatten)]
@@ -83,7 +84,7 @@ impl CheckpointRecord {
 }
 
 /// Everything a cache directory holds.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Listing {
     /// The readable entries, from their heads (no checksum).
     pub entries: Vec<EntrySummary>,
@@ -96,7 +97,7 @@ pub struct Listing {
 }
 
 /// One entry in full (its file checked).
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct EntryRecord {
     /// Digest of the key.
     pub digest: Digest,
@@ -117,7 +118,7 @@ pub struct EntryRecord {
 }
 
 /// One entry's verification.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct VerifyRecord {
     /// Digest of the key.
     pub digest: Digest,

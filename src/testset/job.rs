@@ -10,6 +10,7 @@ use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use cache::{Completeness, SetKind};
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::build::{build, entry_key, BuildOutcome, BuiltSet};
@@ -50,7 +51,7 @@ pub struct Job<'a> {
 }
 
 /// How a job ended.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(tag = "state", rename_all = "snake_case")]
 #[non_exhaustive]
 pub enum JobStatus {
@@ -66,7 +67,7 @@ pub enum JobStatus {
 }
 
 /// A saved state of a build, in a report.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct StateRecord {
     /// The stage being worked on.
     pub stage: usize,
@@ -93,7 +94,7 @@ impl From<&SavedState> for StateRecord {
 }
 
 /// One level of a budgeted build.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct LevelRecord {
     /// The level's ℓ1 norm limit.
     pub norm_limit: u64,
@@ -106,7 +107,7 @@ pub struct LevelRecord {
 }
 
 /// What a budgeted build reached.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct BudgetRecord {
     /// The norm limit of the kept set (`None`: no level finished, nothing kept).
     pub norm_limit: Option<u64>,
@@ -127,7 +128,7 @@ impl BudgetRecord {
 }
 
 /// The outcome of a [`Job`].
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct JobReport {
     /// How it ended.

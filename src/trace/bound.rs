@@ -1,12 +1,13 @@
 //! A dual bound in the form of the `--json` documents and batch records.
 
 use num_traits::ToPrimitive;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use crate::bound::DualBound;
 
 /// What a dual bound proves about a plan of cost `objective`.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct BoundDoc {
     /// `ceil(L(y))`: no plan costs less (decimal string).
     pub value: String,

@@ -10,6 +10,7 @@ use std::collections::BTreeMap;
 
 use augment::Coverage;
 use augment::{Options, Phase, TraceStep};
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
@@ -23,10 +24,10 @@ use crate::network::Step;
 use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// The `schema` value of documents of this layout.
-pub const TRACE_SCHEMA: &str = "kernstep.trace/1";
+pub const TRACE_SCHEMA: &str = "kernstep.trace/2";
 
 /// The phase of an augmenting step.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum StepPhase {
     /// Phase I: lowering the total bound violation.
@@ -36,7 +37,7 @@ pub enum StepPhase {
 }
 
 /// One augmenting step.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct StepRecord {
     /// 1-based step number over both phases.
     pub step: usize,
@@ -46,7 +47,9 @@ pub struct StepRecord {
     pub move_index: Option<usize>,
     /// `1` or `-1`: the sign in which the move was applied.
     pub sign: i8,
-    /// How many times the signed move was added.
+    /// How many times the signed move was added (a decimal string).
+    #[serde(with = "crate::trace::decimal::text")]
+    #[schemars(with = "Decimal")]
     pub length: i64,
     /// The signed move (`sign` times the stored move), not yet scaled by `length`.
     pub direction: Vec<i64>,
@@ -59,7 +62,7 @@ pub struct StepRecord {
 }
 
 /// One variable's convex cost as written in model files: `breaks` and `slopes`.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct PiecesDoc {
     /// The breaks, increasing.
     pub breaks: Vec<i64>,
@@ -68,7 +71,7 @@ pub struct PiecesDoc {
 }
 
 /// Everything needed to replay and re-check one solve.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct TraceDocument {
     /// Always [`TRACE_SCHEMA`].
     pub schema: String,
@@ -91,11 +94,16 @@ pub struct TraceDocument {
     /// What the set guarantees.
     pub coverage: Coverage,
     /// The solver's integer start point, with `A x = b` (recovered exactly from the final point
-    /// and the steps); `null` when there is none.
+    /// and the steps); `null` when there is none. Each value a decimal string.
+    #[serde(with = "crate::trace::decimal::text_option_vec")]
+    #[schemars(with = "Option<Vec<Decimal>>")]
     pub start: Option<Vec<i64>>,
     /// Every augmenting step, in order.
     pub steps: Vec<StepRecord>,
-    /// The final point; `null` when there is no integer solution.
+    /// The final point; `null` when there is no integer solution. Each value a decimal
+    /// string.
+    #[serde(with = "crate::trace::decimal::text_option_vec")]
+    #[schemars(with = "Option<Vec<Decimal>>")]
     pub x: Option<Vec<i64>>,
     /// The cost at `x`, once phase II was reached.
     pub objective: Option<Decimal>,

@@ -5,6 +5,7 @@
 //! named, so a reader needs no second file to understand a verdict.
 
 use augment::Orientation;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
@@ -13,7 +14,7 @@ use crate::certify::{judge, Answer, Limit, Proof};
 use crate::solve::Verdict;
 
 /// The outcome of one solve.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(tag = "tag", rename_all = "snake_case")]
 #[non_exhaustive]
 pub enum Outcome {

@@ -16,6 +16,7 @@
 //!   direction.
 
 use augment::{Certificate, Checker, Problem, Solution, Status};
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::decimal::Decimal;
@@ -30,7 +31,7 @@ use crate::network::{certificate, FlowOutcome, Infeasibility};
 use crate::solve::{Numbers, Verdict};
 
 /// Which claim was re-checked.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum Claim {
     /// No move, in either sign, is feasible and improving at the final plan.
@@ -73,7 +74,7 @@ impl Claim {
 }
 
 /// A move applied in one sign.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct SignedMove {
     /// Index of the move in the set.
     pub move_index: usize,
@@ -84,7 +85,7 @@ pub struct SignedMove {
 }
 
 /// What is wrong with the point a claim is about.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(tag = "tag", rename_all = "snake_case")]
 pub enum Defect {
     /// Row `row` of `A x` is `value`, not the right-hand side `rhs`.
@@ -109,7 +110,7 @@ pub enum Defect {
 }
 
 /// The result of re-checking one claim.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct Recheck {
     /// What was checked.
     pub claim: Claim,

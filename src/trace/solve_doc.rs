@@ -2,6 +2,7 @@
 //! warm start read back from it (or from a trace document).
 
 use augment::Coverage;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 use super::bound::BoundDoc;
@@ -16,10 +17,14 @@ use crate::solve::{ChangePrice, Numbers, Prepared, Stability, Verdict, WarmStart
 use crate::testset::{Served, Source};
 
 /// The `schema` value of solve documents.
-pub const SOLVE_SCHEMA: &str = "kernstep.solve/1";
+pub const SOLVE_SCHEMA: &str = "kernstep.solve/2";
+
+/// The schema values of earlier solve and trace documents, still read as warm starts (they
+/// wrote plan values as JSON numbers).
+const EARLIER_SCHEMAS: [&str; 2] = ["kernstep.solve/1", "kernstep.trace/1"];
 
 /// Augmenting steps per phase.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct StepCounts {
     /// Steps of phase I (towards the box).
     pub feasibility: u64,
@@ -28,7 +33,7 @@ pub struct StepCounts {
 }
 
 /// Where the moves of a solve came from.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 pub struct SetRecord {
     /// `cache`, `built`, `network` or `file`.
     pub source: String,
@@ -89,7 +94,7 @@ pub struct ChangeContext<'a> {
 
 /// One certified solve: the outcome, the plan and its cost, the dual bound of a partial
 /// set's plan and the independent re-check.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[non_exhaustive]
 pub struct SolveDocument {
     /// Always [`SOLVE_SCHEMA`].
@@ -108,7 +113,9 @@ pub struct SolveDocument {
     pub objective: Option<Decimal>,
     /// The total bound violation at `x`.
     pub violation: Option<Decimal>,
-    /// The point reached (`null` without an integer solution).
+    /// The point reached (`null` without an integer solution), each value a decimal string.
+    #[serde(with = "crate::trace::decimal::text_option_vec")]
+    #[schemars(with = "Option<Vec<Decimal>>")]
     pub x: Option<Vec<i64>>,
     /// The instance's right-hand side.
     pub rhs: Vec<i64>,
@@ -269,6 +276,7 @@ fn reached(model: &Model, verdict: &Verdict) -> Result<Reached> {
 struct PreviousPlan {
     schema: String,
     rhs: Vec<i64>,
+    #[serde(default, with = "crate::trace::decimal::text_option_vec")]
     x: Option<Vec<i64>>,
 }
 
@@ -286,7 +294,9 @@ pub fn read_warm_start(text: &str, origin: &str, model: &Model) -> Result<WarmSt
             format!("{e}; expected a solve document ({SOLVE_SCHEMA}) or a trace document ({TRACE_SCHEMA})"),
         )
     })?;
-    if previous.schema != SOLVE_SCHEMA && previous.schema != TRACE_SCHEMA {
+    let known = [SOLVE_SCHEMA, TRACE_SCHEMA].contains(&previous.schema.as_str())
+        || EARLIER_SCHEMAS.contains(&previous.schema.as_str());
+    if !known {
         return Err(bad(
             "schema",
             format!(

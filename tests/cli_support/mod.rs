@@ -67,6 +67,36 @@ pub fn expect(cache: &Path, args: &[&str], code: i32) -> String {
     expect_both(cache, args, code).0
 }
 
+/// A `--json` document; for `build --json` (`kernstep.build/1`) its rows, the `models` list.
+pub fn json_rows(stdout: &str) -> Value {
+    let doc: Value = serde_json::from_str(stdout).expect("JSON output");
+    match doc["schema"].as_str() {
+        Some("kernstep.build/1") => doc["models"].clone(),
+        _ => doc,
+    }
+}
+
+/// An integer the JSON contract writes as a decimal string (`None` for `null`).
+pub fn int(value: &Value) -> Option<i128> {
+    value.as_str().map(|s| s.parse().expect("a decimal string"))
+}
+
+/// [`int`] for a value that fits `i64` (a plan value, a step length).
+pub fn int64(value: &Value) -> Option<i64> {
+    value
+        .as_str()
+        .map(|s| s.parse().expect("a decimal string in i64"))
+}
+
+/// A list of decimal strings (a plan `x`) as integers (`None` for `null`).
+pub fn ints(value: &Value) -> Option<Vec<i64>> {
+    value.as_array().map(|a| {
+        a.iter()
+            .map(|v| int64(v).expect("a decimal string"))
+            .collect()
+    })
+}
+
 /// Writes the `p x q` transportation model (supplies, then demands; invented zero plan).
 pub fn transport_model(dir: &Path, p: usize, q: usize) -> PathBuf {
     let rows = kernstep::IntMatrix::transportation(p, q).to_rows();
@@ -107,12 +137,12 @@ pub fn batch_answers(
             let r: Value = serde_json::from_str(line).expect("a JSON line");
             let plan = r["plan"].as_object().map_or_else(BTreeMap::new, |m| {
                 m.iter()
-                    .map(|(k, v)| (k.clone(), v.as_i64().unwrap()))
+                    .map(|(k, v)| (k.clone(), int64(v).unwrap()))
                     .collect()
             });
             let answer = (
                 r["status"].as_str().unwrap().to_string(),
-                r["objective"].as_i64().map(i128::from),
+                int(&r["objective"]),
                 r["steps"].as_u64(),
                 plan,
             );
@@ -152,11 +182,11 @@ pub fn document_answer(doc: &Value) -> DayAnswer {
     }
     let objective = doc["objective"].as_str().unwrap().parse().unwrap();
     let names = doc["variables"].as_array().unwrap();
-    let x = doc["x"].as_array().unwrap();
+    let x = ints(&doc["x"]).unwrap();
     let plan = names
         .iter()
         .zip(x)
-        .map(|(n, v)| (n.as_str().unwrap().to_string(), v.as_i64().unwrap()))
+        .map(|(n, v)| (n.as_str().unwrap().to_string(), v))
         .filter(|(_, v)| *v != 0)
         .collect();
     (word.to_string(), Some(objective), steps, plan)
