@@ -89,6 +89,37 @@ pub enum Error {
     /// The augmentation solver rejected its input or hit an arithmetic limit.
     #[error(transparent)]
     Augment(#[from] augment::AugmentError),
+    /// A day (or variant) of a days file that cannot be used, with the name its line gave
+    /// it, so that its record names the day that failed ([`Error::for_day`]).
+    #[error("{source}")]
+    Day {
+        /// The day's name (printable, not blank).
+        day: String,
+        /// What spoiled the day.
+        source: Box<Error>,
+    },
+}
+
+impl Error {
+    /// This error as the error of the day named `day`; unchanged when the name is blank or
+    /// holds control characters (it is never carried into output then).
+    pub fn for_day(self, day: &str) -> Error {
+        if day.trim().is_empty() || crate::input::printable(day).is_err() {
+            return self;
+        }
+        Error::Day {
+            day: day.to_string(),
+            source: Box::new(self),
+        }
+    }
+
+    /// The name of the day this error spoiled, when its line gave one.
+    pub fn day(&self) -> Option<&str> {
+        match self {
+            Error::Day { day, .. } => Some(day),
+            _ => None,
+        }
+    }
 }
 
 /// A stop reason in words for [`Error::BuildStopped`].

@@ -287,12 +287,19 @@ fn every_verb_output_validates_against_its_schema() {
     std::fs::write(
         &bad,
         "{\"day\": \"d1\", \"demand\": {\"old_docks\": 10}}\n\
-         {\"day\": \"d2\", \"demand\": {\"old_dock\": 10}}\n",
+         {\"day\": \"d2\", \"demand\": {\"old_dock\": 10}}\n\
+         {\"day\": \"d\\u0007\", \"demand\": {\"old_dock\": 10}}\n",
     )
     .unwrap();
     let bad = bad.display().to_string();
     let records = check.lines("batch error", &run(c, &["batch", &lanes, &bad], &[2]).0);
+    // A failing day's record names the day its line gave, unless the name could forge
+    // output (a control character).
     assert_eq!(records[1]["status"], "error");
+    assert_eq!(
+        (&records[1]["day"], &records[2]["day"]),
+        (&"d2".into(), &Value::Null)
+    );
 
     // cache: list (with the stopped build's checkpoint), show, verify, export and import,
     // prune, remove.

@@ -43,9 +43,9 @@ pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<Par
             // The quick reading serves valid lines of the simple shape; any other line goes
             // to the careful one, which words the error.
             let day = match quick_changes(scenario, &names, &r, line) {
-                Some((day, changed)) => {
-                    remember_day(&r, &mut seen, day, number).map(|()| (day.to_string(), changed))
-                }
+                Some((day, changed)) => remember_day(&r, &mut seen, day, number)
+                    .map(|()| (day.to_string(), changed))
+                    .map_err(|e| e.for_day(day)),
                 None => careful_line(scenario, &names, &r, line, number, &mut seen),
             };
             let day = day.map(|(day, changes)| numbers_with(&mut working, &changes, &day));
@@ -54,7 +54,8 @@ pub fn parse_day_lines(scenario: &Scenario, text: &str, origin: &str) -> Vec<Par
         .collect()
 }
 
-/// The name and the checked changes of any JSON line, with a message for every error.
+/// The name and the checked changes of any JSON line, with a message for every error; an
+/// error of a line that names its day carries the name ([`Error::for_day`]).
 fn careful_line(
     scenario: &Scenario,
     names: &Names,
@@ -69,9 +70,26 @@ fn careful_line(
             format!("not valid JSON: {}", strip_position(&e.to_string())),
         )
     })?;
+    checked_line(scenario, names, r, &value, number, seen).map_err(|e| {
+        match value.get("day").and_then(Value::as_str) {
+            Some(day) => e.for_day(day),
+            None => e,
+        }
+    })
+}
+
+/// The name and the checked changes of a line read as JSON.
+fn checked_line(
+    scenario: &Scenario,
+    names: &Names,
+    r: &Reader,
+    value: &Value,
+    number: usize,
+    seen: &mut FxHashMap<String, usize>,
+) -> Result<(String, Vec<Change>)> {
     let mut allowed = vec!["day"];
     allowed.extend(scenario.kind.fields().iter().map(|f| f.key()));
-    let map = r.object(&value, "", &allowed).map_err(|e| {
+    let map = r.object(value, "", &allowed).map_err(|e| {
         let unknown_key = value
             .as_object()
             .and_then(|m| m.keys().find(|k| !allowed.contains(&k.as_str())));
@@ -373,7 +391,10 @@ pub fn parse_csv(scenario: &Scenario, text: &str, origin: &str) -> Vec<ParsedLin
     let mut out: Vec<ParsedLine> = order
         .into_iter()
         .map(|(day, d)| {
-            let variant = d.result.map(|c| numbers_with(&mut working, &c, &day));
+            let variant = match d.result {
+                Ok(c) => Ok(numbers_with(&mut working, &c, &day)),
+                Err(e) => Err(e.for_day(&day)),
+            };
             (d.line, variant)
         })
         .chain(out_of_day)

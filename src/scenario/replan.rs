@@ -191,7 +191,10 @@ impl Run<'_> {
         prices: Option<&Multipliers>,
     ) -> (DayResult, Option<Vec<i64>>) {
         let started = Instant::now();
-        let id = parsed.as_ref().ok().map(|v| v.id.clone());
+        let id = match &parsed {
+            Ok(v) => Some(v.id.clone()),
+            Err(e) => e.day().map(String::from),
+        };
         let finish = |outcome, bound| DayResult {
             line,
             id: id.clone(),

@@ -50,14 +50,15 @@ pub fn parse_lines(text: &str, origin: &str) -> Vec<ParsedLine> {
                 message,
             };
             let parsed = serde_json::from_str::<Variant>(line)
-                .map_err(|e| bad(e.to_string()))
+                .map_err(|e| named_error(line, bad(e.to_string())))
                 .and_then(|v| {
                     crate::input::printable(&v.id).map_err(|why| bad(format!("id: {why}")))?;
                     match seen.get(&v.id) {
                         Some(first) => Err(bad(format!(
                             "id: {:?} is already given on line {first}",
                             v.id
-                        ))),
+                        ))
+                        .for_day(&v.id)),
                         None => {
                             seen.insert(v.id.clone(), i + 1);
                             Ok(v)
@@ -67,6 +68,18 @@ pub fn parse_lines(text: &str, origin: &str) -> Vec<ParsedLine> {
             (i + 1, parsed)
         })
         .collect()
+}
+
+/// `error` of a line that does not read as a variant, carrying the line's id when it names
+/// one unambiguously (a JSON object with one string `id`).
+fn named_error(line: &str, error: Error) -> Error {
+    let id = crate::input::parse_json(line)
+        .ok()
+        .and_then(|v| v.get("id")?.as_str().map(String::from));
+    match id {
+        Some(id) => error.for_day(&id),
+        None => error,
+    }
 }
 
 impl Variant {
