@@ -12,6 +12,7 @@ use serde::{Deserialize, Serialize};
 use super::batch::{DayRecord, DayStatus, Tally};
 use crate::error::{Error, Result};
 use crate::text::{cell, table};
+use crate::trace::Decimal;
 
 /// One row of the table of days.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -22,7 +23,11 @@ pub struct DemoDay {
     /// How the day ended, in its record's word.
     pub status: String,
     /// The plan's cost, when there is a plan.
-    pub objective: Option<i128>,
+    #[serde(
+        serialize_with = "crate::trace::decimal::number_or_text::serialize_option",
+        deserialize_with = "crate::trace::decimal::number_or_text::deserialize_option"
+    )]
+    pub objective: Option<Decimal>,
     /// Augmenting steps taken.
     pub steps: Option<u64>,
     /// Solve time in milliseconds.
@@ -160,7 +165,9 @@ mod tests {
             days: vec![DemoDay {
                 day: "d001".into(),
                 status: DayStatus::Optimal.word().into(),
-                objective: Some(-170_141_183_460_469_231_731_687_303_715_884_105_727),
+                objective: Some(Decimal::from(
+                    -170_141_183_460_469_231_731_687_303_715_884_105_727,
+                )),
                 steps: Some(3),
                 ms: 0.5,
             }],

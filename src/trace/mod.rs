@@ -5,7 +5,7 @@
 
 mod bound;
 mod certified;
-mod decimal;
+pub(crate) mod decimal;
 mod document;
 mod instance;
 mod outcome;

@@ -6,7 +6,7 @@ use super::reader::{ColumnBounds, Entry, Raw, RawColumn, RowKind};
 use super::{MpsImport, Origin, MAX_DENSE_ENTRIES};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
-use crate::model::{Model, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
+use crate::model::{Model, Units, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
 
 /// The slack variable of one constraint row: `coefficient * s` is added to the row and
 /// `0 <= s <= upper`.
@@ -63,6 +63,11 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
     let variable_names = variable_names(raw, &slacks, origin)?;
     let mut full_cost = cost;
     full_cost.resize(variable_names.len(), 0);
+    let units = Units {
+        maximize: raw.maximize,
+        cost_scale,
+        added_columns: slacks.len(),
+    };
     let model = Model {
         convex: crate::model::ConvexCosts::default(),
         change_cost: Vec::new(),
@@ -76,6 +81,7 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
             .iter()
             .map(|r| raw.rows[r.file_row].name.clone())
             .collect(),
+        units,
     };
     Ok(MpsImport {
         model,
