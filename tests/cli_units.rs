@@ -206,3 +206,45 @@ fn batch_records_give_the_files_objective_and_columns() {
         assert_eq!(row[3], case.objective, "{csv}");
     }
 }
+
+/// Hundredths of a decimal string with two places (`"18.90"` is 1890).
+fn cents(text: &str) -> i64 {
+    let (whole, fraction) = text.split_once('.').expect("two decimal places");
+    assert_eq!(fraction.len(), 2, "{text}");
+    whole.parse::<i64>().unwrap() * 100 + fraction.parse::<i64>().unwrap()
+}
+
+#[test]
+fn a_maximising_files_dual_bound_bounds_its_maximum_from_above() {
+    let cache = tempfile::tempdir().unwrap();
+    let model = fixture("market_stall.mps");
+    let model = model.to_str().unwrap();
+    let truncated = ["--engine", "moves", "--norm-limit", "3"];
+    let build: Vec<&str> = ["build", model].into_iter().chain(truncated).collect();
+    expect(cache.path(), &build, 0);
+    let solve = ["solve", model, "--json", "--engine", "moves"];
+    let doc: Value = serde_json::from_str(&expect(cache.path(), &solve, 0)).unwrap();
+    assert_eq!(doc["status"]["tag"], "optimal_for_moves_up_to", "{doc}");
+    let objective = cents(doc["objective"].as_str().unwrap());
+    let bound = cents(doc["bound"]["value"].as_str().unwrap());
+    // source: HiGHS 1.16.0 via highspy: the file's optimum is 18.4 (above) and its LP
+    // relaxation's 18.9 (integrality dropped, run by hand). The bound is the LP dual evaluated
+    // exactly and rounded to the file's cents, so it lies in [18.40, 18.90] for the maximum
+    // and above the truncated set's plan.
+    assert!((1840..=1890).contains(&bound), "{doc}");
+    assert!(objective <= 1840, "{doc}");
+    assert_eq!(
+        cents(doc["bound"]["gap"].as_str().unwrap()),
+        bound - objective
+    );
+
+    let dir = tempfile::tempdir().unwrap();
+    let days = dir.path().join("days.jsonl");
+    std::fs::write(&days, "{\"id\": \"as_filed\"}\n").unwrap();
+    let batch = ["batch", model, days.to_str().unwrap(), "--engine", "moves"];
+    let record = expect(cache.path(), &batch, 0);
+    let record: Value = serde_json::from_str(record.trim()).unwrap();
+    assert_eq!(record["objective"], doc["objective"], "{record}");
+    assert_eq!(record["bound"], doc["bound"]["value"], "{record}");
+    assert_eq!(record["gap"], doc["bound"]["gap"], "{record}");
+}
