@@ -248,3 +248,17 @@ fn a_maximising_files_dual_bound_bounds_its_maximum_from_above() {
     assert_eq!(record["bound"], doc["bound"]["value"], "{record}");
     assert_eq!(record["gap"], doc["bound"]["gap"], "{record}");
 }
+
+#[test]
+fn costs_with_more_places_than_a_report_holds_are_refused_by_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(fixture("ferry_fuel.mps")).unwrap();
+    let tiny = text.replace("fuel         1.25", "fuel         1e-40");
+    assert_ne!(tiny, text);
+    let path = dir.path().join("tiny.mps");
+    std::fs::write(&path, tiny).unwrap();
+    let args = ["solve", path.to_str().unwrap(), "--build"];
+    let (_, stderr) = cli_support::expect_both(dir.path(), &args, 2);
+    assert!(stderr.contains("tiny.mps: line 11, COLUMNS"), "{stderr}");
+    assert!(stderr.contains("40 decimal places"), "{stderr}");
+}

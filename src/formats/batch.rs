@@ -190,7 +190,8 @@ pub struct DayRecord<'a> {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub detail: Option<String>,
     /// The plan's cost, when the day has a plan, in the model file's own units
-    /// ([`Units`]): a JSON integer, or a decimal string when the file's costs have decimals.
+    /// ([`Units`]): a JSON integer, or a decimal string when the file's costs have decimals
+    /// (or the value passes 64 bits).
     #[serde(
         serialize_with = "number_or_text::serialize_option",
         deserialize_with = "number_or_text::deserialize_option"

@@ -33,7 +33,8 @@
 //!   the file's (and negated for `MAX`). The model's [`crate::model::Units`] record this and
 //!   the slacks, so that reports give the file's objective (its sense, exact decimals) and
 //!   plans of the file's columns only. A scaled value beyond the model limits (`2^31 - 1` for
-//!   matrix entries, `2^62` otherwise) is refused, naming the row and the value.
+//!   matrix entries, `2^62` otherwise) is refused, naming the row and the value, and so is a
+//!   cost with more than 38 decimal places (reports could not give the objective exactly).
 //!
 //! Every error is an [`Error::Input`] whose field names the line and the MPS field, for
 //! example `plan.mps: line 12, COLUMNS field 3: "1,5" is not a number`.
