@@ -75,8 +75,8 @@ impl Units {
         file.to_string()
     }
 
-    /// Whether `gap` (in the model's units) is zero or not, and the gap relative to the
-    /// file's objective: `gap / max(1, |objective|)`, both in the file's units.
+    /// The gap `gap` between a plan of model objective `objective` and its bound, relative to
+    /// the objective: `|gap| / max(1, |objective|)`, both taken in the file's units.
     pub fn relative_gap(&self, gap: &BigInt, objective: i128) -> f64 {
         let scale = 10f64.powi(self.cost_scale.min(300) as i32);
         let gap = num_traits::ToPrimitive::to_f64(&gap.abs()).unwrap_or(f64::INFINITY) / scale;

@@ -24,7 +24,8 @@ pub struct Decimal {
 pub const MAX_PLACES: u32 = 38;
 
 impl Decimal {
-    /// `units / 10^places`; `None` when `places` exceeds [`MAX_PLACES`].
+    /// `units / 10^places`; `None` when `places` exceeds 38 (`10^38` is the largest power of
+    /// ten an `i128` holds).
     pub fn scaled(units: i128, places: u32) -> Option<Decimal> {
         (places <= MAX_PLACES).then_some(Decimal { units, places })
     }
