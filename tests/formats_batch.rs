@@ -10,6 +10,7 @@ use kernstep::formats::batch::{
     read_csv, read_jsonl, write_csv_header, write_csv_rows, write_jsonl, DayRecord, DayStatus,
     Plan, Tally,
 };
+use kernstep::trace::Decimal;
 use proptest::prelude::*;
 
 /// Variable names with the characters CSV must quote (RFC 4180: comma, quote, line break).
@@ -41,7 +42,7 @@ prop_compose! {
         let mut r = blank(line, status);
         r.day = day.map(Cow::Owned);
         r.detail = detail;
-        r.objective = answer.map(|(o, _)| i128::from(o));
+        r.objective = answer.map(|(o, _)| Decimal::from(i128::from(o)));
         r.bound = bound.map(|b| b.to_string());
         r.gap = bound.map(|b| (i128::from(b) - 1).to_string());
         r.steps = steps.map(u64::from);
@@ -99,22 +100,22 @@ proptest! {
 #[test]
 fn the_tally_counts_statuses_costs_and_the_widest_gap() {
     let mut a = blank(1, DayStatus::Optimal);
-    a.objective = Some(10);
+    a.objective = Some(Decimal::from(10));
     a.bound = Some("10".into());
     a.gap = Some("0".into());
     let mut b = blank(2, DayStatus::OptimalWithinNorm);
-    b.objective = Some(25);
+    b.objective = Some(Decimal::from(25));
     b.bound = Some("16".into());
     b.gap = Some("9".into());
     let mut c = blank(3, DayStatus::OptimalWithinNorm);
-    c.objective = Some(120);
+    c.objective = Some(Decimal::from(120));
     c.bound = Some("100".into());
     c.gap = Some("20".into());
     let d = blank(4, DayStatus::Unknown);
     let t = Tally::of(&[a.clone(), b.clone(), c.clone(), d.clone()]);
     assert_eq!((t.days, t.optimal, t.optimal_by_bound), (4, 1, 1));
     assert_eq!((t.optimal_within_norm, t.unknown), (2, 1));
-    assert_eq!(t.total_objective, 155);
+    assert_eq!(t.total_objective, Decimal::from(155));
     assert_eq!(t.largest_gap.as_deref(), Some("20"));
     assert_eq!(t.exit_code(), 1);
     let mut halves = Tally::of(&[a, b]);

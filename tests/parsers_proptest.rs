@@ -505,6 +505,7 @@ proptest! {
             upper: vec![Some(upper_x1), Some(limit)],
             variable_names: vec!["x1".into(), "x2".into()],
             row_names: vec!["r".into()],
+            units: Default::default(),
         };
         let brute = (box_low..=upper_x1)
             .filter_map(|x1| {

@@ -107,19 +107,22 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     if let Some(ranks) = super::ranked::current() {
         let days = super::ranked::batch::block(days, ranks);
         let results = solve_days(&prepared, model, days, &settings, args.threads, &args.days)?;
-        let named = (&set, model.variable_names.as_slice());
-        return super::ranked::batch::finish(args, named, &results, started, ranks);
+        return super::ranked::batch::finish(args, (&set, model), &results, started, ranks);
     }
     let results = solve_days(&prepared, model, days, &settings, args.threads, &args.days)?;
     let wall = started.elapsed().as_secs_f64();
     report_failures(&results);
-    let names = &model.variable_names;
-    let records: Vec<DayRecord> = results.iter().map(|r| DayRecord::of(r, names)).collect();
+    let (names, units) = (&model.variable_names, &model.units);
+    let records: Vec<DayRecord> = results
+        .iter()
+        .map(|r| DayRecord::of(r, names, units))
+        .collect();
     let tally = Tally::of(&records);
     let code = tally.exit_code();
     let summary = RunSummary::new(tally, &set, args.threads.map(capped_threads), wall);
     let mut body = Vec::new();
-    batch::write_records(&mut body, args.format.layout(), &records, names, true)?;
+    let own = units.own(names);
+    batch::write_records(&mut body, args.format.layout(), &records, own, true)?;
     emit(args, &body, &summary)?;
     Ok(ExitCode::from(code))
 }

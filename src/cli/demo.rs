@@ -76,7 +76,7 @@ pub fn run(args: &DemoArgs) -> anyhow::Result<ExitCode> {
     )?;
     let records: Vec<DayRecord> = results
         .iter()
-        .map(|r| DayRecord::of(r, &model.variable_names))
+        .map(|r| DayRecord::of(r, &model.variable_names, &model.units))
         .collect();
     let tally = Tally::of(&records);
     let highlight = highlight(&records);

@@ -19,10 +19,12 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use crate::certify::{Answer, Limit, Proof};
 use crate::error::{Error, Result};
+use crate::model::Units;
 use crate::scenario::{DayOutcome, DayResult};
 use crate::solve::{Stability, Verdict};
 use crate::testset::{Served, Source};
 use crate::trace::decimal::Lenient;
+use crate::trace::Decimal;
 
 use super::CAUTION;
 
@@ -202,13 +204,14 @@ pub struct DayRecord<'a> {
     /// Why the day has no proven answer, in words.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub detail: Option<String>,
-    /// The plan's cost, when the day has a plan (a decimal string).
-    #[serde(with = "crate::trace::decimal::text_option")]
-    #[schemars(with = "Option<crate::trace::Decimal>")]
-    pub objective: Option<i128>,
-    /// The proven lower bound `ceil(L(y))` of a partial set's plan, as a decimal.
+    /// The plan's cost, when the day has a plan, in the model file's own units
+    /// ([`Units`]), as a decimal string.
+    pub objective: Option<Decimal>,
+    /// The proven bound `ceil(L(y))` of a partial set's plan, as a decimal in the file's
+    /// units (an upper bound when the file maximises).
     pub bound: Option<String>,
-    /// `objective - bound`, as a decimal.
+    /// The distance from the plan's objective to the bound (`>= 0`), as a decimal in the
+    /// file's units.
     pub gap: Option<String>,
     /// Augmenting steps over both phases, when an integer point was reached.
     pub steps: Option<u64>,
@@ -224,8 +227,9 @@ pub struct DayRecord<'a> {
 }
 
 impl<'a> DayRecord<'a> {
-    /// The record of `result`, its plan named by `names`.
-    pub fn of(result: &'a DayResult, names: &'a [String]) -> DayRecord<'a> {
+    /// The record of `result` for a model in `units`, its plan named by `names` (the model's
+    /// variable names; the plan lists the file's own columns only).
+    pub fn of(result: &'a DayResult, names: &'a [String], units: &Units) -> DayRecord<'a> {
         // Judged once: the status and the detail both read it.
         let judged = result.answer();
         let answer = optimum(result);
@@ -235,20 +239,21 @@ impl<'a> DayRecord<'a> {
             .zip(result.bound.as_ref())
             .map(|((cost, _), b)| {
                 let value = b.ceiling() + BigInt::from(constant);
-                (value.to_string(), b.gap(cost).to_string())
+                (units.value_text(&value), units.gap_text(&b.gap(cost)))
             })
             .unzip();
+        let objective = answer.and_then(|(o, _)| o.checked_add(constant));
         DayRecord {
             day: result.id.as_deref().map(Cow::Borrowed),
             line: result.line,
             status: DayStatus::judged(result, judged.as_ref()),
             detail: detail(result, judged.as_ref()),
-            objective: answer.and_then(|(o, _)| o.checked_add(constant)),
+            objective: objective.and_then(|o| units.objective(o).ok()),
             bound,
             gap,
             steps: steps(result),
             seconds: result.elapsed.as_secs_f64(),
-            plan: answer.map(|(_, x)| Plan::of(names, x)),
+            plan: answer.map(|(_, x)| Plan::of(units.own(names), x)),
             change: result.change.map(|c| c.stability),
         }
     }
@@ -556,10 +561,9 @@ pub struct Tally {
     pub interrupted: usize,
     /// Bad lines and refused days.
     pub errors: usize,
-    /// Sum of the answered days' costs.
-    #[serde(with = "crate::trace::decimal::text")]
-    #[schemars(with = "crate::trace::Decimal")]
-    pub total_objective: i128,
+    /// Sum of the answered days' objectives, in the file's units like the records', as a
+    /// decimal string.
+    pub total_objective: Decimal,
     /// Sum of the days' solve times, in seconds.
     pub solve_seconds: f64,
 }
@@ -591,9 +595,9 @@ impl Tally {
             self.optimal_by_bound += 1;
         }
         self.widen_gap(r.gap.as_deref());
-        self.total_objective = self
-            .total_objective
-            .saturating_add(r.objective.unwrap_or(0));
+        if let Some(objective) = r.objective {
+            self.total_objective = self.total_objective.saturating_add(objective);
+        }
         self.solve_seconds += r.seconds;
     }
 

@@ -13,6 +13,7 @@ use serde::{Deserialize, Serialize};
 use super::batch::{DayRecord, DayStatus, Tally};
 use crate::error::{Error, Result};
 use crate::text::{cell, table};
+use crate::trace::Decimal;
 
 /// One row of the table of days.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
@@ -23,9 +24,7 @@ pub struct DemoDay {
     /// How the day ended, in its record's word.
     pub status: String,
     /// The plan's cost, when there is a plan (a decimal string).
-    #[serde(with = "crate::trace::decimal::text_option")]
-    #[schemars(with = "Option<crate::trace::Decimal>")]
-    pub objective: Option<i128>,
+    pub objective: Option<Decimal>,
     /// Augmenting steps taken.
     pub steps: Option<u64>,
     /// Solve time in milliseconds.
@@ -163,7 +162,9 @@ mod tests {
             days: vec![DemoDay {
                 day: "d001".into(),
                 status: DayStatus::Optimal.word().into(),
-                objective: Some(-170_141_183_460_469_231_731_687_303_715_884_105_727),
+                objective: Some(Decimal::from(
+                    -170_141_183_460_469_231_731_687_303_715_884_105_727,
+                )),
                 steps: Some(3),
                 ms: 0.5,
             }],

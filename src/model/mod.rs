@@ -18,6 +18,7 @@
 mod convex;
 pub mod mps;
 mod node;
+mod units;
 mod validate;
 
 use std::path::Path;
@@ -26,6 +27,7 @@ use crate::error::{Error, Result};
 use crate::matrix::IntMatrix;
 
 pub use convex::{ConvexCosts, Pieces, PiecesFault};
+pub use units::Units;
 
 /// Largest absolute value accepted for a matrix entry: `2^31 - 1`, the largest entry of the
 /// completion's vectors (`i32`, without `-2^31` so that every entry can be negated). A unit
@@ -120,6 +122,9 @@ pub struct Model {
     pub variable_names: Vec<String>,
     /// One name per constraint (row).
     pub row_names: Vec<String>,
+    /// How the numbers relate to the model file's own (identity for JSON, TOML and
+    /// scenarios; see [`Units`]).
+    pub units: Units,
 }
 
 impl Model {
@@ -137,6 +142,7 @@ impl Model {
             upper: vec![None; n],
             variable_names: (1..=n).map(|i| format!("x{i}")).collect(),
             row_names: (1..=m).map(|i| format!("r{i}")).collect(),
+            units: Units::default(),
             matrix,
         }
     }

@@ -29,9 +29,12 @@
 //! - Numbers are read as exact decimals. A row whose coefficients or right-hand side have
 //!   decimals is multiplied by the smallest power of ten that makes it integral
 //!   ([`MpsImport::row_scales`]); the cost vector likewise as a whole
-//!   ([`MpsImport::cost_scale`]), so the objective kernstep reports is `10^cost_scale` times
-//!   the file's (and negated for `MAX`). A scaled value beyond the model limits (`2^31 - 1` for
-//!   matrix entries, `2^62` otherwise) is refused, naming the row and the value.
+//!   ([`MpsImport::cost_scale`]), so the objective kernstep solves for is `10^cost_scale` times
+//!   the file's (and negated for `MAX`). The model's [`crate::model::Units`] record this and
+//!   the slacks, so that reports give the file's objective (its sense, exact decimals) and
+//!   plans of the file's columns only. A scaled value beyond the model limits (`2^31 - 1` for
+//!   matrix entries, `2^62` otherwise) is refused, naming the row and the value, and so is a
+//!   cost with more than 38 decimal places (reports could not give the objective exactly).
 //!
 //! Every error is an [`Error::Input`] whose field names the line and the MPS field, for
 //! example `plan.mps: line 12, COLUMNS field 3: "1,5" is not a number`.
@@ -68,7 +71,8 @@ pub struct MpsImport {
 
 impl MpsImport {
     /// The file's objective value for a model objective value: divides by `10^cost_scale`
-    /// and undoes the negation of `MAX`.
+    /// and undoes the negation of `MAX`, as a double (the exact decimal is
+    /// [`crate::model::Units::objective`]).
     pub fn file_objective(&self, model_objective: i128) -> f64 {
         let sign = if self.maximize { -1.0 } else { 1.0 };
         sign * model_objective as f64 / 10f64.powi(self.cost_scale as i32)

@@ -375,5 +375,6 @@ pub(crate) fn build(root: &Node, file: &str) -> Result<Model> {
         upper,
         variable_names,
         row_names,
+        units: super::Units::default(),
     })
 }

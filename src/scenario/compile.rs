@@ -39,6 +39,7 @@ pub(crate) fn model(s: &Scenario) -> Result<Model> {
         upper,
         variable_names,
         row_names,
+        units: crate::model::Units::default(),
     })
 }
 

@@ -5,9 +5,9 @@ use std::fmt::Write;
 
 use super::layout::{wrap_units, wrapped};
 use super::solve::{bound_text, set_text, WIDTH};
-use crate::model::Model;
+use crate::model::{Model, Units};
 use crate::testset::Served;
-use crate::trace::{certificate_words, terms, StepPhase, StepRecord, TraceDocument};
+use crate::trace::{certificate_words, terms, Decimal, StepPhase, StepRecord, TraceDocument};
 
 /// A move column narrower than this moves below the step's numbers.
 const MIN_MOVE_WIDTH: usize = 28;
@@ -29,30 +29,35 @@ pub fn trace_text(
     }
     let mut out = wrapped(&head, WIDTH, 0);
     out.push_str(&wrapped(&format!("moves: {}", set_text(set)), WIDTH, 2));
+    let units = &model.units;
     if let Some(start) = &doc.start {
-        out.push_str(&point_text("start point", start, doc));
+        out.push_str(&point_text("start point", start, doc, units));
     }
     if !doc.steps.is_empty() {
         out.push('\n');
-        out.push_str(&steps_text(&doc.steps, &doc.variables));
+        out.push_str(&steps_text(&doc.steps, units.own(&doc.variables), units));
         out.push('\n');
     }
     if let Some(x) = &doc.x {
-        out.push_str(&point_text("final point", x, doc));
+        out.push_str(&point_text("final point", x, doc, units));
     }
     let _ = writeln!(out, "status: {}", doc.outcome);
     let time = format!("{:.3} ms", doc.seconds * 1e3);
     let _ = writeln!(out, "steps: {} in {time}", doc.steps.len());
-    if let Some(bound) = &doc.bound {
-        let _ = writeln!(out, "dual bound: {}", bound_text(bound));
+    let objective = doc.objective.and_then(Decimal::integer);
+    if let Some((bound, objective)) = doc.bound.as_ref().zip(objective) {
+        if let Some(bound) = bound.in_units(objective, units) {
+            let _ = writeln!(out, "dual bound: {}", bound_text(&bound));
+        }
     }
     let words = certificate_words(&doc.outcome, doc.recheck.as_ref(), model);
     out.push_str(&wrapped(&words, WIDTH, 2));
     out
 }
 
-/// `start point: violation 14, cost 52: +7 brackwater_east, ...`, wrapped.
-fn point_text(label: &str, x: &[i64], doc: &TraceDocument) -> String {
+/// `start point: violation 14, cost 52: +7 brackwater_east, ...`, wrapped; the cost and the
+/// named values in the model file's `units` (its own columns only).
+fn point_text(label: &str, x: &[i64], doc: &TraceDocument, units: &Units) -> String {
     let violation: i128 = x
         .iter()
         .enumerate()
@@ -63,16 +68,16 @@ fn point_text(label: &str, x: &[i64], doc: &TraceDocument) -> String {
             below + above
         })
         .sum();
-    let cost = doc.cost_at(x);
+    let cost = doc.cost_at(x).and_then(|c| units.objective(c).ok());
     let cost = cost.map_or("beyond 128 bits".to_string(), |c| c.to_string());
     let head = format!("{label}: violation {violation}, cost {cost}:");
-    let mut units: Vec<String> = head.split(' ').map(str::to_string).collect();
-    let entries = terms(x, &doc.variables);
+    let mut words: Vec<String> = head.split(' ').map(str::to_string).collect();
+    let entries = terms(units.own(x), units.own(&doc.variables));
     if entries.is_empty() {
-        units.push("every variable 0".to_string());
+        words.push("every variable 0".to_string());
     }
     let last = entries.len().saturating_sub(1);
-    units.extend(entries.into_iter().enumerate().map(
+    words.extend(entries.into_iter().enumerate().map(
         |(i, e)| {
             if i < last {
                 format!("{e},")
@@ -82,24 +87,42 @@ fn point_text(label: &str, x: &[i64], doc: &TraceDocument) -> String {
         },
     ));
     let mut out = String::new();
-    for line in wrap_units(units.iter().map(String::as_str), WIDTH, 2) {
+    for line in wrap_units(words.iter().map(String::as_str), WIDTH, 2) {
         let _ = writeln!(out, "{line}");
     }
     out
 }
 
-/// The step table: numbers in aligned columns, the signed move by name on the right.
-fn steps_text(steps: &[StepRecord], names: &[String]) -> String {
+/// A step's values before and after it and its gain: a violation as it is, a cost in the
+/// file's `units` (the gain, an improvement, stays positive).
+fn step_values(step: &StepRecord, units: &Units) -> [String; 3] {
+    let cost = step.phase == StepPhase::Cost;
+    let value = |v: Decimal| match v.integer().filter(|_| cost) {
+        Some(v) => units
+            .objective(v)
+            .map_or_else(|_| v.to_string(), |f| f.to_string()),
+        None => v.to_string(),
+    };
+    let gain = (step.gain.integer().filter(|_| cost))
+        .and_then(|g| Decimal::scaled(g, units.cost_scale))
+        .unwrap_or(step.gain);
+    [value(step.before), value(step.after), gain.to_string()]
+}
+
+/// The step table: numbers in aligned columns (costs in the file's `units`), the signed move
+/// by name on the right (the columns `names` names: the file's own).
+fn steps_text(steps: &[StepRecord], names: &[String], units: &Units) -> String {
     let rows: Vec<[String; 6]> = steps
         .iter()
         .map(|s| {
+            let [before, after, gain] = step_values(s, units);
             [
                 s.step.to_string(),
                 phase_name(s.phase).to_string(),
                 s.length.to_string(),
-                s.before.to_string(),
-                s.after.to_string(),
-                s.gain.to_string(),
+                before,
+                after,
+                gain,
             ]
         })
         .collect();
@@ -129,7 +152,10 @@ fn steps_text(steps: &[StepRecord], names: &[String]) -> String {
     let _ = writeln!(out, "{}move (signed; added `length` times)", line(header));
     for (row, step) in rows.iter().zip(steps) {
         let cells = [0, 1, 2, 3, 4, 5].map(|i| row[i].as_str());
-        let lines = move_lines(&terms(&step.direction, names), WIDTH - prefix);
+        let lines = move_lines(
+            &terms(&step.direction[..names.len()], names),
+            WIDTH - prefix,
+        );
         let _ = writeln!(out, "{}{}", line(cells), lines[0]);
         for rest in &lines[1..] {
             let _ = writeln!(out, "{:prefix$}{rest}", "");
@@ -146,7 +172,7 @@ fn stacked_text(steps: &[StepRecord], rows: &[[String; 6]], names: &[String]) ->
         let _ = writeln!(out, "  before  {}", row[3]);
         let _ = writeln!(out, "  after   {}", row[4]);
         let _ = writeln!(out, "  gain    {}", row[5]);
-        let lines = move_lines(&terms(&step.direction, names), WIDTH - 10);
+        let lines = move_lines(&terms(&step.direction[..names.len()], names), WIDTH - 10);
         let _ = writeln!(out, "  move    {}", lines[0]);
         for rest in &lines[1..] {
             let _ = writeln!(out, "{:10}{rest}", "");

@@ -9,7 +9,7 @@ use crate::bound::{DualBound, Multipliers};
 use crate::certify::{judge, Answer};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
-use crate::model::Model;
+use crate::model::{Model, Units};
 use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
 /// A solve's verdict with its dual bound, its independent re-check and the answer they
@@ -74,13 +74,13 @@ pub(crate) struct Reported {
 /// Solves `model` with `prepared` from `start` and certifies the verdict ([`certify`]): the
 /// sequence behind the solve and the trace documents. `constant` is what the whole objective
 /// adds to the solver's (a change price's, see [`crate::solve::ChangePrice::constant`]; else
-/// 0): the bound's document is that of the whole objective.
+/// 0): the bound's document is that of the whole objective, written in `units`.
 pub(crate) fn solve_reported(
     prepared: &Prepared,
     model: &Model,
     options: &augment::Options,
-    start: Option<&WarmStart>,
-    constant: i128,
+    (start, constant): (Option<&WarmStart>, i128),
+    units: &Units,
     cancel: &dyn Fn() -> bool,
 ) -> Result<Reported> {
     let verdict = prepared.solve(model, options, start, cancel)?;
@@ -95,7 +95,7 @@ pub(crate) fn solve_reported(
         bound: verdict
             .optimum()
             .zip(bound.as_ref())
-            .map(|((cost, _), b)| whole_bound(b, cost, constant))
+            .map(|((cost, _), b)| whole_bound(b, (cost, constant), units))
             .transpose()?,
         verdict,
         recheck,
@@ -104,7 +104,11 @@ pub(crate) fn solve_reported(
 
 /// The document of `bound`, a bound of the solver's objective, for the whole objective: both
 /// the bound and the cost `cost` plus `constant`.
-fn whole_bound(bound: &DualBound, cost: i128, constant: i128) -> Result<BoundDoc> {
+fn whole_bound(
+    bound: &DualBound,
+    (cost, constant): (i128, i128),
+    units: &Units,
+) -> Result<BoundDoc> {
     let whole = cost
         .checked_add(constant)
         .ok_or_else(|| crate::Error::Overflow("the plan cost with its change price".into()))?;
@@ -112,5 +116,5 @@ fn whole_bound(bound: &DualBound, cost: i128, constant: i128) -> Result<BoundDoc
         value: &bound.value + num_rational::BigRational::from_integer(constant.into()),
         multipliers: bound.multipliers.clone(),
     };
-    Ok(BoundDoc::of(&shifted, whole))
+    Ok(BoundDoc::of(&shifted, whole, units))
 }

@@ -5,6 +5,10 @@
 //! final plan, each step's `before`/`after` is the violation (phase `feasibility`) or the cost
 //! `c.x + sum_i p_i(x_i)` (phase `cost`; `c.x` without convex costs) of the points on either
 //! side, and `gain = before - after`.
+//!
+//! Every number is the model's as kernstep solves it: for a model read from MPS, with the
+//! slack columns, the cost scaled to integers and minimised ([`crate::model::Units`]). The
+//! solve document and the words of `kernstep trace` give the file's own objective.
 
 use std::collections::BTreeMap;
 
@@ -19,7 +23,7 @@ use super::decimal::Decimal;
 use super::outcome::{sign_number, Outcome};
 use super::recheck::Recheck;
 use crate::error::{Error, Result};
-use crate::model::{ConvexCosts, Model, Pieces};
+use crate::model::{ConvexCosts, Model, Pieces, Units};
 use crate::network::Step;
 use crate::solve::{Numbers, Prepared, Verdict, WarmStart};
 
@@ -133,7 +137,14 @@ pub fn record(
         recheck,
         outcome,
         bound,
-    } = solve_reported(prepared, model, &options.trace(true), warm, 0, cancel)?;
+    } = solve_reported(
+        prepared,
+        model,
+        &options.trace(true),
+        (warm, 0),
+        &Units::default(),
+        cancel,
+    )?;
     let moves = prepared.moves();
     let mut document = TraceDocument {
         schema: TRACE_SCHEMA.to_string(),
@@ -170,12 +181,12 @@ pub fn record(
         (Verdict::Solved(solution), Some(moves)) => {
             let trace = solution.trace.as_deref().unwrap_or_default();
             document.steps = step_records(trace, moves);
-            document.objective = solution.objective.map(Decimal);
+            document.objective = solution.objective.map(Decimal::from);
         }
         (Verdict::Flow(f), _) => {
             let trace = f.solution.trace.as_deref().unwrap_or_default();
             document.steps = cycle_records(trace, model.variables())?;
-            document.objective = verdict.optimum().map(|(cost, _)| Decimal(cost));
+            document.objective = verdict.optimum().map(|(cost, _)| Decimal::from(cost));
         }
         _ => {}
     }
@@ -183,7 +194,7 @@ pub fn record(
         let problem = Numbers::of(model).problem()?;
         document.start = Some(start_of(x, &document.steps)?);
         document.x = Some(x.to_vec());
-        document.violation = Some(Decimal(problem.violation(x)?));
+        document.violation = Some(Decimal::from(problem.violation(x)?));
         document.seconds = verdict.elapsed().as_secs_f64();
     }
     Ok(document)
@@ -241,9 +252,9 @@ fn step_records(trace: &[TraceStep], moves: &augment::MoveSet) -> Vec<StepRecord
                 .iter()
                 .map(|&v| v * s.sign.factor())
                 .collect(),
-            before: Decimal(s.before),
-            after: Decimal(s.after),
-            gain: Decimal(s.gain),
+            before: Decimal::from(s.before),
+            after: Decimal::from(s.after),
+            gain: Decimal::from(s.gain),
         })
         .collect()
 }
@@ -266,9 +277,9 @@ fn cycle_records(trace: &[Step], width: usize) -> Result<Vec<StepRecord>> {
                 sign: 1,
                 length,
                 direction: s.cycle.vector(width),
-                before: Decimal(s.before),
-                after: Decimal(s.after),
-                gain: Decimal(s.before - s.after),
+                before: Decimal::from(s.before),
+                after: Decimal::from(s.after),
+                gain: Decimal::from(s.before - s.after),
             })
         })
         .collect()

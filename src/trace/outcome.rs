@@ -104,7 +104,7 @@ impl Outcome {
             },
             Answer::Infeasible(Proof::NoLatticePointInBox { min_violation }) => {
                 Outcome::NoLatticePointInBox {
-                    min_violation: Decimal(*min_violation),
+                    min_violation: Decimal::from(*min_violation),
                 }
             }
             Answer::Infeasible(Proof::Cut { weights }) => {
@@ -115,7 +115,7 @@ impl Outcome {
                 }
             }
             Answer::Unknown { violation } => Outcome::InfeasibleUnproven {
-                violation: Decimal(*violation),
+                violation: Decimal::from(*violation),
             },
             Answer::Unbounded(ray) => Outcome::Unbounded {
                 move_index: ray.move_index,
@@ -150,7 +150,7 @@ mod tests {
         let text = serde_json::to_string(&Outcome::OptimalForMovesUpTo { norm: 12 }).unwrap();
         assert_eq!(text, r#"{"tag":"optimal_for_moves_up_to","norm":12}"#);
         let text = serde_json::to_string(&Outcome::NoLatticePointInBox {
-            min_violation: Decimal(3),
+            min_violation: Decimal::from(3),
         })
         .unwrap();
         assert_eq!(

@@ -91,12 +91,12 @@ fn panels(doc: &TraceDocument) -> Vec<Series> {
         ..blank(phase)
     };
     let feasibility = series(&doc.steps, StepPhase::Feasibility).or_else(|| {
-        let violation = doc.violation.filter(|v| v.0 > 0)?;
-        Some(alone(StepPhase::Feasibility, violation.0))
+        let violation = doc.violation.filter(|v| v.parts().0 > 0)?;
+        Some(alone(StepPhase::Feasibility, violation.parts().0))
     });
     let cost = series(&doc.steps, StepPhase::Cost).or_else(|| {
         doc.bound.as_ref()?;
-        Some(alone(StepPhase::Cost, doc.objective?.0))
+        Some(alone(StepPhase::Cost, doc.objective?.parts().0))
     });
     feasibility.into_iter().chain(cost).collect()
 }
@@ -145,11 +145,11 @@ fn blank(phase: StepPhase) -> Series {
 fn series(steps: &[StepRecord], phase: StepPhase) -> Option<Series> {
     let first = steps.iter().position(|s| s.phase == phase)?;
     Some(Series {
-        start: (step_number(first), steps[first].before.0),
+        start: (step_number(first), steps[first].before.parts().0),
         points: steps
             .iter()
             .filter(|s| s.phase == phase)
-            .map(|s| (step_number(s.step), s.after.0))
+            .map(|s| (step_number(s.step), s.after.parts().0))
             .collect(),
         ..blank(phase)
     })

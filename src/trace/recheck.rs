@@ -201,7 +201,7 @@ pub fn recheck(
     if let Some((row, value)) = matrix.first_unmet_row(&solution.x, numbers.rhs) {
         let defect = Defect::OffFibre {
             row,
-            value: Decimal(value),
+            value: Decimal::from(value),
             rhs: numbers.rhs[row],
         };
         return Ok(Some(Recheck::of_point(claim, 0, defect)));
@@ -268,7 +268,7 @@ fn bound_check(
     if let Some((row, value)) = matrix.first_unmet_row(x, numbers.rhs) {
         let defect = Defect::OffFibre {
             row,
-            value: Decimal(value),
+            value: Decimal::from(value),
             rhs: numbers.rhs[row],
         };
         return Ok(Recheck::of_point(claim, 0, defect));
@@ -350,7 +350,7 @@ fn optimality(problem: &Problem, moves: &Checker, x: &[i64]) -> Result<Recheck> 
         } => Some(SignedMove {
             move_index,
             sign: sign_number(sign),
-            gain: Decimal(gain),
+            gain: Decimal::from(gain),
         }),
     };
     Ok(Recheck {
@@ -366,7 +366,7 @@ fn violation(problem: &Problem, moves: &Checker, x: &[i64]) -> Result<Recheck> {
     let counterexample = moves.violation_decrease(problem, x)?.map(|d| SignedMove {
         move_index: d.move_index,
         sign: sign_number(d.sign),
-        gain: Decimal(d.amount),
+        gain: Decimal::from(d.amount),
     });
     Ok(Recheck {
         claim: Claim::NoViolationDecrease,
@@ -462,7 +462,7 @@ mod tests {
         let expected = SignedMove {
             move_index: 0,
             sign: 1,
-            gain: Decimal(4),
+            gain: Decimal::from(4),
         };
         assert_eq!(bad.counterexample, Some(expected));
     }
@@ -476,7 +476,7 @@ mod tests {
         assert!(!check.holds);
         let defect = Defect::OffFibre {
             row: 2,
-            value: Decimal(5),
+            value: Decimal::from(5),
             rhs: 6,
         };
         assert_eq!(check.defect, Some(defect));

@@ -109,17 +109,20 @@ pub struct SolveDocument {
     pub status: Outcome,
     /// The dual bound of a partial set's plan.
     pub bound: Option<BoundDoc>,
-    /// The cost at `x`, once inside the box.
+    /// The cost at `x`, once inside the box, in the model file's own sense and units
+    /// ([`crate::model::Units`]: a maximising MPS file's maximum, with its decimals).
     pub objective: Option<Decimal>,
     /// The total bound violation at `x`.
     pub violation: Option<Decimal>,
-    /// The point reached (`null` without an integer solution), each value a decimal string.
+    /// The point reached (`null` without an integer solution), over the file's own columns
+    /// (an MPS file's slacks left out), each value a decimal string.
     #[serde(with = "crate::trace::decimal::text_option_vec")]
     #[schemars(with = "Option<Vec<Decimal>>")]
     pub x: Option<Vec<i64>>,
-    /// The instance's right-hand side.
+    /// The instance's right-hand side, as the model holds it (an MPS file's rows scaled to
+    /// integers).
     pub rhs: Vec<i64>,
-    /// Variable names, one per column.
+    /// Variable names, one per entry of `x`.
     pub variables: Vec<String>,
     /// Steps per phase.
     pub steps: StepCounts,
@@ -164,7 +167,14 @@ pub fn solve_document(
         recheck,
         outcome,
         bound,
-    } = solve_reported(prepared, solved, options, start, constant, cancel)?;
+    } = solve_reported(
+        prepared,
+        solved,
+        options,
+        (start, constant),
+        &model.units,
+        cancel,
+    )?;
     let (x, objective, violation) = reached(solved, &verdict)?;
     let objective = objective
         .map(|o| o.checked_add(constant).ok_or_else(too_large))
@@ -174,6 +184,7 @@ pub fn solve_document(
         None => None,
     };
     let (feasibility, cost) = verdict.steps();
+    let units = &model.units;
     Ok(SolveDocument {
         schema: SOLVE_SCHEMA.to_string(),
         model: context.model.to_string(),
@@ -181,11 +192,11 @@ pub fn solve_document(
         warm_start: context.warm.is_some(),
         status: outcome,
         bound,
-        objective: objective.map(Decimal),
-        violation: violation.map(Decimal),
-        x,
+        objective: objective.map(|o| units.objective(o)).transpose()?,
+        violation: violation.map(Decimal::from),
+        x: x.map(|x| units.own(&x).to_vec()),
         rhs: model.rhs.clone(),
-        variables: model.variable_names.clone(),
+        variables: units.own(&model.variable_names).to_vec(),
         steps: StepCounts { feasibility, cost },
         seconds: verdict.elapsed().as_secs_f64(),
         coverage: context.set.coverage,
@@ -241,7 +252,14 @@ impl<'a> PricedSolve<'a> {
         let (price, numbers) = (self.change.price, Numbers::of(self.plain));
         let priced = price.priced_figures(numbers, self.previous, optimum)?;
         let unpriced = if self.change.compare {
-            let plain = solve_reported(prepared, self.plain, options, start, 0, cancel)?;
+            let plain = solve_reported(
+                prepared,
+                self.plain,
+                options,
+                (start, 0),
+                &self.plain.units,
+                cancel,
+            )?;
             plain
                 .verdict
                 .optimum()
@@ -281,7 +299,9 @@ struct PreviousPlan {
 }
 
 /// The plan of a previous solve (or trace) document `text`, checked against `model`
-/// (`A x = rhs`); `origin` names the document in errors.
+/// (`A x = rhs`); `origin` names the document in errors. A plan of the file's own columns (a
+/// solve document of an MPS model) gets its slacks back from the rows
+/// ([`crate::model::Units::complete_plan`]).
 pub fn read_warm_start(text: &str, origin: &str, model: &Model) -> Result<WarmStart> {
     let bad = |field: &str, message: String| Error::Input {
         file: origin.to_string(),
@@ -311,6 +331,7 @@ pub fn read_warm_start(text: &str, origin: &str, model: &Model) -> Result<WarmSt
             "the previous solve has no plan to start from".to_string(),
         ));
     };
+    let x = model.units.complete_plan(model, &previous.rhs, x, origin)?;
     let warm = WarmStart {
         rhs: previous.rhs,
         x,

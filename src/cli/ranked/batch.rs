@@ -9,6 +9,7 @@ use std::process::ExitCode;
 use std::time::Instant;
 
 use kernstep::formats::batch::{write_records, DayRecord, RunSummary, Tally};
+use kernstep::model::Model;
 use kernstep::scenario::DayResult;
 use kernstep::solve::ParsedLine;
 use kernstep::testset::Served;
@@ -31,16 +32,26 @@ pub fn block(days: Vec<ParsedLine>, ranks: Ranks) -> Vec<ParsedLine> {
 /// of all days; every rank returns the exit code of all days.
 pub fn finish(
     args: &BatchArgs,
-    (set, names): (&Served, &[String]),
+    (set, model): (&Served, &Model),
     results: &[DayResult],
     started: Instant,
     ranks: Ranks,
 ) -> anyhow::Result<ExitCode> {
     report_failures(results);
-    let records: Vec<DayRecord> = results.iter().map(|r| DayRecord::of(r, names)).collect();
+    let (names, units) = (&model.variable_names, &model.units);
+    let records: Vec<DayRecord> = results
+        .iter()
+        .map(|r| DayRecord::of(r, names, units))
+        .collect();
     let mut body = Vec::new();
     let first = ranks.rank == 0;
-    write_records(&mut body, args.format.layout(), &records, names, first)?;
+    write_records(
+        &mut body,
+        args.format.layout(),
+        &records,
+        units.own(names),
+        first,
+    )?;
     let gathered = ranks.gather_bytes(&body)?;
     let mine = serde_json::to_string(&Tally::of(&records))?;
     let mut tally = Tally::default();

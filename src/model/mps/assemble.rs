@@ -6,7 +6,8 @@ use super::reader::{ColumnBounds, Entry, Raw, RawColumn, RowKind};
 use super::{MpsImport, Origin, MAX_DENSE_ENTRIES};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
-use crate::model::{Model, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
+use crate::model::{Model, Units, MATRIX_ENTRY_LIMIT, VALUE_LIMIT};
+use crate::trace::decimal::MAX_PLACES;
 
 /// The slack variable of one constraint row: `coefficient * s` is added to the row and
 /// `0 <= s <= upper`.
@@ -63,6 +64,11 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
     let variable_names = variable_names(raw, &slacks, origin)?;
     let mut full_cost = cost;
     full_cost.resize(variable_names.len(), 0);
+    let units = Units {
+        maximize: raw.maximize,
+        cost_scale,
+        added_columns: slacks.len(),
+    };
     let model = Model {
         convex: crate::model::ConvexCosts::default(),
         change_cost: Vec::new(),
@@ -76,6 +82,7 @@ pub(super) fn assemble(raw: &Raw, origin: Origin<'_>) -> Result<MpsImport> {
             .iter()
             .map(|r| raw.rows[r.file_row].name.clone())
             .collect(),
+        units,
     };
     Ok(MpsImport {
         model,
@@ -214,6 +221,12 @@ fn cost(raw: &Raw, by_row: &[Vec<(usize, Entry)>], origin: Origin<'_>) -> Result
     };
     let entries = &by_row[objective];
     let scale = places(entries.iter().map(|(_, e)| &e.value));
+    if let Some((_, deepest)) = entries.iter().find(|(_, e)| e.value.places() > MAX_PLACES) {
+        let message = format!(
+            "a cost with {scale} decimal places; reports hold at most {MAX_PLACES}, so the objective could not be given exactly"
+        );
+        return Err(origin.at(deepest.line, "COLUMNS", message));
+    }
     for (j, entry) in entries {
         let what = format!("the cost of {:?}", raw.columns[*j].name);
         let at = (entry.line, "COLUMNS");
