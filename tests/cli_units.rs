@@ -169,6 +169,35 @@ fn trace_words_give_the_files_costs_without_slacks() {
     }
 }
 
+/// The trace document stays the model's (it replays exactly) and says how the model relates
+/// to the file, with the file's objective beside the model's.
+#[test]
+fn trace_documents_give_the_units_and_the_files_objective() {
+    let cache = tempfile::tempdir().unwrap();
+    for case in &CASES {
+        let model = fixture(case.file);
+        let args = ["trace", model.to_str().unwrap(), "--build", "--json"];
+        let doc: Value = serde_json::from_str(&expect(cache.path(), &args, 0)).unwrap();
+        assert_eq!(
+            doc["file_objective"],
+            json!(case.objective),
+            "{}",
+            case.file
+        );
+        let units = &doc["units"];
+        let scale = units["cost_scale"].as_u64().unwrap();
+        let model_objective: i128 = doc["objective"].as_str().unwrap().parse().unwrap();
+        // The model's objective is the file's times 10^scale, negated for MAX.
+        let sign = if units["maximize"] == true { -1 } else { 1 };
+        let file: f64 = case.objective.parse().unwrap();
+        let expected = sign as f64 * file * 10f64.powi(scale as i32);
+        assert!((model_objective as f64 - expected).abs() < 1e-6, "{doc}");
+        let added = units["added_columns"].as_u64().unwrap() as usize;
+        let variables = doc["variables"].as_array().unwrap();
+        assert_eq!(variables.len() - added, case.plan.len(), "{}", case.file);
+    }
+}
+
 #[test]
 fn batch_records_give_the_files_objective_and_columns() {
     let cache = tempfile::tempdir().unwrap();

@@ -266,6 +266,13 @@ fn every_verb_output_validates_against_its_schema() {
     .concat();
     check.output("solve --price-curve", &run(c, &curve, &[0]).0);
     check.output("trace", &run(c, &["trace", &transport, "--json"], &[0]).0);
+    // An MPS file that maximises with decimal costs: the file's units beside the model's.
+    let stall = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/units/market_stall.mps");
+    let stall = stall.display().to_string();
+    for verb in ["solve", "trace"] {
+        let args = [verb, &stall, "--build", "--json"];
+        check.output(&format!("{verb} mps"), &run(c, &args, &[0]).0);
+    }
 
     // batch: records and summary, a chain priced against the day before, and a day that fails.
     let (stdout, _) = run(c, &["batch", &lanes, &days, "--build"], &[0, 1]);

@@ -19,6 +19,7 @@
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Signed;
+use schemars::JsonSchema;
 
 use super::Model;
 use crate::error::{Error, Result};
@@ -26,7 +27,9 @@ use crate::trace::decimal::point_text;
 use crate::trace::Decimal;
 
 /// How a model's objective and columns relate to its file's (see the module documentation).
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[derive(
+    Clone, Copy, Debug, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize, JsonSchema,
+)]
 pub struct Units {
     /// The file maximises; the model's cost is the file's negated.
     pub maximize: bool,

@@ -111,6 +111,15 @@ pub struct TraceDocument {
     pub x: Option<Vec<i64>>,
     /// The cost at `x`, once phase II was reached.
     pub objective: Option<Decimal>,
+    /// How the model relates to its file when it is not in the file's own units (an MPS
+    /// file that maximises, writes costs with decimals or needed slack columns, which are
+    /// the last `added_columns` variables); every other field is the model's, so that the
+    /// trace replays exactly. Omitted for a model in its file's units.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub units: Option<Units>,
+    /// `objective` in the file's own sense and units, when `units` is given.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub file_objective: Option<Decimal>,
     /// The total bound violation at `x`.
     pub violation: Option<Decimal>,
     /// How the solve ended.
@@ -170,6 +179,8 @@ pub fn record(
         steps: Vec::new(),
         x: None,
         objective: None,
+        units: (!model.units.is_identity()).then_some(model.units),
+        file_objective: None,
         violation: None,
         outcome,
         bound,
@@ -189,6 +200,10 @@ pub fn record(
             document.objective = verdict.optimum().map(|(cost, _)| Decimal::from(cost));
         }
         _ => {}
+    }
+    let model_objective = document.objective.and_then(Decimal::integer);
+    if let (Some(units), Some(value)) = (document.units, model_objective) {
+        document.file_objective = Some(units.objective(value)?);
     }
     if let Some(x) = verdict.point() {
         let problem = Numbers::of(model).problem()?;
