@@ -95,6 +95,47 @@ fn chained_records_give_plan_cost_and_change_cost_against_the_day_before() {
         previous = today;
     }
     assert_eq!(priced_days, 5);
+
+    // The CSV results carry the same figures in their change columns (empty for the first
+    // day and the infeasible ones).
+    let csv_args = [&args[..], &["--format", "csv"]].concat();
+    let (csv, _) = expect(cache.path(), &csv_args, 1);
+    let mut reader = csv::Reader::from_reader(csv.as_bytes());
+    let header = reader.headers().unwrap().clone();
+    assert_eq!(
+        header.iter().skip(9).take(8).collect::<Vec<_>>(),
+        [
+            "plan_cost",
+            "change_cost",
+            "changed",
+            "moved",
+            "unpriced_plan_cost",
+            "unpriced_change_cost",
+            "unpriced_changed",
+            "unpriced_moved"
+        ]
+    );
+    let rows: Vec<csv::StringRecord> = reader.records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), records.len());
+    for (row, r) in rows.iter().zip(&records) {
+        let cells: Vec<&str> = row.iter().collect();
+        let cell = |figures: &Value, key: &str| match &figures[key] {
+            Value::Null => String::new(),
+            Value::String(s) => s.clone(),
+            other => other.to_string(),
+        };
+        let (priced, unpriced) = (&r["change"]["priced"], &r["change"]["unpriced"]);
+        let want: Vec<String> = ["plan_cost", "change_cost", "changed", "moved"]
+            .iter()
+            .map(|k| cell(priced, k))
+            .chain(
+                ["plan_cost", "change_cost", "changed", "moved"]
+                    .iter()
+                    .map(|k| cell(unpriced, k)),
+            )
+            .collect();
+        assert_eq!(cells[9..17], want, "{row:?}");
+    }
 }
 
 #[test]

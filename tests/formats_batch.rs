@@ -7,9 +7,10 @@ use proptest_cases::Class;
 use std::borrow::Cow;
 
 use kernstep::formats::batch::{
-    read_csv, read_jsonl, write_csv_header, write_csv_rows, write_jsonl, DayRecord, DayStatus,
-    Plan, Tally,
+    read_csv, read_jsonl, write_csv_header, write_csv_rows, write_jsonl, ChangeColumns, DayRecord,
+    DayStatus, Plan, Tally,
 };
+use kernstep::solve::{PlanFigures, Stability};
 use kernstep::trace::Decimal;
 use proptest::prelude::*;
 
@@ -34,6 +35,7 @@ prop_compose! {
         bound in proptest::option::of(any::<i64>()),
         steps in proptest::option::of(any::<u32>()),
         micros in 0u32..10_000_000,
+        change in proptest::option::of((figures(), proptest::option::of(figures()))),
     ) -> DayRecord<'static> {
         let names = names();
         let plan = answer.as_ref().map(|(_, x)| Plan(
@@ -48,7 +50,24 @@ prop_compose! {
         r.steps = steps.map(u64::from);
         r.seconds = f64::from(micros) / 1e6;
         r.plan = plan;
+        r.change = change.map(|(priced, unpriced)| Stability { priced, unpriced });
         r
+    }
+}
+
+prop_compose! {
+    fn figures()(
+        plan_cost in any::<i64>(),
+        change_cost in 0i64..i64::MAX,
+        changed in 0usize..1_000,
+        moved in any::<u64>(),
+    ) -> PlanFigures {
+        PlanFigures {
+            plan_cost: i128::from(plan_cost),
+            change_cost: i128::from(change_cost),
+            changed,
+            moved: u128::from(moved),
+        }
     }
 }
 
@@ -75,19 +94,31 @@ proptest! {
     }
 
     /// CSV: every field back as written (seconds to the microsecond the CSV keeps, and an
-    /// empty day name reads as none: CSV has no null).
+    /// empty day name reads as none: CSV has no null), the change figures as far as the
+    /// columns hold them (none without a price, the priced plan's with one, the unpriced
+    /// plan's too when compared).
     #[test]
-    fn csv_reads_back_what_it_wrote(records in prop::collection::vec(record(), 0..8)) {
+    fn csv_reads_back_what_it_wrote(
+        records in prop::collection::vec(record(), 0..8),
+        columns in prop::sample::select(vec![
+            ChangeColumns::None, ChangeColumns::Priced, ChangeColumns::Compared,
+        ]),
+    ) {
         let names = names();
         let mut text = Vec::new();
-        write_csv_header(&mut text, &names).unwrap();
-        write_csv_rows(&mut text, &records, &names).unwrap();
+        write_csv_header(&mut text, &names, columns).unwrap();
+        write_csv_rows(&mut text, &records, &names, columns).unwrap();
         let back = read_csv(text.as_slice(), "results.csv").unwrap();
         prop_assert_eq!(back.len(), records.len());
         for (got, want) in back.iter().zip(&records) {
             let mut want = want.clone();
             want.day = want.day.filter(|d| !d.is_empty());
             want.detail = want.detail.filter(|d| !d.is_empty());
+            want.change = match columns {
+                ChangeColumns::None => None,
+                ChangeColumns::Priced => want.change.map(|c| Stability { unpriced: None, ..c }),
+                ChangeColumns::Compared => want.change,
+            };
             prop_assert!((got.seconds - want.seconds).abs() < 1e-6);
             want.seconds = got.seconds;
             prop_assert_eq!(got, &want);

@@ -13,7 +13,7 @@ use std::sync::atomic::Ordering;
 use std::time::Instant;
 
 use clap::{Args, ValueEnum};
-use kernstep::formats::batch::{self, DayRecord, Layout, RunSummary, Tally};
+use kernstep::formats::batch::{self, ChangeColumns, DayRecord, Layout, RunSummary, Tally};
 use kernstep::formats::tagged;
 use kernstep::input::is_stdin;
 use kernstep::model::Model;
@@ -68,12 +68,20 @@ pub enum Format {
     Csv,
 }
 
+impl BatchArgs {
+    /// The records' layout: the format, with the change-price columns of a priced run.
+    pub fn layout(&self) -> Layout {
+        self.format.layout(self.change_cost.is_some(), self.compare)
+    }
+}
+
 impl Format {
-    /// The library's layout.
-    pub fn layout(self) -> Layout {
+    /// The library's layout, for a run with a change price (`priced`) compared with the plan
+    /// without it (`compared`).
+    pub fn layout(self, priced: bool, compared: bool) -> Layout {
         match self {
             Format::Jsonl => Layout::Jsonl,
-            Format::Csv => Layout::Csv,
+            Format::Csv => Layout::Csv(ChangeColumns::of(priced, compared)),
         }
     }
 }
@@ -122,7 +130,7 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
     let summary = RunSummary::new(tally, &set, args.threads.map(capped_threads), wall);
     let mut body = Vec::new();
     let own = units.own(names);
-    batch::write_records(&mut body, args.format.layout(), &records, own, true)?;
+    batch::write_records(&mut body, args.layout(), &records, own, true)?;
     emit(args, &body, &summary)?;
     Ok(ExitCode::from(code))
 }

@@ -21,7 +21,7 @@ use crate::certify::{Answer, Limit, Proof};
 use crate::error::{Error, Result};
 use crate::model::Units;
 use crate::scenario::{DayOutcome, DayResult};
-use crate::solve::{Stability, Verdict};
+use crate::solve::{PlanFigures, Stability, Verdict};
 use crate::testset::{Served, Source};
 use crate::trace::decimal::Lenient;
 use crate::trace::Decimal;
@@ -333,9 +333,103 @@ fn infeasible_detail(proof: &Proof) -> String {
 pub enum Layout {
     /// One JSON object per day ([`write_jsonl`]).
     Jsonl,
-    /// A header and one row per day, the plan one column per variable ([`write_csv_rows`]).
-    Csv,
+    /// A header and one row per day, the plan one column per variable ([`write_csv_rows`]),
+    /// with the change-price columns a priced run needs.
+    Csv(ChangeColumns),
 }
+
+/// The change-price columns of CSV results, between `detail` and the variables: none for a
+/// run without a change price, the priced plan's figures ([`CHANGE_COLUMNS`]) for a priced
+/// run, and the unpriced plan's too ([`UNPRICED_COLUMNS`]) when it is compared.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum ChangeColumns {
+    /// No change price.
+    #[default]
+    None,
+    /// A change price: plan cost, change cost, variables changed, units moved.
+    Priced,
+    /// A change price compared with the plan without it: the same four figures for each.
+    Compared,
+}
+
+impl ChangeColumns {
+    /// The columns of a run with a change price (`priced`), compared with the unpriced plan
+    /// (`compared`).
+    pub fn of(priced: bool, compared: bool) -> Self {
+        match (priced, compared) {
+            (false, _) => ChangeColumns::None,
+            (true, false) => ChangeColumns::Priced,
+            (true, true) => ChangeColumns::Compared,
+        }
+    }
+
+    /// The column names, in order.
+    fn names(self) -> &'static [&'static str] {
+        match self {
+            ChangeColumns::None => &[],
+            ChangeColumns::Priced => &CHANGE_COLUMNS,
+            ChangeColumns::Compared => &CHANGE_AND_UNPRICED_COLUMNS,
+        }
+    }
+
+    /// The columns a CSV header names after the fixed ones.
+    fn of_header(after_fixed: &[&str]) -> Self {
+        if after_fixed.starts_with(&CHANGE_AND_UNPRICED_COLUMNS) {
+            ChangeColumns::Compared
+        } else if after_fixed.starts_with(&CHANGE_COLUMNS) {
+            ChangeColumns::Priced
+        } else {
+            ChangeColumns::None
+        }
+    }
+
+    /// The cells of a record's change figures (empty when it has none, as the first day of
+    /// a chain).
+    fn cells(self, change: Option<&Stability>) -> Vec<String> {
+        let figures = |f: Option<&PlanFigures>| -> [String; 4] {
+            match f {
+                Some(f) => [
+                    f.plan_cost.to_string(),
+                    f.change_cost.to_string(),
+                    f.changed.to_string(),
+                    f.moved.to_string(),
+                ],
+                None => Default::default(),
+            }
+        };
+        let priced = change.map(|c| &c.priced);
+        let unpriced = change.and_then(|c| c.unpriced.as_ref());
+        match self {
+            ChangeColumns::None => Vec::new(),
+            ChangeColumns::Priced => figures(priced).to_vec(),
+            ChangeColumns::Compared => [figures(priced), figures(unpriced)].concat(),
+        }
+    }
+}
+
+/// The change-price columns of a priced run's CSV results.
+pub const CHANGE_COLUMNS: [&str; 4] = ["plan_cost", "change_cost", "changed", "moved"];
+
+/// The change-price columns of a compared run's CSV results: the priced plan's, then the
+/// unpriced plan's.
+pub const UNPRICED_COLUMNS: [&str; 4] = [
+    "unpriced_plan_cost",
+    "unpriced_change_cost",
+    "unpriced_changed",
+    "unpriced_moved",
+];
+
+/// [`CHANGE_COLUMNS`] then [`UNPRICED_COLUMNS`].
+const CHANGE_AND_UNPRICED_COLUMNS: [&str; 8] = [
+    CHANGE_COLUMNS[0],
+    CHANGE_COLUMNS[1],
+    CHANGE_COLUMNS[2],
+    CHANGE_COLUMNS[3],
+    UNPRICED_COLUMNS[0],
+    UNPRICED_COLUMNS[1],
+    UNPRICED_COLUMNS[2],
+    UNPRICED_COLUMNS[3],
+];
 
 /// Writes `records` in `layout`, plans over `names`; `first` when they start the output (a
 /// CSV then starts with its header; a later part of the same run, as another MPI rank
@@ -349,11 +443,11 @@ pub fn write_records(
 ) -> io::Result<()> {
     match layout {
         Layout::Jsonl => write_jsonl(out, records),
-        Layout::Csv if first => {
-            write_csv_header(out, names)?;
-            write_csv_rows(out, records, names)
+        Layout::Csv(change) if first => {
+            write_csv_header(out, names, change)?;
+            write_csv_rows(out, records, names, change)
         }
-        Layout::Csv => write_csv_rows(out, records, names),
+        Layout::Csv(change) => write_csv_rows(out, records, names, change),
     }
 }
 
@@ -400,22 +494,29 @@ const CSV_COLUMNS: [&str; 9] = [
     "detail",
 ];
 
-/// Writes the CSV header: the fixed columns, then one per variable.
-pub fn write_csv_header(out: &mut impl Write, names: &[String]) -> io::Result<()> {
+/// Writes the CSV header: the fixed columns, the `change` columns, then one per variable.
+pub fn write_csv_header(
+    out: &mut impl Write,
+    names: &[String],
+    change: ChangeColumns,
+) -> io::Result<()> {
     let mut writer = csv::Writer::from_writer(out);
     let header = CSV_COLUMNS
         .iter()
+        .chain(change.names())
         .copied()
         .chain(names.iter().map(String::as_str));
     writer.write_record(header)?;
     writer.flush()
 }
 
-/// Writes one CSV row per record (no header), the plan dense over `names`.
+/// Writes one CSV row per record (no header): the fixed cells, the `change` cells, then the
+/// plan dense over `names`.
 pub fn write_csv_rows(
     out: &mut impl Write,
     records: &[DayRecord<'_>],
     names: &[String],
+    change: ChangeColumns,
 ) -> io::Result<()> {
     let mut writer = csv::Writer::from_writer(out);
     let text = |v: Option<String>| v.unwrap_or_default();
@@ -431,6 +532,7 @@ pub fn write_csv_rows(
             format!("{:.6}", r.seconds),
             text(r.detail.clone()),
         ];
+        row.extend(change.cells(r.change.as_ref()));
         match &r.plan {
             Some(plan) => row.extend(
                 plan.dense(names)
@@ -462,17 +564,18 @@ pub fn read_csv(input: impl std::io::Read, origin: &str) -> Result<Vec<DayRecord
             message: format!("the header must start with {}", CSV_COLUMNS.join(",")),
         });
     }
-    let names: Vec<String> = header
+    let after_fixed: Vec<&str> = header.iter().skip(CSV_COLUMNS.len()).collect();
+    let change = ChangeColumns::of_header(&after_fixed);
+    let names: Vec<String> = after_fixed[change.names().len()..]
         .iter()
-        .skip(CSV_COLUMNS.len())
-        .map(String::from)
+        .map(|n| n.to_string())
         .collect();
     let mut records = Vec::new();
     for row in reader.records() {
         let row = row.map_err(|e| csv_error(origin, e))?;
         let line = row.position().map_or(0, |p| p.line());
         records.push(
-            csv_record(&row, &names).map_err(|(column, message)| Error::Input {
+            csv_record(&row, &names, change).map_err(|(column, message)| Error::Input {
                 file: origin.to_string(),
                 field: format!("line {line}, column {column}"),
                 message,
@@ -486,6 +589,7 @@ pub fn read_csv(input: impl std::io::Read, origin: &str) -> Result<Vec<DayRecord
 fn csv_record(
     row: &csv::StringRecord,
     names: &[String],
+    change: ChangeColumns,
 ) -> std::result::Result<DayRecord<'static>, (&'static str, String)> {
     let cell = |i: usize| row.get(i).filter(|c| !c.is_empty());
     fn parsed<T: std::str::FromStr>(
@@ -499,11 +603,39 @@ fn csv_record(
         .transpose()
     }
     let status = cell(2).unwrap_or_default();
+    let figures = |at: usize| -> std::result::Result<Option<PlanFigures>, (&'static str, String)> {
+        let Some(plan_cost) = parsed("plan_cost", cell(at))? else {
+            return Ok(None);
+        };
+        let missing = |column: &'static str| (column, "missing".to_string());
+        Ok(Some(PlanFigures {
+            plan_cost,
+            change_cost: parsed("change_cost", cell(at + 1))?.ok_or(missing("change_cost"))?,
+            changed: parsed("changed", cell(at + 2))?.ok_or(missing("changed"))?,
+            moved: parsed("moved", cell(at + 3))?.ok_or(missing("moved"))?,
+        }))
+    };
+    let first_change = CSV_COLUMNS.len();
+    let stability = match change {
+        ChangeColumns::None => None,
+        ChangeColumns::Priced => figures(first_change)?.map(|priced| Stability {
+            priced,
+            unpriced: None,
+        }),
+        ChangeColumns::Compared => match figures(first_change)? {
+            Some(priced) => Some(Stability {
+                priced,
+                unpriced: figures(first_change + CHANGE_COLUMNS.len())?,
+            }),
+            None => None,
+        },
+    };
+    let first_variable = first_change + change.names().len();
     let plan: Vec<(Cow<'static, str>, i64)> = names
         .iter()
         .enumerate()
         .map(|(k, name)| {
-            let value = parsed::<i64>("plan", cell(CSV_COLUMNS.len() + k))?;
+            let value = parsed::<i64>("plan", cell(first_variable + k))?;
             Ok((Cow::Owned(name.clone()), value.unwrap_or(0)))
         })
         .collect::<std::result::Result<_, _>>()?;
@@ -520,7 +652,7 @@ fn csv_record(
         steps: parsed("steps", cell(6))?,
         seconds: parsed("seconds", cell(7))?.unwrap_or(0.0),
         plan: objective.map(|_| Plan(plan.into_iter().filter(|(_, v)| *v != 0).collect())),
-        change: None,
+        change: stability,
     })
 }
 

@@ -45,13 +45,7 @@ pub fn finish(
         .collect();
     let mut body = Vec::new();
     let first = ranks.rank == 0;
-    write_records(
-        &mut body,
-        args.format.layout(),
-        &records,
-        units.own(names),
-        first,
-    )?;
+    write_records(&mut body, args.layout(), &records, units.own(names), first)?;
     let gathered = ranks.gather_bytes(&body)?;
     let mine = serde_json::to_string(&Tally::of(&records))?;
     let mut tally = Tally::default();
