@@ -62,8 +62,8 @@ fn build_key(output: &Output) -> String {
         text(&output.stdout),
         text(&output.stderr)
     );
-    let rows: Value = serde_json::from_slice(&output.stdout).expect("one JSON summary");
-    rows[0]["key"].as_str().unwrap().to_string()
+    let summary: Value = serde_json::from_slice(&output.stdout).expect("one JSON summary");
+    summary["models"][0]["key"].as_str().unwrap().to_string()
 }
 
 #[test]
@@ -223,7 +223,8 @@ fn a_rank_that_dies_stores_nothing_and_the_build_completes_later() {
         "--cache-dir",
         cache,
     ]);
-    let rows: Value = serde_json::from_slice(&again.stdout).unwrap();
+    let summary: Value = serde_json::from_slice(&again.stdout).unwrap();
+    let rows = &summary["models"];
     assert!(
         rows[0]["status"].as_str().unwrap().starts_with("built"),
         "{rows}"
