@@ -206,6 +206,23 @@ fn solve_prices_changes_against_the_warm_start() {
         assert!(n(&a["plan_cost"]) < n(&b["plan_cost"]), "{curve}");
         assert!(n(&a["moved"]) > n(&b["moved"]), "{curve}");
     }
+    // The plot marks each piece with the price where it starts, the table's prices.
+    let svg_path = dir.path().join("curve.svg");
+    let svg_arg = svg_path.display().to_string();
+    day(
+        "2026-03-03",
+        &[&priced[..], &["--price-curve", "20", "--svg", &svg_arg]].concat(),
+    );
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    let tree = roxmltree::Document::parse(&svg).expect("the plot is XML");
+    let marks: Vec<String> = tree
+        .descendants()
+        .filter(|n| n.tag_name().name() == "text")
+        .filter_map(|n| n.text())
+        .filter_map(|t| t.trim().strip_prefix("from ").map(String::from))
+        .collect();
+    let prices: Vec<&str> = pieces.iter().map(|p| p["from"].as_str().unwrap()).collect();
+    assert_eq!(marks, prices, "{svg}");
 }
 
 #[test]

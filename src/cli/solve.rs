@@ -2,14 +2,16 @@
 //! print the plan with its certificate.
 
 use std::io::{self, Write};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
 use kernstep::formats::published::PriceCurve;
 use kernstep::formats::tagged;
 use kernstep::text::{curve_text, solve_summary};
-use kernstep::trace::Outcome;
+use kernstep::trace::{curve_plot, Outcome};
 
+use super::common::write_atomically;
 use super::instance::{cancelled, InstanceArgs};
 
 /// Arguments of `solve`.
@@ -31,6 +33,9 @@ pub struct SolveArgs {
     /// found exactly (the price of stability) instead of one solve.
     #[arg(long, value_name = "MAX", requires = "change_cost")]
     pub price_curve: Option<i64>,
+    /// With --price-curve: also draw the curve (plan cost against units moved) as SVG.
+    #[arg(long, value_name = "FILE", requires = "price_curve")]
+    pub svg: Option<PathBuf>,
 }
 
 /// Solves the instance, re-checks the claim and prints the result.
@@ -40,6 +45,13 @@ pub fn run(args: &SolveArgs) -> anyhow::Result<ExitCode> {
         .load(args.change_cost.map(|w| (w, args.compare)))?;
     if let Some(top) = args.price_curve {
         let pieces = instance.stability_curve(top)?;
+        if let Some(path) = &args.svg {
+            let title = match &instance.variant {
+                Some(id) => format!("price of stability: {} / {id}", instance.path),
+                None => format!("price of stability: {}", instance.path),
+            };
+            write_atomically(path, curve_plot(&pieces, &title)?.as_bytes())?;
+        }
         let text = match args.json {
             false => curve_text(&pieces),
             true => tagged::pretty(&PriceCurve { pieces })? + "\n",

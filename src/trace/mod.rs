@@ -5,6 +5,8 @@
 
 mod bound;
 mod certified;
+#[cfg(feature = "plot")]
+mod curve_plot;
 pub mod decimal;
 mod document;
 mod instance;
@@ -18,6 +20,8 @@ mod words;
 
 pub use bound::BoundDoc;
 pub use certified::{certify, Certified};
+#[cfg(feature = "plot")]
+pub use curve_plot::curve_plot;
 pub use decimal::Decimal;
 pub use document::{record, PiecesDoc, StepPhase, StepRecord, TraceDocument, TRACE_SCHEMA};
 pub use instance::Instance;

@@ -243,7 +243,7 @@ fn value_extent(panel: &Series) -> (i128, i128) {
 
 /// `low..high` widened by about 8% of its length on each side (at least 1), so that no point
 /// sits on the frame.
-fn padded(low: i128, high: i128) -> Range<i128> {
+pub(super) fn padded(low: i128, high: i128) -> Range<i128> {
     let pad = (high.abs_diff(low) / 12).max(1);
     let pad = i128::try_from(pad).unwrap_or(i128::MAX);
     low.saturating_sub(pad)..high.saturating_add(pad)
@@ -253,7 +253,7 @@ fn padded(low: i128, high: i128) -> Range<i128> {
 /// the smallest step of the form 1, 2 or 5 times a power of ten that puts at most `most`
 /// (at least 1) of them in the range, in increasing order; `low` alone where that step has no
 /// multiple in the range (a range of one value, or a narrow range and `most` = 1).
-fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
+pub(super) fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
     let most = u128::try_from(most.max(1)).unwrap_or(u128::MAX);
     let mut decade: i128 = 1;
     loop {
@@ -277,7 +277,10 @@ fn integer_ticks(low: i128, high: i128, most: usize) -> Vec<i128> {
     }
 }
 
-fn draw_error<E: std::error::Error + Send + Sync + 'static>(e: DrawingAreaErrorKind<E>) -> Error {
+/// A drawing failure as the library's error.
+pub(super) fn draw_error<E: std::error::Error + Send + Sync + 'static>(
+    e: DrawingAreaErrorKind<E>,
+) -> Error {
     Error::Unsupported(format!("drawing the plot: {e}"))
 }
 
