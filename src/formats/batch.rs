@@ -23,6 +23,7 @@ use crate::model::Units;
 use crate::scenario::{DayOutcome, DayResult};
 use crate::solve::{PlanFigures, Stability, Verdict};
 use crate::testset::{Served, Source};
+use crate::text::in_file_sense;
 use crate::trace::decimal::Lenient;
 use crate::trace::Decimal;
 
@@ -247,7 +248,7 @@ impl<'a> DayRecord<'a> {
             day: result.id.as_deref().map(Cow::Borrowed),
             line: result.line,
             status: DayStatus::judged(result, judged.as_ref()),
-            detail: detail(result, judged.as_ref()),
+            detail: detail(result, judged.as_ref()).map(|d| in_file_sense(d, units)),
             objective: objective.and_then(|o| units.objective(o).ok()),
             bound,
             gap,

@@ -8,6 +8,7 @@ mod build;
 mod inventory;
 mod layout;
 mod progress;
+mod sense;
 mod solve;
 mod trace;
 
@@ -19,5 +20,6 @@ pub use inventory::{
 };
 pub use layout::{cell, count_moves, labelled, pairs, table, wrap, wrap_units, wrapped};
 pub use progress::{duration_text, progress_text};
+pub use sense::in_file_sense;
 pub use solve::{bound_text, curve_text, set_text, solve_summary};
 pub use trace::trace_text;

@@ -6,6 +6,7 @@ use std::fmt::Write;
 use augment::Coverage;
 
 use super::layout::{count_moves, pairs, table, wrapped};
+use super::sense::in_file_sense;
 use crate::model::Model;
 use crate::scenario::CurvePiece;
 use crate::solve::{PlanFigures, Stability};
@@ -98,7 +99,8 @@ pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base
         "cold (integer solution of A x = b)"
     };
     rows.push(("start".to_string(), start.to_string()));
-    rows.push(("status".to_string(), doc.status.to_string()));
+    let status = in_file_sense(doc.status.to_string(), &model.units);
+    rows.push(("status".to_string(), status));
     if doc.x.is_some() {
         match (doc.objective, doc.violation) {
             (Some(objective), _) => {
@@ -107,7 +109,10 @@ pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base
                     rows.extend(change_rows(change));
                 }
                 if let Some(bound) = &doc.bound {
-                    rows.push(("dual bound".to_string(), bound_text(bound)));
+                    rows.push((
+                        "dual bound".to_string(),
+                        in_file_sense(bound_text(bound), &model.units),
+                    ));
                 }
             }
             (None, violation) => rows.push((
@@ -133,7 +138,7 @@ pub fn solve_summary(doc: &SolveDocument, set: &Served, model: &Model, from_base
     }
     out.push('\n');
     let words = certificate_words(&doc.status, doc.recheck.as_ref(), model);
-    out.push_str(&wrapped(&words, WIDTH, 2));
+    out.push_str(&wrapped(&in_file_sense(words, &model.units), WIDTH, 2));
     out
 }
 

@@ -4,6 +4,7 @@
 use std::fmt::Write;
 
 use super::layout::{wrap_units, wrapped};
+use super::sense::in_file_sense;
 use super::solve::{bound_text, set_text, WIDTH};
 use crate::model::{Model, Units};
 use crate::testset::Served;
@@ -41,17 +42,19 @@ pub fn trace_text(
     if let Some(x) = &doc.x {
         out.push_str(&point_text("final point", x, doc, units));
     }
-    let _ = writeln!(out, "status: {}", doc.outcome);
+    let status = in_file_sense(doc.outcome.to_string(), units);
+    let _ = writeln!(out, "status: {status}");
     let time = format!("{:.3} ms", doc.seconds * 1e3);
     let _ = writeln!(out, "steps: {} in {time}", doc.steps.len());
     let objective = doc.objective.and_then(Decimal::integer);
     if let Some((bound, objective)) = doc.bound.as_ref().zip(objective) {
         if let Some(bound) = bound.in_units(objective, units) {
-            let _ = writeln!(out, "dual bound: {}", bound_text(&bound));
+            let bound = in_file_sense(bound_text(&bound), units);
+            let _ = writeln!(out, "dual bound: {bound}");
         }
     }
     let words = certificate_words(&doc.outcome, doc.recheck.as_ref(), model);
-    out.push_str(&wrapped(&words, WIDTH, 2));
+    out.push_str(&wrapped(&in_file_sense(words, units), WIDTH, 2));
     out
 }
 
