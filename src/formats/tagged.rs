@@ -1,6 +1,7 @@
 //! The JSON contract: every document and record kernstep prints for other programs is an
 //! object whose `schema` field names its layout and version (`kernstep.<name>/<version>`),
-//! and each layout has a published JSON Schema generated from its type ([`super::published::published`]).
+//! and each layout has a published JSON Schema generated from its type
+//! ([`super::published::published`]).
 //!
 //! Layouts that carry their own `schema` field (solve, trace and progress documents) are
 //! [`Document`]s as they are; the others are printed inside a [`Tagged`] envelope, which
