@@ -49,6 +49,8 @@ fn list_shows_one_row_per_entry_with_counts() {
     // The 15 cycles of K_{3,3} (standard count: 9 four-cycles + 6 six-cycles).
     assert_eq!(transport["elements"], 15);
     assert_eq!(transport["encoding"], "trit");
+    // Each entry names the model file whose build stored it.
+    assert_eq!(transport["model"], "transport_3x3.json");
 
     let table = expect(dir.path(), &["cache", "list"], 0);
     let lines: Vec<&str> = table.lines().collect();
@@ -58,6 +60,7 @@ fn list_shows_one_row_per_entry_with_counts() {
         lines[0].split_whitespace().collect::<Vec<_>>(),
         [
             "key",
+            "model",
             "kind",
             "width",
             "elements",
@@ -114,6 +117,7 @@ fn show_prints_key_metadata_counts_encoding_and_size() {
         [
             "key",
             "file",
+            "model",
             "kind",
             "signs",
             "truncation",
@@ -190,11 +194,19 @@ fn export_equals_the_build_out_file_of_the_same_model() {
             "digest", "elements", "format", "key", "metadata", "version", "width",
         ];
         assert_eq!(fields(&file), listed, "{model}");
-        assert_eq!(
-            without_build_times(exported),
-            without_build_times(file),
-            "{model}"
-        );
+        // The stored entry names the model whose build stored it; a file written by --out
+        // names none.
+        let mut exported = without_build_times(exported);
+        let name = exported["metadata"]
+            .as_object_mut()
+            .unwrap()
+            .remove("model");
+        let file_name = Path::new(&model).file_name().unwrap().to_str().unwrap();
+        assert_eq!(name, Some(Value::from(file_name)), "{model}");
+        let mut file = without_build_times(file);
+        let none = file["metadata"].as_object_mut().unwrap().remove("model");
+        assert_eq!(none, Some(Value::Null), "{model}");
+        assert_eq!(exported, file, "{model}");
     }
 }
 

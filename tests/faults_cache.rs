@@ -297,7 +297,7 @@ fn byte_flips(f: &Fixture, tally: &mut Tally) {
 }
 
 fn foreign_version_and_renamed(f: &Fixture, tally: &mut Tally) {
-    for version in [1u16, 3] {
+    for version in [1u16, 4] {
         let mut other = f.good[0].clone();
         other[8..10].copy_from_slice(&version.to_le_bytes());
         tally.record(&format!("format version {version}"), f.damage(0, &other));
@@ -447,6 +447,7 @@ fn synthetic_metadata(created: u64) -> SetMetadata {
         build_seconds: 0.0,
         kernstep_version: "0.1.0".into(),
         created_unix: created,
+        model: None,
     }
 }
 

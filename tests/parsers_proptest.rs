@@ -339,6 +339,7 @@ fn stored_entry() -> (tempfile::TempDir, Store, EntryKey, Vec<u8>) {
         build_seconds: 0.0,
         kernstep_version: "0.1.0".into(),
         created_unix: 0,
+        model: None,
     };
     let set = TestSetData::new(3, vec![1, -1, 0, 1, 0, -1, 0, 1, -1]).unwrap();
     let BuildGuard::Build(lock) = store.lock_for_build(&key).unwrap() else {

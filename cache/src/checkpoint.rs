@@ -134,7 +134,13 @@ fn read_checkpoint_file(path: &Path) -> Result<Option<Vec<u8>>, CacheError> {
     let mut bytes = vec![0u8; HEAD];
     let got = read_up_to(&mut file, &mut bytes, path)?;
     bytes.truncate(got);
-    check_magic_version(&bytes, path, &CHECKPOINT_MAGIC, "checkpoint", VERSION)?;
+    check_magic_version(
+        &bytes,
+        path,
+        &CHECKPOINT_MAGIC,
+        "checkpoint",
+        VERSION..=VERSION,
+    )?;
     if bytes.len() < HEAD {
         return Err(too_short(path, HEAD + TRAILER, bytes.len()));
     }
@@ -156,7 +162,13 @@ fn decode_checkpoint<'a>(
     path: &Path,
     named: Digest,
 ) -> Result<&'a [u8], CacheError> {
-    check_magic_version(bytes, path, &CHECKPOINT_MAGIC, "checkpoint", VERSION)?;
+    check_magic_version(
+        bytes,
+        path,
+        &CHECKPOINT_MAGIC,
+        "checkpoint",
+        VERSION..=VERSION,
+    )?;
     if bytes.len() < HEAD + TRAILER {
         return Err(too_short(path, HEAD + TRAILER, bytes.len()));
     }

@@ -1,11 +1,12 @@
-//! The entry file format, version 2 (`<digest-hex>.kset`).
+//! The entry file format, version 3 (`<digest-hex>.kset`); version 2, whose metadata ends
+//! before the model's name, is still read.
 //!
 //! All integers are little-endian. Offsets in bytes:
 //!
 //! ```text
 //! offset  size  field
 //!      0     8  magic: 0x89 'K' 'S' 'E' 'T' 0x0D 0x0A 0x1A
-//!      8     2  format version (u16) = 2
+//!      8     2  format version (u16) = 3 (2 is read)
 //!     10     1  element encoding tag (see `encoding`: 0 Trit, 1 i8, 2 i16, 3 i32, 4 i64)
 //!     11     1  flags, must be 0
 //!     12    16  key digest (XXH3-128 of the canonical key encoding, see `key`)
@@ -52,8 +53,12 @@ use crate::seal::{Provenance, Secret, SEAL_LEN};
 
 /// First eight bytes of every entry file.
 pub const ENTRY_MAGIC: [u8; 8] = [0x89, b'K', b'S', b'E', b'T', 0x0D, 0x0A, 0x1A];
-/// The entry format version this build reads and writes.
-pub const FORMAT_VERSION: u16 = 2;
+/// The entry format version this build writes. Version 3 added the model's name at the end
+/// of the metadata ([`SetMetadata::model`]); version 2 entries are still read (without it).
+pub const FORMAT_VERSION: u16 = 3;
+
+/// The oldest entry format version this build reads.
+const OLDEST_READ: u16 = 2;
 /// Bytes before the key section.
 pub const HEADER_LEN: usize = 68;
 /// Bytes of the checksum.
@@ -67,6 +72,7 @@ const SECTION_LIMIT: usize = 1 << 28;
 /// The fixed-size header, parsed.
 #[derive(Clone, Debug)]
 pub(crate) struct Header {
+    pub version: u16,
     pub encoding: ElementEncoding,
     pub digest: Digest,
     pub family: u64,
@@ -232,7 +238,7 @@ pub(crate) fn decode_entry(
     let key_end = HEADER_LEN + header.key_len;
     let meta_end = key_end + header.meta_len;
     let key = decode_key(&bytes[HEADER_LEN..key_end], &header, path, named)?;
-    let metadata = decode_section(&bytes[key_end..meta_end], path, "metadata")?;
+    let metadata = decode_metadata(&bytes[key_end..meta_end], &header, path)?;
     let data = decode_payload(&bytes[meta_end..body.len()], &header, &key, path)?;
     let seal: &[u8; SEAL_LEN] = seal.try_into().expect("the seal's length");
     Ok(DecodedEntry {
@@ -264,7 +270,7 @@ pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheEr
         .map_err(|e| CacheError::io("read", path, e))?;
     let (key_bytes, meta_bytes) = sections.split_at(header.key_len);
     let key = decode_key(key_bytes, &header, path, named)?;
-    let metadata = decode_section(meta_bytes, path, "metadata")?;
+    let metadata = decode_metadata(meta_bytes, &header, path)?;
     Ok(EntryHead {
         header,
         key,
@@ -275,7 +281,13 @@ pub(crate) fn read_head(path: &Path, named: Digest) -> Result<EntryHead, CacheEr
 
 /// Checks magic, version, flags and encoding tag, then parses the fixed header.
 pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheError> {
-    check_magic_version(bytes, path, &ENTRY_MAGIC, WHAT, FORMAT_VERSION)?;
+    let version = check_magic_version(
+        bytes,
+        path,
+        &ENTRY_MAGIC,
+        WHAT,
+        OLDEST_READ..=FORMAT_VERSION,
+    )?;
     if bytes.len() < HEADER_LEN {
         return Err(too_short(path, HEADER_LEN, bytes.len()));
     }
@@ -292,6 +304,7 @@ pub(crate) fn parse_header(bytes: &[u8], path: &Path) -> Result<Header, CacheErr
         return Err(malformed("unknown flags are set"));
     }
     Ok(Header {
+        version,
         encoding,
         digest: Digest(bytes[12..28].try_into().expect("16 bytes")),
         family: u64_at(28),
@@ -309,8 +322,8 @@ pub(crate) fn check_magic_version(
     path: &Path,
     magic: &[u8; 8],
     what: &'static str,
-    supported: u16,
-) -> Result<(), CacheError> {
+    supported: std::ops::RangeInclusive<u16>,
+) -> Result<u16, CacheError> {
     let present = bytes.len().min(magic.len());
     if bytes[..present] != magic[..present] {
         return Err(CacheError::BadMagic {
@@ -322,14 +335,14 @@ pub(crate) fn check_magic_version(
         return Err(too_short(path, 10, bytes.len()));
     }
     let found = u16::from_le_bytes([bytes[8], bytes[9]]);
-    if found != supported {
+    if !supported.contains(&found) {
         return Err(CacheError::UnsupportedVersion {
             path: path.to_owned(),
             found,
-            supported,
+            supported: *supported.end(),
         });
     }
-    Ok(())
+    Ok(found)
 }
 
 /// The error for a file that ends before `needed` bytes.
@@ -451,6 +464,19 @@ fn decode_section<T: DeserializeOwned>(
     Ok(value)
 }
 
+/// The metadata section of an entry of `header`'s version. Version 2 ended before the
+/// model's name; its section reads as one whose name is absent (bincode writes `None` as one
+/// zero byte), so the one layout serves both.
+fn decode_metadata(bytes: &[u8], header: &Header, path: &Path) -> Result<SetMetadata, CacheError> {
+    if header.version >= 3 {
+        return decode_section(bytes, path, "metadata");
+    }
+    let mut extended = Vec::with_capacity(bytes.len() + 1);
+    extended.extend_from_slice(bytes);
+    extended.push(0);
+    decode_section(&extended, path, "metadata")
+}
+
 fn to_u64(n: usize, what: &'static str) -> Result<u64, CacheError> {
     u64::try_from(n).map_err(|_| CacheError::Overflow { what })
 }
@@ -462,7 +488,7 @@ fn to_u32(n: usize, what: &'static str) -> Result<u32, CacheError> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::{Completeness, ElementEncoding, SetKind, Sign};
+    use crate::{Completeness, ElementEncoding, SetKind, Sign, Truncation};
 
     /// The stored bytes of the enumerations do not depend on how JSON spells them: bincode
     /// writes a variant as its index (a one-byte varint below 251; bincode 2 specification,
@@ -479,6 +505,71 @@ mod tests {
         let path = Path::new("k.kset");
         let read: Completeness = decode_section(&[2, 7], path, "metadata").unwrap();
         assert_eq!(read, Completeness::NormTruncated { limit: 7 });
+    }
+
+    /// An entry written by format version 2, whose metadata ended before the model's name,
+    /// reads as the same entry with no name (and sealed: the seal covers its own bytes); a
+    /// version 3 entry keeps the name it was given.
+    #[test]
+    fn a_version_2_entry_reads_with_no_model_name() {
+        let key = EntryKey {
+            row_space: "cols=2;1,1".into(),
+            kind: SetKind::Graver,
+            signs: vec![Sign::Free; 2],
+            truncation: Truncation::default(),
+        };
+        let metadata = SetMetadata {
+            matrix: vec![vec![1, 1]],
+            rank: 1,
+            delta: "1".into(),
+            delta_exact: true,
+            column_number: 1,
+            norm_bound: Some(2),
+            method: "project-and-lift".into(),
+            completeness: Completeness::Complete,
+            build_seconds: 0.5,
+            kernstep_version: "0.1.0".into(),
+            created_unix: 1_700_000_000,
+            model: None,
+        };
+        let data = TestSetData::new(2, vec![1, -1]).unwrap();
+        let secret = Secret::fixed();
+        let path = Path::new("k.kset");
+        let v3 = encode_entry(&key, &data, &metadata, &secret).unwrap();
+        let length = |at: usize| u32::from_le_bytes(v3[at..at + 4].try_into().unwrap()) as usize;
+        let (key_len, meta_len) = (length(52), length(56));
+        let meta_end = HEADER_LEN + key_len + meta_len;
+        assert_eq!(v3[meta_end - 1], 0, "an absent name is one zero byte");
+        // The same entry as version 2 wrote it: no name byte, its own lengths, seal and
+        // checksum.
+        let mut v2 = v3[..v3.len() - TRAILER_LEN].to_vec();
+        v2.remove(meta_end - 1);
+        v2[8..10].copy_from_slice(&2u16.to_le_bytes());
+        v2[56..60].copy_from_slice(&(meta_len as u32 - 1).to_le_bytes());
+        let seal = secret.seal(&v2);
+        v2.extend_from_slice(&seal);
+        let checksum = xxh3_64(&v2);
+        v2.extend_from_slice(&checksum.to_le_bytes());
+        let read = decode_entry(&v2, path, key.digest(), &secret).unwrap();
+        assert_eq!((&read.key, &read.metadata), (&key, &metadata));
+        assert_eq!(read.provenance, Provenance::Sealed);
+        let named = SetMetadata {
+            model: Some("orchard_crates.json".into()),
+            ..metadata
+        };
+        let v3 = encode_entry(&key, &data, &named, &secret).unwrap();
+        let read = decode_entry(&v3, path, key.digest(), &secret).unwrap();
+        assert_eq!(read.metadata, named);
+        let mut v4 = v3.clone();
+        v4[8..10].copy_from_slice(&4u16.to_le_bytes());
+        assert!(matches!(
+            decode_entry(&v4, path, key.digest(), &secret),
+            Err(CacheError::UnsupportedVersion {
+                found: 4,
+                supported: 3,
+                ..
+            })
+        ));
     }
 
     /// A value encoded as a section, behind one object type for the test's table.

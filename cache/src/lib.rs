@@ -44,6 +44,7 @@
 //!     build_seconds: 0.0,
 //!     kernstep_version: "0.1.0".into(),
 //!     created_unix: 0,
+//!     model: None,
 //! };
 //! let set = TestSetData::new(3, vec![1, -1, 0, 1, 0, -1, 0, 1, -1])?;
 //! match store.lock_for_build(&key)? {

@@ -280,6 +280,7 @@ impl Store {
             completeness: head.metadata.completeness,
             size_bytes: head.file_len,
             created_unix: head.metadata.created_unix,
+            model: head.metadata.model,
         })
     }
 

@@ -48,12 +48,25 @@ pub struct SetMetadata {
     pub kernstep_version: String,
     /// Creation time in seconds since the Unix epoch.
     pub created_unix: u64,
+    /// The model the set was built for, as its builder named it (a model file's name), so
+    /// that a listing says which model an entry serves; `None` for entries stored before
+    /// format 3 and for sets built from a bare matrix. Printable (no control characters).
+    #[serde(default)]
+    pub model: Option<String>,
 }
 
 impl SetMetadata {
     /// Checks the fields whose form is fixed: `delta` is a non-negative decimal integer,
     /// `build_seconds` is finite and non-negative, and the matrix rows have equal lengths.
     pub fn validate(&self) -> Result<(), CacheError> {
+        if let Some(model) = &self.model {
+            if model.chars().any(char::is_control) {
+                return Err(CacheError::InvalidInput {
+                    field: "metadata.model",
+                    problem: format!("{model:?} holds a control character"),
+                });
+            }
+        }
         if self.delta.is_empty() || !self.delta.bytes().all(|b| b.is_ascii_digit()) {
             return Err(CacheError::InvalidInput {
                 field: "metadata.delta",

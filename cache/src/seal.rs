@@ -41,6 +41,12 @@ impl std::fmt::Debug for Secret {
 }
 
 impl Secret {
+    /// A fixed secret for unit tests.
+    #[cfg(test)]
+    pub(crate) fn fixed() -> Secret {
+        Secret([7; blake3::KEY_LEN])
+    }
+
     /// The seal of `body`.
     pub(crate) fn seal(&self, body: &[u8]) -> [u8; SEAL_LEN] {
         *blake3::keyed_hash(&self.0, body).as_bytes()

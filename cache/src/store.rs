@@ -75,6 +75,9 @@ pub struct EntrySummary {
     pub size_bytes: u64,
     /// Creation time, seconds since the Unix epoch.
     pub created_unix: u64,
+    /// The model the set was built for, when its builder named it.
+    #[serde(default)]
+    pub model: Option<String>,
 }
 
 impl StoredSet {
@@ -90,6 +93,7 @@ impl StoredSet {
             completeness: self.metadata.completeness.clone(),
             size_bytes: self.size_bytes,
             created_unix: self.metadata.created_unix,
+            model: self.metadata.model.clone(),
         }
     }
 }
@@ -298,6 +302,7 @@ impl Store {
             completeness: metadata.completeness.clone(),
             size_bytes: bytes.len() as u64,
             created_unix: metadata.created_unix,
+            model: metadata.model.clone(),
         })
     }
 

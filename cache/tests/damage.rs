@@ -129,15 +129,15 @@ fn other_version_is_reported_as_such() {
     let (_dir, store) = new_store();
     let k = key("versioned", 4, Truncation::default());
     let good = stored(&store, &k, &transport_like(3, 2, 2, 1));
-    // 1 is the unsealed layout before version 2.
-    for version in [0u16, 1, 3, 0x0100, u16::MAX] {
+    // 1 is the unsealed layout before version 2; 2 and 3 are read.
+    for version in [0u16, 1, 4, 0x0100, u16::MAX] {
         let mut bad = good.clone();
         bad[8..10].copy_from_slice(&version.to_le_bytes());
         fs::write(store.entry_path(k.digest()), &bad).unwrap();
         match store.load(&k) {
             Err(CacheError::UnsupportedVersion {
                 found,
-                supported: 2,
+                supported: 3,
                 ..
             }) => {
                 assert_eq!(found, version)

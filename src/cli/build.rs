@@ -309,7 +309,11 @@ fn run_job(
     let model = PlanInput::load(path)?.into_model();
     let library = match &args.out {
         Some(_) => None,
-        None => Some(args.cache.open()?.checkpoint_every(args.checkpoint_every)),
+        None => Some(
+            args.cache
+                .open_for(path)?
+                .checkpoint_every(args.checkpoint_every),
+        ),
     };
     let destination = match (&args.out, &library) {
         (Some(out), _) => Destination::File(out),

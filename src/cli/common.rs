@@ -31,6 +31,17 @@ impl CacheArgs {
     pub fn open(&self) -> anyhow::Result<SetLibrary> {
         Ok(SetLibrary::open(self.cache_dir.as_deref())?.on_wait(Arc::new(report_wait)))
     }
+
+    /// Opens the cache directory to store the sets of the model read from `model`: its
+    /// entries are labelled with the file's name (`standard input` for `-`).
+    pub fn open_for(&self, model: &Path) -> anyhow::Result<SetLibrary> {
+        let name = match model.file_name() {
+            _ if model.as_os_str() == "-" => "standard input".to_string(),
+            Some(name) => name.to_string_lossy().into_owned(),
+            None => model.display().to_string(),
+        };
+        Ok(self.open()?.for_model(&name))
+    }
 }
 
 /// Says on stderr that a build waits for another build of the same set, and for which one.
@@ -242,7 +253,7 @@ pub fn graver_for(
         // A network needs no cache: open none.
         Ok(Some(served)) => Ok(served),
         Ok(None) => {
-            let library = match cache.open() {
+            let library = match cache.open_for(input) {
                 Ok(library) => Some(library),
                 Err(e) if build_on_miss => {
                     eprintln!(

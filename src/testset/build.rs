@@ -110,6 +110,7 @@ pub fn build(
         created_unix: std::time::SystemTime::now()
             .duration_since(std::time::UNIX_EPOCH)
             .map_or(0, |d| d.as_secs()),
+        model: None,
     };
     Ok(BuildOutcome::Built(Box::new(BuiltSet {
         key,

@@ -6,7 +6,7 @@ use std::time::{Duration, Instant};
 
 use cache::{
     BuildGuard, CheckpointState, Digest, EntryKey, EntrySummary, LockHolder, LockWait, Provenance,
-    Store, StoredSet,
+    SetMetadata, Store, StoredSet,
 };
 
 use super::build::{build, to_data, BuildOutcome, BuiltSet};
@@ -140,6 +140,7 @@ pub struct SetLibrary {
     store: Store,
     checkpoint_every: Duration,
     on_wait: Option<Arc<WaitReport>>,
+    model: Option<String>,
 }
 
 impl std::fmt::Debug for SetLibrary {
@@ -148,6 +149,7 @@ impl std::fmt::Debug for SetLibrary {
             .field("store", &self.store)
             .field("checkpoint_every", &self.checkpoint_every)
             .field("on_wait", &self.on_wait.is_some())
+            .field("model", &self.model)
             .finish()
     }
 }
@@ -178,7 +180,25 @@ impl SetLibrary {
             store: Store::open_default(dir)?,
             checkpoint_every: CHECKPOINT_EVERY,
             on_wait: None,
+            model: None,
         })
+    }
+
+    /// Record `name` (a model file's name) as the model of the entries this library stores,
+    /// so that a listing says which model each serves. A name with control characters is
+    /// left out (it could forge a listing's lines).
+    pub fn for_model(mut self, name: &str) -> Self {
+        self.model = (!name.chars().any(char::is_control)).then(|| name.to_string());
+        self
+    }
+
+    /// `metadata` with this library's model name, unless it names one already.
+    fn labelled(&self, metadata: &SetMetadata) -> SetMetadata {
+        let mut labelled = metadata.clone();
+        if labelled.model.is_none() {
+            labelled.model.clone_from(&self.model);
+        }
+        labelled
     }
 
     /// Tell `report` who holds the lock whenever a build has to wait for another build of
@@ -349,7 +369,7 @@ impl SetLibrary {
             }),
             BuildOutcome::Built(built) => {
                 if built.key == key {
-                    lock.commit(&to_data(&built.set)?, &built.metadata)?;
+                    lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
                 } else {
                     // The completion showed that the truncation cut nothing: the whole set,
                     // stored under its own key.
@@ -412,7 +432,7 @@ impl SetLibrary {
     pub fn keep(&self, built: &BuiltSet) -> Result<Option<String>> {
         let lock = self.store.lock_for_rebuild(&built.key)?;
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        lock.commit(&to_data(&built.set)?, &built.metadata)?;
+        lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
         Ok(replaced)
     }
 
@@ -453,7 +473,7 @@ impl SetLibrary {
             }
         };
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        lock.commit(&to_data(&built.set)?, &built.metadata)?;
+        lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
         Ok(Obtained::Built {
             built: Box::new(built),
             replaced,

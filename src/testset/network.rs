@@ -63,6 +63,7 @@ pub fn cycles_entry(a: &IntMatrix, network: &Network) -> BuiltSet {
         created_unix: std::time::SystemTime::now()
             .duration_since(std::time::UNIX_EPOCH)
             .map_or(0, |d| d.as_secs()),
+        model: None,
     };
     BuiltSet {
         key: cycles_key(a),

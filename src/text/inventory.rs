@@ -19,6 +19,7 @@ pub fn listing_text(listing: &Listing, now: u64) -> String {
         .collect();
     let head = [
         "key",
+        "model",
         "kind",
         "width",
         "elements",
@@ -88,6 +89,7 @@ pub fn short_key(digest: Digest) -> String {
 fn summary_row(s: &EntrySummary, now: u64) -> Vec<String> {
     vec![
         short_key(s.digest),
+        cell(s.model.as_deref()),
         kind_name(s.kind).to_string(),
         s.width.to_string(),
         s.elements.to_string(),
@@ -155,6 +157,7 @@ pub fn entry_text(set: &EntryRecord, now: u64) -> String {
     labelled(vec![
         ("key", set.digest.to_hex()),
         ("file", set.path.clone()),
+        ("model", cell(m.model.as_deref())),
         ("kind", kind_name(set.key.kind).to_string()),
         ("signs", Sign::pattern(&set.key.signs)),
         ("truncation", truncation_text(&set.key.truncation)),
