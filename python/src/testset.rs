@@ -354,13 +354,9 @@ impl PyTestSet {
                 })
             })
             .transpose()?;
-        let name = std::path::Path::new(&model.origin).file_name().map_or_else(
-            || model.origin.clone(),
-            |n| n.to_string_lossy().into_owned(),
-        );
         let library = SetLibrary::open(cache_dir.as_deref())
             .map_err(|e| to_py(py, &e))?
-            .for_model(&name);
+            .for_model_file(std::path::Path::new(&model.origin));
         let job = Job {
             spec: BuildSpec {
                 kind,

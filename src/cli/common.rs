@@ -35,12 +35,7 @@ impl CacheArgs {
     /// Opens the cache directory to store the sets of the model read from `model`: its
     /// entries are labelled with the file's name (`standard input` for `-`).
     pub fn open_for(&self, model: &Path) -> anyhow::Result<SetLibrary> {
-        let name = match model.file_name() {
-            _ if model.as_os_str() == "-" => "standard input".to_string(),
-            Some(name) => name.to_string_lossy().into_owned(),
-            None => model.display().to_string(),
-        };
-        Ok(self.open()?.for_model(&name))
+        Ok(self.open()?.for_model_file(model))
     }
 }
 

@@ -340,8 +340,8 @@ pub enum Layout {
 }
 
 /// The change-price columns of CSV results, between `detail` and the variables: none for a
-/// run without a change price, the priced plan's figures ([`CHANGE_COLUMNS`]) for a priced
-/// run, and the unpriced plan's too ([`UNPRICED_COLUMNS`]) when it is compared.
+/// run without a change price, the priced plan's figures (plan cost, change cost, variables
+/// changed, units moved) for a priced run, and the unpriced plan's too when it is compared.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum ChangeColumns {
     /// No change price.
@@ -368,16 +368,16 @@ impl ChangeColumns {
     fn names(self) -> &'static [&'static str] {
         match self {
             ChangeColumns::None => &[],
-            ChangeColumns::Priced => &CHANGE_COLUMNS,
-            ChangeColumns::Compared => &CHANGE_AND_UNPRICED_COLUMNS,
+            ChangeColumns::Priced => &CHANGE_COLUMNS[..FIGURES],
+            ChangeColumns::Compared => &CHANGE_COLUMNS,
         }
     }
 
     /// The columns a CSV header names after the fixed ones.
     fn of_header(after_fixed: &[&str]) -> Self {
-        if after_fixed.starts_with(&CHANGE_AND_UNPRICED_COLUMNS) {
+        if after_fixed.starts_with(&CHANGE_COLUMNS) {
             ChangeColumns::Compared
-        } else if after_fixed.starts_with(&CHANGE_COLUMNS) {
+        } else if after_fixed.starts_with(&CHANGE_COLUMNS[..FIGURES]) {
             ChangeColumns::Priced
         } else {
             ChangeColumns::None
@@ -408,29 +408,21 @@ impl ChangeColumns {
     }
 }
 
-/// The change-price columns of a priced run's CSV results.
-pub const CHANGE_COLUMNS: [&str; 4] = ["plan_cost", "change_cost", "changed", "moved"];
-
-/// The change-price columns of a compared run's CSV results: the priced plan's, then the
-/// unpriced plan's.
-pub const UNPRICED_COLUMNS: [&str; 4] = [
+/// The change-price columns of CSV results: the priced plan's four (a priced run), then the
+/// unpriced plan's four (a compared run).
+const CHANGE_COLUMNS: [&str; 8] = [
+    "plan_cost",
+    "change_cost",
+    "changed",
+    "moved",
     "unpriced_plan_cost",
     "unpriced_change_cost",
     "unpriced_changed",
     "unpriced_moved",
 ];
 
-/// [`CHANGE_COLUMNS`] then [`UNPRICED_COLUMNS`].
-const CHANGE_AND_UNPRICED_COLUMNS: [&str; 8] = [
-    CHANGE_COLUMNS[0],
-    CHANGE_COLUMNS[1],
-    CHANGE_COLUMNS[2],
-    CHANGE_COLUMNS[3],
-    UNPRICED_COLUMNS[0],
-    UNPRICED_COLUMNS[1],
-    UNPRICED_COLUMNS[2],
-    UNPRICED_COLUMNS[3],
-];
+/// How many of [`CHANGE_COLUMNS`] give one plan's figures.
+const FIGURES: usize = 4;
 
 /// Writes `records` in `layout`, plans over `names`; `first` when they start the output (a
 /// CSV then starts with its header; a later part of the same run, as another MPI rank
@@ -455,7 +447,8 @@ pub fn write_records(
 /// Writes `records` as JSON Lines, one object per line, each with its `schema` field.
 pub fn write_jsonl(out: &mut impl Write, records: &[DayRecord<'_>]) -> io::Result<()> {
     for record in records {
-        writeln!(out, "{}", super::tagged::line(record)?)?;
+        super::tagged::write_line(&mut *out, record)?;
+        writeln!(out)?;
     }
     Ok(())
 }
@@ -626,7 +619,7 @@ fn csv_record(
         ChangeColumns::Compared => match figures(first_change)? {
             Some(priced) => Some(Stability {
                 priced,
-                unpriced: figures(first_change + CHANGE_COLUMNS.len())?,
+                unpriced: figures(first_change + FIGURES)?,
             }),
             None => None,
         },

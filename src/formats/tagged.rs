@@ -29,16 +29,6 @@ pub struct Tagged<T> {
     pub body: T,
 }
 
-impl<T: Document> Tagged<T> {
-    /// `body` with its layout's schema name.
-    pub fn new(body: T) -> Self {
-        Tagged {
-            schema: T::SCHEMA.to_string(),
-            body,
-        }
-    }
-}
-
 impl<T: Document> JsonSchema for Tagged<T> {
     fn schema_name() -> std::borrow::Cow<'static, str> {
         T::schema_name()
@@ -96,6 +86,14 @@ pub fn pretty<T: Document + Serialize>(body: &T) -> serde_json::Result<String> {
 /// `body` as one line of JSON with its `schema` field, as JSON Lines records are written.
 pub fn line<T: Document + Serialize>(body: &T) -> serde_json::Result<String> {
     serde_json::to_string(&Printed::of(body))
+}
+
+/// Writes [`line()`] of `body` to `out`, without its line break (no text in between).
+pub fn write_line<T: Document + Serialize>(
+    out: impl std::io::Write,
+    body: &T,
+) -> serde_json::Result<()> {
+    serde_json::to_writer(out, &Printed::of(body))
 }
 
 /// The JSON Schema of `T`'s printed form: every field the layout prints, its `schema` field

@@ -184,11 +184,16 @@ impl SetLibrary {
         })
     }
 
-    /// Record `name` (a model file's name) as the model of the entries this library stores,
-    /// so that a listing says which model each serves. A name with control characters is
-    /// left out (it could forge a listing's lines).
-    pub fn for_model(mut self, name: &str) -> Self {
-        self.model = (!name.chars().any(char::is_control)).then(|| name.to_string());
+    /// Record the model read from `path` (its file's name; `standard input` for `-`) as the
+    /// model of the entries this library stores, so that a listing says which model each
+    /// serves. A name with control characters is left out (it could forge a listing's lines).
+    pub fn for_model_file(mut self, path: &Path) -> Self {
+        let name = match path.file_name() {
+            _ if path.as_os_str() == "-" => "standard input".to_string(),
+            Some(name) => name.to_string_lossy().into_owned(),
+            None => path.display().to_string(),
+        };
+        self.model = (!name.chars().any(char::is_control)).then_some(name);
         self
     }
 

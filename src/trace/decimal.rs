@@ -1,9 +1,8 @@
 //! Exact decimal values written as decimal strings, so that readers whose numbers are
 //! doubles (JavaScript, spreadsheets) never round a value above `2^53`, and a cost the model
 //! file wrote with decimals (`1.25`) is reported as the file wrote it: [`Decimal`] for values,
-//! and the serde adapters [`text`], [`text_option`], [`text_vec`], [`text_vec_option`] and
-//! [`text_option_vec`] for integer fields (which also read the JSON numbers that layouts
-//! before the JSON contract wrote).
+//! and the serde adapters [`text`] and [`text_option_vec`] for integer fields (which also read
+//! the JSON numbers that layouts before the JSON contract wrote).
 
 use std::cmp::Ordering;
 use std::fmt;
@@ -249,77 +248,7 @@ pub mod text {
     }
 }
 
-/// [`text`] for an optional integer (`null` when absent).
-pub mod text_option {
-    use super::*;
-
-    /// Writes `value` as its decimal digits, or `null`.
-    pub fn serialize<T: fmt::Display, S: Serializer>(
-        value: &Option<T>,
-        s: S,
-    ) -> Result<S::Ok, S::Error> {
-        match value {
-            Some(v) => s.collect_str(v),
-            None => s.serialize_none(),
-        }
-    }
-
-    /// Reads a decimal string, a JSON number or `null`.
-    pub fn deserialize<'de, T, D>(d: D) -> Result<Option<T>, D::Error>
-    where
-        T: std::str::FromStr + TryFrom<i64> + TryFrom<u64> + TryFrom<i128>,
-        D: Deserializer<'de>,
-    {
-        Option::<Lenient<T>>::deserialize(d).map(|o| o.map(|l| l.0))
-    }
-}
-
-/// [`text`] for each integer of a list.
-pub mod text_vec {
-    use super::*;
-
-    /// Writes each value as its decimal digits.
-    pub fn serialize<T: fmt::Display, S: Serializer>(
-        values: &[T],
-        s: S,
-    ) -> Result<S::Ok, S::Error> {
-        s.collect_seq(values.iter().map(|v| v.to_string()))
-    }
-
-    /// Reads a list of decimal strings or JSON numbers.
-    pub fn deserialize<'de, T, D>(d: D) -> Result<Vec<T>, D::Error>
-    where
-        T: std::str::FromStr + TryFrom<i64> + TryFrom<u64> + TryFrom<i128>,
-        D: Deserializer<'de>,
-    {
-        Vec::<Lenient<T>>::deserialize(d).map(|v| v.into_iter().map(|l| l.0).collect())
-    }
-}
-
-/// [`text`] for each entry of a list of optional integers (`null` for an absent one).
-pub mod text_vec_option {
-    use super::*;
-
-    /// Writes each value as its decimal digits, or `null`.
-    pub fn serialize<T: fmt::Display, S: Serializer>(
-        values: &[Option<T>],
-        s: S,
-    ) -> Result<S::Ok, S::Error> {
-        s.collect_seq(values.iter().map(|v| v.as_ref().map(|v| v.to_string())))
-    }
-
-    /// Reads a list of decimal strings, JSON numbers or `null`s.
-    pub fn deserialize<'de, T, D>(d: D) -> Result<Vec<Option<T>>, D::Error>
-    where
-        T: std::str::FromStr + TryFrom<i64> + TryFrom<u64> + TryFrom<i128>,
-        D: Deserializer<'de>,
-    {
-        Vec::<Option<Lenient<T>>>::deserialize(d)
-            .map(|v| v.into_iter().map(|o| o.map(|l| l.0)).collect())
-    }
-}
-
-/// [`text_vec`] for an optional list (`null` when absent).
+/// [`text`] for each integer of an optional list (`null` when absent).
 pub mod text_option_vec {
     use super::*;
 
@@ -398,12 +327,8 @@ mod tests {
     struct Fields {
         #[serde(with = "text")]
         one: i64,
-        #[serde(with = "text_option")]
-        maybe: Option<i128>,
-        #[serde(with = "text_vec")]
-        many: Vec<i64>,
-        #[serde(with = "text_vec_option")]
-        sides: Vec<Option<i64>>,
+        #[serde(with = "text")]
+        wide: i128,
         #[serde(with = "text_option_vec")]
         plan: Option<Vec<i64>>,
     }
@@ -412,23 +337,21 @@ mod tests {
     fn adapters_write_strings_and_read_strings_or_numbers() {
         let fields = Fields {
             one: (1 << 60) + 1,
-            maybe: Some(-(1 << 100)),
-            many: vec![-3, 9_007_199_254_740_993],
-            sides: vec![None, Some(4)],
-            plan: Some(vec![2]),
+            wide: -(1 << 100),
+            plan: Some(vec![-3, 9_007_199_254_740_993]),
         };
         let text = serde_json::to_string(&fields).unwrap();
         assert_eq!(
             text,
-            r#"{"one":"1152921504606846977","maybe":"-1267650600228229401496703205376","many":["-3","9007199254740993"],"sides":[null,"4"],"plan":["2"]}"#
+            r#"{"one":"1152921504606846977","wide":"-1267650600228229401496703205376","plan":["-3","9007199254740993"]}"#
         );
         assert_eq!(serde_json::from_str::<Fields>(&text).unwrap(), fields);
-        let numbers = r#"{"one":7,"maybe":null,"many":[1,-2],"sides":[5,null],"plan":null}"#;
+        let numbers = r#"{"one":7,"wide":-2,"plan":[1,-2]}"#;
         let read: Fields = serde_json::from_str(numbers).unwrap();
-        assert_eq!((read.one, read.maybe), (7, None));
-        assert_eq!((read.many, read.sides), (vec![1, -2], vec![Some(5), None]));
-        let too_big =
-            r#"{"one":"9223372036854775808","maybe":null,"many":[],"sides":[],"plan":[]}"#;
+        assert_eq!((read.one, read.wide, read.plan), (7, -2, Some(vec![1, -2])));
+        let read: Fields = serde_json::from_str(r#"{"one":7,"wide":"0","plan":null}"#).unwrap();
+        assert_eq!(read.plan, None);
+        let too_big = r#"{"one":"9223372036854775808","wide":"0","plan":[]}"#;
         assert!(serde_json::from_str::<Fields>(too_big).is_err());
     }
 }
