@@ -41,7 +41,7 @@ use rayon::prelude::*;
 use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
 use super::control::{Control, StopReason};
 use super::limits::{admits, Truncation};
-use super::reducer::SignMask;
+use super::partners::{marked, Conflicts, Group};
 use super::store::{add_into, norm_on, to_entries, Entry, Stored};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
@@ -75,23 +75,8 @@ pub(crate) struct Lifted {
 /// Members whose pairs are reduced between two checks of the time limit.
 const BATCH: usize = 1024;
 
-/// Members on one side of component `j` with one (norm on `S`, `|v_j|`): their ids and sign
-/// masks on `S` side by side, so that forming the pairs of a member scans one array of masks
-/// in order and reads a partner's entries only when the signs allow the pair.
-struct Group<const W: usize> {
-    ids: Vec<u32>,
-    masks: Vec<SignMask<W>>,
-}
-
-impl<const W: usize> Group<W> {
-    /// The members with their masks, in the order they joined.
-    fn members(&self) -> impl Iterator<Item = (u32, &SignMask<W>)> + '_ {
-        self.ids.iter().copied().zip(&self.masks)
-    }
-}
-
 /// Members on one side of component `j`, grouped by (norm on `S`, `|v_j|`).
-type Groups<const W: usize> = BTreeMap<(u64, u64), Group<W>>;
+type Groups = BTreeMap<(u64, u64), Group>;
 
 /// A result that a limit or a cancellation may have cut short.
 type Run<T> = Result<std::result::Result<T, StopReason>>;
@@ -99,7 +84,7 @@ type Run<T> = Result<std::result::Result<T, StopReason>>;
 /// How a pair of members on opposite sides of `j` is treated.
 #[derive(Clone, Copy, PartialEq, Eq)]
 enum PairKind {
-    /// Not sign-compatible on `S`, or the mirror of a pair processed instead.
+    /// The mirror of a pair processed instead.
     Skipped,
     /// Left out by the truncation.
     Cut,
@@ -113,8 +98,8 @@ struct Lifting<'a, const W: usize, E> {
     width: usize,
     set: WorkingSet<W, E>,
     norms: Vec<u64>,
-    pos: Groups<W>,
-    neg: Groups<W>,
+    pos: Groups,
+    neg: Groups,
     /// When the state was last saved (or the stage started).
     saved_at: Mutex<Instant>,
 }
@@ -288,20 +273,18 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
                 -1 => &mut self.neg,
                 _ => continue,
             };
-            let group = side.entry(key).or_insert_with(|| Group {
-                ids: Vec::new(),
-                masks: Vec::new(),
-            });
-            group.ids.push(id);
-            group.masks.push(SignMask::of(v, self.stage.old));
+            let group = side
+                .entry(key)
+                .or_insert_with(|| Group::new(self.stage.old.len()));
+            group.push(id, v, self.stage.old);
         }
         Ok(())
     }
 
-    /// The sign masks of member `p` on `S` (those of its group; computed again here, once per
-    /// member whose pairs are formed, rather than kept twice).
-    fn mask(&self, p: u32) -> SignMask<W> {
-        SignMask::of(self.set.store.get(p), self.stage.old)
+    /// The slice words that rule partners of member `p` out (see [`Conflicts`]; computed once
+    /// per member whose pairs are formed).
+    fn conflicts(&self, p: u32) -> Conflicts {
+        Conflicts::of(self.set.store.get(p), self.stage.old)
     }
 
     /// The smallest norm level at least `from` that some pair of groups has, if any (levels
@@ -327,12 +310,12 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
 
     /// The pair tasks of norm level `level`: a member and the group of its partners, in a
     /// fixed order (that of the groups).
-    fn level_tasks(&self, level: u64) -> Vec<(u32, &Group<W>)> {
-        let mut tasks: Vec<(u32, &Group<W>)> = Vec::new();
+    fn level_tasks(&self, level: u64) -> Vec<(u32, &Group)> {
+        let mut tasks: Vec<(u32, &Group)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
                 if a + b + x.abs_diff(y) == level && !self.norms_cut(a, b) {
-                    tasks.extend(ps.ids.iter().map(|&p| (p, qs)));
+                    tasks.extend(ps.ids().iter().map(|&p| (p, qs)));
                 }
             }
         }
@@ -360,13 +343,13 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         for batch in tasks.get(done..).unwrap_or_default().chunks(BATCH * size) {
             self.save_if_due(|| point(done, &sums), control);
             let local = control.interrupted();
-            let mine: Vec<&(u32, &Group<W>)> = match local {
+            let mine: Vec<&(u32, &Group)> = match local {
                 Some(_) => Vec::new(),
                 None => batch.iter().skip(rank).step_by(size).collect(),
             };
             let chunks: Vec<Vec<Vec<Entry>>> = mine
                 .par_iter()
-                .map(|&&(p, qs)| self.reduce_pairs(p, qs.members()))
+                .map(|&&(p, qs)| self.reduce_pairs(p, qs.compatible(&self.conflicts(p), u32::MAX)))
                 .collect::<Result<_>>()?;
             let mine = chunks.into_iter().flatten().collect();
             let (all, stop) = control.exchange(self.width, mine, local)?;
@@ -380,23 +363,26 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         Ok(Ok(sums))
     }
 
-    /// Normal forms of the admissible sums of `p` with each of `partners` (ids with their
-    /// sign masks on `S`).
-    fn reduce_pairs<'m>(
+    /// Normal forms of the admissible sums of `p` with each of the partners the blocks mark
+    /// (members sign-compatible with `p` on `S`; see [`Group::compatible`]).
+    fn reduce_pairs<'g>(
         &self,
         p: u32,
-        partners: impl Iterator<Item = (u32, &'m SignMask<W>)>,
+        blocks: impl Iterator<Item = (u64, &'g [u32])>,
     ) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
         let mut w = vec![0; self.width];
-        let mp = self.mask(p);
-        for (q, mq) in partners {
-            if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Formed {
-                continue;
-            }
-            add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
-            if !self.set.reduce(&mut w)? {
-                out.push(w.clone());
+        for (mut bits, ids) in blocks {
+            while bits != 0 {
+                let q = ids[bits.trailing_zeros() as usize];
+                bits &= bits - 1;
+                if self.pair_kind(p, q) != PairKind::Formed {
+                    continue;
+                }
+                add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
+                if !self.set.reduce(&mut w)? {
+                    out.push(w.clone());
+                }
             }
         }
         Ok(out)
@@ -507,12 +493,13 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let x = u64::from(x.unsigned_abs());
         let a = self.norms[e as usize];
         let room = level.saturating_sub(a);
-        let partners = side
+        let before = first_new.max(e);
+        let conflicts = self.conflicts(e);
+        let blocks = side
             .iter()
             .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room && !self.norms_cut(a, b))
-            .flat_map(|(_, group)| group.members())
-            .filter(|&(f, _)| f < first_new || f < e);
-        self.reduce_pairs(e, partners)
+            .flat_map(|(_, group)| group.compatible(&conflicts, before));
+        self.reduce_pairs(e, blocks)
     }
 
     /// Whether every pair the truncation left out reduces to zero against the final working
@@ -520,12 +507,12 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     /// that does not is usually met early.
     fn cut_pairs_vanish(&self, control: &Control<'_>) -> Run<bool> {
         let t = self.stage.truncation;
-        let mut groups: Vec<(u64, u32, &Group<W>)> = Vec::new();
+        let mut groups: Vec<(u64, u32, &Group)> = Vec::new();
         for (&(a, x), ps) in &self.pos {
             for (&(b, y), qs) in &self.neg {
                 if t.bounds.is_some() || self.norms_cut(a, b) {
                     let level = a + b + x.abs_diff(y);
-                    groups.extend(ps.ids.iter().map(|&p| (level, p, qs)));
+                    groups.extend(ps.ids().iter().map(|&p| (level, p, qs)));
                 }
             }
         }
@@ -551,11 +538,10 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
 
     /// Whether some pair of `p` with a member of `qs` that the truncation cut has a nonzero
     /// normal form.
-    fn cut_pair_survives(&self, p: u32, qs: &Group<W>) -> Result<bool> {
+    fn cut_pair_survives(&self, p: u32, qs: &Group) -> Result<bool> {
         let mut w = vec![0; self.width];
-        let mp = self.mask(p);
-        for (q, mq) in qs.members() {
-            if !mp.compatible(mq) || self.pair_kind(p, q) != PairKind::Cut {
+        for q in marked(qs.compatible(&self.conflicts(p), u32::MAX)) {
+            if self.pair_kind(p, q) != PairKind::Cut {
                 continue;
             }
             add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;

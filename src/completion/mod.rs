@@ -16,6 +16,7 @@ mod checkpoint;
 mod control;
 mod lift;
 mod limits;
+mod partners;
 mod pottier;
 mod projection;
 mod reducer;

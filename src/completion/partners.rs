@@ -1,0 +1,184 @@
+//! Partner groups of a lifting stage, kept in sign slices so that a member's sign-compatible
+//! partners are found a word of 64 members at a time instead of one pair at a time.
+//!
+//! A group holds members in blocks of 64. For each position `k` of the compared components a
+//! block has two words: the bits of its members positive at `k` and of those negative there
+//! (a "bit-sliced" layout, 2 bits per member and position). A member `p` conflicts with the
+//! members of a block that have the opposite sign at one of `p`'s nonzero positions, so its
+//! compatible partners are the block's members with every such word's bits cleared: one AND per
+//! nonzero position of `p` for 64 members. Most pairs of a stage are not sign-compatible (99%
+//! on the three-way tables), so this enumerates the compatible ones without testing the rest
+//! one by one; it also keeps 2 bits per member and position instead of a mask pair of 128 bits.
+
+use super::reducer::MAX_WORDS;
+use super::store::{Entry, Stored};
+
+/// Most compared components a group takes (those of the widest sign masks).
+const MAX_POSITIONS: usize = 64 * MAX_WORDS;
+
+/// Members per block (one bit each in a word).
+const BLOCK: usize = 64;
+
+/// Members with one (norm on `S`, `|v_j|`) on one side of component `j`, in the order they
+/// joined (ids increasing), with their sign slices over the positions of `S`.
+pub(super) struct Group {
+    ids: Vec<u32>,
+    /// Per block, `2 * positions` words: word `2k` has the bits of the members positive at
+    /// position `k`, word `2k + 1` those of the members negative there.
+    slices: Vec<u64>,
+    positions: usize,
+}
+
+/// The slice words (offsets inside a block) that rule partners out for one member: for each
+/// position where the member is nonzero, the word of the opposite sign. Kept inline (at most
+/// two words per position), since one is made per member whose pairs are formed.
+pub(super) struct Conflicts {
+    words: [u16; 2 * MAX_POSITIONS],
+    len: usize,
+}
+
+impl Conflicts {
+    /// The conflicts of `v` over the components `comps` (at most [`MAX_POSITIONS`]): the
+    /// signs of 64 positions at a time as two words (branch-free), then one conflict per bit.
+    pub(super) fn of<E: Stored>(v: &[E], comps: &[usize]) -> Self {
+        let mut conflicts = Self {
+            words: [0; 2 * MAX_POSITIONS],
+            len: 0,
+        };
+        for (chunk, cs) in comps.chunks(64).enumerate() {
+            let (mut pos, mut neg) = (0u64, 0u64);
+            for (k, &c) in cs.iter().enumerate() {
+                let x: Entry = v[c].into();
+                pos |= u64::from(x > 0) << k;
+                neg |= u64::from(x < 0) << k;
+            }
+            let base = 128 * chunk;
+            // A positive position conflicts with the negative slice (word 2k + 1), a negative
+            // one with the positive slice (word 2k).
+            for (mut bits, opposite) in [(pos, 1), (neg, 0)] {
+                while bits != 0 {
+                    let k = bits.trailing_zeros() as usize;
+                    bits &= bits - 1;
+                    conflicts.words[conflicts.len] = (base + 2 * k + opposite) as u16;
+                    conflicts.len += 1;
+                }
+            }
+        }
+        conflicts
+    }
+
+    fn words(&self) -> &[u16] {
+        &self.words[..self.len]
+    }
+}
+
+impl Group {
+    /// An empty group over `positions` compared components.
+    pub(super) fn new(positions: usize) -> Self {
+        Self {
+            ids: Vec::new(),
+            slices: Vec::new(),
+            positions,
+        }
+    }
+
+    /// Adds member `id`, the vector `v`, compared on `comps` (as many as the group's
+    /// positions).
+    pub(super) fn push<E: Stored>(&mut self, id: u32, v: &[E], comps: &[usize]) {
+        debug_assert_eq!(comps.len(), self.positions);
+        let i = self.ids.len();
+        let words = 2 * self.positions;
+        if i.is_multiple_of(BLOCK) {
+            self.slices.resize(self.slices.len() + words, 0);
+        }
+        let block = i / BLOCK * words;
+        let bit = 1u64 << (i % BLOCK);
+        for (k, &c) in comps.iter().enumerate() {
+            let x: Entry = v[c].into();
+            match x.signum() {
+                1 => self.slices[block + 2 * k] |= bit,
+                -1 => self.slices[block + 2 * k + 1] |= bit,
+                _ => {}
+            }
+        }
+        self.ids.push(id);
+    }
+
+    /// The ids of the members, in the order they joined.
+    pub(super) fn ids(&self) -> &[u32] {
+        &self.ids
+    }
+
+    /// The members with an id below `before` and none of `conflicts` (those sign-compatible
+    /// with the member the conflicts are of), block by block in the order they joined: the
+    /// bits of the compatible ones and the block's ids (bit `i` stands for `ids[i]`).
+    pub(super) fn compatible<'g>(
+        &'g self,
+        conflicts: &'g Conflicts,
+        before: u32,
+    ) -> impl Iterator<Item = (u64, &'g [u32])> + 'g {
+        let words = 2 * self.positions;
+        let members = self.ids.partition_point(|&id| id < before);
+        (0..members.div_ceil(BLOCK)).filter_map(move |b| {
+            let block = &self.slices[b * words..(b + 1) * words];
+            let ids = &self.ids[b * BLOCK..members.min((b + 1) * BLOCK)];
+            let mut bits = u64::MAX >> (BLOCK - ids.len());
+            for &word in conflicts.words() {
+                bits &= !block[usize::from(word)];
+                if bits == 0 {
+                    return None;
+                }
+            }
+            Some((bits, ids))
+        })
+    }
+}
+
+/// The ids that the blocks of [`Group::compatible`] mark, in order.
+pub(super) fn marked<'g>(
+    blocks: impl Iterator<Item = (u64, &'g [u32])> + 'g,
+) -> impl Iterator<Item = u32> + 'g {
+    blocks.flat_map(|(mut bits, ids)| {
+        std::iter::from_fn(move || {
+            (bits != 0).then(|| {
+                let i = bits.trailing_zeros() as usize;
+                bits &= bits - 1;
+                ids[i]
+            })
+        })
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The members the slices report are exactly those without opposite signs, member by
+    /// member (the definition of sign-compatible), over more than one block.
+    #[test]
+    fn compatible_members_are_those_without_opposite_signs() {
+        let comps = [0, 2, 3];
+        let vectors: Vec<[i8; 4]> = (0..150i32)
+            .map(|i| {
+                let s = |d: i32| ((i / d) % 3 - 1) as i8;
+                [s(1), 5, s(3), s(9)]
+            })
+            .collect();
+        let mut group = Group::new(comps.len());
+        for (id, v) in vectors.iter().enumerate() {
+            group.push(id as u32 * 2, v, &comps);
+        }
+        for p in &vectors {
+            let conflicts = Conflicts::of(p, &comps);
+            let found: Vec<u32> = marked(group.compatible(&conflicts, u32::MAX)).collect();
+            let expected: Vec<u32> = (0..vectors.len() as u32)
+                .filter(|&q| comps.iter().all(|&c| p[c] * vectors[q as usize][c] >= 0))
+                .map(|q| q * 2)
+                .collect();
+            assert_eq!(found, expected);
+            let before: Vec<u32> = marked(group.compatible(&conflicts, 131)).collect();
+            let expected: Vec<u32> = expected.into_iter().filter(|&q| q < 131).collect();
+            assert_eq!(before, expected);
+        }
+    }
+}
