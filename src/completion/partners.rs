@@ -31,9 +31,9 @@ pub(super) struct Group {
 
 /// The slice words (offsets inside a block) that rule partners out for one member: for each
 /// position where the member is nonzero, the word of the opposite sign. Kept inline (at most
-/// two words per position), since one is made per member whose pairs are formed.
+/// one word per position), since one is made per member whose pairs are formed.
 pub(super) struct Conflicts {
-    words: [u16; 2 * MAX_POSITIONS],
+    words: [u16; MAX_POSITIONS],
     len: usize,
 }
 
@@ -42,7 +42,7 @@ impl Conflicts {
     /// signs of 64 positions at a time as two words (branch-free), then one conflict per bit.
     pub(super) fn of<E: Stored>(v: &[E], comps: &[usize]) -> Self {
         let mut conflicts = Self {
-            words: [0; 2 * MAX_POSITIONS],
+            words: [0; MAX_POSITIONS],
             len: 0,
         };
         for (chunk, cs) in comps.chunks(64).enumerate() {
