@@ -8,7 +8,8 @@
 //! word up to 64 variables), so a leaf of one-word members is a few cache lines. The index
 //! refers to vectors by their [`VecStore`] ids.
 
-use super::store::{Entry, Stored, VecStore};
+use super::store::{sub_scaled, Entry, Stored, VecStore};
+use crate::error::Result;
 
 /// Members a leaf holds before it splits. Large leaves keep the paths short (each node on a
 /// path is a dependent memory access) while a leaf's members are scanned in one sequential
@@ -76,6 +77,13 @@ impl<const W: usize> SignMask<W> {
         } else {
             2
         }
+    }
+
+    /// Makes the vector zero at position `k` (into the component list).
+    fn clear(&mut self, k: usize) {
+        let bit = !(1u64 << (k % 64));
+        self.pos[k / 64] &= bit;
+        self.neg[k / 64] &= bit;
     }
 
     /// Positions `k` (into the component list) where the vector is nonzero.
@@ -239,17 +247,39 @@ impl<const W: usize> Reducer<W> {
     ) -> Option<u32> {
         let query = self.item(w, u32::MAX);
         self.find_below(0, store, w, &query, skip)
+            .map(|item| item.id)
     }
 
-    /// [`Reducer::find`] for a `w` not zero on the active components; `None` also when it is
-    /// zero there (nothing left to reduce).
-    pub(crate) fn find_nonzero<E: Stored>(
-        &self,
-        store: &VecStore<E>,
-        w: &[Entry],
-    ) -> Option<Option<u32>> {
-        let query = self.item(w, u32::MAX);
-        (!query.mask.is_empty()).then(|| self.find_below(0, store, w, &query, None))
+    /// Reduces `w` to normal form against the members of `store`: subtracts the largest
+    /// multiple of a member `h ⊑ w` (on the active components) as long as one exists.
+    /// Returns `true` if `w` became zero there.
+    ///
+    /// The query's signs and norm are computed once and then kept up to date: `k h ⊑ w`
+    /// means `|w_c - k h_c| = |w_c| - k |h_c|` on every active component, so the norm drops
+    /// by `k ||h||` and a sign can only vanish on the support of `h`.
+    pub(crate) fn reduce<E: Stored>(&self, store: &VecStore<E>, w: &mut [Entry]) -> Result<bool> {
+        let mut query = self.item(w, u32::MAX);
+        while !query.mask.is_empty() {
+            let Some(h) = self.find_below(0, store, w, &query, None) else {
+                return Ok(false);
+            };
+            let v = store.get(h.id);
+            let k = max_multiple(v, w, &self.comps);
+            sub_scaled(w, v, k)?;
+            let dropped = u64::from(h.norm) * k.unsigned_abs() as u64;
+            match query.norm {
+                u32::MAX => query = self.item(w, u32::MAX),
+                norm => {
+                    query.norm = (u64::from(norm) - dropped) as u32;
+                    for pos in h.mask.support() {
+                        if w[self.comps[pos]] == 0 {
+                            query.mask.clear(pos);
+                        }
+                    }
+                }
+            }
+        }
+        Ok(true)
     }
 
     fn find_below<E: Stored, Q: Stored>(
@@ -259,7 +289,7 @@ impl<const W: usize> Reducer<W> {
         w: &[Q],
         query: &Item<W>,
         skip: Option<u32>,
-    ) -> Option<u32> {
+    ) -> Option<Item<W>> {
         let current = &self.nodes[node];
         if !current.may_hold(query) {
             return None;
@@ -282,7 +312,7 @@ impl<const W: usize> Reducer<W> {
                         && Some(item.id) != skip
                         && self.magnitudes_fit(&item.mask, store.get(item.id), w)
                 })
-                .map(|item| item.id),
+                .copied(),
         }
     }
 
@@ -327,12 +357,10 @@ mod tests {
         })
     }
 
-    /// Fills an index of `W`-word masks over `comps` of vectors `width` wide with sparse
-    /// pseudo-random vectors (a linear congruential generator, common practice) and checks
-    /// every query against a linear scan.
-    fn agrees_with_linear_scan<const W: usize>(width: usize, comps: Vec<usize>) {
-        let mut seed: u64 = 7;
-        let mut next = || {
+    /// A draw of sparse pseudo-random entries in -2..=2 (a linear congruential generator,
+    /// common practice).
+    fn generator(mut seed: u64) -> impl FnMut() -> Entry {
+        move || {
             seed = seed
                 .wrapping_mul(6364136223846793005)
                 .wrapping_add(1442695040888963407);
@@ -342,10 +370,18 @@ mod tests {
             } else {
                 0
             }
-        };
+        }
+    }
+
+    /// An index of `W`-word masks over `comps` of vectors `width` wide, filled with enough
+    /// members for about as many leaves as the leaf capacity allows splits.
+    fn filled<const W: usize>(
+        width: usize,
+        comps: &[usize],
+        next: &mut impl FnMut() -> Entry,
+    ) -> (VecStore<i8>, Reducer<W>) {
         let mut store = VecStore::<i8>::new(width);
-        let mut index = Reducer::<W>::new(comps.clone());
-        // Enough members for about as many leaves as the leaf capacity allows splits.
+        let mut index = Reducer::<W>::new(comps.to_vec());
         for _ in 0..25 * LEAF_CAPACITY {
             let v: Vec<Entry> = (0..width).map(|_| next()).collect();
             if comps.iter().any(|&c| v[c] != 0) {
@@ -353,17 +389,30 @@ mod tests {
                 index.insert(&store, id);
             }
         }
+        (store, index)
+    }
+
+    /// Query `i` of a run: even ones random, odd ones twice a stored vector plus noise (often
+    /// reducible by it, unless the noise flips a sign).
+    fn query(i: usize, store: &VecStore<i8>, next: &mut impl FnMut() -> Entry) -> Vec<Entry> {
+        let mut w: Vec<Entry> = (0..store.width()).map(|_| next() * 2).collect();
+        if i % 2 == 1 {
+            let base = store.get((i % store.len()) as u32);
+            w.iter_mut()
+                .zip(base)
+                .for_each(|(x, &b)| *x += 2 * Entry::from(b));
+        }
+        w
+    }
+
+    /// Checks every query of an index filled with sparse pseudo-random vectors against a
+    /// linear scan.
+    fn agrees_with_linear_scan<const W: usize>(width: usize, comps: Vec<usize>) {
+        let mut next = generator(7);
+        let (store, index) = filled::<W>(width, &comps, &mut next);
         let mut hits = 0;
         for i in 0..400 {
-            // Even queries are random, odd ones twice a stored vector plus noise (often
-            // reducible by it, unless the noise flips a sign).
-            let mut w: Vec<Entry> = (0..width).map(|_| next() * 2).collect();
-            if i % 2 == 1 {
-                let base = store.get((i % store.len()) as u32);
-                w.iter_mut()
-                    .zip(base)
-                    .for_each(|(x, &b)| *x += 2 * Entry::from(b));
-            }
+            let w = query(i, &store, &mut next);
             let found = index.find(&store, &w, None);
             assert_eq!(found.is_some(), brute(&store, &comps, &w));
             hits += usize::from(found.is_some());
@@ -378,6 +427,26 @@ mod tests {
             0 < hits && hits < 400,
             "both answers are asked for: {hits} hits"
         );
+    }
+
+    /// [`Reducer::reduce`], which keeps the query's signs and norm up to date instead of
+    /// recomputing them, ends in a normal form: zero on the active components exactly when it
+    /// says so, and otherwise reducible by no member (a linear scan); the vector only loses
+    /// members (each step subtracts stored vectors).
+    #[test]
+    fn reduction_ends_in_a_normal_form() {
+        let comps: Vec<usize> = (0..16).filter(|c| c % 4 != 1).rev().collect();
+        let mut next = generator(11);
+        let (store, index) = filled::<1>(16, &comps, &mut next);
+        let mut zero = 0;
+        for i in 0..400 {
+            let mut w = query(i, &store, &mut next);
+            let vanished = index.reduce(&store, &mut w).unwrap();
+            assert_eq!(vanished, comps.iter().all(|&c| w[c] == 0));
+            assert!(vanished || !brute(&store, &comps, &w));
+            zero += usize::from(vanished);
+        }
+        assert!(0 < zero && zero < 400, "both outcomes are met: {zero} zero");
     }
 
     #[test]

@@ -6,8 +6,8 @@
 
 use rayon::prelude::*;
 
-use super::reducer::{max_multiple, Reducer};
-use super::store::{negate, sub_scaled, Entry, Stored, VecStore};
+use super::reducer::Reducer;
+use super::store::{negate, Entry, Stored, VecStore};
 use crate::error::Result;
 
 /// A `±` class of lattice vectors: `rep`, and `-rep` as well when `symmetric`.
@@ -68,16 +68,7 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
     /// Reduces `w` to normal form: subtracts members `h ⊑ w` (on the stage's components)
     /// as long as one exists. Returns `true` if `w` became zero there.
     pub(crate) fn reduce(&self, w: &mut [Entry]) -> Result<bool> {
-        let comps = self.reducer.comps();
-        while let Some(found) = self.reducer.find_nonzero(&self.store, w) {
-            let Some(h) = found else {
-                return Ok(false);
-            };
-            let h = self.store.get(h);
-            let k = max_multiple(h, w, comps);
-            sub_scaled(w, h, k)?;
-        }
-        Ok(true)
+        self.reducer.reduce(&self.store, w)
     }
 
     /// Whether the unordered pair `{a, b}` is the one to process among `{a, b}` and its mirror
