@@ -41,8 +41,9 @@ use rayon::prelude::*;
 use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
 use super::control::{Control, StopReason};
 use super::limits::{admits, Truncation};
-use super::partners::{marked, Conflicts, Group};
-use super::store::{add_into, norm_on, to_entries, Entry, Stored};
+use super::partners::{marked, Group};
+use super::reducer::SignMask;
+use super::store::{add_into, to_entries, Entry, Stored};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
 
@@ -97,7 +98,10 @@ struct Lifting<'a, const W: usize, E> {
     /// Entries per vector.
     width: usize,
     set: WorkingSet<W, E>,
+    /// Per member its norm on `S`.
     norms: Vec<u64>,
+    /// Per member its signs on `S`.
+    signs: Vec<SignMask<W>>,
     pos: Groups,
     neg: Groups,
     /// When the state was last saved (or the stage started).
@@ -160,6 +164,7 @@ impl<'a, const W: usize, E: Stored> Lifting<'a, W, E> {
             width,
             set: WorkingSet::new(width, comps),
             norms: Vec::new(),
+            signs: Vec::new(),
             pos: Groups::new(),
             neg: Groups::new(),
             saved_at: Mutex::new(Instant::now()),
@@ -264,8 +269,9 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let (a, b) = self.set.add(rep, symmetric)?;
         for id in std::iter::once(a).chain(b) {
             let v = self.set.store.get(id);
-            let norm = norm_on(v, self.stage.old);
+            let (signs, norm) = SignMask::with_norm(v, self.stage.old);
             self.norms.push(norm);
+            self.signs.push(signs);
             let x: Entry = v[self.stage.new].into();
             let key = (norm, u64::from(x.unsigned_abs()));
             let side = match x.signum() {
@@ -276,15 +282,9 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
             let group = side
                 .entry(key)
                 .or_insert_with(|| Group::new(self.stage.old.len()));
-            group.push(id, v, self.stage.old);
+            group.push(id, &signs);
         }
         Ok(())
-    }
-
-    /// The slice words that rule partners of member `p` out (see [`Conflicts`]; computed once
-    /// per member whose pairs are formed).
-    fn conflicts(&self, p: u32) -> Conflicts {
-        Conflicts::of(self.set.store.get(p), self.stage.old)
     }
 
     /// The smallest norm level at least `from` that some pair of groups has, if any (levels
@@ -349,7 +349,9 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
             };
             let chunks: Vec<Vec<Vec<Entry>>> = mine
                 .par_iter()
-                .map(|&&(p, qs)| self.reduce_pairs(p, qs.compatible(&self.conflicts(p), u32::MAX)))
+                .map(|&&(p, qs)| {
+                    self.reduce_pairs(p, qs.compatible(&self.signs[p as usize], u32::MAX))
+                })
                 .collect::<Result<_>>()?;
             let mine = chunks.into_iter().flatten().collect();
             let (all, stop) = control.exchange(self.width, mine, local)?;
@@ -494,11 +496,10 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let a = self.norms[e as usize];
         let room = level.saturating_sub(a);
         let before = first_new.max(e);
-        let conflicts = self.conflicts(e);
         let blocks = side
             .iter()
             .filter(|(&(b, y), _)| b + x.abs_diff(y) <= room && !self.norms_cut(a, b))
-            .flat_map(|(_, group)| group.compatible(&conflicts, before));
+            .flat_map(|(_, group)| group.compatible(&self.signs[e as usize], before));
         self.reduce_pairs(e, blocks)
     }
 
@@ -540,7 +541,7 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     /// normal form.
     fn cut_pair_survives(&self, p: u32, qs: &Group) -> Result<bool> {
         let mut w = vec![0; self.width];
-        for q in marked(qs.compatible(&self.conflicts(p), u32::MAX)) {
+        for q in marked(qs.compatible(&self.signs[p as usize], u32::MAX)) {
             if self.pair_kind(p, q) != PairKind::Cut {
                 continue;
             }
@@ -578,9 +579,14 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     }
 
     /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members; with
-    /// `exact`, reports whether the limits removed none of the minimal members. The stage's
-    /// working set, index and pair groups are dropped before the minimal pass builds its own.
-    fn finish(self, comps: &[usize], exact: bool) -> Result<Lifted> {
+    /// `exact`, reports whether the limits removed none of the minimal members. The pair
+    /// groups and per-member figures are dropped first, the working set and its index once
+    /// the minimal pass's set is built from it (the stage's peak of memory).
+    fn finish(mut self, comps: &[usize], exact: bool) -> Result<Lifted> {
+        self.pos = Groups::new();
+        self.neg = Groups::new();
+        self.norms = Vec::new();
+        self.signs = Vec::new();
         let j = self.stage.new;
         let sign = self.stage.signs[j];
         let t = self.stage.truncation;

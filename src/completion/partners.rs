@@ -10,11 +10,7 @@
 //! on the three-way tables), so this enumerates the compatible ones without testing the rest
 //! one by one; it also keeps 2 bits per member and position instead of a mask pair of 128 bits.
 
-use super::reducer::MAX_WORDS;
-use super::store::{Entry, Stored};
-
-/// Most compared components a group takes (those of the widest sign masks).
-const MAX_POSITIONS: usize = 64 * MAX_WORDS;
+use super::reducer::SignMask;
 
 /// Members per block (one bit each in a word).
 const BLOCK: usize = 64;
@@ -29,49 +25,6 @@ pub(super) struct Group {
     positions: usize,
 }
 
-/// The slice words (offsets inside a block) that rule partners out for one member: for each
-/// position where the member is nonzero, the word of the opposite sign. Kept inline (at most
-/// one word per position), since one is made per member whose pairs are formed.
-pub(super) struct Conflicts {
-    words: [u16; MAX_POSITIONS],
-    len: usize,
-}
-
-impl Conflicts {
-    /// The conflicts of `v` over the components `comps` (at most [`MAX_POSITIONS`]): the
-    /// signs of 64 positions at a time as two words (branch-free), then one conflict per bit.
-    pub(super) fn of<E: Stored>(v: &[E], comps: &[usize]) -> Self {
-        let mut conflicts = Self {
-            words: [0; MAX_POSITIONS],
-            len: 0,
-        };
-        for (chunk, cs) in comps.chunks(64).enumerate() {
-            let (mut pos, mut neg) = (0u64, 0u64);
-            for (k, &c) in cs.iter().enumerate() {
-                let x: Entry = v[c].into();
-                pos |= u64::from(x > 0) << k;
-                neg |= u64::from(x < 0) << k;
-            }
-            let base = 128 * chunk;
-            // A positive position conflicts with the negative slice (word 2k + 1), a negative
-            // one with the positive slice (word 2k).
-            for (mut bits, opposite) in [(pos, 1), (neg, 0)] {
-                while bits != 0 {
-                    let k = bits.trailing_zeros() as usize;
-                    bits &= bits - 1;
-                    conflicts.words[conflicts.len] = (base + 2 * k + opposite) as u16;
-                    conflicts.len += 1;
-                }
-            }
-        }
-        conflicts
-    }
-
-    fn words(&self) -> &[u16] {
-        &self.words[..self.len]
-    }
-}
-
 impl Group {
     /// An empty group over `positions` compared components.
     pub(super) fn new(positions: usize) -> Self {
@@ -82,23 +35,21 @@ impl Group {
         }
     }
 
-    /// Adds member `id`, the vector `v`, compared on `comps` (as many as the group's
-    /// positions).
-    pub(super) fn push<E: Stored>(&mut self, id: u32, v: &[E], comps: &[usize]) {
-        debug_assert_eq!(comps.len(), self.positions);
+    /// Adds member `id`, whose signs on the compared components are `signs`.
+    pub(super) fn push<const W: usize>(&mut self, id: u32, signs: &SignMask<W>) {
         let i = self.ids.len();
         let words = 2 * self.positions;
         if i.is_multiple_of(BLOCK) {
             self.slices.resize(self.slices.len() + words, 0);
         }
-        let block = i / BLOCK * words;
+        let block = &mut self.slices[i / BLOCK * words..];
         let bit = 1u64 << (i % BLOCK);
-        for (k, &c) in comps.iter().enumerate() {
-            let x: Entry = v[c].into();
-            match x.signum() {
-                1 => self.slices[block + 2 * k] |= bit,
-                -1 => self.slices[block + 2 * k + 1] |= bit,
-                _ => {}
+        for chunk in 0..W {
+            let (pos, neg) = signs.word(chunk);
+            for (bits, slice) in [(pos, 0), (neg, 1)] {
+                for k in set_bits(bits) {
+                    block[128 * chunk + 2 * k + slice] |= bit;
+                }
             }
         }
         self.ids.push(id);
@@ -109,12 +60,14 @@ impl Group {
         &self.ids
     }
 
-    /// The members with an id below `before` and none of `conflicts` (those sign-compatible
-    /// with the member the conflicts are of), block by block in the order they joined: the
-    /// bits of the compatible ones and the block's ids (bit `i` stands for `ids[i]`).
-    pub(super) fn compatible<'g>(
+    /// The members with an id below `before` that are sign-compatible with a member of signs
+    /// `signs` (no opposite sign at any position: for each of its positive positions the
+    /// negative slice is cleared, and the other way round), block by block in the order they
+    /// joined: the bits of the compatible ones and the block's ids (bit `i` stands for
+    /// `ids[i]`).
+    pub(super) fn compatible<'g, const W: usize>(
         &'g self,
-        conflicts: &'g Conflicts,
+        signs: &'g SignMask<W>,
         before: u32,
     ) -> impl Iterator<Item = (u64, &'g [u32])> + 'g {
         let words = 2 * self.positions;
@@ -123,10 +76,15 @@ impl Group {
             let block = &self.slices[b * words..(b + 1) * words];
             let ids = &self.ids[b * BLOCK..members.min((b + 1) * BLOCK)];
             let mut bits = u64::MAX >> (BLOCK - ids.len());
-            for &word in conflicts.words() {
-                bits &= !block[usize::from(word)];
-                if bits == 0 {
-                    return None;
+            for chunk in 0..W {
+                let (pos, neg) = signs.word(chunk);
+                for (conflicting, opposite) in [(pos, 1), (neg, 0)] {
+                    for k in set_bits(conflicting) {
+                        bits &= !block[128 * chunk + 2 * k + opposite];
+                        if bits == 0 {
+                            return None;
+                        }
+                    }
                 }
             }
             Some((bits, ids))
@@ -134,19 +92,22 @@ impl Group {
     }
 }
 
+/// The positions of the set bits of `bits`, lowest first.
+fn set_bits(mut bits: u64) -> impl Iterator<Item = usize> {
+    std::iter::from_fn(move || {
+        (bits != 0).then(|| {
+            let k = bits.trailing_zeros() as usize;
+            bits &= bits - 1;
+            k
+        })
+    })
+}
+
 /// The ids that the blocks of [`Group::compatible`] mark, in order.
 pub(super) fn marked<'g>(
     blocks: impl Iterator<Item = (u64, &'g [u32])> + 'g,
 ) -> impl Iterator<Item = u32> + 'g {
-    blocks.flat_map(|(mut bits, ids)| {
-        std::iter::from_fn(move || {
-            (bits != 0).then(|| {
-                let i = bits.trailing_zeros() as usize;
-                bits &= bits - 1;
-                ids[i]
-            })
-        })
-    })
+    blocks.flat_map(|(bits, ids)| set_bits(bits).map(|i| ids[i]))
 }
 
 #[cfg(test)]
@@ -166,17 +127,17 @@ mod tests {
             .collect();
         let mut group = Group::new(comps.len());
         for (id, v) in vectors.iter().enumerate() {
-            group.push(id as u32 * 2, v, &comps);
+            group.push(id as u32 * 2, &SignMask::<1>::of(v, &comps));
         }
         for p in &vectors {
-            let conflicts = Conflicts::of(p, &comps);
-            let found: Vec<u32> = marked(group.compatible(&conflicts, u32::MAX)).collect();
+            let signs = SignMask::<1>::of(p, &comps);
+            let found: Vec<u32> = marked(group.compatible(&signs, u32::MAX)).collect();
             let expected: Vec<u32> = (0..vectors.len() as u32)
                 .filter(|&q| comps.iter().all(|&c| p[c] * vectors[q as usize][c] >= 0))
                 .map(|q| q * 2)
                 .collect();
             assert_eq!(found, expected);
-            let before: Vec<u32> = marked(group.compatible(&conflicts, 131)).collect();
+            let before: Vec<u32> = marked(group.compatible(&signs, 131)).collect();
             let expected: Vec<u32> = expected.into_iter().filter(|&q| q < 131).collect();
             assert_eq!(before, expected);
         }

@@ -37,7 +37,7 @@ impl<const W: usize> SignMask<W> {
     }
 
     /// [`SignMask::of`] with the l1 norm of `v` on `comps`, in one branch-free pass.
-    fn with_norm<E: Stored>(v: &[E], comps: &[usize]) -> (Self, u64) {
+    pub(crate) fn with_norm<E: Stored>(v: &[E], comps: &[usize]) -> (Self, u64) {
         let mut m = SignMask {
             pos: [0; W],
             neg: [0; W],
@@ -51,6 +51,12 @@ impl<const W: usize> SignMask<W> {
             norm += u64::from(x.unsigned_abs());
         }
         (m, norm)
+    }
+
+    /// Word `w` of the masks: the positions `64 w ..` where the vector is positive, and those
+    /// where it is negative.
+    pub(crate) fn word(&self, w: usize) -> (u64, u64) {
+        (self.pos[w], self.neg[w])
     }
 
     /// True if the vector is zero on every component.

@@ -120,14 +120,6 @@ pub(crate) fn sub_scaled<E: Stored>(w: &mut [Entry], h: &[E], k: Entry) -> Resul
     Ok(())
 }
 
-/// The l1 norm of `v` restricted to the components `comps`.
-pub(crate) fn norm_on<E: Stored>(v: &[E], comps: &[usize]) -> u64 {
-    comps
-        .iter()
-        .map(|&i| u64::from(v[i].into().unsigned_abs()))
-        .sum()
-}
-
 /// The negation of `v` (cannot overflow: stored entries never equal `Entry::MIN`).
 pub(crate) fn negate(v: &[Entry]) -> Vec<Entry> {
     v.iter().map(|&x| -x).collect()
@@ -169,7 +161,6 @@ mod tests {
         assert_eq!((a, b, s.len()), (0, 1, 2));
         assert_eq!(s.get(1), &[0, 0, 127]);
         assert_eq!(s.widened(0), [1, -2, 0]);
-        assert_eq!(norm_on(s.get(0), &[0, 1]), 3);
         // An entry beyond the store's type is refused, and nothing is stored.
         assert!(matches!(s.push(&[0, 128, 0]), Err(Error::EntryWidth)));
         assert_eq!(s.len(), 2);
