@@ -7,7 +7,7 @@
 //! removes once no builder holds the key's lock.
 
 use std::fs::{self, OpenOptions};
-use std::io::Write;
+use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicU64, Ordering};
 
@@ -21,13 +21,22 @@ static COUNTER: AtomicU64 = AtomicU64::new(0);
 /// Writes `bytes` to `target` atomically (see the module doc): the one writer of every file
 /// kernstep writes, cache files and the command line's output files alike.
 pub fn write_atomic(target: &Path, bytes: &[u8]) -> Result<(), CacheError> {
+    write_atomic_with(target, |out| out.write_all(bytes))
+}
+
+/// [`write_atomic`] of what `fill` writes, streamed to the temporary file through a buffer
+/// (a large document need not be held in memory whole).
+pub fn write_atomic_with(
+    target: &Path,
+    fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
+) -> Result<(), CacheError> {
     // A bare file name has the empty path as its parent: the current directory.
     let dir = match target.parent() {
         Some(parent) if !parent.as_os_str().is_empty() => parent,
         _ => Path::new("."),
     };
     let temp = temp_path(target);
-    let result = write_synced(&temp, bytes)
+    let result = write_synced(&temp, fill)
         .and_then(|()| {
             fs::rename(&temp, target).map_err(|e| CacheError::io("rename into", target, e))
         })
@@ -50,15 +59,19 @@ pub(crate) fn temp_path(target: &Path) -> PathBuf {
     target.with_file_name(format!(".{name}.{}-{n}{TEMP_SUFFIX}", std::process::id()))
 }
 
-fn write_synced(path: &Path, bytes: &[u8]) -> Result<(), CacheError> {
-    let mut file = OpenOptions::new()
+fn write_synced(
+    path: &Path,
+    fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
+) -> Result<(), CacheError> {
+    let file = OpenOptions::new()
         .write(true)
         .create_new(true)
         .open(path)
         .map_err(|e| CacheError::io("create", path, e))?;
-    file.write_all(bytes)
-        .and_then(|()| file.flush())
-        .and_then(|()| file.sync_all())
+    let mut out = BufWriter::new(file);
+    fill(&mut out)
+        .and_then(|()| out.into_inner().map_err(|e| e.into_error()))
+        .and_then(|file| file.sync_all())
         .map_err(|e| CacheError::io("write", path, e))
 }
 

@@ -79,7 +79,7 @@ mod seal;
 mod store;
 mod validate;
 
-pub use atomic::write_atomic;
+pub use atomic::{write_atomic, write_atomic_with};
 pub use checkpoint::{CheckpointState, CHECKPOINT_MAGIC, CHECKPOINT_SUFFIX};
 pub use covering::CoverSearch;
 pub use data::{Entries, TestSetData};

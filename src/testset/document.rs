@@ -2,6 +2,8 @@
 //! and `cache export` prints it through [`set_document`], so the two are one document for
 //! one set; [`read_set_document`] reads it with every field checked.
 
+use std::io::Write;
+
 use cache::{EntryKey, SetMetadata};
 use serde::{Deserialize, Serialize};
 
@@ -55,6 +57,20 @@ struct Written<'a> {
 
 /// The set with its key and build facts as one line of JSON, ending in a newline.
 pub fn set_document(key: &EntryKey, metadata: &SetMetadata, elements: &[Vec<i64>]) -> String {
+    let mut text = Vec::new();
+    // Keys, metadata and integer rows always serialise, and a Vec takes every byte.
+    let _ = write_set_document(&mut text, key, metadata, elements);
+    String::from_utf8(text).unwrap_or_default()
+}
+
+/// [`set_document`] written to `out` as it is serialised (a set of a few hundred thousand
+/// elements is tens of megabytes of text, not held whole).
+pub fn write_set_document(
+    out: &mut dyn Write,
+    key: &EntryKey,
+    metadata: &SetMetadata,
+    elements: &[Vec<i64>],
+) -> std::io::Result<()> {
     let doc = Written {
         format: SET_FORMAT,
         version: SET_VERSION,
@@ -64,10 +80,8 @@ pub fn set_document(key: &EntryKey, metadata: &SetMetadata, elements: &[Vec<i64>
         width: key.width(),
         elements,
     };
-    // Keys, metadata and integer rows always serialise.
-    let mut text = serde_json::to_string(&doc).unwrap_or_default();
-    text.push('\n');
-    text
+    serde_json::to_writer(&mut *out, &doc)?;
+    out.write_all(b"\n")
 }
 
 /// Reads a set document from `text` (from the file `origin`): the format and version, the

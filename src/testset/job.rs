@@ -15,7 +15,7 @@ use serde::{Deserialize, Serialize};
 
 use super::build::{build, entry_key, BuildOutcome, BuiltSet};
 use super::deepen::{deepen, Deepened, LevelEnd};
-use super::document::set_document;
+use super::document::write_set_document;
 use super::library::{Obtained, SavedState, SetAside, SetLibrary};
 use super::serve::Engine;
 use super::spec::{BoxPolicy, BuildSpec, NormLimit};
@@ -319,8 +319,9 @@ impl Job<'_> {
 
     /// Writes `built`'s document to `path` (never half-written).
     fn write(&self, built: &BuiltSet, path: &Path, report: &mut JobReport) -> Result<()> {
-        let doc = set_document(&built.key, &built.metadata, &built.set.elements);
-        cache::write_atomic(path, doc.as_bytes())?;
+        cache::write_atomic_with(path, |out| {
+            write_set_document(out, &built.key, &built.metadata, &built.set.elements)
+        })?;
         report.key = Some(built.key.digest().to_hex());
         report.elements = Some(built.set.elements.len());
         report.written_to = Some(path.to_path_buf());

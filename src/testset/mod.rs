@@ -22,7 +22,9 @@ pub use build::{
     BuiltSet,
 };
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
-pub use document::{read_set_document, set_document, SetDocument, SET_FORMAT, SET_VERSION};
+pub use document::{
+    read_set_document, set_document, write_set_document, SetDocument, SET_FORMAT, SET_VERSION,
+};
 pub use estimate::{estimate, extrapolate, BuildEstimate, Range, StageMark};
 pub use inventory::{CheckpointRecord, CheckpointState, EntryRecord, Listing, VerifyRecord};
 pub use job::{BudgetRecord, Destination, Job, JobReport, JobStatus, LevelRecord, StateRecord};
