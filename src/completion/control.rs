@@ -161,10 +161,12 @@ impl<'a> Control<'a> {
         self
     }
 
-    /// Hands a resumable state to the saving hook, if any.
-    pub(crate) fn save(&self, checkpoint: &Checkpoint) {
+    /// Hands the resumable state `state()` makes to the saving hook, if any. The state is only
+    /// made for a hook: it copies the stage's set out (at a stage's end, when the set of the
+    /// next stage is built beside it, the copy would be the build's peak of memory).
+    pub(crate) fn save(&self, state: impl FnOnce() -> Checkpoint) {
         if let Some(save) = self.save {
-            save(checkpoint);
+            save(&state());
         }
     }
 

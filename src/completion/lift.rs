@@ -558,13 +558,15 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         if !control.saves() {
             return;
         }
-        let orbits = self.set.orbits_where(|_| true);
-        let mut state = Checkpoint::of(self.stage.old, &orbits, self.stage.exact);
-        state.within = Some(InStage {
-            component: self.stage.new,
-            point: point.clone(),
+        control.save(|| {
+            let orbits = self.set.orbits_where(|_| true);
+            let mut state = Checkpoint::of(self.stage.old, &orbits, self.stage.exact);
+            state.within = Some(InStage {
+                component: self.stage.new,
+                point: point.clone(),
+            });
+            state
         });
-        control.save(&state);
         if let Ok(mut at) = self.saved_at.lock() {
             *at = Instant::now();
         }

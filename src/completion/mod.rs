@@ -287,7 +287,7 @@ fn lift_all<const W: usize>(
             };
             let (orbits, exact) = restrict::<W>(start, signs, &comps, &request.truncation)?;
             let exact = checked && exact;
-            control.save(&Checkpoint::of(&comps, &orbits, exact));
+            control.save(|| Checkpoint::of(&comps, &orbits, exact));
             (comps, orbits, exact, None)
         }
     };
@@ -313,7 +313,7 @@ fn lift_all<const W: usize>(
         exact = exact && lifted.exact;
         done.push(j);
         if number + 1 < stages {
-            control.save(&Checkpoint::of(&done, &orbits, exact));
+            control.save(|| Checkpoint::of(&done, &orbits, exact));
         }
     }
     Ok(Ok((orbits, exact)))
