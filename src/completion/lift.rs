@@ -73,8 +73,13 @@ pub(crate) struct Lifted {
     pub exact: bool,
 }
 
-/// Members whose pairs are reduced between two checks of the time limit.
-const BATCH: usize = 1024;
+/// Pair tasks (members, with their partners in one group) reduced between two checks of the
+/// time limit, cancellation and saves; processes that share the work take this many each
+/// between two exchanges. Every batch wakes the other threads and waits for the slowest, so
+/// batches are large: on the 3x3x4 tables (1.1 M tasks over about 340 norm levels, well
+/// under a microsecond a task) 16,384 instead of 1,024 made two threads 11% faster; on the
+/// 3x3x5 tables a batch is still well under a second of work.
+const BATCH: usize = 16_384;
 
 /// Members on one side of component `j`, grouped by (norm on `S`, `|v_j|`).
 type Groups = BTreeMap<(u64, u64), Group>;
