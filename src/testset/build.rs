@@ -119,9 +119,20 @@ pub fn build(
     })))
 }
 
-/// The stored form of a set.
+/// The stored form of a set: one byte per entry when every entry fits one, narrowed straight
+/// from the rows (a flat copy in `i64` first would be eight bytes per entry, the largest
+/// allocation of a build into the cache).
 pub fn to_data(set: &ElementSet) -> Result<TestSetData> {
-    Ok(TestSetData::new(set.width, set.elements.concat())?)
+    let small: Option<Vec<i8>> = set
+        .elements
+        .iter()
+        .flatten()
+        .map(|&v| i8::try_from(v).ok())
+        .collect();
+    Ok(match small {
+        Some(small) => TestSetData::from_small(set.width, small)?,
+        None => TestSetData::new(set.width, set.elements.concat())?,
+    })
 }
 
 /// A stored set in the solver's form, read as it is kept (one byte per entry for small
