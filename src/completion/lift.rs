@@ -375,21 +375,17 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
     fn reduce_pairs<'g>(
         &self,
         p: u32,
-        blocks: impl Iterator<Item = (u64, &'g [u32])>,
+        blocks: impl Iterator<Item = (u64, &'g [u32])> + 'g,
     ) -> Result<Vec<Vec<Entry>>> {
         let mut out = Vec::new();
         let mut w = vec![0; self.width];
-        for (mut bits, ids) in blocks {
-            while bits != 0 {
-                let q = ids[bits.trailing_zeros() as usize];
-                bits &= bits - 1;
-                if self.pair_kind(p, q) != PairKind::Formed {
-                    continue;
-                }
-                add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
-                if !self.set.reduce(&mut w)? {
-                    out.push(w.clone());
-                }
+        for q in marked(blocks) {
+            if self.pair_kind(p, q) != PairKind::Formed {
+                continue;
+            }
+            add_into(&mut w, self.set.store.get(p), self.set.store.get(q))?;
+            if !self.set.reduce(&mut w)? {
+                out.push(w.clone());
             }
         }
         Ok(out)

@@ -10,7 +10,7 @@
 //! on the three-way tables), so this enumerates the compatible ones without testing the rest
 //! one by one; it also keeps 2 bits per member and position instead of a mask pair of 128 bits.
 
-use super::reducer::SignMask;
+use super::reducer::{set_bits, SignMask};
 
 /// Members per block (one bit each in a word).
 const BLOCK: usize = 64;
@@ -90,17 +90,6 @@ impl Group {
             Some((bits, ids))
         })
     }
-}
-
-/// The positions of the set bits of `bits`, lowest first.
-fn set_bits(mut bits: u64) -> impl Iterator<Item = usize> {
-    std::iter::from_fn(move || {
-        (bits != 0).then(|| {
-            let k = bits.trailing_zeros() as usize;
-            bits &= bits - 1;
-            k
-        })
-    })
 }
 
 /// The ids that the blocks of [`Group::compatible`] mark, in order.

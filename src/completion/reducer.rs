@@ -91,13 +91,9 @@ impl<const W: usize> SignMask<W> {
     /// branch cost about 8% of a build of the 3x3x4 tables).
     fn clear_where(&mut self, within: &Self, zero: impl Fn(usize) -> bool) {
         for w in 0..W {
-            let mut bits = within.pos[w] | within.neg[w];
-            let mut vanished = 0u64;
-            while bits != 0 {
-                let b = bits.trailing_zeros() as usize;
-                bits &= bits - 1;
-                vanished |= u64::from(zero(w * 64 + b)) << b;
-            }
+            let vanished = set_bits(within.pos[w] | within.neg[w]).fold(0u64, |vanished, b| {
+                vanished | u64::from(zero(w * 64 + b)) << b
+            });
             self.pos[w] &= !vanished;
             self.neg[w] &= !vanished;
         }
@@ -105,17 +101,19 @@ impl<const W: usize> SignMask<W> {
 
     /// Positions `k` (into the component list) where the vector is nonzero.
     fn support(&self) -> impl Iterator<Item = usize> + '_ {
-        (0..W).flat_map(move |w| {
-            let mut bits = self.pos[w] | self.neg[w];
-            std::iter::from_fn(move || {
-                (bits != 0).then(|| {
-                    let b = bits.trailing_zeros() as usize;
-                    bits &= bits - 1;
-                    w * 64 + b
-                })
-            })
-        })
+        (0..W).flat_map(move |w| set_bits(self.pos[w] | self.neg[w]).map(move |b| w * 64 + b))
     }
+}
+
+/// The positions of the set bits of `bits`, lowest first.
+pub(crate) fn set_bits(mut bits: u64) -> impl Iterator<Item = usize> {
+    std::iter::from_fn(move || {
+        (bits != 0).then(|| {
+            let k = bits.trailing_zeros() as usize;
+            bits &= bits - 1;
+            k
+        })
+    })
 }
 
 /// One indexed member as a leaf holds it.
