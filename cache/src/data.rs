@@ -48,11 +48,19 @@ impl TestSetData {
     /// Wraps a flat row-major buffer; `width` must be positive and divide its length.
     pub fn new(width: usize, elements: Vec<i64>) -> Result<Self, CacheError> {
         check_shape(width, elements.len())?;
-        let small: Option<Vec<i8>> = elements.iter().map(|&v| i8::try_from(v).ok()).collect();
         Ok(TestSetData {
             width,
-            stored: small.map_or(Stored::Full(elements), Stored::Small),
+            stored: narrowed(&elements).map_or(Stored::Full(elements), Stored::Small),
         })
+    }
+
+    /// [`TestSetData::new`] of the rows laid end to end, narrowed straight from them when
+    /// every entry fits one byte (no flat `i64` copy of the whole set is made then).
+    pub fn from_rows(width: usize, rows: &[Vec<i64>]) -> Result<Self, CacheError> {
+        match narrowed(rows.iter().flatten()) {
+            Some(small) => Self::from_small(width, small),
+            None => Self::new(width, rows.concat()),
+        }
     }
 
     /// Wraps a flat row-major buffer of one-byte entries; `width` must be positive and
@@ -111,6 +119,11 @@ impl TestSetData {
     }
 }
 
+/// The entries one byte each, if every one fits.
+fn narrowed<'a>(entries: impl IntoIterator<Item = &'a i64>) -> Option<Vec<i8>> {
+    entries.into_iter().map(|&v| i8::try_from(v).ok()).collect()
+}
+
 /// Refuses a zero width or a length it does not divide.
 fn check_shape(width: usize, len: usize) -> Result<(), CacheError> {
     if width == 0 || !len.is_multiple_of(width) {
@@ -148,5 +161,16 @@ mod tests {
         assert_eq!(full.entries(), Entries::Full(&[128, 0, 0, -1]));
         assert_eq!(full.row(0), [128, 0]);
         assert_eq!(full.to_elements(), [128, 0, 0, -1]);
+        // From rows, the same data in the same width as from the flat buffer.
+        let rows = |flat: &[i64]| flat.chunks(2).map(<[i64]>::to_vec).collect::<Vec<_>>();
+        assert_eq!(
+            TestSetData::from_rows(2, &rows(&[-128, 127, 0, 1])).unwrap(),
+            small
+        );
+        assert_eq!(
+            TestSetData::from_rows(2, &rows(&[128, 0, 0, -1])).unwrap(),
+            full
+        );
+        assert!(TestSetData::from_rows(0, &[vec![1]]).is_err());
     }
 }

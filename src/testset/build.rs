@@ -119,20 +119,9 @@ pub fn build(
     })))
 }
 
-/// The stored form of a set: one byte per entry when every entry fits one, narrowed straight
-/// from the rows (a flat copy in `i64` first would be eight bytes per entry, the largest
-/// allocation of a build into the cache).
+/// The stored form of a set (one byte per entry when every entry fits one).
 pub fn to_data(set: &ElementSet) -> Result<TestSetData> {
-    let small: Option<Vec<i8>> = set
-        .elements
-        .iter()
-        .flatten()
-        .map(|&v| i8::try_from(v).ok())
-        .collect();
-    Ok(match small {
-        Some(small) => TestSetData::from_small(set.width, small)?,
-        None => TestSetData::new(set.width, set.elements.concat())?,
-    })
+    Ok(TestSetData::from_rows(set.width, &set.elements)?)
 }
 
 /// A stored set in the solver's form, read as it is kept (one byte per entry for small
