@@ -498,3 +498,26 @@ fn the_stability_curve_of_a_worked_example() {
         vec![("0".to_string(), 12, 12), ("3/2".to_string(), 30, 0)]
     );
 }
+
+/// A worked example where several plans tie at a breakpoint, so a solve there may return a
+/// plan whose line only touches the curve. One row `2 x1 + x2 + x3 = 3`, costs 2, 1, 2,
+/// `x1` in `0..=2`, `x2, x3` in `0..=3`, yesterday `p = (0, 0, 2)` (no longer feasible). The
+/// plans and their (cost, units moved): `(0, 3, 0)` (3, 5), `(1, 1, 0)` (3, 4), `(0, 2, 1)`
+/// (4, 3), `(1, 0, 1)` (4, 2), `(0, 1, 2)` (5, 1), `(0, 0, 3)` (6, 1). So
+/// `F(λ) = min(3 + 4 λ, 4 + 2 λ, 5 + λ)` with breakpoints `1/2` and `1`; `(0, 3, 0)` is
+/// optimal at `λ = 0` only and gets no piece (worked by hand; the case a property run found).
+#[test]
+fn the_stability_curve_skips_plans_optimal_at_one_price() {
+    let text = json!({"matrix": [[2, 1, 1]], "rhs": [3], "cost": [2, 1, 2],
+                      "lower": [0, 0, 0], "upper": [2, 3, 3]});
+    let model = Model::from_str(&text.to_string(), ModelKind::Json, "case.json").unwrap();
+    let pieces = curve_pieces(&model, vec![0, 0, 2], 20);
+    let figures: Vec<(String, i128, u128)> = pieces
+        .iter()
+        .map(|p| (p.from.to_string(), p.figures.plan_cost, p.figures.moved))
+        .collect();
+    let expected = [("0", 3, 4), ("1/2", 4, 2), ("1", 5, 1)];
+    let expected: Vec<(String, i128, u128)> =
+        expected.map(|(f, c, m)| (f.to_string(), c, m)).to_vec();
+    assert_eq!(figures, expected);
+}

@@ -59,45 +59,33 @@ impl StabilityCurve<'_> {
         let top = BigRational::from_integer(BigInt::from(top));
         let low = (zero.clone(), self.solve_at(&zero)?);
         let high = (top.clone(), self.solve_at(&top)?);
-        let mut pieces = vec![CurvePiece {
-            from: zero,
-            figures: low.1,
-        }];
-        self.between(&low, &high, &mut pieces)?;
-        Ok(pieces)
+        let mut plans = vec![low.1];
+        self.between(&low, &high, &mut plans)?;
+        plans.push(high.1);
+        Ok(envelope(plans, &top))
     }
 
-    /// Appends the pieces after the one of `low`'s plan, up to the one of `high`'s plan.
+    /// Pushes, in decreasing change cost, plans whose lines lie strictly below the lines of
+    /// `low`'s and `high`'s plans where those cross, until no plan does: then the two lines
+    /// are neighbours on the lower envelope.
     fn between(
         &self,
         low: &(BigRational, PlanFigures),
         high: &(BigRational, PlanFigures),
-        out: &mut Vec<CurvePiece>,
+        out: &mut Vec<PlanFigures>,
     ) -> Result<()> {
         // Optimal at the lower price, `low` moves at least as much; equal change costs make
         // the two lines one (both are minimal at both ends).
         if low.1.change_cost <= high.1.change_cost {
             return Ok(());
         }
-        let crossing = BigRational::new(
-            BigInt::from(high.1.plan_cost) - BigInt::from(low.1.plan_cost),
-            BigInt::from(low.1.change_cost) - BigInt::from(high.1.change_cost),
-        );
+        let crossing = crossing(&low.1, &high.1);
         let middle = (crossing.clone(), self.solve_at(&crossing)?);
         if line(&middle.1, &crossing) == line(&low.1, &crossing) {
-            // The solver picks one of several optima at an end price: a crossing there
-            // leaves the end's own plan no piece of positive length.
-            match out.last_mut() {
-                _ if crossing == high.0 => {}
-                Some(last) if crossing == low.0 => last.figures = high.1,
-                _ => out.push(CurvePiece {
-                    from: crossing,
-                    figures: high.1,
-                }),
-            }
             return Ok(());
         }
         self.between(low, &middle, out)?;
+        out.push(middle.1);
         self.between(&middle, high, out)
     }
 
@@ -148,6 +136,46 @@ fn fraction<S: serde::Serializer>(
     serializer: S,
 ) -> std::result::Result<S::Ok, S::Error> {
     serializer.collect_str(price)
+}
+
+/// The pieces of the lower envelope over `0 <= λ <= top` of the lines of `plans`: plans in
+/// decreasing change cost, each optimal at some price, with every envelope line among them.
+/// A plan optimal at one price only (the solver may pick it at a breakpoint, where several
+/// plans tie) gets no piece: its piece would have length zero.
+fn envelope(plans: Vec<PlanFigures>, top: &BigRational) -> Vec<CurvePiece> {
+    let mut pieces: Vec<CurvePiece> = Vec::new();
+    for figures in plans {
+        loop {
+            let Some(last) = pieces.last() else {
+                pieces.push(CurvePiece {
+                    from: BigRational::zero(),
+                    figures,
+                });
+                break;
+            };
+            if last.figures.change_cost <= figures.change_cost {
+                break;
+            }
+            let from = crossing(&last.figures, &figures);
+            if from <= last.from {
+                pieces.pop();
+                continue;
+            }
+            if from < *top {
+                pieces.push(CurvePiece { from, figures });
+            }
+            break;
+        }
+    }
+    pieces
+}
+
+/// The price where the lines of `low` and of `high` (which moves less) meet.
+fn crossing(low: &PlanFigures, high: &PlanFigures) -> BigRational {
+    BigRational::new(
+        BigInt::from(high.plan_cost) - BigInt::from(low.plan_cost),
+        BigInt::from(low.change_cost) - BigInt::from(high.change_cost),
+    )
 }
 
 /// `plan + λ change` of a plan's figures.

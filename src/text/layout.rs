@@ -59,7 +59,7 @@ fn is_number(cell: &str) -> bool {
     !cell.is_empty()
         && cell
             .chars()
-            .all(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | ',' | '%' | 'x'))
+            .all(|c| c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | ',' | '%' | 'x' | '/'))
         && cell.chars().any(|c| c.is_ascii_digit())
 }
 
