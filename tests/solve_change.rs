@@ -478,6 +478,23 @@ proptest! {
     }
 }
 
+/// The curve of a JSON model against `previous` up to the price 20, as (from, plan cost,
+/// units moved) per piece.
+fn worked_curve(text: serde_json::Value, previous: Vec<i64>) -> Vec<(String, i128, u128)> {
+    let model = Model::from_str(&text.to_string(), ModelKind::Json, "case.json").unwrap();
+    let pieces = curve_pieces(&model, previous, 20);
+    (pieces.iter())
+        .map(|p| (p.from.to_string(), p.figures.plan_cost, p.figures.moved))
+        .collect()
+}
+
+/// Pieces written as (from, plan cost, units moved).
+fn expected_curve(pieces: &[(&str, i128, u128)]) -> Vec<(String, i128, u128)> {
+    (pieces.iter())
+        .map(|&(from, cost, moved)| (from.to_string(), cost, moved))
+        .collect()
+}
+
 /// A worked example of the curve. One row `x1 + x2 + x3 = 6`, costs 5, 2, 3, each variable in
 /// `0..=6`, yesterday `p = (6, 0, 0)`. Keeping `p` costs 30 and moves nothing; the cheapest
 /// plan `(0, 6, 0)` costs 12 and moves 12 units (6 off x1, 6 onto x2); every other plan lies
@@ -487,16 +504,8 @@ proptest! {
 fn the_stability_curve_of_a_worked_example() {
     let text = json!({"matrix": [[1, 1, 1]], "rhs": [6], "cost": [5, 2, 3],
                       "lower": [0, 0, 0], "upper": [6, 6, 6]});
-    let model = Model::from_str(&text.to_string(), ModelKind::Json, "case.json").unwrap();
-    let pieces = curve_pieces(&model, vec![6, 0, 0], 20);
-    let figures: Vec<(String, i128, u128)> = pieces
-        .iter()
-        .map(|p| (p.from.to_string(), p.figures.plan_cost, p.figures.moved))
-        .collect();
-    assert_eq!(
-        figures,
-        vec![("0".to_string(), 12, 12), ("3/2".to_string(), 30, 0)]
-    );
+    let figures = worked_curve(text, vec![6, 0, 0]);
+    assert_eq!(figures, expected_curve(&[("0", 12, 12), ("3/2", 30, 0)]));
 }
 
 /// A worked example where several plans tie at a breakpoint, so a solve there may return a
@@ -510,14 +519,7 @@ fn the_stability_curve_of_a_worked_example() {
 fn the_stability_curve_skips_plans_optimal_at_one_price() {
     let text = json!({"matrix": [[2, 1, 1]], "rhs": [3], "cost": [2, 1, 2],
                       "lower": [0, 0, 0], "upper": [2, 3, 3]});
-    let model = Model::from_str(&text.to_string(), ModelKind::Json, "case.json").unwrap();
-    let pieces = curve_pieces(&model, vec![0, 0, 2], 20);
-    let figures: Vec<(String, i128, u128)> = pieces
-        .iter()
-        .map(|p| (p.from.to_string(), p.figures.plan_cost, p.figures.moved))
-        .collect();
-    let expected = [("0", 3, 4), ("1/2", 4, 2), ("1", 5, 1)];
-    let expected: Vec<(String, i128, u128)> =
-        expected.map(|(f, c, m)| (f.to_string(), c, m)).to_vec();
+    let figures = worked_curve(text, vec![0, 0, 2]);
+    let expected = expected_curve(&[("0", 3, 4), ("1/2", 4, 2), ("1", 5, 1)]);
     assert_eq!(figures, expected);
 }
