@@ -10,8 +10,8 @@ use std::time::Duration;
 
 use completion_support::*;
 use kernstep::completion::{
-    complete_kernel, Checkpoint, Completion, Control, Progress, Request, StagePoint, StopReason,
-    Truncation,
+    complete_kernel, Checkpoint, Completion, Control, Progress, Request, StagePoint, StateView,
+    StopReason, Truncation,
 };
 use kernstep::IntMatrix;
 
@@ -23,10 +23,23 @@ fn states_and_result(
     every: Duration,
 ) -> (Vec<Checkpoint>, Completion) {
     let saved = Mutex::new(Vec::new());
-    let save = |c: &Checkpoint| saved.lock().unwrap().push(c.clone());
+    let save = |c: &StateView<'_>| saved.lock().unwrap().push(owned(c));
     let control = Control::new().on_save(&save, every);
     let result = complete_kernel(a, request, &control, None).unwrap();
     (saved.into_inner().unwrap(), result)
+}
+
+/// The owned state a hook's view stands for, checked to encode (bincode, as a cache build
+/// stores it) byte for byte as the view.
+fn owned(view: &StateView<'_>) -> Checkpoint {
+    let state = view.to_checkpoint();
+    let config = bincode::config::standard();
+    let view_bytes = bincode::serde::encode_to_vec(view, config).unwrap();
+    assert_eq!(
+        view_bytes,
+        bincode::serde::encode_to_vec(&state, config).unwrap()
+    );
+    state
 }
 
 fn resumed(a: &IntMatrix, request: &Request, state: &Checkpoint) -> Completion {
@@ -102,7 +115,7 @@ fn a_stop_anywhere_saves_a_state_that_resumes_to_the_same_set() {
             }
         };
         let last = Mutex::new(None);
-        let save = |c: &Checkpoint| *last.lock().unwrap() = Some(c.clone());
+        let save = |c: &StateView<'_>| *last.lock().unwrap() = Some(owned(c));
         let control = Control::new()
             .cancel_flag(&cancel)
             .progress(&report)

@@ -8,7 +8,7 @@ use std::sync::Mutex;
 use cache::{Completeness, SetKind};
 use kernstep::analysis::{AnalysisOptions, MatrixAnalysis};
 use kernstep::completion::{
-    complete_kernel, Checkpoint, Control, Progress, Request, Sign, StopReason,
+    complete_kernel, Control, Progress, Request, Sign, StateView, StopReason,
 };
 use kernstep::model::{Model, ModelKind};
 use kernstep::testset::{
@@ -242,7 +242,7 @@ fn a_checkpoint_resumes_only_a_build_of_its_own_request() {
     // A checkpoint of the older layout (the bare state, no request) is ignored, not an error,
     // even though it holds a sound state of this very request.
     let states = Mutex::new(Vec::new());
-    let keep = |c: &Checkpoint| states.lock().unwrap().push(c.clone());
+    let keep = |c: &StateView<'_>| states.lock().unwrap().push(c.to_checkpoint());
     let request = Request {
         signs: unlimited.signs.clone(),
         truncation: unlimited.truncation.clone(),

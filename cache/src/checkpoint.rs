@@ -57,17 +57,30 @@ impl Store {
 
     /// Saves (atomically replacing) the checkpoint for `key`.
     pub fn save_checkpoint(&self, key: &EntryKey, state: &[u8]) -> Result<(), CacheError> {
+        self.save_checkpoint_with(key, state.len(), |out| out.extend_from_slice(state))
+    }
+
+    /// Saves (atomically replacing) the checkpoint for `key` whose payload `fill` appends to
+    /// the file's bytes (`expected` of them, to size the buffer): a large state is written
+    /// once, into the buffer the file is made from, not first into a buffer of its own.
+    pub fn save_checkpoint_with(
+        &self,
+        key: &EntryKey,
+        expected: usize,
+        fill: impl FnOnce(&mut Vec<u8>),
+    ) -> Result<(), CacheError> {
         let digest = key.digest();
-        let len = u64::try_from(state.len()).map_err(|_| CacheError::Overflow {
-            what: "checkpoint length",
-        })?;
-        let mut bytes = Vec::with_capacity(HEAD + state.len() + TRAILER);
+        let mut bytes = Vec::with_capacity(HEAD + expected + TRAILER);
         bytes.extend_from_slice(&CHECKPOINT_MAGIC);
         bytes.extend_from_slice(&VERSION.to_le_bytes());
         bytes.extend_from_slice(&[0, 0]);
         bytes.extend_from_slice(&digest.0);
-        bytes.extend_from_slice(&len.to_le_bytes());
-        bytes.extend_from_slice(state);
+        bytes.extend_from_slice(&[0; 8]);
+        fill(&mut bytes);
+        let len = u64::try_from(bytes.len() - HEAD).map_err(|_| CacheError::Overflow {
+            what: "checkpoint length",
+        })?;
+        bytes[HEAD - 8..HEAD].copy_from_slice(&len.to_le_bytes());
         let checksum = xxh3_64(&bytes);
         bytes.extend_from_slice(&checksum.to_le_bytes());
         write_atomic(&self.checkpoint_path(digest), &bytes)

@@ -355,6 +355,15 @@ fn checkpoints_round_trip_and_are_removed() {
     assert!(
         matches!(store.load_checkpoint(&k).unwrap(), CheckpointState::Present(b) if b == b"later")
     );
+    // A payload written in place: its length is taken from what was written, not from the
+    // size hint.
+    for hint in [0, 3, 10_000] {
+        store
+            .save_checkpoint_with(&k, hint, |out| out.extend_from_slice(&state[..777]))
+            .unwrap();
+        assert!(matches!(store.load_checkpoint(&k).unwrap(),
+            CheckpointState::Present(b) if b == state[..777]));
+    }
     assert!(store.remove_checkpoint(&k).unwrap());
     assert!(!store.remove_checkpoint(&k).unwrap());
     assert!(matches!(

@@ -75,17 +75,6 @@ pub enum StagePoint {
 }
 
 impl Checkpoint {
-    /// The state after a stage.
-    pub(crate) fn of(lifted: &[usize], orbits: &[Orbit], exact: bool) -> Self {
-        Self {
-            lifted: lifted.to_vec(),
-            elements: orbits.iter().map(|o| widen(&o.rep)).collect(),
-            symmetric: orbits.iter().map(|o| o.symmetric).collect(),
-            within: None,
-            exact,
-        }
-    }
-
     /// Checks that every element and every pending remainder lies in `ker_Z(a)`.
     pub(crate) fn check_kernel(&self, a: &IntMatrix) -> Result<()> {
         let pending = self.within.iter().flat_map(|s| match &s.point {
@@ -162,11 +151,6 @@ impl Checkpoint {
             .collect::<Result<Vec<_>>>()?;
         Ok((self.lifted.clone(), orbits))
     }
-}
-
-/// Entries as stored in a checkpoint.
-pub(crate) fn widen(v: &[crate::completion::store::Entry]) -> Vec<i64> {
-    v.iter().map(|&x| i64::from(x)).collect()
 }
 
 fn invalid(message: String) -> Error {

@@ -8,7 +8,7 @@ use std::time::{Duration, Instant};
 
 use schemars::JsonSchema;
 
-use super::checkpoint::Checkpoint;
+use super::state_view::StateView;
 use crate::error::{Error, Result};
 
 /// Why a completion stopped before finishing.
@@ -65,7 +65,7 @@ pub struct Control<'a> {
     max_elements: Option<usize>,
     cancel: Option<&'a AtomicBool>,
     progress: Option<&'a (dyn Fn(&Progress) + Sync)>,
-    save: Option<&'a (dyn Fn(&Checkpoint) + Sync)>,
+    save: Option<&'a (dyn Fn(&StateView<'_>) + Sync)>,
     save_every: Option<Duration>,
     share: Option<&'a dyn WorkShare>,
 }
@@ -155,18 +155,16 @@ impl<'a> Control<'a> {
     /// stage whenever `every` has passed since the last save, and when a limit or a
     /// cancellation stops the completion, so that an interrupted run loses at most `every` of
     /// work (default: no saving).
-    pub fn on_save(mut self, save: &'a (dyn Fn(&Checkpoint) + Sync), every: Duration) -> Self {
+    pub fn on_save(mut self, save: &'a (dyn Fn(&StateView<'_>) + Sync), every: Duration) -> Self {
         self.save = Some(save);
         self.save_every = Some(every);
         self
     }
 
-    /// Hands the resumable state `state()` makes to the saving hook, if any. The state is only
-    /// made for a hook: it copies the stage's set out (at a stage's end, when the set of the
-    /// next stage is built beside it, the copy would be the build's peak of memory).
-    pub(crate) fn save(&self, state: impl FnOnce() -> Checkpoint) {
+    /// Hands the resumable state `state` to the saving hook, if any.
+    pub(crate) fn save(&self, state: &StateView<'_>) {
         if let Some(save) = self.save {
-            save(&state());
+            save(state);
         }
     }
 

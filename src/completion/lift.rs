@@ -38,11 +38,12 @@ use std::time::Instant;
 
 use rayon::prelude::*;
 
-use super::checkpoint::{widen, Checkpoint, InStage, StagePoint};
+use super::checkpoint::StagePoint;
 use super::control::{Control, StopReason};
 use super::limits::{admits, Truncation};
 use super::partners::{marked, Group};
 use super::reducer::SignMask;
+use super::state_view::{Position, StateView};
 use super::store::{add_into, to_entries, Entry, Stored};
 use super::working::{Orbit, WorkingSet};
 use crate::error::Result;
@@ -138,7 +139,8 @@ pub(crate) fn lift<const W: usize, E: Stored>(
         && match lifting.cut_pairs_vanish(control)? {
             Ok(vanish) => vanish,
             Err(stop) => {
-                lifting.save(&end, control);
+                let (position, sums) = end.split();
+                lifting.save(position, &narrow_all(sums)?, control);
                 return Ok(Err(stop));
             }
         };
@@ -255,19 +257,18 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         if let Err(stop) = caught_up {
             return Ok(Err(stop));
         }
-        let next = StagePoint::Pairs {
+        let next = Position::Pairs {
             from: level + 1,
             tasks_done: 0,
-            sums: Vec::new(),
         };
         let (n, m) = self.stage.number;
         let local = control.checkpoint(n, m, level, self.set.len());
         if let (_, Some(stop)) = control.exchange(self.width, Vec::new(), local)? {
-            self.save(&next, control);
+            self.save(next, &[], control);
             return Ok(Err(stop));
         }
-        self.save_if_due(|| next.clone(), control);
-        Ok(Ok(next))
+        self.save_if_due(next, &[], control);
+        Ok(Ok(next.with_sums(Vec::new())))
     }
 
     fn add(&mut self, rep: &[Entry], symmetric: bool) -> Result<()> {
@@ -340,13 +341,12 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let tasks = self.level_tasks(level);
         let mut sums = narrow_all(sums)?;
         let (rank, size) = control.part();
-        let point = |done: usize, sums: &[Vec<Entry>]| StagePoint::Pairs {
+        let point = |done: usize| Position::Pairs {
             from: level,
             tasks_done: done,
-            sums: sums.iter().map(|v| widen(v)).collect(),
         };
         for batch in tasks.get(done..).unwrap_or_default().chunks(BATCH * size) {
-            self.save_if_due(|| point(done, &sums), control);
+            self.save_if_due(point(done), &sums, control);
             let local = control.interrupted();
             let mine: Vec<&(u32, &Group)> = match local {
                 Some(_) => Vec::new(),
@@ -361,7 +361,7 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
             let mine = chunks.into_iter().flatten().collect();
             let (all, stop) = control.exchange(self.width, mine, local)?;
             if let Some(stop) = stop {
-                self.save(&point(done, &sums), control);
+                self.save(point(done), &sums, control);
                 return Ok(Err(stop));
             }
             sums.extend(all);
@@ -451,14 +451,13 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let mut collected = narrow_all(sums)?;
         while first_new < self.set.len() as u32 || !collected.is_empty() {
             let fresh: Vec<u32> = (first_new..self.set.len() as u32).collect();
-            let point = |done: usize, sums: &[Vec<Entry>]| StagePoint::CatchUp {
+            let point = |done: usize| Position::CatchUp {
                 level,
                 first_new,
                 members_done: done,
-                sums: sums.iter().map(|v| widen(v)).collect(),
             };
             for batch in fresh.get(done..).unwrap_or_default().chunks(BATCH * size) {
-                self.save_if_due(|| point(done, &collected), control);
+                self.save_if_due(point(done), &collected, control);
                 let local = control.interrupted();
                 let mine: Vec<u32> = match local {
                     Some(_) => Vec::new(),
@@ -471,7 +470,7 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
                 let mine = sums.into_iter().flatten().collect();
                 let (all, stop) = control.exchange(self.width, mine, local)?;
                 if let Some(stop) = stop {
-                    self.save(&point(done, &collected), control);
+                    self.save(point(done), &collected, control);
                     return Ok(Err(stop));
                 }
                 collected.extend(all);
@@ -554,30 +553,29 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         Ok(false)
     }
 
-    /// Saves the state at `point` through the control's hook, if it has one.
-    fn save(&self, point: &StagePoint, control: &Control<'_>) {
+    /// Saves the state at `position`, with the remainders `sums` not yet merged, through the
+    /// control's hook, if it has one.
+    fn save(&self, position: Position, sums: &[Vec<Entry>], control: &Control<'_>) {
         if !control.saves() {
             return;
         }
-        control.save(|| {
-            let orbits = self.set.orbits_where(|_| true);
-            let mut state = Checkpoint::of(self.stage.old, &orbits, self.stage.exact);
-            state.within = Some(InStage {
-                component: self.stage.new,
-                point: point.clone(),
-            });
-            state
-        });
+        control.save(&StateView::within(
+            self.stage.old,
+            &self.set,
+            (self.stage.new, position),
+            sums,
+            self.stage.exact,
+        ));
         if let Ok(mut at) = self.saved_at.lock() {
             *at = Instant::now();
         }
     }
 
-    /// Saves the state at `point()` if the control's interval has passed since the last save.
-    fn save_if_due(&self, point: impl FnOnce() -> StagePoint, control: &Control<'_>) {
+    /// Saves the state at `position` if the control's interval has passed since the last save.
+    fn save_if_due(&self, position: Position, sums: &[Vec<Entry>], control: &Control<'_>) {
         let due = self.saved_at.lock().is_ok_and(|at| control.save_due(*at));
         if due {
-            self.save(&point(), control);
+            self.save(position, sums, control);
         }
     }
 

@@ -20,6 +20,7 @@ mod partners;
 mod pottier;
 mod projection;
 mod reducer;
+mod state_view;
 mod store;
 mod working;
 
@@ -30,6 +31,7 @@ pub use control::{Control, Progress, StopReason, WorkShare};
 use limits::admits;
 pub use limits::Truncation;
 use reducer::MAX_WORDS;
+pub use state_view::StateView;
 
 use crate::error::{Error, Result};
 use crate::lattice::reduced_kernel_basis;
@@ -287,7 +289,7 @@ fn lift_all<const W: usize>(
             };
             let (orbits, exact) = restrict::<W>(start, signs, &comps, &request.truncation)?;
             let exact = checked && exact;
-            control.save(|| Checkpoint::of(&comps, &orbits, exact));
+            control.save(&StateView::between(&comps, &orbits, exact));
             (comps, orbits, exact, None)
         }
     };
@@ -313,7 +315,7 @@ fn lift_all<const W: usize>(
         exact = exact && lifted.exact;
         done.push(j);
         if number + 1 < stages {
-            control.save(|| Checkpoint::of(&done, &orbits, exact));
+            control.save(&StateView::between(&done, &orbits, exact));
         }
     }
     Ok(Ok((orbits, exact)))

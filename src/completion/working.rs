@@ -95,9 +95,22 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
         self.orbits_of(minimal).collect()
     }
 
-    /// The members satisfying `keep`, as orbits, each once.
-    pub(crate) fn orbits_where(&self, keep: impl Fn(&[Entry]) -> bool) -> Vec<Orbit> {
-        self.kept_orbits(keep).1.collect()
+    /// Every member as orbits, each once, in id order (the order a state saved inside a
+    /// stage lists them in, so that every member gets its id back).
+    pub(crate) fn all_orbits(&self) -> impl Iterator<Item = Orbit> + '_ {
+        (0..self.len() as u32).filter_map(move |id| {
+            let mirror = self.mirror[id as usize];
+            mirror.is_none_or(|m| m >= id).then(|| Orbit {
+                rep: self.store.widened(id),
+                symmetric: mirror.is_some(),
+            })
+        })
+    }
+
+    /// How many orbits [`Self::all_orbits`] lists.
+    pub(crate) fn orbit_total(&self) -> usize {
+        let paired = self.mirror.iter().filter(|m| m.is_some()).count();
+        self.len() - paired / 2
     }
 
     /// The members satisfying `keep`, as orbits made one at a time (no list of them all), with

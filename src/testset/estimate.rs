@@ -26,7 +26,7 @@ use serde::Serialize;
 use super::build::{build, BuildOutcome};
 use super::spec::{BuildSpec, NormLimit};
 use crate::analysis::MatrixAnalysis;
-use crate::completion::{Checkpoint, Control};
+use crate::completion::{Control, StateView};
 use crate::error::Result;
 use crate::model::Model;
 
@@ -114,11 +114,11 @@ pub fn estimate(
     let start_dimension = model.variables() - analysis.rank;
     let started = Instant::now();
     let marks = Mutex::new(Vec::new());
-    let record = |state: &Checkpoint| {
-        if state.within.is_none() {
+    let record = |state: &StateView<'_>| {
+        if !state.mid_stage() {
             let mark = StageMark {
-                stage: state.lifted.len().saturating_sub(start_dimension),
-                elements: state.elements.len(),
+                stage: state.lifted().len().saturating_sub(start_dimension),
+                elements: state.elements(),
                 seconds: started.elapsed().as_secs_f64(),
             };
             marks.lock().map(|mut m| m.push(mark)).ok();

@@ -15,7 +15,7 @@ use super::saved::{self, RequestRecord, Saved};
 use super::spec::ResolvedSpec;
 use super::verify::verify_content;
 use crate::analysis::MatrixAnalysis;
-use crate::completion::{check_resumable, Checkpoint, Control, Method, StopReason};
+use crate::completion::{check_resumable, Checkpoint, Control, Method, StateView, StopReason};
 use crate::error::Result;
 use crate::matrix::IntMatrix;
 use crate::network::Network;
@@ -115,13 +115,20 @@ pub struct SavedState {
 }
 
 impl SavedState {
-    fn of(state: &Checkpoint, width: usize, rank: usize, work: Duration) -> Self {
-        let lifted_past_start = state.lifted.len().saturating_sub(width - rank);
+    /// The report of a state with `lifted` components lifted, saved inside a stage or not,
+    /// holding `moves`.
+    fn of(
+        (lifted, mid_stage, moves): (usize, bool, usize),
+        width: usize,
+        rank: usize,
+        work: Duration,
+    ) -> Self {
+        let lifted_past_start = lifted.saturating_sub(width - rank);
         Self {
-            stage: lifted_past_start + usize::from(state.within.is_some()),
+            stage: lifted_past_start + usize::from(mid_stage),
             stages: rank + 1,
-            mid_stage: state.within.is_some(),
-            moves: state.elements.len(),
+            mid_stage,
+            moves,
             work,
         }
     }
@@ -359,8 +366,13 @@ impl SetLibrary {
             control,
         )?;
         let resumed = resume.map(|r| {
+            let state = &r.state;
             SavedState::of(
-                &r.state,
+                (
+                    state.lifted.len(),
+                    state.within.is_some(),
+                    state.elements.len(),
+                ),
                 width,
                 rank,
                 Duration::from_secs_f64(r.work_seconds),
@@ -410,12 +422,13 @@ impl SetLibrary {
         let started = Instant::now();
         let last_saved = Mutex::new(None);
         let save_failed = Mutex::new(None);
-        let save = |state: &Checkpoint| {
+        let save = |state: &StateView<'_>| {
             let work = earlier + started.elapsed().as_secs_f64();
             match self.save_checkpoint(key, request, state, work) {
                 Ok(()) => {
                     let work = Duration::from_secs_f64(work);
-                    let saved = SavedState::of(state, width, rank, work);
+                    let at = (state.lifted().len(), state.mid_stage(), state.elements());
+                    let saved = SavedState::of(at, width, rank, work);
                     last_saved.lock().map(|mut slot| *slot = Some(saved)).ok();
                 }
                 Err(e) => {
@@ -531,11 +544,13 @@ impl SetLibrary {
         &self,
         key: &EntryKey,
         request: &RequestRecord,
-        state: &Checkpoint,
+        state: &StateView<'_>,
         work_seconds: f64,
     ) -> Result<()> {
-        self.store
-            .save_checkpoint(key, &saved::encode(request, state, work_seconds))?;
+        let len = saved::payload_len(request, state, work_seconds);
+        self.store.save_checkpoint_with(key, len, |out| {
+            saved::append(request, state, work_seconds, out);
+        })?;
         Ok(())
     }
 }

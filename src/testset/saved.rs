@@ -15,11 +15,12 @@
 //! and starts over.
 
 use bincode::config;
+use bincode::enc::write::Writer;
 use cache::EntryKey;
 use serde::{Deserialize, Serialize};
 
 use super::spec::ResolvedSpec;
-use crate::completion::{Checkpoint, Method};
+use crate::completion::{Checkpoint, Method, StateView};
 
 /// The tag that opens every payload of this layout. Layout 1 (no tag, the bare state) did
 /// not record the request; layout 2 held states between stages only and no work time;
@@ -49,11 +50,12 @@ impl RequestRecord {
     }
 }
 
-/// The payload's fields after the tag, borrowed for writing.
+/// The payload's fields after the tag, borrowed for writing (`S` encodes as a
+/// [`Checkpoint`]).
 #[derive(Serialize)]
-struct Body<'a> {
+struct Body<'a, S> {
     request: &'a RequestRecord,
-    state: &'a Checkpoint,
+    state: &'a S,
     work_seconds: f64,
 }
 
@@ -75,20 +77,67 @@ pub(crate) struct Saved {
 }
 
 /// The payload that saves `state` of a build of `request`, reached after `work_seconds` of
-/// build work.
-pub(crate) fn encode(request: &RequestRecord, state: &Checkpoint, work_seconds: f64) -> Vec<u8> {
-    // Encoding strings, integers and vectors into memory cannot fail.
-    let mut bytes =
-        bincode::serde::encode_to_vec(LAYOUT, config::standard()).expect("a string encodes");
+/// build work, appended to `out`. Written once, in place: no buffer of its own (a mid-stage
+/// state of a large build is tens of megabytes).
+pub(crate) fn append(
+    request: &RequestRecord,
+    state: &StateView<'_>,
+    work_seconds: f64,
+    out: &mut Vec<u8>,
+) {
+    append_state(request, state, work_seconds, out);
+}
+
+/// The length of the payload [`append`] writes.
+pub(crate) fn payload_len(
+    request: &RequestRecord,
+    state: &StateView<'_>,
+    work_seconds: f64,
+) -> usize {
+    let mut size = bincode::enc::write::SizeWriter::default();
+    write_state(request, state, work_seconds, &mut size);
+    size.bytes_written
+}
+
+/// [`append`] for any `state` that encodes as a [`Checkpoint`]; returns the payload's length.
+fn append_state<S: Serialize>(
+    request: &RequestRecord,
+    state: &S,
+    work_seconds: f64,
+    out: &mut Vec<u8>,
+) -> usize {
+    let start = out.len();
+    write_state(request, state, work_seconds, &mut VecWriter(out));
+    out.len() - start
+}
+
+/// Writes the payload of `state` to `writer`.
+fn write_state<S: Serialize>(
+    request: &RequestRecord,
+    state: &S,
+    work_seconds: f64,
+    writer: &mut impl Writer,
+) {
     let body = Body {
         request,
         state,
         work_seconds,
     };
-    let body = bincode::serde::encode_to_vec(body, config::standard())
+    // Encoding strings, integers and vectors into memory cannot fail.
+    bincode::serde::encode_into_writer(LAYOUT, &mut *writer, config::standard())
+        .expect("a string encodes");
+    bincode::serde::encode_into_writer(body, writer, config::standard())
         .expect("a checkpoint of integers and vectors encodes");
-    bytes.extend_from_slice(&body);
-    bytes
+}
+
+/// A bincode writer appending to a vector.
+struct VecWriter<'a>(&'a mut Vec<u8>);
+
+impl Writer for VecWriter<'_> {
+    fn write(&mut self, bytes: &[u8]) -> std::result::Result<(), bincode::error::EncodeError> {
+        self.0.extend_from_slice(bytes);
+        Ok(())
+    }
 }
 
 /// The saved state, if `bytes` is a payload of this layout saved for exactly `request`:
@@ -164,6 +213,13 @@ mod tests {
         }
     }
 
+    fn encoded(request: &RequestRecord, state: &Checkpoint, work_seconds: f64) -> Vec<u8> {
+        let mut out = vec![7];
+        let len = append_state(request, state, work_seconds, &mut out);
+        assert_eq!((out.remove(0), out.len()), (7, len));
+        out
+    }
+
     fn saved() -> Option<Saved> {
         Some(Saved {
             state: state(),
@@ -173,7 +229,7 @@ mod tests {
 
     #[test]
     fn a_state_reads_back_only_for_its_own_request() {
-        let bytes = encode(&request(Some(4)), &state(), 2.5);
+        let bytes = encoded(&request(Some(4)), &state(), 2.5);
         assert_eq!(decode(&bytes, &request(Some(4))), Ok(saved()));
         assert_eq!(decode(&bytes, &request(None)), Ok(None));
         assert_eq!(decode(&bytes, &request(Some(5))), Ok(None));
@@ -183,7 +239,7 @@ mod tests {
     fn the_bare_state_of_layout_1_and_cut_payloads_are_not_read() {
         let bare = bincode::serde::encode_to_vec(state(), config::standard()).unwrap();
         assert!(decode(&bare, &request(Some(4))).is_err());
-        let bytes = encode(&request(Some(4)), &state(), 2.5);
+        let bytes = encoded(&request(Some(4)), &state(), 2.5);
         for cut in 0..bytes.len() {
             assert!(
                 decode(&bytes[..cut], &request(Some(4))).is_err(),
