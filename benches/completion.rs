@@ -113,7 +113,7 @@ fn child(name: &str, method: &str, limit: u64) {
     let outcome = complete_kernel(&a, &request, &control, None).expect("completion runs");
     let seconds = start.elapsed().as_secs_f64();
     let elements = match outcome {
-        Completion::Finished(set, _) => set.elements.len().to_string(),
+        Completion::Finished(set, _) => set.len().to_string(),
         Completion::Stopped(_) => "-".to_string(),
     };
     println!("{elements} {seconds:.3} {}", peak_kib());

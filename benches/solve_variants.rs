@@ -73,7 +73,7 @@ fn main() {
     println!(
         "{}",
         serde_json::json!({
-            "summary": true, "elements": set.elements.len(), "build_seconds": build_s,
+            "summary": true, "elements": set.len(), "build_seconds": build_s,
             "solve_seconds": solve_s, "variants": variants.len(), "threads": threads,
         })
     );

@@ -42,7 +42,7 @@
 //!     unreachable!("a build without limits finishes");
 //! };
 //! // The kernel is spanned by one primitive vector, so the basis is that move and its negation.
-//! assert_eq!(built.set.elements, [[1, -1, -1, 1]]);
+//! assert_eq!(built.set.to_rows(), [[1, -1, -1, 1]]);
 //!
 //! // Prepared once per matrix; then any variant of the numbers is solved with it.
 //! let coverage = coverage_of(&built.metadata.completeness);

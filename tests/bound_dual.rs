@@ -8,7 +8,7 @@ use proptest_cases::Class;
 use augment::{Coverage, Options, Status};
 use kernstep::bound::{prove, BoundInstance, DualBound, Multipliers};
 use kernstep::certify::{judge, Answer};
-use kernstep::completion::Request;
+use kernstep::completion::{ElementSet, Request};
 use kernstep::model::{ConvexCosts, Model, ModelKind, Pieces};
 use kernstep::solve::{Numbers, Prepared, Verdict};
 use kernstep::trace::{recheck_with_bound, Claim, Outcome};
@@ -156,9 +156,10 @@ fn partial(
         "matrix": matrix, "rhs": rhs, "cost": cost, "lower": lower, "upper": upper,
     });
     let model = Model::from_str(&text.to_string(), ModelKind::Json, "partial").unwrap();
-    let mut set = completion_support::run(&model.matrix, &Request::graver(model.variables()));
-    set.elements
-        .retain(|g| g.iter().map(|v| v.unsigned_abs()).sum::<u64>() <= norm);
+    let full = completion_support::run(&model.matrix, &Request::graver(model.variables()));
+    let mut rows = full.to_rows();
+    rows.retain(|g| g.iter().map(|v| v.unsigned_abs()).sum::<u64>() <= norm);
+    let set = ElementSet::from_rows(full.width(), &rows).unwrap();
     let prepared = Prepared::new(&model.matrix, &set, Coverage::NormTruncated { norm }).unwrap();
     let verdict = prepared
         .solve(&model, &Options::default(), None, &|| false)

@@ -97,7 +97,7 @@ fn fixtures_are_incidence_matrices_with_networkx_cycles() {
 }
 
 fn assert_cycles(f: &Fixture, set: &ElementSet, method: Method) {
-    assert_eq!(set.width, f.arcs.len(), "{}: width", f.name);
+    assert_eq!(set.width(), f.arcs.len(), "{}: width", f.name);
     // Reference: networkx simple_cycles (scripts/graph_cycles_reference.py); Graver basis =
     // signed cycles for a digraph incidence matrix (Sturmfels 1996, Prop. 8.11).
     assert_eq!(sorted(set), f.cycles, "{}: {method:?}", f.name);

@@ -42,7 +42,7 @@ fn transport_graver_bases_are_the_cycles() {
         let a = transport(r, s);
         let set = graver(&a, Method::ProjectAndLift);
         assert_eq!(
-            set.elements.len() as u64,
+            set.len() as u64,
             bipartite_cycles(r as u64, s as u64),
             "K_{{{r},{s}}}"
         );
@@ -97,8 +97,7 @@ fn graver_complexity_of_the_twisted_cubic_is_six() {
     ]);
     let set = graver(&g, Method::ProjectAndLift);
     let largest = set
-        .elements
-        .iter()
+        .rows()
         .map(|e| e.iter().map(|x| x.abs()).sum::<i64>())
         .max();
     assert_eq!(largest, Some(6));
@@ -111,11 +110,8 @@ fn primitive_partition_identities() {
     // of (1 2 ... n) has 5, 15, 47, 102 elements for n = 3..6, largest l1 norm 2n - 1.
     for (n, count) in [(3, 5), (4, 15), (5, 47), (6, 102)] {
         let set = graver(&primitive_partition(n), Method::ProjectAndLift);
-        assert_eq!(set.elements.len(), count, "n = {n}");
-        let largest = set
-            .elements
-            .iter()
-            .map(|e| e.iter().map(|x| x.abs()).sum::<i64>());
+        assert_eq!(set.len(), count, "n = {n}");
+        let largest = set.rows().map(|e| e.iter().map(|x| x.abs()).sum::<i64>());
         assert_eq!(largest.max(), Some(2 * n as i64 - 1));
     }
 }
@@ -126,7 +122,7 @@ fn three_way_tables_with_all_two_margins() {
     // and the independent baseline (Pottier's completion) finds the same set.
     let a = three_way_margins(3, 3, 3);
     let set = graver(&a, Method::ProjectAndLift);
-    assert_eq!(set.elements.len(), 795);
+    assert_eq!(set.len(), 795);
     assert_valid(&a, &Request::graver(27).signs, &set);
     assert_eq!(sorted(&graver(&a, Method::Pottier)), sorted(&set));
 }
@@ -154,16 +150,16 @@ fn wide_block_diagonal_matrices_take_wider_sign_masks() {
         let a = matrix(&refs);
         let want: BTreeSet<Vec<i64>> = (0..blocks)
             .flat_map(|b| {
-                cubic.elements.iter().map(move |g| {
+                cubic.rows().map(move |g| {
                     let mut e = vec![0; cols];
-                    e[4 * b..4 * b + 4].copy_from_slice(g);
+                    e[4 * b..4 * b + 4].copy_from_slice(&g);
                     canonical_sign(&e)
                 })
             })
             .collect();
         let set = graver(&a, Method::ProjectAndLift);
-        assert_eq!(set.elements.len(), 5 * blocks, "{cols} columns");
-        let got: BTreeSet<Vec<i64>> = set.elements.iter().map(|e| canonical_sign(e)).collect();
+        assert_eq!(set.len(), 5 * blocks, "{cols} columns");
+        let got: BTreeSet<Vec<i64>> = set.rows().map(|e| canonical_sign(&e)).collect();
         assert_eq!(got, want, "{cols} columns");
     }
 }

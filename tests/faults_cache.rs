@@ -144,7 +144,7 @@ impl Target {
         )
         .unwrap()
         {
-            BuildOutcome::Built(b) => b.set.elements,
+            BuildOutcome::Built(b) => b.set.to_rows(),
             BuildOutcome::Stopped(r) => panic!("stopped: {r:?}"),
         }
     }
@@ -378,7 +378,7 @@ fn concurrent_threads(target: &Arc<Target>, tally: &mut Tally) {
                 let library = SetLibrary::open(Some(&dir)).unwrap();
                 barrier.wait();
                 match target.obtain(&library) {
-                    Obtained::Built { built, .. } => (true, built.set.elements.len()),
+                    Obtained::Built { built, .. } => (true, built.set.len()),
                     Obtained::Reused(s) => (false, s.data.len()),
                     Obtained::Stopped { reason, .. } => panic!("stopped: {reason:?}"),
                 }
@@ -573,7 +573,7 @@ fn work_without_the_cache(target: &Target, base: &Path, bad: &Path, tally: &mut 
     );
     let reference = target.obtain(&SetLibrary::open(Some(base)).unwrap());
     let expected = match reference {
-        Obtained::Built { built, .. } => built.set.elements,
+        Obtained::Built { built, .. } => built.set.to_rows(),
         other => panic!("{other:?}"),
     };
     let out_file = base.join("set.json");

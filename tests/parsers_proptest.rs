@@ -412,7 +412,7 @@ fn graver(a: &IntMatrix, seconds: u64) -> Result<Option<Vec<Vec<i64>>>, Error> {
         .time_limit(std::time::Duration::from_secs(seconds));
     Ok(
         match complete_kernel(a, &Request::graver(a.cols()), &control, None)? {
-            Completion::Finished(set, _) => Some(set.elements),
+            Completion::Finished(set, _) => Some(set.to_rows()),
             Completion::Stopped(_) => None,
         },
     )
@@ -515,7 +515,7 @@ proptest! {
                     .then(|| i128::from(c1) * i128::from(x1) + i128::from(c2) * x2)
             })
             .min();
-        let set = kernstep::completion::ElementSet { width: 2, elements: vec![vec![1, -a]] };
+        let set = kernstep::completion::ElementSet::from_rows(2, &[vec![1, -a]]).unwrap();
         let solved = Prepared::new(&model.matrix, &set, Coverage::Complete)
             .and_then(|p| p.solve(&model, &Options::default(), None, &|| false));
         match solved {

@@ -30,10 +30,7 @@ fn days() -> Vec<kernstep::solve::ParsedLine> {
 
 fn run(set: Vec<Vec<i64>>, chain: bool) -> Vec<kernstep::scenario::DayResult> {
     let model = lane_plan();
-    let set = ElementSet {
-        width: 4,
-        elements: set,
-    };
+    let set = ElementSet::from_rows(4, &set).unwrap();
     let prepared = Prepared::new(&model.matrix, &set, Coverage::Complete).unwrap();
     let settings = ReplanSettings {
         chain,

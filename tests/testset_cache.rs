@@ -12,8 +12,8 @@ use kernstep::completion::{
 };
 use kernstep::model::{Model, ModelKind};
 use kernstep::testset::{
-    build, default_graver_keys, entry_key, from_data, BoxPolicy, BuildOutcome, BuildSpec,
-    NormLimit, Obtained, ResolvedSpec, SetLibrary,
+    build, default_graver_keys, entry_key, BoxPolicy, BuildOutcome, BuildSpec, NormLimit, Obtained,
+    ResolvedSpec, SetLibrary,
 };
 use kernstep::IntMatrix;
 
@@ -39,8 +39,8 @@ fn obtain(lib: &SetLibrary, m: &Model, spec: &BuildSpec) -> Obtained {
 
 fn elements(o: &Obtained) -> Vec<Vec<i64>> {
     match o {
-        Obtained::Reused(s) => from_data(&s.data).elements,
-        Obtained::Built { built, .. } => built.set.elements.clone(),
+        Obtained::Reused(s) => s.data.rows().collect(),
+        Obtained::Built { built, .. } => built.set.to_rows(),
         Obtained::Stopped { reason, .. } => panic!("stopped: {reason:?}"),
     }
 }
@@ -187,7 +187,7 @@ fn built(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec) -> (Vec<Vec<i64>>, Op
         .unwrap()
     {
         Obtained::Built { built, resumed, .. } => {
-            (built.set.elements, resumed.map(|state| state.stage))
+            (built.set.to_rows(), resumed.map(|state| state.stage))
         }
         other => panic!("{other:?}"),
     }
@@ -197,7 +197,7 @@ fn built(lib: &SetLibrary, m: &Model, spec: &ResolvedSpec) -> (Vec<Vec<i64>>, Op
 fn fresh(m: &Model, spec: &ResolvedSpec) -> Vec<Vec<i64>> {
     let analysis = MatrixAnalysis::of(&m.matrix, &AnalysisOptions::new());
     match build(&m.matrix, &analysis, spec, &Control::new(), None).unwrap() {
-        BuildOutcome::Built(b) => b.set.elements,
+        BuildOutcome::Built(b) => b.set.to_rows(),
         BuildOutcome::Stopped(r) => panic!("stopped: {r:?}"),
     }
 }

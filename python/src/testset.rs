@@ -15,12 +15,12 @@ use kernstep::augment::{Coverage, MoveSet, Options, Rule};
 use kernstep::bound::Multipliers;
 use kernstep::cache::SetKind;
 use kernstep::certify::{Answer, Claim, Limit};
-use kernstep::completion::Progress;
+use kernstep::completion::{moves_of, Progress};
 use kernstep::model::Model;
 use kernstep::solve::{Numbers, Prepared, WarmStart};
 use kernstep::testset::{
-    by_cycles, moves_of, serve, BuildLimits, BuildSpec, Destination, Engine, Job, JobStatus,
-    NormLimit, Served, SetLibrary,
+    by_cycles, serve, BuildLimits, BuildSpec, Destination, Engine, Job, JobStatus, NormLimit,
+    Served, SetLibrary,
 };
 use kernstep::trace::{certify, record, Certified, Outcome};
 use numpy::{PyArray1, PyArray2, PyReadonlyArray1, PyReadonlyArray2};

@@ -14,6 +14,7 @@
 
 mod checkpoint;
 mod control;
+mod element_set;
 mod lift;
 mod limits;
 mod partners;
@@ -28,6 +29,7 @@ use serde::{Deserialize, Serialize};
 
 pub use checkpoint::{Checkpoint, InStage, StagePoint};
 pub use control::{Control, Progress, StopReason, WorkShare};
+pub use element_set::{moves_of, ElementSet, Rows};
 use limits::admits;
 pub use limits::Truncation;
 use reducer::MAX_WORDS;
@@ -93,17 +95,6 @@ impl Request {
             ..Self::graver(n)
         }
     }
-}
-
-/// The elements of a test set as plain vectors (found by a finished completion, in canonical
-/// order and sign, or read from the cache); the solver's validated form is
-/// [`augment::MoveSet`].
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub struct ElementSet {
-    /// Number of variables.
-    pub width: usize,
-    /// The elements.
-    pub elements: Vec<Vec<i64>>,
 }
 
 /// Whether the truncation of a finished completion left anything out.
@@ -181,7 +172,7 @@ pub fn complete(
             } else {
                 Cut::Possibly
             };
-            Completion::Finished(canonical(n, orbits), cut)
+            Completion::Finished(canonical(n, orbits)?, cut)
         }
         Err(stop) => Completion::Stopped(stop),
     })
@@ -374,24 +365,22 @@ fn restrict<const W: usize>(
     Ok((within, exact))
 }
 
-/// Orients and sorts the final orbits.
-fn canonical(width: usize, orbits: Vec<Orbit>) -> ElementSet {
-    let mut elements: Vec<Vec<i64>> = orbits
-        .into_iter()
-        .map(|o| {
-            let flip = o.symmetric && o.rep.iter().find(|&&x| x != 0).is_some_and(|&x| x < 0);
-            o.rep
-                .iter()
-                .map(|&x| i64::from(if flip { -x } else { x }))
-                .collect()
-        })
-        .collect();
-    elements.sort_by(|a, b| {
-        let na: u64 = a.iter().map(|x| x.unsigned_abs()).sum();
-        let nb: u64 = b.iter().map(|x| x.unsigned_abs()).sum();
-        na.cmp(&nb).then_with(|| b.cmp(a))
-    });
-    ElementSet { width, elements }
+/// Orients and sorts the final orbits, then lays them out flat (no per-element copy: the
+/// representatives are turned in place and the set is written once, narrow).
+fn canonical(width: usize, mut orbits: Vec<Orbit>) -> Result<ElementSet> {
+    for o in &mut orbits {
+        if o.symmetric && o.rep.iter().find(|&&x| x != 0).is_some_and(|&x| x < 0) {
+            o.rep.iter_mut().for_each(|x| *x = -*x);
+        }
+    }
+    let norm = |o: &Orbit| {
+        o.rep
+            .iter()
+            .map(|x| u64::from(x.unsigned_abs()))
+            .sum::<u64>()
+    };
+    orbits.sort_unstable_by(|a, b| norm(a).cmp(&norm(b)).then_with(|| b.rep.cmp(&a.rep)));
+    ElementSet::from_orbits(width, &orbits)
 }
 
 /// How wide the stores of the lifting stages keep entries, at the least.

@@ -31,7 +31,7 @@ enum Engine {
 impl Prepared {
     /// Prepares `a` with its test set `set`, whose coverage is `coverage`.
     pub fn new(a: &IntMatrix, set: &ElementSet, coverage: Coverage) -> Result<Self> {
-        let moves = augment::MoveSet::from_rows(set.width, &set.elements, coverage)?;
+        let moves = set.moves(coverage)?;
         Self::with_moves(a, Arc::new(moves))
     }
 

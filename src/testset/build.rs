@@ -2,8 +2,7 @@
 
 use std::time::Instant;
 
-use augment::{Coverage, MoveSet};
-use cache::{Completeness, Entries, EntryKey, SetMetadata, TestSetData};
+use cache::{Completeness, EntryKey, SetMetadata};
 
 use super::spec::{model_box, ResolvedSpec};
 use crate::analysis::MatrixAnalysis;
@@ -117,28 +116,6 @@ pub fn build(
         metadata,
         set,
     })))
-}
-
-/// The stored form of a set (one byte per entry when every entry fits one).
-pub fn to_data(set: &ElementSet) -> Result<TestSetData> {
-    Ok(TestSetData::from_rows(set.width, &set.elements)?)
-}
-
-/// A stored set in the solver's form, read as it is kept (one byte per entry for small
-/// entries), with the coverage `coverage`.
-pub fn moves_of(data: &TestSetData, coverage: Coverage) -> Result<MoveSet> {
-    Ok(match data.entries() {
-        Entries::Small(entries) => MoveSet::new(data.width(), entries, coverage),
-        Entries::Full(entries) => MoveSet::new(data.width(), entries, coverage),
-    }?)
-}
-
-/// The in-memory form of a stored set.
-pub fn from_data(data: &TestSetData) -> ElementSet {
-    ElementSet {
-        width: data.width(),
-        elements: data.rows().collect(),
-    }
 }
 
 /// The name recorded for a method.

@@ -122,7 +122,7 @@ pub fn deepen(
             limit,
             end: match &outcome {
                 BuildOutcome::Built(built) => LevelEnd::Built {
-                    elements: built.set.elements.len(),
+                    elements: built.set.len(),
                 },
                 BuildOutcome::Stopped(reason) => LevelEnd::Stopped(*reason),
             },

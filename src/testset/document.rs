@@ -4,9 +4,10 @@
 
 use std::io::Write;
 
-use cache::{EntryKey, SetMetadata};
+use cache::{EntryKey, SetMetadata, TestSetData};
 use serde::{Deserialize, Serialize};
 
+use crate::completion::Rows;
 use crate::error::{Error, Result};
 
 /// The `format` field, naming what the document holds.
@@ -52,11 +53,11 @@ struct Written<'a> {
     key: &'a EntryKey,
     metadata: &'a SetMetadata,
     width: usize,
-    elements: &'a [Vec<i64>],
+    elements: Rows<'a>,
 }
 
 /// The set with its key and build facts as one line of JSON, ending in a newline.
-pub fn set_document(key: &EntryKey, metadata: &SetMetadata, elements: &[Vec<i64>]) -> String {
+pub fn set_document(key: &EntryKey, metadata: &SetMetadata, elements: &TestSetData) -> String {
     let mut text = Vec::new();
     // Keys, metadata and integer rows always serialise, and a Vec takes every byte.
     let _ = write_set_document(&mut text, key, metadata, elements);
@@ -69,7 +70,7 @@ pub fn write_set_document(
     out: &mut dyn Write,
     key: &EntryKey,
     metadata: &SetMetadata,
-    elements: &[Vec<i64>],
+    elements: &TestSetData,
 ) -> std::io::Result<()> {
     let doc = Written {
         format: SET_FORMAT,
@@ -78,7 +79,7 @@ pub fn write_set_document(
         key,
         metadata,
         width: key.width(),
-        elements,
+        elements: Rows(elements),
     };
     serde_json::to_writer(&mut *out, &doc)?;
     out.write_all(b"\n")
@@ -139,10 +140,11 @@ mod tests {
     use crate::testset::cycles_entry;
 
     /// The 2 x 2 transportation matrix's entry and its one cycle `(1, -1, -1, 1)` (by hand).
-    fn k22() -> (EntryKey, SetMetadata, Vec<Vec<i64>>) {
+    fn k22() -> (EntryKey, SetMetadata, TestSetData) {
         let a = IntMatrix::transportation(2, 2);
-        let entry = cycles_entry(&a, &Network::detect(&a).unwrap());
-        (entry.key, entry.metadata, vec![vec![1, -1, -1, 1]])
+        let entry = cycles_entry(&a, &Network::detect(&a).unwrap()).unwrap();
+        let cycle = TestSetData::from_rows(4, &[vec![1, -1, -1, 1]]).unwrap();
+        (entry.key, entry.metadata, cycle)
     }
 
     #[test]
@@ -153,7 +155,7 @@ mod tests {
         let doc = read_set_document(&text, "k22.json").unwrap();
         assert_eq!(doc.key, key);
         assert_eq!(doc.metadata, metadata);
-        assert_eq!(doc.elements, elements);
+        assert_eq!(doc.elements, elements.rows().collect::<Vec<_>>());
         assert_eq!(
             (doc.format.as_str(), doc.version, doc.width),
             (SET_FORMAT, SET_VERSION, 4)

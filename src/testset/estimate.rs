@@ -134,7 +134,7 @@ pub fn estimate(
         BuildOutcome::Built(built) => Some(BuildEstimate {
             norm_limit,
             measured: true,
-            elements: Range::exact(built.set.elements.len() as f64),
+            elements: Range::exact(built.set.len() as f64),
             seconds: Range::exact(elapsed),
             stages,
             probe: probe_marks,

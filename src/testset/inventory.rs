@@ -207,18 +207,16 @@ impl SetLibrary {
     /// elements, so its cycles are enumerated (under the default memory guard; `cancel`
     /// stops it) and the document holds them, as a build written to a file does.
     pub fn export_document(&self, prefix: &str, cancel: Option<&AtomicBool>) -> Result<String> {
-        let entry = self.store().export(prefix)?;
+        let entry = self.store().load_digest(prefix)?;
         if entry.key.kind != SetKind::Cycles {
-            return Ok(set_document(&entry.key, &entry.metadata, &entry.elements));
+            return Ok(set_document(&entry.key, &entry.metadata, &entry.data));
         }
         let a = IntMatrix::from_rows(&entry.metadata.matrix)?;
         let control = BuildLimits::default().control(a.cols(), cancel);
         match enumerate_cycles(&a, &control)? {
-            BuildOutcome::Built(built) => Ok(set_document(
-                &built.key,
-                &built.metadata,
-                &built.set.elements,
-            )),
+            BuildOutcome::Built(built) => {
+                Ok(set_document(&built.key, &built.metadata, built.set.data()))
+            }
             BuildOutcome::Stopped(reason) => Err(Error::BuildStopped {
                 reason,
                 kept: None,

@@ -310,7 +310,7 @@ impl Job<'_> {
             Destination::File(path) => self.write(built, path, report)?,
             Destination::Cache(library) => {
                 report.key = Some(built.key.digest().to_hex());
-                report.elements = Some(built.set.elements.len());
+                report.elements = Some(built.set.len());
                 report.replaced = library.keep(built)?;
             }
         }
@@ -320,10 +320,10 @@ impl Job<'_> {
     /// Writes `built`'s document to `path` (never half-written).
     fn write(&self, built: &BuiltSet, path: &Path, report: &mut JobReport) -> Result<()> {
         cache::write_atomic_with(path, |out| {
-            write_set_document(out, &built.key, &built.metadata, &built.set.elements)
+            write_set_document(out, &built.key, &built.metadata, built.set.data())
         })?;
         report.key = Some(built.key.digest().to_hex());
-        report.elements = Some(built.set.elements.len());
+        report.elements = Some(built.set.len());
         report.written_to = Some(path.to_path_buf());
         Ok(())
     }
@@ -346,7 +346,7 @@ impl JobReport {
             } => {
                 self.status = JobStatus::Built;
                 self.key = Some(built.key.digest().to_hex());
-                self.elements = Some(built.set.elements.len());
+                self.elements = Some(built.set.len());
                 self.replaced = replaced;
                 self.resumed = resumed.as_ref().map(StateRecord::from);
                 self.set_aside = set_aside;

@@ -9,7 +9,7 @@ use cache::{
     SetMetadata, Store, StoredSet,
 };
 
-use super::build::{build, to_data, BuildOutcome, BuiltSet};
+use super::build::{build, BuildOutcome, BuiltSet};
 use super::network::cycles_entry;
 use super::saved::{self, RequestRecord, Saved};
 use super::spec::ResolvedSpec;
@@ -386,7 +386,7 @@ impl SetLibrary {
             }),
             BuildOutcome::Built(built) => {
                 if built.key == key {
-                    lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
+                    lock.commit(built.set.data(), &self.labelled(&built.metadata))?;
                 } else {
                     // The completion showed that the truncation cut nothing: the whole set,
                     // stored under its own key.
@@ -450,7 +450,7 @@ impl SetLibrary {
     pub fn keep(&self, built: &BuiltSet) -> Result<Option<String>> {
         let lock = self.store.lock_for_rebuild(&built.key)?;
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
+        lock.commit(built.set.data(), &self.labelled(&built.metadata))?;
         Ok(replaced)
     }
 
@@ -474,7 +474,7 @@ impl SetLibrary {
         network: &Network,
         rebuild: bool,
     ) -> Result<Obtained> {
-        let built = cycles_entry(a, network);
+        let built = cycles_entry(a, network)?;
         if !rebuild {
             if let Some(found) = self.find(&built.key)? {
                 return Ok(Obtained::Reused(Box::new(found)));
@@ -491,7 +491,7 @@ impl SetLibrary {
             }
         };
         let replaced = lock.damaged_entry().map(ToString::to_string);
-        lock.commit(&to_data(&built.set)?, &self.labelled(&built.metadata))?;
+        lock.commit(built.set.data(), &self.labelled(&built.metadata))?;
         Ok(Obtained::Built {
             built: Box::new(built),
             replaced,

@@ -17,10 +17,7 @@ mod set_file;
 mod spec;
 mod verify;
 
-pub use build::{
-    build, default_graver_keys, entry_key, from_data, method_name, moves_of, to_data, BuildOutcome,
-    BuiltSet,
-};
+pub use build::{build, default_graver_keys, entry_key, method_name, BuildOutcome, BuiltSet};
 pub use deepen::{deepen, Deepened, Level, LevelEnd, FIRST_LEVEL};
 pub use document::{
     read_set_document, set_document, write_set_document, SetDocument, SET_FORMAT, SET_VERSION,

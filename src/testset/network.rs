@@ -47,7 +47,7 @@ pub fn enumerate_cycles(a: &IntMatrix, control: &Control<'_>) -> Result<BuildOut
 }
 
 /// The entry of `a`, detected as `network`: key, figures and no elements.
-pub fn cycles_entry(a: &IntMatrix, network: &Network) -> BuiltSet {
+pub fn cycles_entry(a: &IntMatrix, network: &Network) -> Result<BuiltSet> {
     let start = Instant::now();
     let metadata = SetMetadata {
         matrix: a.to_rows(),
@@ -65,14 +65,11 @@ pub fn cycles_entry(a: &IntMatrix, network: &Network) -> BuiltSet {
             .map_or(0, |d| d.as_secs()),
         model: None,
     };
-    BuiltSet {
+    Ok(BuiltSet {
         key: cycles_key(a),
         metadata,
-        set: ElementSet {
-            width: a.cols(),
-            elements: Vec::new(),
-        },
-    }
+        set: ElementSet::from_rows(a.cols(), &[])?,
+    })
 }
 
 /// `rank(A)`: the rows less one per connected group of rows without an arc to the root (the
@@ -113,7 +110,7 @@ mod tests {
         }
         a.set(0, 4, 1);
         a.set(1, 5, 1);
-        let entry = cycles_entry(&a, &Network::detect(&a).unwrap());
+        let entry = cycles_entry(&a, &Network::detect(&a).unwrap()).unwrap();
         assert_eq!(entry.metadata.rank, 4);
         assert_eq!(entry.metadata.column_number, 6);
         assert_eq!(entry.key.kind, SetKind::Cycles);

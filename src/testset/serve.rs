@@ -14,11 +14,11 @@ use std::sync::Arc;
 use augment::{Coverage, MoveSet};
 use cache::EntryKey;
 
-use super::build::{build, default_graver_keys, moves_of, BuildOutcome, BuiltSet};
+use super::build::{build, default_graver_keys, BuildOutcome, BuiltSet};
 use super::library::{Obtained, SetAside, SetLibrary};
 use super::spec::BuildSpec;
 use crate::analysis::{AnalysisOptions, MatrixAnalysis};
-use crate::completion::Control;
+use crate::completion::{moves_of, Control};
 use crate::error::{Error, Result};
 use crate::model::Model;
 use crate::network::Network;
@@ -123,7 +123,7 @@ impl Served {
 
     fn built(built: BuiltSet, set_aside: Option<SetAside>) -> Result<Self> {
         let coverage = coverage_of(&built.metadata.completeness);
-        let moves = MoveSet::from_rows(built.set.width, &built.set.elements, coverage)?;
+        let moves = built.set.moves(coverage)?;
         Ok(Served {
             moves: Arc::new(moves),
             coverage,

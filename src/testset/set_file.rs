@@ -6,7 +6,7 @@ use std::path::Path;
 
 use cache::{Digest, SetKind, Sign};
 
-use super::build::{to_data, BuiltSet};
+use super::build::BuiltSet;
 use super::document::read_set_document;
 use super::library::SetLibrary;
 use super::serve::{Served, Source};
@@ -25,11 +25,8 @@ use crate::solve::coverage_of;
 pub fn read_set_file(path: &Path) -> Result<BuiltSet> {
     let origin = path.display().to_string();
     let doc = read_set_document(&read_text(path)?, &origin)?;
-    let set = ElementSet {
-        width: doc.width,
-        elements: doc.elements,
-    };
-    verify_parts(&doc.key, &doc.metadata, &to_data(&set)?, path)?;
+    let set = ElementSet::from_rows(doc.width, &doc.elements)?;
+    verify_parts(&doc.key, &doc.metadata, set.data(), path)?;
     Ok(BuiltSet {
         key: doc.key,
         metadata: doc.metadata,
@@ -59,7 +56,7 @@ pub fn serve_file(model: &Model, path: &Path) -> Result<Served> {
         ));
     }
     let coverage = coverage_of(&built.metadata.completeness);
-    let moves = augment::MoveSet::from_rows(built.set.width, &built.set.elements, coverage)?;
+    let moves = built.set.moves(coverage)?;
     Ok(Served {
         coverage,
         box_limit: built.key.truncation.bounds.clone(),
@@ -89,7 +86,7 @@ impl SetLibrary {
         let replaced = self.keep(&built)?;
         Ok(Imported {
             digest: built.key.digest(),
-            elements: built.set.elements.len(),
+            elements: built.set.len(),
             replaced,
         })
     }

@@ -101,7 +101,7 @@ pub fn brute_force_minimal(a: &IntMatrix, signs: &[Sign], bound: i64) -> Vec<Vec
 
 /// The elements of a set, sorted, for comparison with an oracle.
 pub fn sorted(set: &ElementSet) -> Vec<Vec<i64>> {
-    let mut e = set.elements.clone();
+    let mut e = set.to_rows();
     e.sort();
     e
 }
@@ -109,7 +109,8 @@ pub fn sorted(set: &ElementSet) -> Vec<Vec<i64>> {
 /// Checks the invariants every returned element must satisfy: in the kernel, within the signs,
 /// primitive, and no other element ⊑ it.
 pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &ElementSet) {
-    for g in &set.elements {
+    let rows = set.to_rows();
+    for g in &rows {
         assert!(
             a.mul_vec(g).unwrap().iter().all(|&v| v == 0),
             "{g:?} not in kernel"
@@ -117,7 +118,7 @@ pub fn assert_valid(a: &IntMatrix, signs: &[Sign], set: &ElementSet) {
         assert!(fits_signs(g, signs), "{g:?} violates the signs");
         let gcd = g.iter().fold(0i64, |acc, &x| num_integer::gcd(acc, x));
         assert_eq!(gcd, 1, "{g:?} is not primitive");
-        for h in &set.elements {
+        for h in &rows {
             let neg: Vec<i64> = h.iter().map(|&x| -x).collect();
             assert!(h == g || !conformal(h, g), "{h:?} ⊑ {g:?}");
             assert!(!fits_signs(&neg, signs) || neg == *g || !conformal(&neg, g));
