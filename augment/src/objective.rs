@@ -56,6 +56,32 @@ pub(crate) trait Separable: Sync {
     fn recession(&self, variable: usize, direction: i64) -> Result<Recession>;
     /// The cost vector when the function is linear, enabling the closed-form step.
     fn linear_costs(&self) -> Option<&[i64]>;
+    /// `f_i` as linear pieces, when it is piecewise linear (a linear term is one piece),
+    /// enabling the line search along kinks; `None` otherwise.
+    fn pieces(&self, _variable: usize) -> Option<Pieces<'_>> {
+        None
+    }
+}
+
+/// A convex piecewise-linear term by its kinks and slopes: slope `slopes[k]` holds between
+/// `kinks[k - 1]` and `kinks[k]` (the first and last without end), so there is one slope more
+/// than kinks, and the slopes never decrease.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Pieces<'a> {
+    /// The points where the slope changes, increasing.
+    pub kinks: &'a [i64],
+    /// The slopes between them.
+    pub slopes: &'a [i64],
+}
+
+impl<'a> Pieces<'a> {
+    /// The linear term of slope `c`: one piece.
+    fn linear(c: &'a i64) -> Self {
+        Pieces {
+            kinks: &[],
+            slopes: std::slice::from_ref(c),
+        }
+    }
 }
 
 /// A validated objective over `n` variables, to be minimised.
@@ -179,6 +205,20 @@ impl Separable for Objective {
             Kind::Separable(_) => None,
         }
     }
+
+    fn pieces(&self, variable: usize) -> Option<Pieces<'_>> {
+        match &self.kind {
+            Kind::Linear(c) => Some(Pieces::linear(&c[variable])),
+            Kind::Separable(t) => match &t[variable] {
+                Convex::Linear(c) => Some(Pieces::linear(c)),
+                Convex::Quadratic { .. } => None,
+                Convex::Piecewise(p) => Some(Pieces {
+                    kinks: &p.xs[1..p.xs.len() - 1],
+                    slopes: &p.slopes,
+                }),
+            },
+        }
+    }
 }
 
 impl Convex {
@@ -275,15 +315,62 @@ impl Piecewise {
     }
 
     fn value(&self, v: i64) -> Result<i128> {
-        let segment = self
-            .xs
-            .partition_point(|&x| x <= v)
-            .saturating_sub(1)
-            .min(self.slopes.len() - 1);
+        // The segment is the number of inner points at or left of `v`; terms have few points,
+        // so a linear pass beats a binary search.
+        let inner = &self.xs[1..self.xs.len() - 1];
+        let segment = if inner.len() <= 8 {
+            inner.iter().take_while(|&&x| x <= v).count()
+        } else {
+            inner.partition_point(|&x| x <= v)
+        };
+        // In i64 when the product fits (the sum of two i64 values always fits in i128).
+        if let Some(rise) = v
+            .checked_sub(self.xs[segment])
+            .and_then(|offset| offset.checked_mul(self.slopes[segment]))
+        {
+            return Ok(i128::from(rise) + i128::from(self.ys[segment]));
+        }
         let offset = i128::from(v) - i128::from(self.xs[segment]);
         i128::from(self.slopes[segment])
             .checked_mul(offset)
             .and_then(|t| t.checked_add(i128::from(self.ys[segment])))
             .ok_or(overflow("evaluating a piecewise-linear term"))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+
+    proptest! {
+        /// A piecewise-linear term is its points joined by segments and extended by its end
+        /// slopes (the reference takes the last point at or left of `v`, the first one when
+        /// there is none, and the slope to the point after, in i128), near zero and at the
+        /// ends of i64, where the product leaves i64.
+        #[test]
+        fn a_piecewise_term_joins_its_points(
+            x0 in -20i64..=20,
+            segments in prop::collection::vec((1i64..=6, -9i64..=9), 1..=12),
+            near in -60i64..=60,
+            far in prop::sample::select(vec![i64::MIN, i64::MIN + 7, i64::MAX - 7, i64::MAX]),
+        ) {
+            let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
+            slopes.sort_unstable();
+            let mut points = vec![(x0, 3)];
+            for (gap, slope) in segments.iter().map(|s| s.0).zip(&slopes) {
+                let &(px, py) = points.last().expect("starts nonempty");
+                points.push((px + gap, py + slope * gap));
+            }
+            let f = Objective::separable(vec![Term::PiecewiseLinear(points.clone())]).unwrap();
+            for v in [near, far] {
+                let k = points[..points.len() - 1].iter().rposition(|p| p.0 <= v).unwrap_or(0);
+                let (xk, yk) = points[k];
+                let slope = i128::from(points[k + 1].1 - yk) / i128::from(points[k + 1].0 - xk);
+                let want = i128::from(yk) + slope * (i128::from(v) - i128::from(xk));
+                prop_assert_eq!(f.term(0, v).unwrap(), want, "at {}", v);
+            }
+        }
     }
 }

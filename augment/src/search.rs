@@ -5,10 +5,16 @@
 //! difference `phi(t + 1) - phi(t)` is nonnegative (or `m` when there is none); the forward
 //! differences never decrease, so galloping followed by bisection finds it with
 //! `O(log t)` evaluations, each touching only the support of the move.
+//!
+//! When every term on the support is piecewise linear, `phi` is piecewise linear in the real
+//! `t` too, with its kinks where a coordinate meets a kink of its term; the slope of `phi`
+//! only rises there. So the kinks are read instead: the first at which the slope stops being
+//! negative is the real minimiser, and the integer answer is its floor or its ceiling, found
+//! with two evaluations whatever the step length ([`LineSearch::by_kinks`]).
 
 use crate::error::{overflow, Result};
 use crate::moves::{MoveSet, Orientation};
-use crate::objective::{Recession, Separable};
+use crate::objective::{Pieces, Recession, Separable};
 use crate::support::Support;
 
 /// A signed move in sparse form.
@@ -63,6 +69,15 @@ pub(crate) enum Step {
     Ray,
 }
 
+/// What the kinks of a piecewise-linear `phi` say about a move.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum AlongKinks {
+    /// `phi` does not fall to the right of 0: no step improves.
+    Rising,
+    /// The step length [`LineSearch::exact`] would choose, with `phi` there.
+    Lowest(i64, i128),
+}
+
 /// The line-search settings shared by every move in one scan.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct LineSearch<'a, F: ?Sized> {
@@ -92,12 +107,29 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
         if room.is_none() && self.falls_forever(dir, None)? {
             return Ok(Step::Ray);
         }
+        let limit = room.unwrap_or(i64::MAX);
+        if !self.powers_of_two {
+            match self.by_kinks(dir, limit)? {
+                Some(AlongKinks::Rising) => return Ok(Step::Useless),
+                Some(AlongKinks::Lowest(length, value)) => {
+                    let base = self.phi(dir, 0)?;
+                    return Ok(if value < base {
+                        Step::Finite {
+                            length,
+                            gain: base - value,
+                        }
+                    } else {
+                        Step::Useless
+                    });
+                }
+                None => {}
+            }
+        }
         let base = self.phi(dir, 0)?;
         let first = self.phi(dir, 1)?;
         if first >= base {
             return Ok(Step::Useless);
         }
-        let limit = room.unwrap_or(i64::MAX);
         let (length, value) = if self.powers_of_two {
             self.doubling(dir, limit, first)?
         } else {
@@ -158,6 +190,85 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
         Ok((high, self.phi(dir, high)?))
     }
 
+    /// The line search read from the kinks, when every term on the support is piecewise
+    /// linear (`None` otherwise): [`AlongKinks::Rising`] when `phi` does not fall to the right
+    /// of 0, else what [`LineSearch::exact`] would return, which improves exactly when its
+    /// value is below `phi(0)`.
+    ///
+    /// At each kink `t_k` of `phi` its slope rises by `|d_i|` times the term's slope jump.
+    /// When the slope is negative at 0, the first kink `t*` at which it is no longer negative
+    /// is the smallest real minimiser: `phi` falls strictly before it and never falls after
+    /// it. So the smallest `t >= 1` with `phi(t + 1) >= phi(t)` is `floor(t*)` when that is at
+    /// least 1 and `phi(floor(t*)) <= phi(ceil(t*))`, else `ceil(t*)`; and it is `limit`
+    /// when no such kink lies before `limit`.
+    fn by_kinks(&self, dir: &Direction, limit: i64) -> Result<Option<AlongKinks>> {
+        let mut slope = 0i128;
+        // Per kink ahead: `t = distance / step` as (distance, step), and the slope's rise.
+        let mut kinks: Vec<(u128, u128, i128)> = Vec::new();
+        for k in 0..dir.len() {
+            let (i, d) = dir.entry(k)?;
+            let Some(Pieces { kinks: at, slopes }) = self.f.pieces(i) else {
+                return Ok(None);
+            };
+            let x = self.x[i];
+            // Kinks at or behind x (in the direction of d) are passed; the slope of the
+            // segment beyond them applies.
+            let passed = if d > 0 {
+                at.partition_point(|&b| b <= x)
+            } else {
+                at.partition_point(|&b| b < x)
+            };
+            // Any product or sum beyond i128 leaves the search to `exact`, which reports it.
+            let Some(rate) = slope.checked_add(i128::from(d) * i128::from(slopes[passed])) else {
+                return Ok(None);
+            };
+            slope = rate;
+            let (step, steps) = (u128::from(d.unsigned_abs()), i128::from(d.unsigned_abs()));
+            let ahead = if d > 0 { at.len() - passed } else { passed };
+            for n in 0..ahead {
+                let j = if d > 0 { passed + n } else { passed - 1 - n };
+                let distance = u128::from(at[j].abs_diff(x));
+                // Kinks at `t >= limit` do not change the answer.
+                if distance >= u128::from(limit.unsigned_abs()) * step {
+                    break;
+                }
+                let jump = i128::from(slopes[j + 1]) - i128::from(slopes[j]);
+                let Some(rise) = jump.checked_mul(steps) else {
+                    return Ok(None);
+                };
+                kinks.push((distance, step, rise));
+            }
+        }
+        if slope >= 0 {
+            return Ok(Some(AlongKinks::Rising));
+        }
+        kinks.sort_unstable_by(|a, b| (a.0 * b.1).cmp(&(b.0 * a.1)));
+        let mut turn = None;
+        for &(distance, step, rise) in &kinks {
+            let Some(rate) = slope.checked_add(rise) else {
+                return Ok(None);
+            };
+            slope = rate;
+            if slope >= 0 {
+                turn = Some((distance, step));
+                break;
+            }
+        }
+        let Some((distance, step)) = turn else {
+            return Ok(Some(AlongKinks::Lowest(limit, self.phi(dir, limit)?)));
+        };
+        let floor = i64::try_from(distance / step).unwrap_or(i64::MAX);
+        let ceil = floor + i64::from(distance % step != 0);
+        let high = self.phi(dir, ceil)?;
+        if floor >= 1 && floor < ceil {
+            let low = self.phi(dir, floor)?;
+            if low <= high {
+                return Ok(Some(AlongKinks::Lowest(floor, low)));
+            }
+        }
+        Ok(Some(AlongKinks::Lowest(ceil, high)))
+    }
+
     /// Best `t = 2^k <= limit`: `phi` restricted to an increasing sequence is unimodal, so
     /// doubling stops at the first non-improvement.
     fn doubling(&self, dir: &Direction, limit: i64, first: i128) -> Result<(i64, i128)> {
@@ -196,5 +307,107 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
             rate = rate.add(self.f.recession(i, d)?)?;
         }
         Ok(rate)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::moves::Coverage;
+    use crate::objective::{Objective, Term};
+
+    /// `f` with its pieces hidden, so that the line search takes the general path.
+    struct Opaque<'a>(&'a Objective);
+
+    impl Separable for Opaque<'_> {
+        fn term(&self, variable: usize, value: i64) -> Result<i128> {
+            self.0.term(variable, value)
+        }
+        fn recession(&self, variable: usize, direction: i64) -> Result<Recession> {
+            self.0.recession(variable, direction)
+        }
+        fn linear_costs(&self) -> Option<&[i64]> {
+            None
+        }
+    }
+
+    /// A convex piecewise-linear term through `x0` with up to four segments, or a linear one.
+    fn term() -> impl Strategy<Value = Term> {
+        prop_oneof![
+            (-5i64..=5).prop_map(Term::Linear),
+            (
+                -6i64..=6,
+                prop::collection::vec((1i64..=4, -5i64..=5), 1..=4)
+            )
+                .prop_map(|(x0, segments)| {
+                    let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
+                    slopes.sort_unstable();
+                    let mut points = vec![(x0, 0)];
+                    for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
+                        let &(px, py) = points.last().expect("starts nonempty");
+                        points.push((px + gap, py + slope * gap));
+                    }
+                    Term::PiecewiseLinear(points)
+                }),
+        ]
+    }
+
+    proptest! {
+        /// Reading the kinks gives the step the general search (galloping and bisection on
+        /// `phi`'s differences) gives, for every room, including none.
+        #[test]
+        fn the_kinks_give_the_general_search_step(
+            terms in prop::collection::vec(term(), 4),
+            x in prop::collection::vec(-8i64..=8, 4),
+            g in prop::collection::vec(-3i64..=3, 4),
+            room in prop::option::of(1i64..=40),
+        ) {
+            prop_assume!(g.iter().any(|&v| v != 0));
+            let f = Objective::separable(terms).expect("convex by construction");
+            let moves = MoveSet::from_rows(4, std::slice::from_ref(&g), Coverage::Complete).unwrap();
+            let opaque = Opaque(&f);
+            for sign in Orientation::BOTH {
+                let dir = Direction::of(&moves, 0, sign);
+                let kinked = LineSearch { f: &f, x: &x, powers_of_two: false };
+                let general = LineSearch { f: &opaque, x: &x, powers_of_two: false };
+                let limit = room.unwrap_or(50);
+                prop_assert!(kinked.by_kinks(&dir, limit).unwrap().is_some());
+                prop_assert!(general.by_kinks(&dir, limit).unwrap().is_none());
+                prop_assert_eq!(
+                    kinked.best(&dir, room, None).unwrap(),
+                    general.best(&dir, room, None).unwrap()
+                );
+            }
+        }
+    }
+
+    /// By hand: `f(x) = |x - 3|` from `x = 0` along `+2`: `phi(t) = |2t - 3|` is 3, 1, 1, 3,
+    /// so the real minimiser is 1.5 and the smallest integer one is 1, with `phi = 1`.
+    #[test]
+    fn a_kink_between_two_steps_gives_the_smaller_step_on_a_tie() {
+        let f = Objective::separable(vec![Term::PiecewiseLinear(vec![(0, 3), (3, 0), (6, 3)])])
+            .unwrap();
+        let moves = MoveSet::from_rows(1, &[vec![2]], Coverage::Complete).unwrap();
+        let dir = Direction::of(&moves, 0, Orientation::Plus);
+        let search = LineSearch {
+            f: &f,
+            x: &[0],
+            powers_of_two: false,
+        };
+        assert_eq!(
+            search.by_kinks(&dir, 10).unwrap(),
+            Some(AlongKinks::Lowest(1, 1))
+        );
+        assert_eq!(
+            search.best(&dir, Some(10), None).unwrap(),
+            Step::Finite { length: 1, gain: 2 }
+        );
+        let back = Direction::of(&moves, 0, Orientation::Minus);
+        assert_eq!(
+            search.by_kinks(&back, 10).unwrap(),
+            Some(AlongKinks::Rising)
+        );
     }
 }
