@@ -338,10 +338,48 @@ impl Piecewise {
     }
 }
 
+/// Random convex terms for the crate's property tests.
+#[cfg(test)]
+pub(crate) mod strategies {
+    use std::ops::RangeInclusive;
+
+    use proptest::prelude::*;
+
+    use super::Term;
+
+    /// The points of a convex piecewise-linear term: from `(x0, y0)`, one segment per
+    /// `(gap, slope)` of `segments`, their slopes taken in increasing order.
+    pub(crate) fn joined(x0: i64, y0: i64, segments: &[(i64, i64)]) -> Vec<(i64, i64)> {
+        let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
+        slopes.sort_unstable();
+        let mut points = vec![(x0, y0)];
+        for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
+            let &(px, py) = points.last().expect("starts nonempty");
+            points.push((px + gap, py + slope * gap));
+        }
+        points
+    }
+
+    /// A convex piecewise-linear term starting in `starts`, of 1 to `most` segments with gaps
+    /// of 1 to `gap` and slopes of `-slope` to `slope`.
+    pub(crate) fn piecewise(
+        starts: RangeInclusive<i64>,
+        (gap, slope): (i64, i64),
+        most: usize,
+    ) -> impl Strategy<Value = Term> {
+        (
+            starts,
+            prop::collection::vec((1..=gap, -slope..=slope), 1..=most),
+        )
+            .prop_map(|(x0, segments)| Term::PiecewiseLinear(joined(x0, 0, &segments)))
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use proptest::prelude::*;
 
+    use super::strategies::joined;
     use super::*;
 
     proptest! {
@@ -356,13 +394,7 @@ mod tests {
             near in -60i64..=60,
             far in prop::sample::select(vec![i64::MIN, i64::MIN + 7, i64::MAX - 7, i64::MAX]),
         ) {
-            let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
-            slopes.sort_unstable();
-            let mut points = vec![(x0, 3)];
-            for (gap, slope) in segments.iter().map(|s| s.0).zip(&slopes) {
-                let &(px, py) = points.last().expect("starts nonempty");
-                points.push((px + gap, py + slope * gap));
-            }
+            let points = joined(x0, 3, &segments);
             let f = Objective::separable(vec![Term::PiecewiseLinear(points.clone())]).unwrap();
             for v in [near, far] {
                 let k = points[..points.len() - 1].iter().rposition(|p| p.0 <= v).unwrap_or(0);

@@ -316,6 +316,7 @@ mod tests {
 
     use super::*;
     use crate::moves::Coverage;
+    use crate::objective::strategies::piecewise;
     use crate::objective::{Objective, Term};
 
     /// `f` with its pieces hidden, so that the line search takes the general path.
@@ -337,20 +338,7 @@ mod tests {
     fn term() -> impl Strategy<Value = Term> {
         prop_oneof![
             (-5i64..=5).prop_map(Term::Linear),
-            (
-                -6i64..=6,
-                prop::collection::vec((1i64..=4, -5i64..=5), 1..=4)
-            )
-                .prop_map(|(x0, segments)| {
-                    let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
-                    slopes.sort_unstable();
-                    let mut points = vec![(x0, 0)];
-                    for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
-                        let &(px, py) = points.last().expect("starts nonempty");
-                        points.push((px + gap, py + slope * gap));
-                    }
-                    Term::PiecewiseLinear(points)
-                }),
+            piecewise(-6..=6, (4, 5), 4),
         ]
     }
 

@@ -163,6 +163,7 @@ mod tests {
 
     use super::*;
     use crate::moves::Coverage;
+    use crate::objective::strategies::piecewise;
     use crate::objective::{Objective, Term};
 
     /// A convex term: a quadratic `a x^2 + c x` with `a >= 0`, or a piecewise-linear one
@@ -170,20 +171,7 @@ mod tests {
     fn term() -> impl Strategy<Value = Term> {
         prop_oneof![
             (0i64..=3, -6i64..=6).prop_map(|(a, c)| Term::Quadratic { a, c }),
-            (
-                -3i64..=3,
-                prop::collection::vec((1i64..=3, -4i64..=4), 1..=3)
-            )
-                .prop_map(|(x, segments)| {
-                    let mut slopes: Vec<i64> = segments.iter().map(|s| s.1).collect();
-                    slopes.sort_unstable();
-                    let mut points = vec![(x, 0)];
-                    for (gap, slope) in segments.iter().map(|s| s.0).zip(slopes) {
-                        let &(px, py) = points.last().expect("starts nonempty");
-                        points.push((px + gap, py + slope * gap));
-                    }
-                    Term::PiecewiseLinear(points)
-                }),
+            piecewise(-3..=3, (3, 4), 3),
         ]
     }
 
