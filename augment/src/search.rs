@@ -69,6 +69,9 @@ pub(crate) enum Step {
     Ray,
 }
 
+/// The most kinks of `phi` read before a search falls back to [`LineSearch::exact`].
+const MAX_KINKS: usize = 24;
+
 /// What the kinks of a piecewise-linear `phi` say about a move.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum AlongKinks {
@@ -203,8 +206,10 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
     /// when no such kink lies before `limit`.
     fn by_kinks(&self, dir: &Direction, limit: i64) -> Result<Option<AlongKinks>> {
         let mut slope = 0i128;
-        // Per kink ahead: `t = distance / step` as (distance, step), and the slope's rise.
-        let mut kinks: Vec<(u128, u128, i128)> = Vec::new();
+        // Per kink ahead: `t = distance / step` as (distance, step), and the slope's rise; on
+        // the stack, as moves meet few kinks (more leave the search to `exact`).
+        let mut kinks = [(0u128, 1u128, 0i128); MAX_KINKS];
+        let mut count = 0;
         for k in 0..dir.len() {
             let (i, d) = dir.entry(k)?;
             let Some(Pieces { kinks: at, slopes }) = self.f.pieces(i) else {
@@ -236,15 +241,20 @@ impl<F: Separable + ?Sized> LineSearch<'_, F> {
                 let Some(rise) = jump.checked_mul(steps) else {
                     return Ok(None);
                 };
-                kinks.push((distance, step, rise));
+                let Some(slot) = kinks.get_mut(count) else {
+                    return Ok(None);
+                };
+                *slot = (distance, step, rise);
+                count += 1;
             }
         }
         if slope >= 0 {
             return Ok(Some(AlongKinks::Rising));
         }
+        let kinks = &mut kinks[..count];
         kinks.sort_unstable_by(|a, b| (a.0 * b.1).cmp(&(b.0 * a.1)));
         let mut turn = None;
-        for &(distance, step, rise) in &kinks {
+        for &(distance, step, rise) in kinks.iter() {
             let Some(rate) = slope.checked_add(rise) else {
                 return Ok(None);
             };
