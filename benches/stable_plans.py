@@ -142,7 +142,7 @@ def main():
         ours = [int(r["objective"]) if r["status"] == "optimal" else None for r in records]
         theirs, highs_s = best_of(repeats, lambda: highs_chain(programs, plans, price))
         equal = sum(a == b and a is not None for a, b in zip(ours, theirs))
-        moved = sum(r["change"]["priced"]["moved"] for r in records if r.get("change"))
+        moved = sum(int(r["change"]["priced"]["moved"]) for r in records if r.get("change"))
         name = f"{s['kind']} ({file.split('.')[0]})"
         base_ms = highs_s / count * 1000
         ms = wall / count * 1000

@@ -10,8 +10,8 @@ use std::time::Duration;
 
 use completion_support::*;
 use kernstep::completion::{
-    complete_kernel, Checkpoint, Completion, Control, Progress, Request, StagePoint, StateView,
-    StopReason, Truncation,
+    complete_kernel, Checkpoint, Completion, Control, PackedRows, Progress, Request, StagePoint,
+    StateView, StopReason, Truncation,
 };
 use kernstep::IntMatrix;
 
@@ -140,10 +140,13 @@ fn a_foreign_checkpoint_is_refused() {
     let a = transport(3, 3);
     let (mut checkpoints, _) = states_and_result(&a, &Request::graver(9), Duration::MAX);
     let mut c = checkpoints.pop().unwrap();
-    c.elements[0][0] += 1;
+    let rows = c.elements.to_rows();
+    let mut forged = rows.clone();
+    forged[0][0] += 1;
+    c.elements = PackedRows::from_rows(&forged).unwrap();
     let err = complete_kernel(&a, &Request::graver(9), &Control::new(), Some(&c)).unwrap_err();
     assert!(err.to_string().contains("not in the kernel"), "{err}");
-    c.elements[0][0] -= 1;
+    c.elements = PackedRows::from_rows(&rows).unwrap();
     c.lifted.truncate(1);
     let err = complete_kernel(&a, &Request::graver(9), &Control::new(), Some(&c)).unwrap_err();
     assert!(err.to_string().contains("not injective"), "{err}");

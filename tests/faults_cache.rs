@@ -938,7 +938,11 @@ fn a_checkpoint_with_a_valid_checksum_and_invalid_content_is_set_aside() {
     let expected = target.uncached();
     type Forge = fn(&mut kernstep::completion::Checkpoint);
     let cases: [(&str, Forge); 2] = [
-        ("an element outside the kernel", |c| c.elements[0][0] += 1),
+        ("an element outside the kernel", |c| {
+            let mut rows = c.elements.to_rows();
+            rows[0][0] += 1;
+            c.elements = kernstep::completion::PackedRows::from_rows(&rows).unwrap();
+        }),
         ("a component lifted twice", |c| c.lifted.push(c.lifted[0])),
     ];
     for (name, forge) in cases {

@@ -14,6 +14,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::packed_rows::PackedRows;
 use super::store::to_entries;
 use super::working::Orbit;
 use crate::error::{Error, Result};
@@ -25,8 +26,9 @@ use crate::matrix::IntMatrix;
 pub struct Checkpoint {
     /// Components lifted so far, in lifting order (the start projection first).
     pub lifted: Vec<usize>,
-    /// Representatives of the minimal set on those components.
-    pub elements: Vec<Vec<i64>>,
+    /// Representatives of the minimal set on those components (one byte per entry while
+    /// they fit).
+    pub elements: PackedRows,
     /// Whether each element's negation belongs to the set as well.
     pub symmetric: Vec<bool>,
     /// The stage in progress when the state was saved inside one (`elements` are then its
@@ -80,8 +82,8 @@ impl Checkpoint {
         let pending = self.within.iter().flat_map(|s| match &s.point {
             StagePoint::Pairs { sums, .. } | StagePoint::CatchUp { sums, .. } => sums,
         });
-        for (i, e) in self.elements.iter().chain(pending).enumerate() {
-            if e.len() != a.cols() || a.mul_vec(e).is_none_or(|v| v.iter().any(|&x| x != 0)) {
+        for (i, e) in self.elements.rows().chain(pending.cloned()).enumerate() {
+            if e.len() != a.cols() || a.mul_vec(&e).is_none_or(|v| v.iter().any(|&x| x != 0)) {
                 return Err(invalid(format!(
                     "vector {i} is not in the kernel of the matrix"
                 )));
@@ -103,6 +105,10 @@ impl Checkpoint {
         }
         if self.symmetric.len() != self.elements.len() {
             return Err(invalid("element and sign flag counts differ".into()));
+        }
+        let width = self.elements.width();
+        if !self.elements.is_empty() && width != n {
+            return Err(invalid(format!("element of width {width} in Z^{n}")));
         }
         if let Some(stage) = &self.within {
             if stage.component >= n || seen[stage.component] {
@@ -137,14 +143,11 @@ impl Checkpoint {
         }
         let orbits = self
             .elements
-            .iter()
+            .rows()
             .zip(&self.symmetric)
             .map(|(e, &symmetric)| {
-                if e.len() != n {
-                    return Err(invalid(format!("element of width {} in Z^{n}", e.len())));
-                }
                 Ok(Orbit {
-                    rep: to_entries(e)?,
+                    rep: to_entries(&e)?,
                     symmetric,
                 })
             })

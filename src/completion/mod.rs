@@ -17,6 +17,7 @@ mod control;
 mod element_set;
 mod lift;
 mod limits;
+mod packed_rows;
 mod partners;
 mod pottier;
 mod projection;
@@ -32,6 +33,7 @@ pub use control::{Control, Progress, StopReason, WorkShare};
 pub use element_set::{moves_of, ElementSet, Rows};
 use limits::admits;
 pub use limits::Truncation;
+pub use packed_rows::{PackedRows, UnequalRow};
 use reducer::MAX_WORDS;
 pub use state_view::StateView;
 

@@ -11,6 +11,7 @@ use serde::ser::{SerializeSeq, SerializeStruct, SerializeStructVariant};
 use serde::{Serialize, Serializer};
 
 use super::checkpoint::{Checkpoint, InStage, StagePoint};
+use super::packed_rows::PackedRows;
 use super::store::{Entry, Stored};
 use super::working::{Orbit, WorkingSet};
 
@@ -137,9 +138,15 @@ impl<'a> StateView<'a> {
 
     /// The owned state this view stands for (a copy of the whole set).
     pub fn to_checkpoint(&self) -> Checkpoint {
-        let (elements, symmetric) = (self.members.orbit_rows())
-            .map(|(rep, symmetric)| (rep.iter().map(|&x| i64::from(x)).collect(), symmetric))
-            .unzip();
+        let mut elements = PackedRows::default();
+        let mut symmetric = Vec::with_capacity(self.elements());
+        for (rep, sym) in self.members.orbit_rows() {
+            let row: Vec<i64> = rep.iter().map(|&x| i64::from(x)).collect();
+            elements
+                .push(&row)
+                .expect("the representatives of a working set share its width");
+            symmetric.push(sym);
+        }
         Checkpoint {
             lifted: self.lifted.to_vec(),
             elements,

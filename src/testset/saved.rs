@@ -187,6 +187,7 @@ fn read(bytes: &[u8]) -> Option<ReadBody> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::completion::PackedRows;
     use cache::{SetKind, Sign, Truncation};
 
     fn request(norm_limit: Option<u64>) -> RequestRecord {
@@ -206,7 +207,7 @@ mod tests {
     fn state() -> Checkpoint {
         Checkpoint {
             lifted: vec![0, 2],
-            elements: vec![vec![1, -1, 0], vec![0, 1, -1]],
+            elements: PackedRows::from_rows(&[vec![1, -1, 0], vec![0, 1, -1]]).unwrap(),
             symmetric: vec![true, false],
             within: None,
             exact: false,
