@@ -54,13 +54,54 @@ impl TestSetData {
         })
     }
 
-    /// [`TestSetData::new`] of the rows laid end to end, narrowed straight from them when
-    /// every entry fits one byte (no flat `i64` copy of the whole set is made then).
+    /// [`TestSetData::new`] of the rows laid end to end, each of `width` entries (an error
+    /// names the first that is not), narrowed straight from them while every entry fits one
+    /// byte (no flat `i64` copy of the whole set is made then).
     pub fn from_rows(width: usize, rows: &[Vec<i64>]) -> Result<Self, CacheError> {
-        match narrowed(rows.iter().flatten()) {
-            Some(small) => Self::from_small(width, small),
-            None => Self::new(width, rows.concat()),
+        let mut data = Self::empty(width)?;
+        for row in rows {
+            data.push_row(row)?;
         }
+        Ok(data)
+    }
+
+    /// No vectors yet, of `width` entries each (positive), to be filled by
+    /// [`TestSetData::push_row`].
+    pub fn empty(width: usize) -> Result<Self, CacheError> {
+        check_shape(width, 0)?;
+        Ok(TestSetData {
+            width,
+            stored: Stored::Small(Vec::new()),
+        })
+    }
+
+    /// Appends `row`, which must have `width` entries; the storage widens to `i64` at the
+    /// first entry that does not fit one byte.
+    pub fn push_row(&mut self, row: &[i64]) -> Result<(), CacheError> {
+        if row.len() != self.width {
+            return Err(CacheError::InvalidInput {
+                field: "elements",
+                problem: format!(
+                    "element {} has {} entries, not {}",
+                    self.len(),
+                    row.len(),
+                    self.width
+                ),
+            });
+        }
+        if let Stored::Small(small) = &mut self.stored {
+            let start = small.len();
+            small.extend(row.iter().map_while(|&v| i8::try_from(v).ok()));
+            if small.len() == start + row.len() {
+                return Ok(());
+            }
+            small.truncate(start);
+            self.stored = Stored::Full(small.iter().map(|&v| i64::from(v)).collect());
+        }
+        if let Stored::Full(full) = &mut self.stored {
+            full.extend_from_slice(row);
+        }
+        Ok(())
     }
 
     /// Wraps a flat row-major buffer of one-byte entries; `width` must be positive and
@@ -172,5 +213,19 @@ mod tests {
             full
         );
         assert!(TestSetData::from_rows(0, &[vec![1]]).is_err());
+        // Rows of another length are refused even where the total would divide.
+        let ragged = TestSetData::from_rows(2, &[vec![1, 2, 3], vec![4]]).unwrap_err();
+        assert!(
+            ragged
+                .to_string()
+                .contains("element 0 has 3 entries, not 2"),
+            "{ragged}"
+        );
+        // Row by row, the storage widens at the first entry beyond a byte.
+        let mut grown = TestSetData::empty(2).unwrap();
+        grown.push_row(&[-128, 127]).unwrap();
+        assert!(matches!(grown.entries(), Entries::Small(_)));
+        grown.push_row(&[5, 1 << 40]).unwrap();
+        assert_eq!(grown.entries(), Entries::Full(&[-128, 127, 5, 1 << 40]));
     }
 }

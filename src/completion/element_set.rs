@@ -7,7 +7,7 @@ use cache::{Entries, TestSetData};
 use serde::ser::{Serialize, Serializer};
 
 use super::working::Orbit;
-use crate::error::{Error, Result};
+use crate::error::Result;
 
 /// The elements of a test set (found by a finished completion, in canonical order and sign,
 /// read from the cache or from a set file), in the stored form of the cache
@@ -20,12 +20,6 @@ pub struct ElementSet {
 impl ElementSet {
     /// The set of `rows`, each of `width` entries (an error names the first that is not).
     pub fn from_rows(width: usize, rows: &[Vec<i64>]) -> Result<Self> {
-        if let Some((i, row)) = rows.iter().enumerate().find(|(_, r)| r.len() != width) {
-            return Err(Error::Dimension(format!(
-                "element {i} has {} entries, not {width}",
-                row.len()
-            )));
-        }
         Ok(Self::from_data(TestSetData::from_rows(width, rows)?))
     }
 

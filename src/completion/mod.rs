@@ -33,7 +33,7 @@ pub use control::{Control, Progress, StopReason, WorkShare};
 pub use element_set::{moves_of, ElementSet, Rows};
 use limits::admits;
 pub use limits::Truncation;
-pub use packed_rows::{PackedRows, UnequalRow};
+pub use packed_rows::PackedRows;
 use reducer::MAX_WORDS;
 pub use state_view::StateView;
 

@@ -5,55 +5,21 @@
 
 use std::fmt;
 
+use cache::{CacheError, TestSetData};
 use serde::de::{Deserialize, Deserializer, Error as _, SeqAccess, Visitor};
 use serde::ser::{Serialize, Serializer};
 
-/// Rows of one length, in order, in the narrowest of two widths that holds every entry.
+use super::element_set::Rows;
+
+/// Rows of one length, in order, kept as the cache keeps a set ([`TestSetData`]: `i8` while
+/// every entry fits, `i64` from the first that does not); `None` until the first row, which
+/// sets the length.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
-pub struct PackedRows {
-    /// Entries per row (0 until the first row).
-    width: usize,
-    entries: Entries,
-}
-
-/// The entries, row after row: `i8` while every entry fits, `i64` from the first that does
-/// not (so equal rows have equal storage).
-#[derive(Clone, Debug, PartialEq, Eq)]
-enum Entries {
-    Small(Vec<i8>),
-    Full(Vec<i64>),
-}
-
-impl Default for Entries {
-    fn default() -> Self {
-        Entries::Small(Vec::new())
-    }
-}
-
-/// A row whose length differs from the rows before it.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct UnequalRow {
-    /// Its position.
-    pub index: usize,
-    /// Its length.
-    pub len: usize,
-    /// The length of the rows before it.
-    pub width: usize,
-}
-
-impl fmt::Display for UnequalRow {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "row {} has {} entries, the rows before it {}",
-            self.index, self.len, self.width
-        )
-    }
-}
+pub struct PackedRows(Option<TestSetData>);
 
 impl PackedRows {
     /// The rows of `rows`, which must all have one length.
-    pub fn from_rows(rows: &[Vec<i64>]) -> Result<Self, UnequalRow> {
+    pub fn from_rows(rows: &[Vec<i64>]) -> Result<Self, CacheError> {
         let mut packed = PackedRows::default();
         for row in rows {
             packed.push(row)?;
@@ -62,40 +28,21 @@ impl PackedRows {
     }
 
     /// Appends `row`; refused when its length is not the rows' before it.
-    pub fn push(&mut self, row: &[i64]) -> Result<(), UnequalRow> {
-        let index = self.len();
-        if index == 0 {
-            self.width = row.len();
-        } else if row.len() != self.width {
-            return Err(UnequalRow {
-                index,
-                len: row.len(),
-                width: self.width,
-            });
-        }
-        if let Entries::Small(small) = &mut self.entries {
-            let start = small.len();
-            small.extend(row.iter().map_while(|&v| i8::try_from(v).ok()));
-            if small.len() == start + row.len() {
-                return Ok(());
+    pub fn push(&mut self, row: &[i64]) -> Result<(), CacheError> {
+        match &mut self.0 {
+            Some(data) => data.push_row(row),
+            None => {
+                let mut data = TestSetData::empty(row.len())?;
+                data.push_row(row)?;
+                self.0 = Some(data);
+                Ok(())
             }
-            small.truncate(start);
-            self.entries = Entries::Full(small.iter().map(|&v| i64::from(v)).collect());
         }
-        if let Entries::Full(full) = &mut self.entries {
-            full.extend_from_slice(row);
-        }
-        Ok(())
     }
 
     /// Number of rows.
     pub fn len(&self) -> usize {
-        match &self.entries {
-            Entries::Small(e) => e.len(),
-            Entries::Full(e) => e.len(),
-        }
-        .checked_div(self.width)
-        .unwrap_or(0)
+        self.0.as_ref().map_or(0, TestSetData::len)
     }
 
     /// Whether there is no row.
@@ -105,21 +52,12 @@ impl PackedRows {
 
     /// Entries per row (0 when there is no row).
     pub fn width(&self) -> usize {
-        self.width
-    }
-
-    /// Row `index`.
-    pub fn row(&self, index: usize) -> Vec<i64> {
-        let range = index * self.width..(index + 1) * self.width;
-        match &self.entries {
-            Entries::Small(e) => e[range].iter().map(|&v| i64::from(v)).collect(),
-            Entries::Full(e) => e[range].to_vec(),
-        }
+        self.0.as_ref().map_or(0, TestSetData::width)
     }
 
     /// The rows in order.
-    pub fn rows(&self) -> impl ExactSizeIterator<Item = Vec<i64>> + '_ {
-        (0..self.len()).map(|index| self.row(index))
+    pub fn rows(&self) -> impl Iterator<Item = Vec<i64>> + '_ {
+        self.0.iter().flat_map(TestSetData::rows)
     }
 
     /// Every row as its own vector.
@@ -132,7 +70,11 @@ impl PackedRows {
 /// so that states saved before and after this type read the same.
 impl Serialize for PackedRows {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        serializer.collect_seq(self.rows())
+        // A sequence's length goes first (bincode needs it), so the rows come from the data.
+        match &self.0 {
+            Some(data) => Rows(data).serialize(serializer),
+            None => serializer.collect_seq(std::iter::empty::<Vec<i64>>()),
+        }
     }
 }
 
@@ -163,6 +105,8 @@ impl<'de> Visitor<'de> for RowsVisitor {
 
 #[cfg(test)]
 mod tests {
+    use cache::Entries;
+
     use super::*;
 
     fn bincode_of<T: Serialize>(value: &T) -> Vec<u8> {
@@ -194,16 +138,25 @@ mod tests {
     fn a_wide_entry_widens_the_rows_before_it() {
         let mut packed = PackedRows::default();
         packed.push(&[1, -2]).unwrap();
-        assert!(matches!(packed.entries, Entries::Small(_)));
+        assert!(matches!(
+            packed.0.as_ref().unwrap().entries(),
+            Entries::Small(_)
+        ));
         packed.push(&[5, 1 << 40]).unwrap();
-        assert!(matches!(packed.entries, Entries::Full(_)));
+        assert!(matches!(
+            packed.0.as_ref().unwrap().entries(),
+            Entries::Full(_)
+        ));
         assert_eq!(packed.to_rows(), [[1, -2], [5, 1 << 40]]);
     }
 
     #[test]
     fn a_row_of_another_length_is_refused() {
         let err = PackedRows::from_rows(&[vec![1, 2], vec![3]]).unwrap_err();
-        assert_eq!(err.to_string(), "row 1 has 1 entries, the rows before it 2");
+        assert!(
+            err.to_string().contains("element 1 has 1 entries, not 2"),
+            "{err}"
+        );
         assert!(serde_json::from_str::<PackedRows>("[[1,2],[3]]").is_err());
     }
 }
