@@ -73,6 +73,13 @@ impl Filter {
 }
 
 impl Filter {
+    /// Phase II with at most 32 variables: the coordinates a move must not raise in the low
+    /// half of one word and those it must not lower in the high half, the layout of
+    /// [`MoveSet::packed_masks`]; a packed signed move is blocked when it meets this word.
+    pub(crate) fn packed_bounds(&self) -> u64 {
+        self.raising[0] | self.lowering[0] << 32
+    }
+
     /// Phase I: bit `j` set when move `start + j` (`j < len <= 64`) has a sign that passes
     /// [`Filter::admits`], that is when its support meets a coordinate outside the box.
     pub(crate) fn repairing_candidates(&self, moves: &MoveSet, start: usize, len: usize) -> u64 {
@@ -109,8 +116,7 @@ impl Filter {
         let mut free = [0u8; 64];
         match improving {
             Improving::Packed(entries) => {
-                // At most 32 variables: the bound masks fit in one half each.
-                let bounds = self.raising[0] | self.lowering[0] << 32;
+                let bounds = self.packed_bounds();
                 for (flag, e) in free.iter_mut().zip(&entries[start..start + len]) {
                     *flag = u8::from(e & bounds == 0);
                 }

@@ -10,7 +10,7 @@ use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
-use crate::separable::{Differences, SeparableScan};
+use crate::separable::{FirstSteps, SeparableScan};
 use crate::slopes::Slopes;
 use crate::sweep;
 
@@ -24,8 +24,8 @@ pub(crate) struct Scan<'a, F: ?Sized> {
     pub bounds: &'a Problem,
     /// `c.g` per move when the function is linear.
     pub slopes: Option<&'a Slopes>,
-    /// The function's one-unit differences at the current point, when known.
-    pub differences: Option<&'a Differences>,
+    /// The bounds of every move's first step at the current point, when known.
+    pub first_steps: Option<&'a FirstSteps>,
     /// The selection rule.
     pub rule: Rule,
     /// Skips moves that cannot improve at the current point.
@@ -53,7 +53,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
             bounds: self.bounds,
             rule: self.rule,
             filter: &self.filter,
-            differences: self.differences,
+            first_steps: self.first_steps,
         };
         sweep::select(&scan, parallel)
     }

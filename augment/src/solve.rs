@@ -19,7 +19,7 @@ use crate::recurrence::{Recurrence, WATCH_AFTER};
 use crate::repair::RepairScan;
 use crate::search::{LineSearch, Step};
 use crate::select::Scan;
-use crate::separable::Differences;
+use crate::separable::FirstSteps;
 use crate::slopes::Slopes;
 use crate::solution::{InfeasibleReason, Phase, Ray, Solution, Status, TraceStep};
 use crate::sweep;
@@ -95,7 +95,7 @@ fn solve_in(
         cancel,
         x: x0.to_vec(),
         objective: None,
-        differences: None,
+        first_steps: None,
         steps: [0, 0],
         trace: options.records_trace().then(Vec::new),
     };
@@ -124,9 +124,9 @@ struct Run<'a> {
     cancel: &'a dyn Fn() -> bool,
     x: Vec<i64>,
     objective: Option<i128>,
-    /// The objective's one-unit differences at `x` in phase II of a nonlinear objective,
-    /// kept up to date step by step (see [`Differences`]).
-    differences: Option<Differences>,
+    /// The bounds of every move's first step at `x` in phase II of a nonlinear objective,
+    /// kept up to date step by step (see [`FirstSteps`]).
+    first_steps: Option<FirstSteps>,
     steps: [u64; 2],
     trace: Option<Vec<TraceStep>>,
 }
@@ -172,7 +172,7 @@ impl<'a> Run<'a> {
             .map(|costs| Slopes::new(costs, self.optimality))
             .transpose()?;
         if slopes.is_none() {
-            self.differences = Differences::at(objective, &self.x);
+            self.first_steps = FirstSteps::at(objective, &self.x, self.optimality);
         }
         // Graver-best and steepest scans rank a ray above every finite step, so they meet
         // the first ray at their first scan; first-improving would take finite steps first.
@@ -275,7 +275,7 @@ impl<'a> Run<'a> {
             moves: self.optimality,
             bounds: self.problem,
             slopes,
-            differences: self.differences.as_ref(),
+            first_steps: self.first_steps.as_ref(),
             rule: self.options.selected_rule(),
             filter: Filter::blocking(self.problem, &self.x, self.optimality.words()),
         }
@@ -309,9 +309,10 @@ impl<'a> Run<'a> {
                 .and_then(|d| self.x[i].checked_add(d))
                 .ok_or(overflow("applying a step"))?;
         }
-        if let Some(differences) = self.differences.take() {
+        if let Some(steps) = self.first_steps.take() {
             let objective = self.problem.objective();
-            self.differences = differences.moved(objective, &self.x, support.iter().map(|e| e.0));
+            let changed = support.iter().map(|e| e.0);
+            self.first_steps = steps.moved(objective, &self.x, changed, self.optimality);
         }
         Ok(())
     }
