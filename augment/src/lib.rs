@@ -43,6 +43,7 @@ mod certify;
 mod choice;
 mod error;
 mod fitting;
+mod gaps;
 mod linear;
 mod marks;
 mod moves;

@@ -13,12 +13,12 @@
 
 use crate::choice::{Candidate, Rule};
 use crate::error::{overflow, Result};
+use crate::gaps::{Gaps, UNBOUNDED};
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
 use crate::search::Step;
 use crate::slopes::Slopes;
-use crate::support::Steps;
 use crate::sweep::Evaluate;
 
 /// What a linear scan needs.
@@ -27,9 +27,8 @@ pub(crate) struct LinearScan<'a> {
     moves: &'a MoveSet,
     /// `c.g` per move.
     slopes: &'a Slopes,
-    /// Per variable, the distance to its upper bound (entry `2 i`) and to its lower bound
-    /// (entry `2 i + 1`) at the current point; [`UNBOUNDED`] when there is no such bound.
-    gaps: Vec<u64>,
+    /// The current point's gaps to the bounds.
+    gaps: Gaps,
     /// Restrict lengths to powers of two.
     powers_of_two: bool,
     /// The selection rule.
@@ -44,10 +43,6 @@ pub(crate) struct LinearScan<'a> {
 /// The room bounds tried before a move's support is read.
 const TIGHT_LEVELS: [u64; 4] = [1, 2, 4, 8];
 
-/// The gap recorded for a missing bound. A real gap of `u64::MAX` (from `i64::MIN` to
-/// `i64::MAX`) is stored one less, which changes no step: lengths are capped at `i64::MAX`.
-const UNBOUNDED: u64 = u64::MAX;
-
 impl<'a> LinearScan<'a> {
     /// The scan at the feasible point `x` of `problem`.
     pub(crate) fn new(
@@ -58,23 +53,8 @@ impl<'a> LinearScan<'a> {
         (powers_of_two, rule): (bool, Rule),
         filter: &'a Filter,
     ) -> Self {
-        let gap = |bound: Option<i64>, high: bool, v: i64| {
-            bound.map_or(UNBOUNDED, |b| {
-                let (top, bottom) = if high { (b, v) } else { (v, b) };
-                top.abs_diff(bottom).min(UNBOUNDED - 1)
-            })
-        };
-        let gaps: Vec<u64> = x
-            .iter()
-            .enumerate()
-            .flat_map(|(i, &v)| {
-                [
-                    gap(problem.upper()[i], true, v),
-                    gap(problem.lower()[i], false, v),
-                ]
-            })
-            .collect();
-        let tight = moves.packed_masks().map(|_| tight_masks(&gaps));
+        let gaps = Gaps::at(problem, x);
+        let tight = moves.packed_masks().map(|_| tight_masks(gaps.as_slice()));
         Self {
             moves,
             slopes,
@@ -117,46 +97,6 @@ fn tight_masks(gaps: &[u64]) -> [u64; 4] {
     })
 }
 
-impl LinearScan<'_> {
-    /// The longest feasible step along a signed move given as `(gap slot, |v|)` per support
-    /// entry ([`UNBOUNDED`] for a ray), or `None` when it is 0 or, given a `floor`, when
-    /// `rate` times the room cannot beat the floor (the room only shrinks as entries are read,
-    /// so such a move is left early).
-    #[inline]
-    fn room(
-        &self,
-        steps: impl Iterator<Item = (usize, u64)>,
-        rate: u128,
-        floor: Option<u128>,
-    ) -> Option<u64> {
-        let mut room = UNBOUNDED;
-        for (slot, step) in steps {
-            let gap = self.gaps[slot];
-            if gap == UNBOUNDED {
-                continue;
-            }
-            // `gap / step < room` exactly when `gap < room * step`: divide only then.
-            let r = if step == 1 {
-                gap
-            } else if gap < room.saturating_mul(step) {
-                gap / step
-            } else {
-                continue;
-            };
-            if r == 0 {
-                return None;
-            }
-            if r < room {
-                room = r;
-                if floor.is_some_and(|f| rate.saturating_mul(u128::from(room)) <= f) {
-                    return None;
-                }
-            }
-        }
-        Some(room)
-    }
-}
-
 impl Evaluate for LinearScan<'_> {
     fn moves(&self) -> &MoveSet {
         self.moves
@@ -187,22 +127,7 @@ impl Evaluate for LinearScan<'_> {
                 return Ok(None);
             }
         }
-        let flip = usize::from(sign == Orientation::Minus);
-        let slot = |e: u32| ((e >> 8) as usize ^ flip, u64::from(e & 0xff));
-        let room = match self.moves.bound_steps(index) {
-            Some(Steps::Short(words)) => {
-                self.room(words.iter().map(|&e| slot(e.into())), rate, floor)
-            }
-            Some(Steps::Packed(words)) => self.room(words.iter().map(|&e| slot(e)), rate, floor),
-            None => {
-                // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
-                let steps = self.moves.support(index).iter().map(|(i, v)| {
-                    let down = (v < 0) == (sign == Orientation::Plus);
-                    (2 * i + usize::from(down), v.unsigned_abs())
-                });
-                self.room(steps, rate, floor)
-            }
-        };
+        let room = self.gaps.room(self.moves, (index, sign), rate, floor);
         let Some(room) = room else {
             return Ok(None);
         };

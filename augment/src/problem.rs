@@ -120,32 +120,6 @@ impl Problem {
             self.lower[i].is_none()
         }
     }
-
-    /// The largest `t >= 0` with `l_i <= v + t d <= u_i`, `None` when unbounded; `v` must lie
-    /// in the range and `d != 0`.
-    pub(crate) fn room(&self, i: usize, v: i64, d: i64) -> Option<i64> {
-        let bound = if d > 0 {
-            self.upper[i]?
-        } else {
-            self.lower[i]?
-        };
-        let fast = if d > 0 {
-            bound.checked_sub(v).zip(Some(d))
-        } else {
-            v.checked_sub(bound).zip(d.checked_neg())
-        };
-        Some(match fast {
-            Some((gap, 1)) => gap,
-            Some((gap, step)) => gap / step,
-            None => wide_room(bound, v, d),
-        })
-    }
-}
-
-/// `(bound - v) / d` in 128-bit arithmetic, for gaps or steps that do not fit in `i64`;
-/// nonnegative for `v` in range, clamped to `i64::MAX` (the step stays feasible).
-fn wide_room(bound: i64, v: i64, d: i64) -> i64 {
-    i64::try_from((i128::from(bound) - i128::from(v)) / i128::from(d)).unwrap_or(i64::MAX)
 }
 
 /// `x -> sum_i dist(x_i, [l_i, u_i])`, a separable convex function.

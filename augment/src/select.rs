@@ -4,6 +4,7 @@
 
 use crate::choice::{Candidate, Rule};
 use crate::error::Result;
+use crate::gaps::Gaps;
 use crate::linear::LinearScan;
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
@@ -50,7 +51,7 @@ impl<F: Separable + ?Sized> Scan<'_, F> {
         let scan = SeparableScan {
             search: &self.search,
             moves: self.moves,
-            bounds: self.bounds,
+            gaps: Gaps::at(self.bounds, self.search.x),
             rule: self.rule,
             filter: &self.filter,
             first_steps: self.first_steps,

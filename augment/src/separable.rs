@@ -27,10 +27,10 @@
 
 use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
+use crate::gaps::{Gaps, UNBOUNDED};
 use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
-use crate::problem::Problem;
 use crate::search::{Direction, LineSearch, Step};
 use crate::support::Steps;
 use crate::sweep::Evaluate;
@@ -41,8 +41,8 @@ pub(crate) struct SeparableScan<'a, F: ?Sized> {
     pub search: &'a LineSearch<'a, F>,
     /// The moves.
     pub moves: &'a MoveSet,
-    /// The box that steps must respect.
-    pub bounds: &'a Problem,
+    /// The current point's gaps to the bounds.
+    pub gaps: Gaps,
     /// The selection rule.
     pub rule: Rule,
     /// Skips signed moves blocked by a bound at the current point.
@@ -265,35 +265,24 @@ impl<F: Separable + ?Sized> SeparableScan<'_, F> {
         if bound.is_some_and(|b| b >= 0) || !self.filter.admits(self.moves, index, sign) {
             return Ok(None);
         }
+        // `room` steps gain at most `room * -bound` (the module documentation).
+        let (rate, floor) = match bound {
+            Some(bound) => (
+                u128::from(bound.unsigned_abs()),
+                floor.map(i128::unsigned_abs),
+            ),
+            None => (0, None),
+        };
+        let Some(room) = self.gaps.room(self.moves, (index, sign), rate, floor) else {
+            return Ok(None);
+        };
+        let room = (room != UNBOUNDED).then(|| i64::try_from(room).unwrap_or(i64::MAX));
         let dir = Direction::of(self.moves, index, sign);
-        let room = room(self.bounds, self.search.x, &dir)?;
-        if let (Some(bound), Some(room), Some(floor)) = (bound, room, floor) {
-            // `room` steps gain at most `room * -bound` (the module documentation).
-            if i128::from(room) * -i128::from(bound) <= floor {
-                return Ok(None);
-            }
-        }
         Ok(match self.search.best(&dir, room, None)? {
             Step::Useless => None,
             step => Some(Candidate { index, sign, step }),
         })
     }
-}
-
-/// The largest number of times `dir` can be applied to `x` inside the box (`None`: no limit).
-fn room(problem: &Problem, x: &[i64], dir: &Direction) -> Result<Option<i64>> {
-    let mut room: Option<i64> = None;
-    for k in 0..dir.len() {
-        let (i, d) = dir.entry(k)?;
-        if let Some(r) = problem.room(i, x[i], d) {
-            let r = room.map_or(r, |current| current.min(r));
-            if r == 0 {
-                return Ok(Some(0));
-            }
-            room = Some(r);
-        }
-    }
-    Ok(room)
 }
 
 #[cfg(test)]
@@ -304,6 +293,7 @@ mod tests {
     use crate::moves::Coverage;
     use crate::objective::strategies::piecewise;
     use crate::objective::{Objective, Term};
+    use crate::problem::Problem;
 
     /// A convex term: a quadratic `a x^2 + c x` with `a >= 0`, or a piecewise-linear one
     /// with nondecreasing slopes.
