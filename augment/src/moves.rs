@@ -266,6 +266,11 @@ impl MoveSet {
         self.extents[variable]
     }
 
+    /// Number of nonzero entries over all moves.
+    pub(crate) fn nonzeros(&self) -> usize {
+        self.starts[self.len()]
+    }
+
     /// The largest l1 norm of a move (0 for an empty set).
     pub fn max_norm(&self) -> i64 {
         self.max_norm
