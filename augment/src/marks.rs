@@ -151,7 +151,7 @@ impl Filter {
 /// The 64 flags (each 0 or 1) as the bits of one word, flag `j` in bit `j`. Each group of 8
 /// flags is one multiplication: flag `k` of the group times bit `7 (8 - k)` of the constant
 /// lands in bit `56 + k`, and no two products share a bit, so nothing carries.
-fn gather_bits(flags: &[u8; 64]) -> u64 {
+pub(crate) fn gather_bits(flags: &[u8; 64]) -> u64 {
     let mut mask = 0;
     for (k, group) in flags.chunks_exact(8).enumerate() {
         let bytes = u64::from_le_bytes(group.try_into().expect("groups of 8"));

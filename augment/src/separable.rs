@@ -28,7 +28,7 @@
 use crate::choice::{choose_sign, Candidate, Rule};
 use crate::error::Result;
 use crate::gaps::{Gaps, UNBOUNDED};
-use crate::marks::Filter;
+use crate::marks::{gather_bits, Filter};
 use crate::moves::{MoveSet, Orientation};
 use crate::objective::Separable;
 use crate::search::{Direction, LineSearch, Step};
@@ -180,25 +180,26 @@ impl FirstSteps {
     fn falling(&self, start: usize, len: usize, blocked: Option<(&[u64], u64)>) -> u64 {
         let plus = &self.plus[start..start + len];
         let minus = &self.minus[start..start + len];
-        let mut mask = 0;
+        // One flag per move without branches, gathered into bits at the end.
+        let mut flags = [0u8; 64];
         match blocked {
             Some((packed, bounds)) => {
                 let packed = &packed[start..start + len];
-                for (j, ((&p, &m), &word)) in plus.iter().zip(minus).zip(packed).enumerate() {
+                let moves = plus.iter().zip(minus).zip(packed);
+                for (flag, ((&p, &m), &word)) in flags.iter_mut().zip(moves) {
                     // Swapping the halves of a packed word negates the move.
                     let free_plus = word & bounds == 0;
                     let free_minus = word.rotate_left(32) & bounds == 0;
-                    let falls = (p < 0 && free_plus) || (m < 0 && free_minus);
-                    mask |= u64::from(falls) << j;
+                    *flag = u8::from((p < 0) & free_plus) | u8::from((m < 0) & free_minus);
                 }
             }
             None => {
-                for (j, (&p, &m)) in plus.iter().zip(minus).enumerate() {
-                    mask |= u64::from((p | m) < 0) << j;
+                for (flag, (&p, &m)) in flags.iter_mut().zip(plus.iter().zip(minus)) {
+                    *flag = u8::from((p | m) < 0);
                 }
             }
         }
-        mask
+        gather_bits(&flags)
     }
 }
 
