@@ -209,7 +209,7 @@ impl Check<'_> {
             let support = self.moves.support(move_index);
             let improving = match (objective.linear_costs(), &gains) {
                 (Some(costs), _) => linear_gain(problem, costs, x, support, (plus, minus), narrow)?,
-                (None, Some(gains)) => gains.first_gain(support, (plus, minus))?,
+                (None, Some(gains)) => gains.first_gain(support, (plus, minus)),
                 (None, None) => separable_gain(problem, x, support, (plus, minus))?,
             };
             if let Some((sign, gain)) = improving {
@@ -388,20 +388,22 @@ fn separable_gain(
 
 /// The gains `f_i(x_i) - f_i(x_i + s)` of a separable objective at `x` for every variable `i`
 /// and every step `s` a move of the set can make there (`|s|` up to the set's extent on `i`),
-/// `None` where `x_i + s` leaves `[l_i, u_i]`. The exact test of a move then adds its entries'
-/// gains instead of testing the box and evaluating two terms per entry: the same exact values,
-/// each computed once per check.
+/// [`Gains::OUTSIDE`] where `x_i + s` leaves `[l_i, u_i]`. The exact test of a move then adds
+/// its entries' gains instead of testing the box and evaluating two terms per entry: the same
+/// exact values, each computed once per check.
 struct Gains {
     /// Per variable the position of its step 0 in `gains`.
     centres: Vec<usize>,
-    gains: Vec<Option<i128>>,
+    gains: Vec<i64>,
 }
 
 impl Gains {
+    /// The mark of a step that leaves the box (no gain in the table takes this value).
+    const OUTSIDE: i64 = i64::MIN;
+
     /// The table at the point `x` inside the box; `None` when it would hold more than four
-    /// entries per nonzero entry of the set (the test then evaluates terms move by move), or
-    /// when a value in it overflows or fails (the move-by-move test reports that where it
-    /// matters).
+    /// entries per nonzero entry of the set, or when a gain does not fit in `i64` or fails to
+    /// evaluate (the test then evaluates terms move by move, which reports what matters).
     fn at(problem: &Problem, moves: &MoveSet, x: &[i64]) -> Option<Self> {
         let size = (0..moves.width()).try_fold(0u64, |sum, i| {
             moves
@@ -425,8 +427,10 @@ impl Gains {
                 let y = xi.checked_add(s)?;
                 let inside = lower[i].is_none_or(|l| y >= l) && upper[i].is_none_or(|u| y <= u);
                 gains.push(match inside {
-                    true => Some(here.checked_sub(objective.term(i, y).ok()?)?),
-                    false => None,
+                    true => i64::try_from(here.checked_sub(objective.term(i, y).ok()?)?)
+                        .ok()
+                        .filter(|&g| g != Self::OUTSIDE)?,
+                    false => Self::OUTSIDE,
                 });
             }
         }
@@ -434,31 +438,71 @@ impl Gains {
     }
 
     /// The first `open` sign in which a move keeps the point in the box and improves, with
-    /// its gain (as [`separable_gain`]).
+    /// its gain (as [`separable_gain`]; a sum of `i64` gains cannot overflow `i128`).
     fn first_gain(
         &self,
         support: Support<'_>,
         (plus, minus): (bool, bool),
-    ) -> Result<Option<(Orientation, i128)>> {
+    ) -> Option<(Orientation, i128)> {
         'signs: for (sign, open) in [(Orientation::Plus, plus), (Orientation::Minus, minus)] {
             if !open {
                 continue;
             }
-            // An overflowing sum is reported only for a sign that stays in the box.
-            let mut sum = Some(0i128);
+            let mut gain = 0i128;
             for (i, v) in support.iter() {
-                // `|v|` is at most the extent on `i`, so the slot lies in the table.
-                let slot = self.centres[i] as i64 + v * sign.factor();
-                let Some(change) = self.gains[slot as usize] else {
-                    continue 'signs;
-                };
-                sum = sum.and_then(|s| s.checked_add(change));
+                // `|v|` is at most the extent on `i`, so the position lies in the table.
+                let at = self.centres[i] as i64 + v * sign.factor();
+                match self.gains[at as usize] {
+                    Self::OUTSIDE => continue 'signs,
+                    change => gain += i128::from(change),
+                }
             }
-            let gain = sum.ok_or(overflow("comparing objective values"))?;
             if gain > 0 {
-                return Ok(Some((sign, gain)));
+                return Some((sign, gain));
             }
         }
-        Ok(None)
+        None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::moves::Coverage;
+    use crate::objective::{Objective, Term};
+
+    /// A gain beyond `i64` leaves the table aside and the move-by-move test reports it exactly
+    /// (by hand): `f(x) = -2^62 x_0 + x_1^2` at 0 falls by `2^64` along `+(4, 0)`, the first
+    /// signed move the check tries.
+    #[test]
+    fn gains_beyond_i64_are_checked_move_by_move() {
+        let terms = vec![Term::Linear(-(1 << 62)), Term::Quadratic { a: 1, c: 0 }];
+        let objective = Objective::separable(terms).unwrap();
+        let problem = Problem::new(objective, vec![None; 2], vec![None; 2]).unwrap();
+        let moves = MoveSet::from_rows(2, &[vec![4, 0], vec![1, -1]], Coverage::Complete);
+        let moves = moves.unwrap();
+        assert!(Gains::at(&problem, &moves, &[0, 0]).is_none());
+        let expected = Certificate::Improving {
+            move_index: 0,
+            sign: Orientation::Plus,
+            gain: 1 << 64,
+        };
+        assert_eq!(certify(&problem, &moves, &[0, 0]).unwrap(), expected);
+    }
+
+    /// Within `i64` the table holds each step's gain and marks the steps out of the box:
+    /// `f(x) = |x - 1|` at 0 in `[-1, 1]` (by hand).
+    #[test]
+    fn the_table_marks_steps_out_of_the_box() {
+        let objective =
+            Objective::separable(vec![Term::PiecewiseLinear(vec![(0, 1), (1, 0), (2, 1)])]);
+        let problem = Problem::new(objective.unwrap(), vec![Some(-1)], vec![Some(1)]).unwrap();
+        let moves = MoveSet::from_rows(1, &[vec![2], vec![1]], Coverage::Complete).unwrap();
+        let gains = Gains::at(&problem, &moves, &[0]).unwrap();
+        // Steps -2..=2: out, -1 (gain -1), 0, +1 (gain 1), out.
+        assert_eq!(gains.gains, [Gains::OUTSIDE, -1, 0, 1, Gains::OUTSIDE]);
+        let improving = gains.first_gain(moves.support(1), (true, true));
+        assert_eq!(improving, Some((Orientation::Plus, 1)));
+        assert_eq!(gains.first_gain(moves.support(0), (true, true)), None);
     }
 }
