@@ -30,7 +30,7 @@ use crate::error::Result;
 use crate::gaps::{Gaps, UNBOUNDED};
 use crate::marks::{gather_bits, Filter};
 use crate::moves::{MoveSet, Orientation};
-use crate::objective::Separable;
+use crate::objective::{Pieces, Separable};
 use crate::search::{Direction, LineSearch, Step};
 use crate::support::Steps;
 use crate::sweep::Evaluate;
@@ -204,11 +204,22 @@ impl FirstSteps {
 }
 
 /// The left and right differences of term `i` at `xi`; `None` beyond `limit` in absolute
-/// value.
+/// value. A piecewise-linear term's kinks are integers, so no kink lies strictly inside
+/// `[xi - 1, xi]` or `[xi, xi + 1]`: its differences are the slopes of the pieces holding
+/// them, read without evaluating the term.
 fn of_term<F: Separable + ?Sized>(f: &F, i: usize, xi: i64, limit: i64) -> Option<[i64; 2]> {
-    let here = f.term(i, xi).ok()?;
-    let left = here.checked_sub(f.term(i, xi.checked_sub(1)?).ok()?)?;
-    let right = f.term(i, xi.checked_add(1)?).ok()?.checked_sub(here)?;
+    let (below, above) = (xi.checked_sub(1)?, xi.checked_add(1)?);
+    let (left, right) = match f.pieces(i) {
+        Some(Pieces { kinks, slopes }) => (
+            i128::from(slopes[kinks.partition_point(|&k| k < xi)]),
+            i128::from(slopes[kinks.partition_point(|&k| k <= xi)]),
+        ),
+        None => {
+            let here = f.term(i, xi).ok()?;
+            let left = here.checked_sub(f.term(i, below).ok()?)?;
+            (left, f.term(i, above).ok()?.checked_sub(here)?)
+        }
+    };
     let fits = |d: i128| i64::try_from(d).ok().filter(|d| d.abs() <= limit);
     Some([fits(left)?, fits(right)?])
 }
@@ -312,6 +323,17 @@ mod tests {
     }
 
     proptest! {
+        /// A term's differences are its one-unit changes, evaluated (by definition): read
+        /// from the slopes of a piecewise-linear term, or evaluated for the others.
+        #[test]
+        fn differences_are_the_unit_changes(term in term(), x in -8i64..=8) {
+            let f = Objective::separable(vec![term]).expect("convex by construction");
+            let value = |v: i64| f.term(0, v).unwrap();
+            let expected = [value(x) - value(x - 1), value(x + 1) - value(x)];
+            let found = of_term(&f, 0, x, i64::MAX).expect("small values fit");
+            prop_assert_eq!(found.map(i128::from), expected);
+        }
+
         /// The bound is sound for every step length (`t` steps change the objective by at
         /// least `t` times the bound: the pass-over test and the cap on the gain, checked by
         /// evaluating the objective) and exact for moves of entries `±1`, where it is the
