@@ -18,7 +18,7 @@ use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
 use crate::search::Step;
-use crate::slopes::Slopes;
+use crate::slopes::{improving_mask, Slopes};
 use crate::sweep::Evaluate;
 
 /// What a linear scan needs.
@@ -70,12 +70,11 @@ impl<'a> LinearScan<'a> {
     /// smallest level `k` at which it moves a coordinate with a gap of at most `k`.
     #[inline]
     fn room_bound(&self, index: usize) -> Option<u64> {
-        let (Some(tight), crate::slopes::Improving::Packed(entries)) =
-            (&self.tight, self.slopes.improving())
-        else {
+        let (Some(tight), Some(packed)) = (&self.tight, self.moves.packed_masks()) else {
             return None;
         };
-        let entry = entries[index];
+        let p = packed[index];
+        let entry = improving_mask(self.slopes.signs()[index], p, p.rotate_left(32));
         TIGHT_LEVELS
             .iter()
             .zip(tight)
@@ -156,9 +155,8 @@ impl Evaluate for LinearScan<'_> {
     }
 
     fn candidates(&self, start: usize, len: usize) -> u64 {
-        let improving = self.slopes.improving();
         self.filter
-            .free_entries(improving, self.moves.words(), start, len)
+            .free_entries(self.moves, self.slopes.signs(), start, len)
     }
 
     fn ceiling(&self) -> Option<i128> {

@@ -13,7 +13,7 @@
 
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
-use crate::slopes::Improving;
+use crate::slopes::improving_mask;
 
 /// Which moves a scan may skip at the current point.
 pub(crate) struct Filter {
@@ -103,46 +103,51 @@ impl Filter {
         mask
     }
 
-    /// Phase II: bit `j` set when the signed move `start + j` (`j < len <= 64`) passes
-    /// [`Filter::admits`], its masks being entry `start + j` of `improving` (`words` per
-    /// entry when split): a branch-free test of every entry, the hot loop of phase II.
+    /// Phase II: bit `j` set when move `start + j` (`j < len <= 64`) applied with its
+    /// improving sign passes [`Filter::admits`], the sign given by the rate's sign in `signs`
+    /// (a move of rate 0 gets full masks, see [`improving_mask`]): a branch-free test of every
+    /// move, the hot loop of phase II, reading the set's masks of the sign picked.
     pub(crate) fn free_entries(
         &self,
-        improving: &Improving,
-        words: usize,
+        moves: &MoveSet,
+        signs: &[i8],
         start: usize,
         len: usize,
     ) -> u64 {
         let mut free = [0u8; 64];
-        match improving {
-            Improving::Packed(entries) => {
-                let bounds = self.packed_bounds();
-                for (flag, e) in free.iter_mut().zip(&entries[start..start + len]) {
-                    *flag = u8::from(e & bounds == 0);
-                }
+        let signs = &signs[start..start + len];
+        if let Some(packed) = moves.packed_masks() {
+            let bounds = self.packed_bounds();
+            for ((flag, &p), &sign) in free.iter_mut().zip(&packed[start..start + len]).zip(signs) {
+                // Swapping the halves of a packed word negates the move.
+                let entry = improving_mask(sign, p, p.rotate_left(32));
+                *flag = u8::from(entry & bounds == 0);
             }
-            Improving::Split(raised, lowered) => {
-                let range = words * start..words * (start + len);
-                let (raised, lowered) = (&raised[range.clone()], &lowered[range]);
-                if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
-                    for ((flag, r), l) in free.iter_mut().zip(raised).zip(lowered) {
-                        *flag = u8::from((r & raise) | (l & lower) == 0);
-                    }
-                    return gather_bits(&free);
-                }
-                for ((flag, r), l) in free
-                    .iter_mut()
-                    .zip(raised.chunks_exact(words))
-                    .zip(lowered.chunks_exact(words))
-                {
-                    let clear = r
-                        .iter()
-                        .zip(&self.raising)
-                        .chain(l.iter().zip(&self.lowering))
-                        .all(|(m, b)| m & b == 0);
-                    *flag = u8::from(clear);
-                }
+            return gather_bits(&free);
+        }
+        let words = moves.words();
+        let range = words * start..words * (start + len);
+        let (positive, negative) = moves.masks();
+        let (positive, negative) = (&positive[range.clone()], &negative[range]);
+        if let (&[raise], &[lower]) = (&self.raising[..], &self.lowering[..]) {
+            let masks = positive.iter().zip(negative).zip(signs);
+            for (flag, ((&p, &n), &sign)) in free.iter_mut().zip(masks) {
+                let (r, l) = (improving_mask(sign, p, n), improving_mask(sign, n, p));
+                *flag = u8::from((r & raise) | (l & lower) == 0);
             }
+            return gather_bits(&free);
+        }
+        let masks = positive
+            .chunks_exact(words)
+            .zip(negative.chunks_exact(words));
+        for (flag, ((p, n), &sign)) in free.iter_mut().zip(masks.zip(signs)) {
+            let clear = (p.iter().zip(n))
+                .zip(self.raising.iter().zip(&self.lowering))
+                .all(|((&p, &n), (&raise, &lower))| {
+                    let (r, l) = (improving_mask(sign, p, n), improving_mask(sign, n, p));
+                    (r & raise) | (l & lower) == 0
+                });
+            *flag = u8::from(clear);
         }
         gather_bits(&free)
     }
@@ -237,10 +242,6 @@ mod tests {
                 (bounds.0[i], bounds.1[i]) = (Some(0), Some(2));
             }
             let p = problem(bounds.0, bounds.1);
-            let signed = match moves.packed_masks() {
-                Some(packed) => Improving::Packed(packed.to_vec()),
-                None => Improving::Split(moves.masks().0.to_vec(), moves.masks().1.to_vec()),
-            };
             for code in 0..125 {
                 let mut x = vec![0i64; width];
                 for (i, v) in x.iter_mut().take(3).enumerate() {
@@ -250,10 +251,25 @@ mod tests {
                 let kept = repair.repairing_candidates(&moves, 0, moves.len());
                 if x.iter().all(|&v| (0..=2).contains(&v)) {
                     let block = Filter::blocking(&p, &x, moves.words());
-                    let free = block.free_entries(&signed, moves.words(), 0, moves.len());
-                    for index in 0..moves.len() {
-                        let admitted = block.admits(&moves, index, Orientation::Plus);
-                        assert_eq!(free >> index & 1 == 1, admitted, "{x:?} move {index}");
+                    // Every move with the rate's sign -1 (the masks of `+`), 1 (those of
+                    // `-`) or 0 (full masks: free only at a point on no bound).
+                    let on_no_bound = x.iter().take(3).all(|&v| v == 1);
+                    for (sign, orientation) in [
+                        (-1, Some(Orientation::Plus)),
+                        (1, Some(Orientation::Minus)),
+                        (0, None),
+                    ] {
+                        let signs = vec![sign; moves.len()];
+                        let free = block.free_entries(&moves, &signs, 0, moves.len());
+                        for index in 0..moves.len() {
+                            let admitted =
+                                orientation.map_or(on_no_bound, |o| block.admits(&moves, index, o));
+                            assert_eq!(
+                                free >> index & 1 == 1,
+                                admitted,
+                                "{x:?} move {index} sign {sign}"
+                            );
+                        }
                     }
                 }
                 for index in 0..moves.len() {

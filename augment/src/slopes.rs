@@ -3,10 +3,11 @@
 //!
 //! With linear costs a move improves only in the sign where `c.g < 0` (`+` when `c.g < 0`, `-`
 //! when `c.g > 0`, neither when `c.g = 0`), whatever the point. So phase II fixes, once per
-//! solve, the sign masks of every move's improving sign; each scan's first pass then tests
-//! one word of masks per move (two arrays of words beyond 32 variables: is the improving sign
-//! blocked by a bound?) without looking at the rate or the move again. A move with rate 0 gets full masks, which every bound blocks
-//! (at a point on no bound the scan looks at it and finds the rate 0).
+//! solve, every move's improving sign; each scan's first pass then tests the sign masks of
+//! that sign (one word per move with at most 32 variables, picked from the set's masks by the
+//! sign without branches: is the improving sign blocked by a bound?) without looking at the
+//! rate or the move again. A move with rate 0 gets full masks, which every bound blocks (at a
+//! point on no bound the scan looks at it and finds the rate 0).
 //!
 //! `|c.g| <= max_i |c_i| * ||g||_1`; when that bound fits in `i16` or `i32` and the moves have
 //! a narrow column-major copy, the rates are column sums `sum_i c_i * column_i` in lanes of that
@@ -19,23 +20,11 @@ use std::ops::{Add, Mul};
 use crate::error::{overflow, Result};
 use crate::moves::MoveSet;
 
-/// `c.g` for every move of one set, and the masks of the moves' improving signs.
+/// `c.g` for every move of one set, and the moves' improving signs.
 pub(crate) struct Slopes {
     rates: Rates,
-    /// Per move the masks of the coordinates its improving sign raises and lowers (all ones
-    /// when it has none).
-    improving: Improving,
-}
-
-/// Per move the masks of the coordinates a signed move raises and lowers, in the layout of
-/// its set's width.
-#[derive(Debug, PartialEq, Eq)]
-pub(crate) enum Improving {
-    /// At most 32 variables: one word per move, raised coordinates in the low half and
-    /// lowered ones in the high half.
-    Packed(Vec<u64>),
-    /// `words` masks per move of the raised coordinates, and as many of the lowered ones.
-    Split(Vec<u64>, Vec<u64>),
+    /// Per move the sign of its rate: `-1` (improving with `+`), `1` (with `-`) or `0`.
+    signs: Vec<i8>,
 }
 
 /// The rates in the narrowest type their bound allows.
@@ -56,10 +45,7 @@ impl Slopes {
             Rates::I64(r) => signs(r),
             Rates::I128(r) => signs(r),
         };
-        Ok(Self {
-            rates,
-            improving: improving(moves, &signs),
-        })
+        Ok(Self { rates, signs })
     }
 
     /// `c.g` for move `index`.
@@ -73,12 +59,21 @@ impl Slopes {
         }
     }
 
-    /// Per move the masks of the coordinates its improving sign raises and lowers (see
-    /// [`Filter::free_entries`]).
-    ///
-    /// [`Filter::free_entries`]: crate::marks::Filter::free_entries
-    pub(crate) fn improving(&self) -> &Improving {
-        &self.improving
+    /// Per move the sign of its rate: `-1` (improving with `+`), `1` (with `-`) or `0`.
+    pub(crate) fn signs(&self) -> &[i8] {
+        &self.signs
+    }
+}
+
+/// The mask of a move's improving sign given its rate's `sign`: `own` (the mask of `+`) when it
+/// is `-1`, `other` (that of `-`) when it is `1`, all ones when it is 0 (two conditional moves).
+#[inline]
+pub(crate) fn improving_mask(sign: i8, own: u64, other: u64) -> u64 {
+    let signed = if sign < 0 { own } else { other };
+    if sign == 0 {
+        u64::MAX
+    } else {
+        signed
     }
 }
 
@@ -106,41 +101,6 @@ macro_rules! rate_sign {
 }
 
 rate_sign!(i16, i32, i64, i128);
-
-/// The masks of every move's improving sign (`+` when its sign is `-1`, `-` when it is `1`,
-/// all ones when it is 0).
-fn improving(moves: &MoveSet, signs: &[i8]) -> Improving {
-    // Per entry: `own` when the sign is -1, `other` when it is 1, all ones when it is 0 (two
-    // conditional moves).
-    let pick = |sign: i8, own: u64, other: u64| {
-        let signed = if sign < 0 { own } else { other };
-        if sign == 0 {
-            u64::MAX
-        } else {
-            signed
-        }
-    };
-    if let Some(packed) = moves.packed_masks() {
-        // Swapping the halves of a packed word negates the move.
-        return Improving::Packed(
-            packed
-                .iter()
-                .zip(signs)
-                .map(|(&p, &sign)| pick(sign, p, p.rotate_left(32)))
-                .collect(),
-        );
-    }
-    let words = moves.words();
-    let (positive, negative) = moves.masks();
-    let side = |own: &[u64], other: &[u64]| {
-        let mut out = Vec::with_capacity(own.len());
-        for (k, (&o, &t)) in own.iter().zip(other).enumerate() {
-            out.push(pick(signs[k / words], o, t));
-        }
-        out
-    };
-    Improving::Split(side(positive, negative), side(negative, positive))
-}
 
 /// The rates of `costs` along `moves`, by the cheapest exact path.
 fn rates(costs: &[i64], moves: &MoveSet) -> Result<Rates> {
@@ -202,7 +162,7 @@ fn checked_rate(costs: &[i64], moves: &MoveSet, index: usize) -> Result<i128> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::moves::{Coverage, Orientation};
+    use crate::moves::Coverage;
 
     fn dot(row: &[i64], costs: &[i64]) -> i128 {
         row.iter()
@@ -248,29 +208,8 @@ mod tests {
         );
     }
 
-    /// The masks of each move applied with its given sign (full masks for `None`), in the
-    /// layout of the set's width, built entry by entry from [`MoveSet::pattern`].
-    fn masks(moves: &MoveSet, signs: &[Option<Orientation>]) -> Improving {
-        let full = vec![u64::MAX; moves.words()];
-        let (mut raised, mut lowered) = (Vec::new(), Vec::new());
-        for (index, sign) in signs.iter().enumerate() {
-            let (r, l) = sign.map_or((&full[..], &full[..]), |s| moves.pattern(index, s));
-            raised.extend_from_slice(r);
-            lowered.extend_from_slice(l);
-        }
-        if moves.width() > 32 {
-            return Improving::Split(raised, lowered);
-        }
-        let packed = raised.iter().zip(&lowered);
-        Improving::Packed(
-            packed
-                .map(|(&r, &l)| if r == u64::MAX { r } else { r | l << 32 })
-                .collect(),
-        )
-    }
-
     #[test]
-    fn every_move_gets_the_masks_of_its_improving_sign() {
+    fn every_move_gets_the_sign_of_its_rate() {
         for width in [3, 70] {
             let row = |entries: &[(usize, i64)]| {
                 let mut r = vec![0; width];
@@ -291,18 +230,19 @@ mod tests {
             costs[width - 1] = -2;
             // Rates 3, 0 and 0: only move 0 improves, in the sign `-`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            let expected = masks(&moves, &[Some(Orientation::Minus), None, None]);
-            assert_eq!(slopes.improving(), &expected, "width {width}");
+            assert_eq!(slopes.signs(), [1, 0, 0], "width {width}");
             costs[1] = 1;
             // Rates 3, -1 and -1: move 0 improves in `-`, the others in `+`.
             let slopes = Slopes::new(&costs, &moves).unwrap();
-            let signs = [
-                Some(Orientation::Minus),
-                Some(Orientation::Plus),
-                Some(Orientation::Plus),
-            ];
-            assert_eq!(slopes.improving(), &masks(&moves, &signs), "width {width}");
+            assert_eq!(slopes.signs(), [1, -1, -1], "width {width}");
         }
+    }
+
+    #[test]
+    fn the_improving_mask_follows_the_sign() {
+        assert_eq!(improving_mask(-1, 0b01, 0b10), 0b01);
+        assert_eq!(improving_mask(1, 0b01, 0b10), 0b10);
+        assert_eq!(improving_mask(0, 0b01, 0b10), u64::MAX);
     }
 
     #[test]
