@@ -18,6 +18,7 @@ use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::{Problem, Violation};
 use crate::search::{Direction, LineSearch, Step};
+use crate::support::Steps;
 use crate::sweep::Evaluate;
 
 /// What a phase-I scan needs.
@@ -38,6 +39,23 @@ pub(crate) struct RepairScan<'a> {
     pub rule: Rule,
     /// Keeps only moves that repair a violated coordinate.
     pub filter: Filter,
+    /// Per variable `i` the distance to the box that raising `x_i` repairs (entry `2 i`:
+    /// `l_i - x_i` below the box, else 0) and that lowering it repairs (entry `2 i + 1`:
+    /// `x_i - u_i` above the box, else 0), in the slots of the packed entries (`support.rs`).
+    pub reaches: Vec<u64>,
+}
+
+/// The table of [`RepairScan::reaches`] at `x`.
+pub(crate) fn reaches(problem: &Problem, x: &[i64]) -> Vec<u64> {
+    let (lower, upper) = (problem.lower(), problem.upper());
+    x.iter()
+        .enumerate()
+        .flat_map(|(i, &v)| {
+            let below = lower[i].filter(|&l| v < l).map_or(0, |l| l.abs_diff(v));
+            let above = upper[i].filter(|&u| v > u).map_or(0, |u| v.abs_diff(u));
+            [below, above]
+        })
+        .collect()
 }
 
 impl Evaluate for RepairScan<'_> {
@@ -85,7 +103,7 @@ impl RepairScan<'_> {
                 Some(Step::Finite { gain, .. }) => Some(floor.map_or(gain, |f| f.max(gain))),
                 _ => floor,
             };
-            if bar.is_some_and(|bar| self.reach(&dir) <= bar) {
+            if bar.is_some_and(|bar| self.reach(index, sign) <= bar) {
                 return Ok(None);
             }
         }
@@ -116,20 +134,74 @@ impl RepairScan<'_> {
         Some(gain)
     }
 
-    /// The total distance to the box of the coordinates `dir` moves towards it from outside:
-    /// an upper bound on the violation any multiple of `dir` removes.
-    fn reach(&self, dir: &Direction) -> i128 {
-        let (lower, upper, x) = (self.problem.lower(), self.problem.upper(), self.x);
-        dir.support
-            .iter()
-            .map(|(i, v)| {
-                let raises = (v > 0) == (dir.sign > 0);
-                match (raises, lower[i], upper[i]) {
-                    (true, Some(l), _) if x[i] < l => i128::from(l) - i128::from(x[i]),
-                    (false, _, Some(u)) if x[i] > u => i128::from(x[i]) - i128::from(u),
-                    _ => 0,
-                }
-            })
-            .sum()
+    /// The total distance to the box of the coordinates move `index` with `sign` moves
+    /// towards it from outside: an upper bound on the violation any multiple of it removes.
+    fn reach(&self, index: usize, sign: Orientation) -> i128 {
+        // The entry's slot, its last bit flipped for `-`, says whether it raises (even) or
+        // lowers (odd) its variable.
+        let flip = usize::from(sign == Orientation::Minus);
+        let reach = |slot: usize| u128::from(self.reaches[slot ^ flip]);
+        let total: u128 = match self.moves.bound_steps(index) {
+            Some(Steps::Short(words)) => words.iter().map(|&w| reach(usize::from(w >> 8))).sum(),
+            Some(Steps::Packed(words)) => words.iter().map(|&w| reach((w >> 8) as usize)).sum(),
+            None => (self.moves.support(index).iter())
+                .map(|(i, v)| reach(2 * i + usize::from(v < 0)))
+                .sum(),
+        };
+        // At most n distances below 2^64 each.
+        i128::try_from(total).unwrap_or(i128::MAX)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::moves::Coverage;
+    use crate::objective::Objective;
+
+    proptest! {
+        /// The reach read from the table is its definition summed over the move's entries
+        /// (the distance to the box of every coordinate it moves towards the box from
+        /// outside), for packed entries and for wide ones (an entry of 300 does not pack).
+        #[test]
+        fn reach_is_the_distance_the_move_can_repair(
+            box_of in prop::collection::vec((prop::option::of(-3i64..=0), prop::option::of(0i64..=3)), 3),
+            x in prop::collection::vec(-6i64..=6, 3),
+            g in prop::collection::vec(-2i64..=2, 3),
+            wide in any::<bool>(),
+        ) {
+            prop_assume!(g.iter().any(|&v| v != 0));
+            let (lower, upper): (Vec<_>, Vec<_>) = box_of.into_iter().unzip();
+            let problem = Problem::new(Objective::linear(vec![0; 3]), lower.clone(), upper.clone()).unwrap();
+            let mut rows = vec![g.clone()];
+            if wide {
+                rows.push(vec![300, 0, 0]);
+            }
+            let moves = MoveSet::from_rows(3, &rows, Coverage::Complete).unwrap();
+            let scan = RepairScan {
+                function: problem.violation_function(),
+                x: &x,
+                powers_of_two: false,
+                moves: &moves,
+                problem: &problem,
+                violation: problem.violation(&x).unwrap(),
+                rule: Rule::GraverBest,
+                filter: Filter::repairing(&problem, &x, moves.words()),
+                reaches: reaches(&problem, &x),
+            };
+            for sign in Orientation::BOTH {
+                let expected: i128 = (0..3).map(|i| {
+                    let d = g[i] * sign.factor();
+                    match (lower[i], upper[i]) {
+                        (Some(l), _) if d > 0 && x[i] < l => i128::from(l - x[i]),
+                        (_, Some(u)) if d < 0 && x[i] > u => i128::from(x[i] - u),
+                        _ => 0,
+                    }
+                }).sum();
+                prop_assert_eq!(scan.reach(0, sign), expected);
+            }
+        }
     }
 }

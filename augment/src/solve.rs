@@ -16,7 +16,7 @@ use crate::objective::Separable;
 use crate::options::Options;
 use crate::problem::Problem;
 use crate::recurrence::{Recurrence, WATCH_AFTER};
-use crate::repair::RepairScan;
+use crate::repair::{self, RepairScan};
 use crate::search::{LineSearch, Step};
 use crate::select::Scan;
 use crate::separable::FirstSteps;
@@ -261,6 +261,7 @@ impl<'a> Run<'a> {
             violation,
             rule: self.options.selected_rule(),
             filter: Filter::repairing(self.problem, &self.x, self.moves.words()),
+            reaches: repair::reaches(self.problem, &self.x),
         }
     }
 
