@@ -35,9 +35,19 @@ pub(crate) struct LinearScan<'a> {
     rule: Rule,
     /// Skips moves blocked by a bound at the current point.
     filter: &'a Filter,
-    /// With packed masks, per level `k` of [`TIGHT_LEVELS`] the coordinates whose gap is at
-    /// most `k`: upper gaps in the low half, lower gaps in the high half.
-    tight: Option<[u64; 4]>,
+    /// With at most 64 variables, per level `k` of [`TIGHT_LEVELS`] the coordinates whose gap
+    /// is at most `k`.
+    tight: Option<Tight>,
+}
+
+/// Per level `k` of [`TIGHT_LEVELS`] the coordinates whose gap is at most `k`, in the layout of
+/// the set's sign masks.
+enum Tight {
+    /// At most 32 variables: upper gaps in the low half, lower gaps in the high half (the
+    /// layout of [`MoveSet::packed_masks`]).
+    Packed([u64; 4]),
+    /// 33 to 64 variables: the upper gaps and the lower gaps, one word each.
+    Split([u64; 4], [u64; 4]),
 }
 
 /// The room bounds tried before a move's support is read.
@@ -54,7 +64,7 @@ impl<'a> LinearScan<'a> {
         filter: &'a Filter,
     ) -> Self {
         let gaps = Gaps::at(problem, x);
-        let tight = moves.packed_masks().map(|_| tight_masks(gaps.as_slice()));
+        let tight = tight_masks(moves, gaps.as_slice());
         Self {
             moves,
             slopes,
@@ -70,30 +80,47 @@ impl<'a> LinearScan<'a> {
     /// smallest level `k` at which it moves a coordinate with a gap of at most `k`.
     #[inline]
     fn room_bound(&self, index: usize) -> Option<u64> {
-        let (Some(tight), Some(packed)) = (&self.tight, self.moves.packed_masks()) else {
-            return None;
+        let sign = self.slopes.signs()[index];
+        let meets: [bool; 4] = match self.tight.as_ref()? {
+            Tight::Packed(tight) => {
+                let p = self.moves.packed_masks()?[index];
+                let entry = improving_mask(sign, p, p.rotate_left(32));
+                tight.map(|mask| entry & mask != 0)
+            }
+            Tight::Split(upper, lower) => {
+                let (positive, negative) = self.moves.masks();
+                let (p, n) = (positive[index], negative[index]);
+                let (raised, lowered) = (improving_mask(sign, p, n), improving_mask(sign, n, p));
+                [0, 1, 2, 3].map(|k| (raised & upper[k]) | (lowered & lower[k]) != 0)
+            }
         };
-        let p = packed[index];
-        let entry = improving_mask(self.slopes.signs()[index], p, p.rotate_left(32));
         TIGHT_LEVELS
             .iter()
-            .zip(tight)
-            .find(|(_, &mask)| entry & mask != 0)
+            .zip(meets)
+            .find(|&(_, meets)| meets)
             .map(|(&k, _)| k)
     }
 }
 
-/// Per level `k` of [`TIGHT_LEVELS`] the packed mask of the coordinates whose upper gap (low
-/// half) or lower gap (high half) is at most `k`; `gaps` as in [`LinearScan`], at most 32
-/// variables.
-fn tight_masks(gaps: &[u64]) -> [u64; 4] {
-    TIGHT_LEVELS.map(|k| {
+/// The tight masks of the gaps `gaps` (as in [`Gaps`]) in the layout of the sign masks of
+/// `moves`; `None` beyond 64 variables.
+fn tight_masks(moves: &MoveSet, gaps: &[u64]) -> Option<Tight> {
+    // Bit `i` set when the gap in slot `2 i + side` is at most `k`.
+    let within = |k: u64, side: usize| {
         gaps.chunks_exact(2)
             .enumerate()
             .fold(0u64, |mask, (i, pair)| {
-                mask | u64::from(pair[0] <= k) << i | u64::from(pair[1] <= k) << (32 + i)
+                mask | u64::from(pair[side] <= k) << i
             })
-    })
+    };
+    let upper = TIGHT_LEVELS.map(|k| within(k, 0));
+    let lower = TIGHT_LEVELS.map(|k| within(k, 1));
+    if moves.packed_masks().is_some() {
+        return Some(Tight::Packed(
+            [0, 1, 2, 3].map(|k| upper[k] | lower[k] << 32),
+        ));
+    }
+    (moves.words() == 1).then_some(Tight::Split(upper, lower))
 }
 
 impl Evaluate for LinearScan<'_> {
@@ -161,5 +188,60 @@ impl Evaluate for LinearScan<'_> {
 
     fn ceiling(&self) -> Option<i128> {
         None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::moves::Coverage;
+    use crate::objective::Objective;
+
+    proptest! {
+        /// The tight masks bound the room from above (the true room, read from the gaps, is at
+        /// most the level found) and find a level exactly when the improving sign moves a
+        /// coordinate with a gap of at most 8; with packed masks (3 variables) and split ones
+        /// (40 variables, the others unbounded).
+        #[test]
+        fn the_room_bound_is_sound(
+            width in prop_oneof![Just(3usize), Just(40usize)],
+            upper in prop::collection::vec(0i64..=12, 3),
+            x in prop::collection::vec(0i64..=12, 3),
+            rows in prop::collection::vec(prop::collection::vec(-2i64..=2, 3), 1..8),
+            costs in prop::collection::vec(-3i64..=3, 3),
+        ) {
+            let widen = |r: &[i64]| [r, &vec![0; width - 3][..]].concat();
+            let rows: Vec<Vec<i64>> = rows.iter().filter(|r| r.iter().any(|&v| v != 0)).map(|r| widen(r)).collect();
+            prop_assume!(!rows.is_empty());
+            let x: Vec<i64> = widen(&x.iter().zip(&upper).map(|(&v, &u)| v.min(u)).collect::<Vec<_>>());
+            let upper: Vec<Option<i64>> = (0..width).map(|i| (i < 3).then(|| upper[i])).collect();
+            let lower: Vec<Option<i64>> = (0..width).map(|i| (i < 3).then_some(0)).collect();
+            let costs = widen(&costs);
+            let problem = Problem::new(Objective::linear(costs.clone()), lower, upper).unwrap();
+            let moves = MoveSet::from_rows(width, &rows, Coverage::Complete).unwrap();
+            let slopes = Slopes::new(&costs, &moves).unwrap();
+            let filter = Filter::blocking(&problem, &x, moves.words());
+            let scan = LinearScan::new(&moves, &slopes, &problem, &x, (false, Rule::GraverBest), &filter);
+            for (index, row) in rows.iter().enumerate() {
+                let sign = match slopes.signs()[index] {
+                    0 => continue,
+                    s if s < 0 => Orientation::Plus,
+                    _ => Orientation::Minus,
+                };
+                let room = scan.gaps.room(&moves, (index, sign), 0, None).unwrap_or(0);
+                let bound = scan.room_bound(index);
+                if let Some(k) = bound {
+                    prop_assert!(room <= k, "move {} room {} bound {}", index, room, k);
+                }
+                let gaps = scan.gaps.as_slice();
+                let near = (0..3).filter(|&i| row[i] != 0).any(|i| {
+                    let up = (row[i] > 0) == (sign == Orientation::Plus);
+                    gaps[2 * i + usize::from(!up)] <= 8
+                });
+                prop_assert_eq!(bound.is_some(), near, "move {}", index);
+            }
+        }
     }
 }
