@@ -77,6 +77,38 @@ fn a_directory_of_models_gives_one_summary_row_each() {
     assert_eq!(transport["elements"], 15);
 }
 
+/// A log of `--progress json` ends with the build's last state, whose `peak_moves` is the
+/// largest working set of any record (the first record is shown at once and the others at
+/// most every 30 s, so this short build logs its first and its last).
+#[test]
+fn a_json_progress_log_ends_with_the_peak() {
+    let models = tempfile::tempdir().unwrap();
+    let model = transport_model(models.path(), 4, 4);
+    let cache = tempfile::tempdir().unwrap();
+    let args = [
+        "build",
+        path_str(&model),
+        "--engine",
+        "moves",
+        "--progress",
+        "json",
+    ];
+    let (_, stderr) = cli_support::expect_both(cache.path(), &args, 0);
+    let records: Vec<Value> = stderr
+        .lines()
+        .filter(|l| l.starts_with('{'))
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(records.len(), 2, "{stderr}");
+    let most = records.iter().map(|r| r["moves"].as_u64().unwrap()).max();
+    let last = records.last().unwrap();
+    assert_eq!(last["schema"], "kernstep.progress/2");
+    assert!(last["peak_moves"].as_u64() >= most, "{stderr}");
+    assert!(
+        last["stage"] == last["stages"] || last["stage"].as_u64() > records[0]["stage"].as_u64()
+    );
+}
+
 #[test]
 fn a_bad_model_among_good_ones_exits_2_and_the_others_are_stored() {
     let models = tempfile::tempdir().unwrap();

@@ -3,12 +3,13 @@
 
 use std::io::{self, IsTerminal, Write};
 use std::path::Path;
+use std::sync::Mutex;
 use std::time::Duration;
 
 use clap::ValueEnum;
 use indicatif::{ProgressBar, ProgressStyle};
 use kernstep::completion::Progress;
-use kernstep::formats::progress::ProgressWatch;
+use kernstep::formats::progress::{ProgressRecord, ProgressWatch};
 use kernstep::text::progress_text;
 
 /// Longest silence of a build whose stderr is not a terminal.
@@ -21,9 +22,10 @@ pub enum ProgressArg {
     Auto,
     /// A bar (drawn only on a terminal).
     Bar,
-    /// One line at most every 30 s.
+    /// One line at most every 30 s, and the last one at the end.
     Lines,
-    /// One JSON object per line at most every 30 s (schema `kernstep.progress/1`).
+    /// One JSON object per line at most every 30 s, and the last one at the end (schema
+    /// `kernstep.progress/2`).
     Json,
     /// Nothing.
     None,
@@ -36,6 +38,9 @@ pub struct BuildProgress {
     bar: ProgressBar,
     /// The stages seen to end, for the time left.
     watch: ProgressWatch,
+    /// The last record, when a log has not shown it (written at the end, so that a log ends
+    /// with the build's last state and its peak).
+    unshown: Mutex<Option<ProgressRecord>>,
 }
 
 impl BuildProgress {
@@ -65,30 +70,47 @@ impl BuildProgress {
             model,
             bar,
             watch: ProgressWatch::default(),
+            unshown: Mutex::new(None),
         }
     }
 
     /// Shows a snapshot of the running completion.
     pub fn report(&self, p: &Progress) {
         let record = self.watch.record(&self.model, p);
-        let text = progress_text(&record);
         match self.mode {
-            ProgressArg::Bar => self.bar.set_message(text),
-            ProgressArg::Lines if self.watch.due(LINE_EVERY) => {
-                self.line(&format!("{text}, {:.0} s", record.elapsed_seconds));
-            }
-            ProgressArg::Json if self.watch.due(LINE_EVERY) => {
-                if let Ok(json) = serde_json::to_string(&record) {
-                    self.write(&json);
+            ProgressArg::Bar => self.bar.set_message(progress_text(&record)),
+            ProgressArg::Lines | ProgressArg::Json => {
+                let shown = self.watch.due(LINE_EVERY).then(|| self.show(&record));
+                if let Ok(mut unshown) = self.unshown.lock() {
+                    *unshown = shown.is_none().then_some(record);
                 }
             }
             _ => {}
         }
     }
 
-    /// Removes the bar.
+    /// Removes the bar, or writes the last record a log has not shown.
     pub fn finish(&self) {
         self.bar.finish_and_clear();
+        if let Some(record) = self.unshown.lock().ok().and_then(|mut u| u.take()) {
+            self.show(&record);
+        }
+    }
+
+    /// Writes `record` as a line of a log.
+    fn show(&self, record: &ProgressRecord) {
+        match self.mode {
+            ProgressArg::Lines => {
+                let text = progress_text(record);
+                self.line(&format!("{text}, {:.0} s", record.elapsed_seconds));
+            }
+            ProgressArg::Json => {
+                if let Ok(json) = serde_json::to_string(record) {
+                    self.write(&json);
+                }
+            }
+            _ => {}
+        }
     }
 
     fn line(&self, text: &str) {

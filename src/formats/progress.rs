@@ -12,7 +12,7 @@ use crate::completion::Progress;
 use crate::testset::{extrapolate, StageMark};
 
 /// The `schema` value of progress records.
-pub const PROGRESS_SCHEMA: &str = "kernstep.progress/1";
+pub const PROGRESS_SCHEMA: &str = "kernstep.progress/2";
 
 /// One snapshot of a running build.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, JsonSchema)]
@@ -30,6 +30,9 @@ pub struct ProgressRecord {
     pub norm_level: u64,
     /// Moves in the working set.
     pub moves: usize,
+    /// The most moves the working set has held so far (at the end of a norm level, where it
+    /// is largest): with the process's peak memory, the bytes per working move.
+    pub peak_moves: usize,
     /// Moves per second of build time so far.
     pub moves_per_second: f64,
     /// Seconds since the build started.
@@ -53,6 +56,8 @@ pub struct ProgressWatch {
 struct Stages {
     marks: Vec<StageMark>,
     current: Option<StageMark>,
+    /// The most members reported.
+    peak: usize,
 }
 
 impl ProgressWatch {
@@ -79,6 +84,10 @@ impl ProgressWatch {
             stages: p.stages,
             norm_level: p.level,
             moves: p.elements,
+            peak_moves: self.stages.lock().map_or(p.elements, |mut s| {
+                s.peak = s.peak.max(p.elements);
+                s.peak
+            }),
             moves_per_second: if seconds > 0.0 {
                 p.elements as f64 / seconds
             } else {
@@ -145,8 +154,20 @@ mod tests {
             record
         );
         assert!(
-            text.starts_with(r#"{"schema":"kernstep.progress/1","model":"m""#),
+            text.starts_with(r#"{"schema":"kernstep.progress/2","model":"m""#),
             "{text}"
         );
+    }
+
+    /// The peak is the largest working set reported so far, whatever came after it (a stage's
+    /// minimal pass shrinks the set).
+    #[test]
+    fn the_peak_is_the_most_moves_reported() {
+        let watch = ProgressWatch::default();
+        let peak = |stage, members| watch.record("m", &report(stage, members, 1.0)).peak_moves;
+        assert_eq!(peak(1, 200), 200);
+        assert_eq!(peak(1, 900), 900);
+        assert_eq!(peak(2, 400), 900);
+        assert_eq!(peak(2, 1000), 1000);
     }
 }
