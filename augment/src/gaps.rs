@@ -7,9 +7,10 @@
 //! one), and `|v|` the step. A caller that knows the gain per step can leave a move early: the
 //! room only shrinks as entries are read.
 
+use std::ops::ControlFlow;
+
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::Problem;
-use crate::support::Steps;
 
 /// The gap recorded for a missing bound. A real gap of `u64::MAX` (from `i64::MIN` to
 /// `i64::MAX`) is stored one less, which changes no step: lengths are capped at `i64::MAX`.
@@ -53,44 +54,14 @@ impl Gaps {
     pub(crate) fn room(
         &self,
         moves: &MoveSet,
-        (index, sign): (usize, Orientation),
+        signed: (usize, Orientation),
         rate: u128,
         floor: Option<u128>,
     ) -> Option<u64> {
-        let flip = usize::from(sign == Orientation::Minus);
-        let slot = |e: u32| ((e >> 8) as usize ^ flip, u64::from(e & 0xff));
-        match moves.bound_steps(index) {
-            Some(Steps::Short(words)) => {
-                self.shortest(words.iter().map(|&e| slot(e.into())), rate, floor)
-            }
-            Some(Steps::Packed(words)) => {
-                self.shortest(words.iter().map(|&e| slot(e)), rate, floor)
-            }
-            None => {
-                // Moving up (`v > 0` with `+`, `v < 0` with `-`) meets the upper bound.
-                let steps = moves.support(index).iter().map(|(i, v)| {
-                    let down = (v < 0) == (sign == Orientation::Plus);
-                    (2 * i + usize::from(down), v.unsigned_abs())
-                });
-                self.shortest(steps, rate, floor)
-            }
-        }
-    }
-
-    /// The room along a signed move given as `(gap slot, |v|)` per support entry (see
-    /// [`Gaps::room`]).
-    #[inline]
-    fn shortest(
-        &self,
-        steps: impl Iterator<Item = (usize, u64)>,
-        rate: u128,
-        floor: Option<u128>,
-    ) -> Option<u64> {
-        let mut room = UNBOUNDED;
-        for (slot, step) in steps {
+        let room = moves.try_fold_steps(signed, UNBOUNDED, |room, slot, step| {
             let gap = self.0[slot];
             if gap == UNBOUNDED {
-                continue;
+                return ControlFlow::Continue(room);
             }
             // `gap / step < room` exactly when `gap < room * step`: divide only then.
             let r = if step == 1 {
@@ -98,19 +69,19 @@ impl Gaps {
             } else if gap < room.saturating_mul(step) {
                 gap / step
             } else {
-                continue;
+                return ControlFlow::Continue(room);
             };
-            if r == 0 {
-                return None;
+            if r == 0
+                || (r < room && floor.is_some_and(|f| rate.saturating_mul(u128::from(r)) <= f))
+            {
+                return ControlFlow::Break(());
             }
-            if r < room {
-                room = r;
-                if floor.is_some_and(|f| rate.saturating_mul(u128::from(room)) <= f) {
-                    return None;
-                }
-            }
+            ControlFlow::Continue(room.min(r))
+        });
+        match room {
+            ControlFlow::Continue(room) => Some(room),
+            ControlFlow::Break(()) => None,
         }
-        Some(room)
     }
 }
 

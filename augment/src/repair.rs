@@ -18,7 +18,6 @@ use crate::marks::Filter;
 use crate::moves::{MoveSet, Orientation};
 use crate::problem::{Problem, Violation};
 use crate::search::{Direction, LineSearch, Step};
-use crate::support::Steps;
 use crate::sweep::Evaluate;
 
 /// What a phase-I scan needs.
@@ -137,17 +136,9 @@ impl RepairScan<'_> {
     /// The total distance to the box of the coordinates move `index` with `sign` moves
     /// towards it from outside: an upper bound on the violation any multiple of it removes.
     fn reach(&self, index: usize, sign: Orientation) -> i128 {
-        // The entry's slot, its last bit flipped for `-`, says whether it raises (even) or
-        // lowers (odd) its variable.
-        let flip = usize::from(sign == Orientation::Minus);
-        let reach = |slot: usize| u128::from(self.reaches[slot ^ flip]);
-        let total: u128 = match self.moves.bound_steps(index) {
-            Some(Steps::Short(words)) => words.iter().map(|&w| reach(usize::from(w >> 8))).sum(),
-            Some(Steps::Packed(words)) => words.iter().map(|&w| reach((w >> 8) as usize)).sum(),
-            None => (self.moves.support(index).iter())
-                .map(|(i, v)| reach(2 * i + usize::from(v < 0)))
-                .sum(),
-        };
+        let total = (self.moves).fold_steps((index, sign), 0u128, |total, slot, _| {
+            total + u128::from(self.reaches[slot])
+        });
         // At most n distances below 2^64 each.
         i128::try_from(total).unwrap_or(i128::MAX)
     }

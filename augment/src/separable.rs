@@ -32,7 +32,6 @@ use crate::marks::{gather_bits, Filter};
 use crate::moves::{MoveSet, Orientation};
 use crate::objective::{Pieces, Separable};
 use crate::search::{Direction, LineSearch, Step};
-use crate::support::Steps;
 use crate::sweep::Evaluate;
 
 /// What a separable scan needs.
@@ -142,26 +141,12 @@ impl FirstSteps {
             .collect();
         let bounds = self.plus.iter_mut().zip(self.minus.iter_mut());
         for (index, (plus, minus)) in bounds.enumerate() {
-            let mut sums = [0i64; 2];
-            let mut add = |slot: usize, size: i64| {
-                let [p, m] = slots[slot];
-                sums = [sums[0] + size * p, sums[1] + size * m];
-            };
-            let packed = |word: u32| ((word >> 8) as usize, i64::from(word & 0xff));
-            match moves.bound_steps(index) {
-                Some(Steps::Short(words)) => words.iter().for_each(|&w| {
-                    let (slot, size) = packed(w.into());
-                    add(slot, size);
-                }),
-                Some(Steps::Packed(words)) => words.iter().for_each(|&w| {
-                    let (slot, size) = packed(w);
-                    add(slot, size);
-                }),
-                None => moves
-                    .support(index)
-                    .for_each(|i, g| add(2 * i + usize::from(g < 0), g.abs())),
-            }
-            [*plus, *minus] = sums;
+            // The slots of `+`; `|v|` is at most the largest norm, so it fits in `i64`.
+            let signed = (index, Orientation::Plus);
+            [*plus, *minus] = moves.fold_steps(signed, [0i64; 2], |[p, m], slot, size| {
+                let [rate_plus, rate_minus] = slots[slot];
+                [p + size as i64 * rate_plus, m + size as i64 * rate_minus]
+            });
         }
     }
 
