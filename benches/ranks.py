@@ -9,7 +9,8 @@ timed once per repeat, best of REPEATS:
     thread per rank (the same two cores);
   - `batch` of DAYS drawn days of the product-line example scenario (benches/scenario_days.py),
     set cached: the same three peers.
-Every peer's set (`cache export`, clock fields dropped) and every peer's results (timings
+For builds it prints the peak resident memory of the process (of the largest rank under
+mpirun; GNU time reports it) and its ratio to one process's. Every peer's set (`cache export`, clock fields dropped) and every peer's results (timings
 dropped) must equal one process's; the script stops otherwise. From the 1-thread and the
 2-rank times it fits Amdahl's law, speedup(N) = 1 / (s + (1 - s) / N), and prints the model's
 figures for 8 to 64 ranks (a model on paper: exchanges grow with the ranks, which it ignores).
@@ -61,9 +62,23 @@ def tables(p, q, s):
 
 
 def run(command):
+    """Runs `command`; returns its outcome and wall seconds."""
     start = time.perf_counter()
     done = subprocess.run(command, capture_output=True, text=True)
     return done, time.perf_counter() - start
+
+
+def peak_kib(stderr):
+    """The largest peak resident memory (KiB) that the `TIMED` wrappers reported: that of the
+    largest rank, or of the one process."""
+    peaks = [int(line.split()[-1]) for line in stderr.splitlines()
+             if line.startswith("kernstep-peak-kib ")]
+    return max(peaks, default=0)
+
+
+# Each process (each rank, under mpirun) reports its own peak: mpirun's own accounting mixes
+# in its daemons.
+TIMED = ["/usr/bin/time", "-f", "kernstep-peak-kib %M"]
 
 
 PEERS = [("one process, 1 thread", [], ["--threads", "1"]),
@@ -80,14 +95,15 @@ def exported(cache, key):
 
 
 def bench_build(model, repeats, directory):
-    print(f"\n== build {os.path.basename(model)}")
-    reference, base = None, None
+    print(f"\n== build {os.path.basename(model)} (peak: the largest process or rank)")
+    reference, base, base_peak = None, None, None
     for label, launcher, extra in PEERS:
-        best = None
+        best, peak = None, 0
         for r in range(repeats):
             cache = tempfile.mkdtemp(dir=directory)
-            done, seconds = run(launcher + [BINARY, "build", model, "--engine", "moves",
-                                            "--json", "--cache-dir", cache] + extra)
+            done, seconds = run(launcher + TIMED + [BINARY, "build", model, "--engine",
+                                                    "moves",
+                                                    "--json", "--cache-dir", cache] + extra)
             if done.returncode != 0:
                 raise SystemExit(f"{label}: build failed: {done.stdout}{done.stderr}")
             row = json.loads(done.stdout)["models"][0]
@@ -97,8 +113,12 @@ def bench_build(model, repeats, directory):
             elif doc != reference:
                 raise SystemExit(f"{label}: the stored set differs from one process's")
             best = seconds if best is None else min(best, seconds)
+            peak = max(peak, peak_kib(done.stderr))
         base = base or best
-        print(f"   {label:<30}{best:>9.2f} s{base / best:>8.2f}x   "
+        base_peak = base_peak or peak
+        memory = (f"peak {peak / 1024:7.1f} MiB ({peak / base_peak:.2f})" if peak and base_peak
+                  else "peak not reported")
+        print(f"   {label:<30}{best:>9.2f} s{base / best:>8.2f}x   {memory}   "
               f"{len(reference['elements'])} moves, identical")
     return base, best
 
