@@ -106,11 +106,16 @@ pub fn run(args: &BatchArgs) -> anyhow::Result<ExitCode> {
         ..ReplanSettings::default()
     };
     let priced = settings.change.as_ref().map(|p| p.model_to_serve(model));
-    let set = args
-        .serving
-        .served(priced.transpose()?.as_ref().unwrap_or(model), &args.input)?;
-    let started = Instant::now();
-    let prepared = set.prepare(&model.matrix)?;
+    let served = priced.transpose()?;
+    // Loading and preparing the set run on the threads the days get.
+    let (set, prepared, started) = with_threads(args.threads, || -> anyhow::Result<_> {
+        let set = args
+            .serving
+            .served(served.as_ref().unwrap_or(model), &args.input)?;
+        let started = Instant::now();
+        let prepared = set.prepare(&model.matrix)?;
+        Ok((set, prepared, started))
+    })??;
     #[cfg(feature = "mpi")]
     if let Some(ranks) = super::ranked::current() {
         let days = super::ranked::batch::block(days, ranks);

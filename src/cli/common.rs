@@ -121,6 +121,11 @@ pub fn signal_status() -> Option<u8> {
 
 /// Runs `f` on a rayon pool of `threads` threads (default: rayon's choice), capped to the
 /// machine ([`capped_threads`]) with one warning line on stderr when the count was above it.
+///
+/// The first call of a process makes the calling thread worker 0 of rayon's global pool of
+/// that many threads, so `f` runs where it was called and `--threads 1` starts no thread at
+/// all; later calls asking for the same count run in that pool too (work done in between,
+/// such as preparing a set, uses the same threads). Otherwise `f` runs in a pool of its own.
 pub fn with_threads<T: Send>(
     threads: Option<usize>,
     f: impl FnOnce() -> T + Send,
@@ -130,14 +135,29 @@ pub fn with_threads<T: Send>(
         Some(0) => anyhow::bail!("--threads must be at least 1"),
         Some(asked) => {
             let n = capped_threads(asked);
-            if n < asked {
+            // A verb may call this more than once (loading, then solving): one warning.
+            static WARNED: AtomicBool = AtomicBool::new(false);
+            if n < asked && !WARNED.swap(true, Ordering::Relaxed) {
                 eprintln!(
                     "kernstep: warning: --threads {asked} is more than the {n} threads this machine runs at once; using {n}"
                 );
             }
+            if joins_global_pool(n) {
+                return Ok(f());
+            }
             Ok(in_pool(n, f)?)
         }
     }
+}
+
+/// Whether the calling thread is (or has just become) a worker of rayon's global pool of
+/// exactly `n` threads. Building the global pool fails harmlessly once it exists.
+fn joins_global_pool(n: usize) -> bool {
+    let _ = rayon::ThreadPoolBuilder::new()
+        .num_threads(n)
+        .use_current_thread()
+        .build_global();
+    rayon::current_thread_index().is_some() && rayon::current_num_threads() == n
 }
 
 /// Writes `bytes` to `path` atomically with the cache's writer ([`cache::write_atomic`]: a
