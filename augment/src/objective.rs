@@ -265,6 +265,28 @@ impl Convex {
     }
 }
 
+/// The slope `(y1 - y0) / (x1 - x0)` of a segment with `x1 > x0`, or `None` when it is not
+/// an integer; in `i64` when the differences fit (a unit step divides nothing), in `i128`
+/// otherwise.
+fn segment_slope(x0: i64, y0: i64, x1: i64, y1: i64) -> Result<Option<i64>> {
+    if let (Some(dx), Some(dy)) = (x1.checked_sub(x0), y1.checked_sub(y0)) {
+        return Ok(match dx {
+            1 => Some(dy),
+            _ => (dy % dx == 0).then_some(dy / dx),
+        });
+    }
+    let (dx, dy) = (
+        i128::from(x1) - i128::from(x0),
+        i128::from(y1) - i128::from(y0),
+    );
+    if dy % dx != 0 {
+        return Ok(None);
+    }
+    i64::try_from(dy / dx)
+        .map(Some)
+        .map_err(|_| overflow("taking a segment slope"))
+}
+
 impl Piecewise {
     fn validate(variable: usize, points: &[(i64, i64)]) -> Result<Piecewise> {
         if points.len() < 2 {
@@ -283,18 +305,13 @@ impl Piecewise {
                     x: x1,
                 });
             }
-            let (dx, dy) = (
-                i128::from(x1) - i128::from(x0),
-                i128::from(y1) - i128::from(y0),
-            );
-            if dy % dx != 0 {
+            let Some(slope) = segment_slope(x0, y0, x1, y1)? else {
                 return Err(AugmentError::FractionalSlope {
                     variable,
                     from: x0,
                     to: x1,
                 });
-            }
-            let slope = i64::try_from(dy / dx).map_err(|_| overflow("taking a segment slope"))?;
+            };
             if let Some(&left) = slopes.last() {
                 if slope < left {
                     return Err(AugmentError::NotConvex {
@@ -377,6 +394,26 @@ pub(crate) mod strategies {
 
 #[cfg(test)]
 mod tests {
+
+    /// A segment's slope by hand: unit steps, wider steps that divide and that do not, and
+    /// differences beyond `i64` (taken in `i128`).
+    #[test]
+    fn segment_slopes_are_exact_or_refused() {
+        assert_eq!(segment_slope(3, 10, 4, -2).unwrap(), Some(-12));
+        assert_eq!(segment_slope(-2, 1, 4, 19).unwrap(), Some(3));
+        assert_eq!(segment_slope(0, 0, 4, 6).unwrap(), None);
+        assert_eq!(segment_slope(0, 0, 3, -7).unwrap(), None);
+        // x1 - x0 = y1 - y0 = 2^64 - 2, beyond i64: slope 1, found in i128.
+        assert_eq!(
+            segment_slope(i64::MIN + 1, i64::MIN + 1, i64::MAX, i64::MAX).unwrap(),
+            Some(1)
+        );
+        assert_eq!(
+            segment_slope(-(1 << 62), -(1 << 62), 1 << 62, (1 << 62) + 1).unwrap(),
+            None
+        );
+    }
+
     use proptest::prelude::*;
 
     use super::strategies::joined;

@@ -136,28 +136,28 @@ impl Pieces {
         if self.slopes.iter().any(|s| s.checked_add(linear).is_none()) {
             return Err(PiecesFault::TooLarge);
         }
-        let xs: Vec<i64> = match (self.breaks.first(), self.breaks.last()) {
-            (Some(&first), Some(&last)) => {
-                let (Some(before), Some(after)) = (first.checked_sub(1), last.checked_add(1))
-                else {
-                    return Err(PiecesFault::TooLarge);
-                };
-                std::iter::once(before)
-                    .chain(self.breaks.iter().copied())
-                    .chain(std::iter::once(after))
-                    .collect()
-            }
-            _ => vec![0, 1],
+        let fits = |y: i128| i64::try_from(y).map_err(|_| PiecesFault::TooLarge);
+        let (Some(&first), Some(&last)) = (self.breaks.first(), self.breaks.last()) else {
+            return Ok(Term::PiecewiseLinear(vec![
+                (0, 0),
+                (1, linear + self.slopes[0]),
+            ]));
         };
-        xs.iter()
-            .map(|&x| {
-                let y = i128::from(linear) * i128::from(x) + self.value(x);
-                i64::try_from(y)
-                    .map(|y| (x, y))
-                    .map_err(|_| PiecesFault::TooLarge)
-            })
-            .collect::<std::result::Result<Vec<_>, _>>()
-            .map(Term::PiecewiseLinear)
+        let (Some(before), Some(after)) = (first.checked_sub(1), last.checked_add(1)) else {
+            return Err(PiecesFault::TooLarge);
+        };
+        // Each point from the one before along its segment's slope `c + s_k` (exact in
+        // `i128`), instead of evaluating `p` afresh at every point.
+        let mut y = i128::from(linear) * i128::from(before) + self.value(before);
+        let mut points = Vec::with_capacity(self.breaks.len() + 2);
+        points.push((before, fits(y)?));
+        let mut x = before;
+        for (&next, &s) in self.breaks.iter().chain([&after]).zip(&self.slopes) {
+            y += i128::from(linear + s) * (i128::from(next) - i128::from(x));
+            points.push((next, fits(y)?));
+            x = next;
+        }
+        Ok(Term::PiecewiseLinear(points))
     }
 }
 
@@ -273,6 +273,38 @@ mod tests {
         for x in -6..=9 {
             let want = 7 * 3 + 2 * i128::from(x) + p.value(x);
             assert_eq!(objective.value(&[3, x]).unwrap(), want, "x = {x}");
+        }
+    }
+
+    proptest::proptest! {
+        /// The term's points, found segment by segment, are `(x, c x + p(x))` by the closed
+        /// form of `value`, at one point below the first break, every break and one above
+        /// the last (a cost without breaks: at 0 and 1).
+        #[test]
+        fn term_points_follow_the_closed_form(
+            mut breaks in proptest::collection::vec(-1_000i64..1_000, 0..5),
+            steps in proptest::collection::vec(0i64..50, 6),
+            first in -100i64..100,
+            linear in -100i64..100,
+        ) {
+            breaks.sort_unstable();
+            breaks.dedup();
+            let slopes: Vec<i64> = (0..=breaks.len())
+                .map(|k| first + steps[..k].iter().sum::<i64>())
+                .collect();
+            let p = Pieces::new(breaks.clone(), slopes).unwrap();
+            let Term::PiecewiseLinear(points) = p.term(linear).unwrap() else {
+                panic!("a piecewise-linear term");
+            };
+            let xs: Vec<i64> = match (breaks.first(), breaks.last()) {
+                (Some(&a), Some(&b)) => [a - 1].into_iter().chain(breaks.clone()).chain([b + 1]).collect(),
+                _ => vec![0, 1],
+            };
+            let want: Vec<(i64, i64)> = xs
+                .iter()
+                .map(|&x| (x, i64::try_from(i128::from(linear) * i128::from(x) + p.value(x)).unwrap()))
+                .collect();
+            proptest::prop_assert_eq!(points, want);
         }
     }
 
