@@ -581,8 +581,9 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
 
     /// Applies the sign of `j` and the limits on `T`, then keeps the minimal members; with
     /// `exact`, reports whether the limits removed none of the minimal members. The pair
-    /// groups and per-member figures are dropped first, the working set and its index once
-    /// the minimal pass's set is built from it (the stage's peak of memory).
+    /// groups and per-member figures are dropped first; the minimal pass runs on the working
+    /// set itself (the sign and the limits hold below every member that meets them, see
+    /// [`WorkingSet::minimal_orbits_among`]), so the stage's end holds no second set.
     fn finish(mut self, comps: &[usize], exact: bool) -> Result<Lifted> {
         self.pos = Groups::new();
         self.neg = Groups::new();
@@ -592,23 +593,17 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let sign = self.stage.signs[j];
         let t = self.stage.truncation;
         let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
-        let width = self.width;
         if !exact {
-            let (members, kept) = self.set.kept_orbits(|v| signed(v) && admits(t, v, comps));
-            let set = collect_set::<W, E>(kept, members, width, comps)?;
-            drop(self);
             return Ok(Lifted {
-                orbits: set.minimal_orbits(),
+                orbits: (self.set).minimal_orbits_among(|v| signed(v) && admits(t, v, comps)),
                 exact: false,
             });
         }
         // Members above the limits are never needed to show that a member within them is
         // not minimal (anything ⊑ it is within them too), so cutting after the minimal
         // pass gives the same set as cutting before it.
-        let (members, kept) = self.set.kept_orbits(signed);
-        let set = collect_set::<W, E>(kept, members, width, comps)?;
+        let all = self.set.minimal_orbits_among(signed);
         drop(self);
-        let all = set.minimal_orbits();
         let total = all.len();
         let orbits: Vec<Orbit> = all
             .into_iter()

@@ -84,13 +84,32 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
     /// The members that are ⊑-minimal on the stage's components, as orbits, each once. The
     /// members are tested on all threads (each test only reads the set).
     pub(crate) fn minimal_orbits(&self) -> Vec<Orbit> {
+        self.minimal_orbits_among(|_| true)
+    }
+
+    /// The members satisfying `keep` that are ⊑-minimal on the stage's components, as orbits,
+    /// each once, in id order. `keep` must hold for every `h ⊑ v` whenever it holds for `v`
+    /// (a sign required at a component, a norm limit, a box): then a member that `keep`
+    /// rejects never lies below a kept one, so testing the kept members against the whole set
+    /// gives the minimal members of the kept ones, without a second set of them.
+    pub(crate) fn minimal_orbits_among(
+        &self,
+        keep: impl Fn(&[Entry]) -> bool + Sync,
+    ) -> Vec<Orbit> {
+        let width = self.store.width();
         let minimal: Vec<bool> = (0..self.len() as u32)
             .into_par_iter()
-            .map(|id| {
-                self.reducer
-                    .find(&self.store, self.store.get(id), Some(id))
-                    .is_none()
-            })
+            .map_init(
+                || vec![0; width],
+                |widened, id| {
+                    self.store.widen_into(id, widened);
+                    keep(widened)
+                        && self
+                            .reducer
+                            .find(&self.store, self.store.get(id), Some(id))
+                            .is_none()
+                },
+            )
             .collect();
         self.orbits_of(minimal).collect()
     }
@@ -113,23 +132,6 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
         self.len() - paired / 2
     }
 
-    /// The members satisfying `keep`, as orbits made one at a time (no list of them all), with
-    /// how many members they hold (a symmetric orbit counts twice).
-    pub(crate) fn kept_orbits(
-        &self,
-        keep: impl Fn(&[Entry]) -> bool,
-    ) -> (usize, impl Iterator<Item = Orbit> + '_) {
-        let mut widened = vec![0; self.store.width()];
-        let kept: Vec<bool> = (0..self.len() as u32)
-            .map(|id| {
-                self.store.widen_into(id, &mut widened);
-                keep(&widened)
-            })
-            .collect();
-        let members = kept.iter().filter(|&&k| k).count();
-        (members, self.orbits_of(kept))
-    }
-
     /// The members whose flag in `keep` is set, as orbits (a symmetric one when both signs
     /// are kept), each once, in id order.
     fn orbits_of(&self, keep: Vec<bool>) -> impl Iterator<Item = Orbit> + '_ {
@@ -150,5 +152,74 @@ impl<const W: usize, E: Stored> WorkingSet<W, E> {
                 symmetric: keep_rep && keep_neg,
             })
         })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::collections::BTreeSet;
+
+    use super::*;
+
+    /// Pseudo-random entries in -2..=2, mostly 0 (a linear congruential generator, common
+    /// practice).
+    fn generator(mut seed: u64) -> impl FnMut() -> Entry {
+        move || {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            match (seed >> 33) % 9 {
+                d @ 0..=4 => d as Entry - 2,
+                _ => 0,
+            }
+        }
+    }
+
+    /// The minimal pass on the working set itself, with a condition that holds below every
+    /// member meeting it (a sign at one component and a norm limit), gives the members
+    /// minimal among the kept ones, by a brute-force test of every kept pair.
+    #[test]
+    fn minimal_members_among_the_kept_ones() {
+        let comps: Vec<usize> = (0..7).collect();
+        let below = |h: &[Entry], v: &[Entry]| {
+            h != v
+                && comps
+                    .iter()
+                    .all(|&c| h[c] * v[c] >= 0 && h[c].abs() <= v[c].abs())
+        };
+        let keep = |v: &[Entry]| v[3] >= 0 && v.iter().map(|x| x.abs()).sum::<Entry>() <= 7;
+        for seed in 1..6 {
+            let mut next = generator(seed);
+            let mut set = WorkingSet::<1, i8>::new(7, comps.clone());
+            let mut seen = BTreeSet::new();
+            for k in 0..300 {
+                let v: Vec<Entry> = (0..7).map(|_| next()).collect();
+                let symmetric = k % 3 != 0;
+                if v.iter().all(|&x| x == 0) || seen.contains(&v) || seen.contains(&negate(&v)) {
+                    continue;
+                }
+                seen.insert(v.clone());
+                set.add(&v, symmetric).unwrap();
+            }
+            let members: Vec<Vec<Entry>> = (0..set.len() as u32)
+                .map(|i| set.store.widened(i))
+                .collect();
+            let kept: Vec<&Vec<Entry>> = members.iter().filter(|v| keep(v)).collect();
+            let want: BTreeSet<Vec<Entry>> = kept
+                .iter()
+                .filter(|v| !kept.iter().any(|h| below(h, v)))
+                .map(|v| v.to_vec())
+                .collect();
+            let got: BTreeSet<Vec<Entry>> = set
+                .minimal_orbits_among(keep)
+                .into_iter()
+                .flat_map(|o| {
+                    let neg = o.symmetric.then(|| negate(&o.rep));
+                    std::iter::once(o.rep).chain(neg)
+                })
+                .collect();
+            assert!(want.len() > 10 && want.len() < kept.len(), "seed {seed}");
+            assert_eq!(got, want, "seed {seed}");
+        }
     }
 }
