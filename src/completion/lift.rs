@@ -42,7 +42,7 @@ use super::checkpoint::StagePoint;
 use super::control::{Control, StopReason};
 use super::limits::{admits, Truncation};
 use super::partners::{marked, Group};
-use super::reducer::SignMask;
+use super::reducer::{Reducer, SignMask};
 use super::state_view::{Position, StateView};
 use super::store::{add_into, to_entries, Entry, Stored};
 use super::working::{Orbit, WorkingSet};
@@ -419,18 +419,27 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         }
     }
 
-    /// Adds the remainders in canonical order, reducing each against what is already there.
+    /// Adds the remainders in canonical order, reducing each against the members added before
+    /// it. Every remainder is already irreducible against the set it was reduced against,
+    /// which is the set the merge starts from, and what a reduction leaves of it is ⊑ it
+    /// (on `T`), so no member of that set lies below it either (⊑ is transitive): only the
+    /// members this merge adds can reduce a remainder, and they are indexed apart for it.
     fn merge(&mut self, mut sums: Vec<Vec<Entry>>) -> Result<()> {
         sums.sort_unstable();
         sums.dedup();
+        let mut added = Reducer::<W>::new(self.set.reducer.comps().to_vec());
         for mut w in sums {
-            if !self.set.reduce(&mut w)? {
+            if !added.reduce(&self.set.store, &mut w)? {
                 let symmetric = self
                     .stage
                     .old
                     .iter()
                     .all(|&c| self.stage.signs[c] == 0 || w[c] == 0);
+                let first = self.set.len() as u32;
                 self.add(&w, symmetric)?;
+                for id in first..self.set.len() as u32 {
+                    added.insert(&self.set.store, id);
+                }
             }
         }
         Ok(())
