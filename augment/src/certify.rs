@@ -257,12 +257,7 @@ impl Check<'_> {
             ..
         } = self.masks;
         if *words == 1 {
-            let (lo, up) = (at_lower[0], at_upper[0]);
-            return positive
-                .iter()
-                .zip(negative)
-                .map(|(&p, &n)| signs((p & up) | (n & lo) == 0, (n & up) | (p & lo) == 0))
-                .collect();
+            return one_word_unblocked(positive, negative, at_lower[0], at_upper[0]);
         }
         positive
             .chunks_exact(*words)
@@ -288,6 +283,21 @@ impl Check<'_> {
         }
         Ok(())
     }
+}
+
+/// The signs of each move (bit 0 `+`, bit 1 `-`) that no bound blocks, for one-word masks:
+/// `+` is blocked when it raises a coordinate at its upper bound (`up`) or lowers one at its
+/// lower bound (`lo`), `-` the other way round. Compiled for the wider vector units too and
+/// picked at run time.
+#[multiversion::multiversion(targets("x86_64+avx512f+avx512bw+avx512vl", "x86_64+avx2"))]
+fn one_word_unblocked(positive: &[u64], negative: &[u64], lo: u64, up: u64) -> Vec<u8> {
+    positive
+        .iter()
+        .zip(negative)
+        .map(|(&p, &n)| {
+            u8::from((p & up) | (n & lo) == 0) | (u8::from((n & up) | (p & lo) == 0) << 1)
+        })
+        .collect()
 }
 
 /// Bit masks of the coordinates of `x` at their lower and at their upper bound.

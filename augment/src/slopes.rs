@@ -77,7 +77,8 @@ pub(crate) fn improving_mask(sign: i8, own: u64, other: u64) -> u64 {
     }
 }
 
-/// Per move the sign of its rate: `-1`, `0` or `1`.
+/// Per move the sign of its rate: `-1`, `0` or `1` (compiled for the wider vector units too).
+#[multiversion::multiversion(targets("x86_64+avx512f+avx512bw+avx512vl", "x86_64+avx2"))]
 fn signs<T: Rate>(rates: &[T]) -> Vec<i8> {
     rates.iter().map(|&r| r.sign()).collect()
 }
@@ -143,12 +144,21 @@ where
             continue;
         }
         let cost = T::try_from(cost).ok()?;
-        let column = moves.column(variable)?;
-        for (sum, &g) in sums.iter_mut().zip(column) {
-            *sum = *sum + cost * T::from(g);
-        }
+        add_scaled(&mut sums, moves.column(variable)?, cost);
     }
     Some(sums)
+}
+
+/// `sums += cost * column`, lane by lane: compiled for the wider vector units too and picked
+/// at run time (with the mask tests of `marks.rs`, the loops a table variant spends most in).
+#[multiversion::multiversion(targets("x86_64+avx512f+avx512bw+avx512vl", "x86_64+avx2"))]
+fn add_scaled<T>(sums: &mut [T], column: &[i8], cost: T)
+where
+    T: Copy + Add<Output = T> + Mul<Output = T> + From<i8>,
+{
+    for (sum, &g) in sums.iter_mut().zip(column) {
+        *sum = *sum + cost * T::from(g);
+    }
 }
 
 /// `c.g` in checked `i128`.
