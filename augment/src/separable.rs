@@ -58,6 +58,7 @@ pub(crate) struct SeparableScan<'a, F: ?Sized> {
 /// `f_i(x_i + 1) - f_i(x_i)`. Every difference is at most [`FirstSteps::limit`] in absolute
 /// value, so every bound, every partial sum of one and every change of one fits in `i64`; a
 /// point beyond that leaves the scan without bounds (it then runs every line search).
+#[cfg_attr(test, derive(Clone))]
 pub(crate) struct FirstSteps {
     differences: Vec<[i64; 2]>,
     /// Per move the bound of its step with `+`.
@@ -120,19 +121,40 @@ impl FirstSteps {
         let Some(column) = moves.column(i) else {
             return false;
         };
-        let bounds = self.plus.iter_mut().zip(self.minus.iter_mut());
-        for ((plus, minus), &g) in bounds.zip(column) {
-            let g = i64::from(g);
-            let (rising, falling) = if g > 0 { (right, left) } else { (left, right) };
-            *plus += g * rising;
-            *minus -= g * falling;
+        add_column_to(&mut self.plus, &mut self.minus, column, left, right);
+        true
+    }
+
+    /// Recomputes every bound: once per phase, and after a step of a set without a narrow
+    /// column-major copy. A set with that copy whose moves are dense (at least a quarter of
+    /// their entries nonzero) is read column by column with vector passes; otherwise each move's
+    /// nonzero entries are read, which skips the zeros. Both give the same bounds.
+    fn refresh(&mut self, moves: &MoveSet) {
+        let dense = 4 * moves.nonzeros() >= moves.width() * moves.len();
+        if !(dense && self.refresh_by_columns(moves)) {
+            self.refresh_by_rows(moves);
+        }
+    }
+
+    /// [`FirstSteps::refresh`] by one column pass per variable with a difference; `false`
+    /// (nothing done) when the set has no narrow column-major copy.
+    fn refresh_by_columns(&mut self, moves: &MoveSet) -> bool {
+        if moves.column(0).is_none() {
+            return false;
+        }
+        self.plus.fill(0);
+        self.minus.fill(0);
+        for i in 0..self.differences.len() {
+            let [left, right] = self.differences[i];
+            if (left, right) != (0, 0) && moves.extent(i) > 0 {
+                self.add_column(moves, i, left, right);
+            }
         }
         true
     }
 
-    /// Recomputes every bound from the moves' supports: once per phase, and after a step of
-    /// a set without a narrow column-major copy.
-    fn refresh(&mut self, moves: &MoveSet) {
+    /// [`FirstSteps::refresh`] from every move's packed nonzero entries.
+    fn refresh_by_rows(&mut self, moves: &MoveSet) {
         // Per packed slot `2 i + [v < 0]` (see `support.rs`) the rates of `+` and of `-` per
         // unit of `|v|`: a positive entry raises `x_i` with `+` (right difference) and lowers
         // it with `-` (minus the left one), a negative entry the other way round.
@@ -169,14 +191,12 @@ impl FirstSteps {
         let mut flags = [0u8; 64];
         match blocked {
             Some((packed, bounds)) => {
-                let packed = &packed[start..start + len];
-                let moves = plus.iter().zip(minus).zip(packed);
-                for (flag, ((&p, &m), &word)) in flags.iter_mut().zip(moves) {
-                    // Swapping the halves of a packed word negates the move.
-                    let free_plus = word & bounds == 0;
-                    let free_minus = word.rotate_left(32) & bounds == 0;
-                    *flag = u8::from((p < 0) & free_plus) | u8::from((m < 0) & free_minus);
-                }
+                falling_free(
+                    &mut flags,
+                    (plus, minus),
+                    &packed[start..start + len],
+                    bounds,
+                );
             }
             None => {
                 for (flag, (&p, &m)) in flags.iter_mut().zip(plus.iter().zip(minus)) {
@@ -185,6 +205,41 @@ impl FirstSteps {
             }
         }
         gather_bits(&flags)
+    }
+}
+
+// The per-move loops of the first-step bounds are compiled for the wider vector units too and
+// picked at run time (the baseline x86-64 build has 128-bit units without 64-bit compares or
+// multiplications).
+
+/// Adds to the bounds of `+` and `-` of every move the contribution of one variable whose
+/// entries over the moves are `column`, with left and right differences `left` and `right`:
+/// a positive entry raises the variable with `+` (right difference) and lowers it with `-`.
+#[multiversion::multiversion(targets("x86_64+avx512f+avx512bw+avx512vl+avx512dq", "x86_64+avx2"))]
+fn add_column_to(plus: &mut [i64], minus: &mut [i64], column: &[i8], left: i64, right: i64) {
+    for ((plus, minus), &g) in plus.iter_mut().zip(minus.iter_mut()).zip(column) {
+        let g = i64::from(g);
+        let (rising, falling) = if g > 0 { (right, left) } else { (left, right) };
+        *plus += g * rising;
+        *minus -= g * falling;
+    }
+}
+
+/// Flag `j` set when move `j` has a sign with a negative bound that `bounds` does not block,
+/// given its packed masks (`+` in the low half, `-` in the high half).
+#[multiversion::multiversion(targets("x86_64+avx512f+avx512bw+avx512vl", "x86_64+avx2"))]
+fn falling_free(
+    flags: &mut [u8; 64],
+    (plus, minus): (&[i64], &[i64]),
+    packed: &[u64],
+    bounds: u64,
+) {
+    let moves = plus.iter().zip(minus).zip(packed);
+    for (flag, ((&p, &m), &word)) in flags.iter_mut().zip(moves) {
+        // Swapping the halves of a packed word negates the move.
+        let free_plus = word & bounds == 0;
+        let free_minus = word.rotate_left(32) & bounds == 0;
+        *flag = u8::from((p < 0) & free_plus) | u8::from((m < 0) & free_minus);
     }
 }
 
@@ -344,6 +399,25 @@ mod tests {
                 let falling = steps.falling(0, 1, None) == 1;
                 prop_assert_eq!(falling, steps.plus[0] < 0 || steps.minus[0] < 0);
             }
+        }
+
+        /// The two ways of computing every bound, column by column and move by move, agree.
+        #[test]
+        fn refreshes_by_columns_and_by_rows_agree(
+            terms in prop::collection::vec(term(), 4),
+            x in prop::collection::vec(-6i64..=6, 4),
+            rows in prop::collection::vec(prop::collection::vec(-3i64..=3, 4), 1..9),
+        ) {
+            let rows: Vec<_> = rows.into_iter().filter(|r| r.iter().any(|&v| v != 0)).collect();
+            prop_assume!(!rows.is_empty());
+            let f = Objective::separable(terms).expect("convex by construction");
+            let moves = MoveSet::from_rows(4, &rows, Coverage::Complete).unwrap();
+            let steps = FirstSteps::at(&f, &x, &moves).expect("small values fit");
+            let (mut by_rows, mut by_columns) = (steps.clone(), steps);
+            by_rows.refresh_by_rows(&moves);
+            prop_assert!(by_columns.refresh_by_columns(&moves));
+            prop_assert_eq!(&by_rows.plus, &by_columns.plus);
+            prop_assert_eq!(&by_rows.minus, &by_columns.minus);
         }
 
         /// The bounds kept along a walk of steps equal the bounds computed afresh at its end,
