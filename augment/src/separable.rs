@@ -144,10 +144,13 @@ impl FirstSteps {
         }
         self.plus.fill(0);
         self.minus.fill(0);
-        for i in 0..self.differences.len() {
-            let [left, right] = self.differences[i];
-            if (left, right) != (0, 0) && moves.extent(i) > 0 {
-                self.add_column(moves, i, left, right);
+        for (i, &[left, right]) in self.differences.iter().enumerate() {
+            // A variable no move changes, or without differences, adds nothing.
+            if (left, right) == (0, 0) || moves.extent(i) == 0 {
+                continue;
+            }
+            if let Some(column) = moves.column(i) {
+                add_column_to(&mut self.plus, &mut self.minus, column, left, right);
             }
         }
         true

@@ -604,7 +604,9 @@ impl<const W: usize, E: Stored> Lifting<'_, W, E> {
         let signed = |v: &[Entry]| sign == 0 || v[j].signum() * Entry::from(sign) >= 0;
         if !exact {
             return Ok(Lifted {
-                orbits: (self.set).minimal_orbits_among(|v| signed(v) && admits(t, v, comps)),
+                orbits: self
+                    .set
+                    .minimal_orbits_among(|v| signed(v) && admits(t, v, comps)),
                 exact: false,
             });
         }
